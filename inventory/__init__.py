@@ -1,0 +1,1 @@
+"""Data package: the part catalog and example bins (installed from inventory/)."""

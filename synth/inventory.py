@@ -1,0 +1,464 @@
+"""The part catalog and the user's bin: the only reader of ``inventory/``.
+
+Interface: ``load_catalog(paths=None) -> Catalog``; ``Catalog.parts`` (generic
+type -> ``Part``), ``Catalog.normalise(marking)``, ``Catalog.closest(marking)``;
+``Part`` and ``Unit`` records; ``load_bin(path, catalog, supply=5.0) -> Bin``;
+``data_path(*parts)`` for files shipped in ``inventory/``.
+
+Markings are normalised the way a technician reads a chip: maker prefixes
+(CD, HEF, MC1, SN, HCF, TC, M, MM ...) and grade/package suffixes (B, BE, BP,
+BCP, N, D, B1 ...) fall away, leaving the generic type; 74HC and 74HCT stay
+distinct, since their supply ranges and input levels differ.
+"""
+
+from __future__ import annotations
+
+import difflib
+import re
+from dataclasses import dataclass, field
+from importlib import resources
+from pathlib import Path
+from typing import Any, Iterable
+
+from .errors import BinError, CatalogError
+from .units import parse_si
+from .yamlsrc import MarkedDict, MarkedList, line_of, load_yaml
+
+CATEGORIES = ("gate", "inverter", "buffer", "counter", "flipflop", "decoder", "mux", "switch")
+UNIT_TYPES = ("gate", "inverter", "buffer", "counter", "flipflop", "decoder", "mux",
+              "spdt", "spst", "analog_mux")
+
+
+# ---------------------------------------------------------------- data files
+
+def data_path(*parts: str) -> Path:
+    """A path inside the shipped ``inventory/`` data (installed as ``synth._data``)."""
+    try:
+        root = Path(str(resources.files("synth._data")))
+    except ModuleNotFoundError:
+        root = Path(__file__).resolve().parent.parent / "inventory"
+    return root.joinpath(*parts)
+
+
+# ---------------------------------------------------------------- records
+
+@dataclass(frozen=True)
+class Unit:
+    """One functional unit of a part (a gate, a counter, a switch section)."""
+
+    id: str
+    type: str
+    fields: dict
+
+    @property
+    def op(self) -> str:
+        """The logic function: a gate's op, ``not`` for inverters, ``buf`` for buffers."""
+        return {"inverter": "not", "buffer": "buf"}.get(self.type, self.fields.get("op", self.type))
+
+    @property
+    def inputs(self) -> tuple[int, ...]:
+        if self.type in ("inverter", "buffer"):
+            return (self.fields["input"],)
+        return tuple(self.fields.get("inputs", ()))
+
+    @property
+    def output(self) -> int | None:
+        return self.fields.get("output")
+
+    @property
+    def schmitt(self) -> bool:
+        return bool(self.fields.get("schmitt", False))
+
+    def pins(self) -> list[tuple[int, str]]:
+        """Every package pin this unit uses, with the role it plays."""
+        return list(_unit_pins(self.fields))
+
+
+def _unit_pins(fields: dict, role: str = "") -> Iterable[tuple[int, str]]:
+    """Walk a unit's fields and yield (pin, role) for every pin number in them."""
+    skip = {"id", "type", "op", "mode", "modulus", "synchronous", "edge", "active",
+            "schmitt", "unbuffered", "on_when", "kind"}
+    for key, value in fields.items():
+        if key in skip:
+            continue
+        name = f"{role}.{key}" if role else str(key)
+        if key == "ties" and isinstance(value, dict):
+            yield from ((int(pin), f"tie.{level}") for pin, level in value.items())
+        elif isinstance(value, bool):
+            continue
+        elif isinstance(value, int):
+            yield value, name
+        elif isinstance(value, dict):
+            yield from _unit_pins(value, name)
+        elif isinstance(value, list):
+            for i, item in enumerate(value):
+                if isinstance(item, dict):
+                    yield from _unit_pins(item, f"{name}[{i}]")
+                elif isinstance(item, int) and not isinstance(item, bool):
+                    yield item, f"{name}[{i}]"
+
+
+@dataclass(frozen=True)
+class Part:
+    """A generic part type from the catalog (``4011``, ``74HC00``, ``74HCT00``)."""
+
+    type: str
+    family: str
+    function: str
+    category: str
+    pin_count: int
+    package: str
+    pins: dict[int, str]
+    power: dict[str, int]
+    units: tuple[Unit, ...]
+    supply: tuple[float, float]
+    timing: dict
+    source: dict
+    nc: tuple[int, ...] = ()
+    ties: dict[int, str] = field(default_factory=dict)
+    shared: tuple[int, ...] = ()
+    thresholds: dict = field(default_factory=dict)
+    r_on: dict = field(default_factory=dict)
+    notes: str = ""
+    raw: dict = field(default_factory=dict, compare=False, repr=False)
+
+    def units_of(self, *types: str) -> list[Unit]:
+        return [u for u in self.units if u.type in types]
+
+    def suits(self, supply: float) -> bool:
+        """Whether the part may run at this supply voltage (its datasheet range)."""
+        lo, hi = self.supply
+        return lo - 1e-9 <= supply <= hi + 1e-9
+
+    def delay_ns(self, key: str = "tpd", supply: float = 5.0, which: str = "typ") -> float | None:
+        """A timing figure at ``supply``, interpolated in 1/V between datasheet points.
+
+        CMOS delays fall roughly as 1/V over the supply range (common practice),
+        so interpolation is done in 1/V; outside the table the nearest point is used.
+        """
+        table = self.timing.get(key)
+        if not table:
+            return None
+        points = sorted((float(v), row[which]) for v, row in table.items()
+                        if isinstance(row, dict) and which in row)
+        if not points:
+            return None
+        return interpolate_inverse_v(points, supply)
+
+    def pin_roles(self) -> dict[int, str]:
+        """Pin -> 'unit A: inputs[0]' style role text, power and ties included."""
+        roles: dict[int, str] = {}
+        for name, pin in self.power.items():
+            roles[pin] = name
+        for pin in self.nc:
+            roles[pin] = "NC"
+        for pin, level in self.ties.items():
+            roles[pin] = f"tie {level}"
+        for unit in self.units:
+            for pin, role in unit.pins():
+                roles.setdefault(pin, f"{unit.id}: {role}")
+        return roles
+
+    def unit_of_pin(self) -> dict[int, str]:
+        owners: dict[int, str] = {}
+        for unit in self.units:
+            for pin, _ in unit.pins():
+                owners[pin] = f"{owners[pin]},{unit.id}" if pin in owners and unit.id not in owners[pin] else unit.id
+        return owners
+
+
+def interpolate_inverse_v(points: list[tuple[float, float]], supply: float) -> float:
+    """Interpolate (volts, value) points linearly in 1/V.
+
+    >>> interpolate_inverse_v([(5.0, 100.0), (10.0, 50.0)], 7.5)
+    66.66666666666667
+    >>> interpolate_inverse_v([(5.0, 100.0)], 12.0)
+    100.0
+    """
+    if supply <= points[0][0]:
+        return points[0][1]
+    if supply >= points[-1][0]:
+        return points[-1][1]
+    for (v0, y0), (v1, y1) in zip(points, points[1:]):
+        if v0 <= supply <= v1:
+            x0, x1, x = 1 / v0, 1 / v1, 1 / supply
+            return y0 + (y1 - y0) * (x - x0) / (x1 - x0)
+    return points[-1][1]
+
+
+# ---------------------------------------------------------------- catalog
+
+# Maker prefixes seen on 4000-series chips (common practice); "MC1" is
+# Motorola/ON's MC14xxx, whose extra 1 `_four_thousand` drops.
+MAKER_PREFIXES = ("HCF", "HEF", "HEC", "MC", "CD", "SN", "TC", "MM", "NTE", "BU",
+                  "M", "LC", "HD", "IW", "KF", "UTC", "U", "F", "SNJ", "TP")
+
+
+@dataclass
+class Catalog:
+    """All known part types, with the marking rules that reach them."""
+
+    parts: dict[str, Part]
+    files: tuple[Path, ...] = ()
+
+    def normalise(self, marking: str) -> str | None:
+        """The generic type for a chip marking, or None when it is not known.
+
+        >>> cat = load_catalog()
+        >>> [cat.normalise(m) for m in ("CD4011BE", "MC14011BCP", "SN74HC00N", "74HCT00")]
+        ['4011', '4011', '74HC00', '74HCT00']
+        """
+        text = re.sub(r"[\s\-_/]", "", str(marking)).upper()
+        if text in self.parts:
+            return text
+        for candidate in _marking_candidates(text):
+            if candidate in self.parts:
+                return candidate
+        return None
+
+    def closest(self, marking: str, n: int = 3) -> list[str]:
+        """Known types that look most like an unknown marking (for the error)."""
+        text = re.sub(r"[\s\-_/]", "", str(marking)).upper()
+        digits = re.findall(r"\d+", text)
+        keys = list(self.parts)
+        guesses = difflib.get_close_matches(text, keys, n=n, cutoff=0.3)
+        for d in digits:
+            guesses += difflib.get_close_matches(d, keys, n=n, cutoff=0.5)
+        seen: list[str] = []
+        for g in guesses:
+            if g not in seen:
+                seen.append(g)
+        return seen[:n]
+
+    def by_family(self, family: str | None = None) -> list[Part]:
+        return [p for p in self.parts.values() if family is None or p.family.lower() == family.lower()]
+
+
+def _marking_candidates(text: str) -> Iterable[str]:
+    """Generic types a marking may stand for, most specific first."""
+    hc = re.search(r"74(HCT|HC|AHCT|AHC|LV|VHC)(\d{2,5})", text)
+    if hc:
+        family, number = hc.groups()
+        # An HCT part absent from the catalog must not silently become HC.
+        yield f"74{family}{number}"
+        return
+    for prefix in sorted(set(MAKER_PREFIXES), key=len, reverse=True):
+        if text.startswith(prefix):
+            yield from _four_thousand(text[len(prefix):])
+    yield from _four_thousand(text)
+
+
+def _four_thousand(rest: str) -> Iterable[str]:
+    """The whole digit run after the maker prefix: ``40106`` is never ``4010``.
+
+    >>> list(_four_thousand("40106BP")), list(_four_thousand("14011BCP"))
+    (['40106'], ['4011'])
+    """
+    match = re.match(r"1?(4\d{3,4})(?!\d)", rest)
+    if match:
+        yield match.group(1)
+
+
+def load_catalog(paths: Iterable[str | Path] | None = None) -> Catalog:
+    """Read the family files (the shipped ones unless ``paths`` is given)."""
+    files = tuple(Path(p) for p in paths) if paths is not None else \
+        tuple(sorted(data_path("catalog").glob("*.yaml")))
+    parts: dict[str, Part] = {}
+    for path in files:
+        for part in _parts_of_file(path):
+            if part.type in parts:
+                raise CatalogError(f"part {part.type} defined twice", file=path)
+            parts[part.type] = part
+    return Catalog(parts, files)
+
+
+def _parts_of_file(path: Path) -> list[Part]:
+    doc = load_yaml(path)
+    if not isinstance(doc, dict) or "parts" not in doc:
+        raise CatalogError("expected a mapping with 'family' and 'parts'", file=path)
+    family = str(doc.get("family", ""))
+    variants = doc.get("variants") or {}
+    parts = []
+    for name, entry in (doc["parts"] or {}).items():
+        where = line_of(doc["parts"], name)
+        try:
+            part = _part_from_entry(str(name), family, entry)
+        except (KeyError, TypeError, ValueError) as exc:
+            raise CatalogError(f"part {name}: expected the schema of DEVELOPERS.md, got {exc!r}",
+                               file=path, line=where) from exc
+        parts.append(part)
+        if entry.get("hct") and "HCT" in variants:
+            parts.append(_hct_twin(part, variants["HCT"]))
+    return parts
+
+
+def _voltage_table(table: Any) -> dict:
+    """YAML keys such as 5 or 4.5 -> float keys, nested rows kept as dicts."""
+    if not isinstance(table, dict):
+        return {}
+    return {float(k): dict(v) if isinstance(v, dict) else v for k, v in table.items()}
+
+
+def _part_from_entry(name: str, family: str, entry: dict) -> Part:
+    package = entry["package"]
+    units = tuple(Unit(str(u["id"]), str(u["type"]), _plain(u)) for u in entry["units"])
+    timing = {key: (_voltage_table(tab) if key != "notes" else tab)
+              for key, tab in (entry.get("timing") or {}).items()}
+    supply = entry["supply"]
+    return Part(
+        type=name, family=family, function=str(entry["function"]),
+        category=str(entry["category"]), pin_count=int(package["pins"]),
+        package=str(package.get("type", "DIP")),
+        pins={int(k): str(v) for k, v in entry["pins"].items()},
+        power={str(k): int(v) for k, v in entry["power"].items()},
+        units=units, supply=(float(supply["min"]), float(supply["max"])),
+        timing=timing, source=_plain(entry.get("source") or {}),
+        nc=tuple(int(p) for p in entry.get("nc") or ()),
+        ties={int(k): str(v) for k, v in (entry.get("ties") or {}).items()},
+        shared=tuple(int(p) for p in entry.get("shared") or ()),
+        thresholds=_voltage_table(entry.get("thresholds")),
+        r_on=_voltage_table(entry.get("r_on")),
+        notes=str(entry.get("notes") or ""), raw=_plain(entry),
+    )
+
+
+def _plain(value: Any) -> Any:
+    """Marked YAML containers -> plain dicts and lists (records stay simple)."""
+    if isinstance(value, dict):
+        return {k: _plain(v) for k, v in value.items()}
+    if isinstance(value, list):
+        return [_plain(v) for v in value]
+    return value
+
+
+def _hct_twin(part: Part, variant: dict) -> Part:
+    """The 74HCT part that shares a 74HC part's pins and function."""
+    supply = variant.get("supply", {"min": 4.5, "max": 5.5})
+    source = dict(part.source)
+    source["hct"] = str(variant.get("source", "from memory"))
+    return Part(
+        type=part.type.replace("74HC", "74HCT", 1), family="74HCT", function=part.function,
+        category=part.category, pin_count=part.pin_count, package=part.package, pins=part.pins,
+        power=part.power, units=part.units,
+        supply=(float(supply["min"]), float(supply["max"])), timing=part.timing,
+        source=source, nc=part.nc, ties=part.ties, shared=part.shared,
+        thresholds={}, r_on=part.r_on,  # HCT Schmitt levels differ: not in the catalog
+        notes=(part.notes + " " if part.notes else "") + f"HCT: {variant.get('input_levels', 'TTL input levels')}",
+        raw=part.raw,
+    )
+
+
+# ---------------------------------------------------------------- the bin
+
+BIN_KEYS = ("parts", "resistors", "capacitors", "supply", "name", "notes")
+
+
+@dataclass
+class Bin:
+    """What is on hand: usable parts at the chosen supply, and passives."""
+
+    path: str
+    supply: float
+    parts: dict[str, int]
+    resistors: list[float]
+    capacitors: list[float]
+    warnings: list[str]
+    markings: dict[str, list[str]]
+    lines: dict[str, int]
+    excluded: dict[str, int] = field(default_factory=dict)
+
+    def count(self, part_type: str) -> int:
+        return self.parts.get(part_type, 0)
+
+
+def load_bin(path: str | Path, catalog: Catalog, supply: float = 5.0) -> Bin:
+    """Read and check a bin file; every problem names the file and line."""
+    doc = load_yaml(path)
+    return bin_from_yaml(doc, catalog, supply, str(path))
+
+
+def bin_from_yaml(doc: object, catalog: Catalog, supply: float, path: str) -> Bin:
+    """Validate a parsed bin document (split from ``load_bin`` for tests)."""
+    if not isinstance(doc, MarkedDict):
+        raise BinError("expected a mapping with a 'parts:' key, got "
+                       f"{type(doc).__name__ if doc is not None else 'an empty file'}",
+                       file=path, line=getattr(doc, "line", 1),
+                       hint="start the file with 'parts:' and one 'MARKING: COUNT' line per chip type")
+    for key in doc:
+        if key not in BIN_KEYS:
+            close = difflib.get_close_matches(str(key), BIN_KEYS, n=1)
+            hint = f"did you mean '{close[0]}'?" if close else f"known keys: {', '.join(BIN_KEYS)}"
+            raise BinError(f"unknown top-level key {key!r}", file=path, line=doc.line_of(key), hint=hint)
+    if "parts" not in doc:
+        raise BinError("expected a 'parts:' mapping, got none", file=path, line=doc.line,
+                       hint="add 'parts:' with one 'MARKING: COUNT' line per chip type")
+    raw_parts = doc["parts"]
+    if not isinstance(raw_parts, MarkedDict):
+        raise BinError("expected 'parts' to be a mapping of marking -> count, got "
+                       f"{type(raw_parts).__name__}", file=path, line=doc.line_of("parts"),
+                       hint="write e.g. 'CD4011BE: 2' on its own line under 'parts:'")
+    counts: dict[str, int] = {}
+    markings: dict[str, list[str]] = {}
+    lines: dict[str, int] = {}
+    for marking, value in raw_parts.items():
+        line = raw_parts.line_of(marking)
+        part_type = catalog.normalise(str(marking))
+        if part_type is None:
+            close = catalog.closest(str(marking))
+            hint = f"closest known types: {', '.join(close)}" if close else "see 'binsynth parts'"
+            raise BinError(f"unknown part marking {marking!r}", file=path, line=line, hint=hint)
+        counts[part_type] = counts.get(part_type, 0) + _count_of(value, marking, path, line)
+        markings.setdefault(part_type, []).append(str(marking))
+        lines.setdefault(part_type, line)
+    resistors = _passives(doc, "resistors", "ohm", path)
+    capacitors = _passives(doc, "capacitors", "F", path)
+    usable, excluded, warnings = {}, {}, []
+    for part_type, count in counts.items():
+        part = catalog.parts[part_type]
+        if part.suits(supply):
+            usable[part_type] = count
+        else:
+            excluded[part_type] = count
+            lo, hi = part.supply
+            warnings.append(f"{path}:{lines[part_type]}: {part_type} left out: its supply range is "
+                            f"{lo:g}-{hi:g} V and the design runs at {supply:g} V")
+    return Bin(path, supply, usable, resistors, capacitors, warnings, markings, lines, excluded)
+
+
+def _count_of(value: object, marking: object, path: str, line: int) -> int:
+    """A chip count: a positive integer, or ``{count: N}``."""
+    if isinstance(value, MarkedDict):
+        unknown = [k for k in value if k != "count"]
+        if unknown:
+            raise BinError(f"unknown key {unknown[0]!r} for {marking}", file=path,
+                           line=value.line_of(unknown[0]), hint="the long form is '{count: N}'")
+        if "count" not in value:
+            raise BinError(f"expected 'count' for {marking}, got none", file=path, line=line,
+                           hint="write '{count: 2}' or just '2'")
+        line, value = value.line_of("count"), value["count"]
+    if isinstance(value, bool) or not isinstance(value, int) or value <= 0:
+        raise BinError(f"expected a positive whole number of chips for {marking}, got {value!r}",
+                       file=path, line=line, hint="write how many chips are on hand, e.g. '2'")
+    return value
+
+
+def _passives(doc: MarkedDict, key: str, unit: str, path: str) -> list[float]:
+    """A list of values on hand (``[1k, 4k7, 10k]``); each must parse."""
+    if key not in doc or doc[key] is None:
+        return []
+    values = doc[key]
+    if not isinstance(values, MarkedList):
+        raise BinError(f"expected '{key}' to be a list such as [1k, 4k7, 10k], got {values!r}",
+                       file=path, line=doc.line_of(key), hint=f"write {key}: [value, value, ...]")
+    result = []
+    for i, text in enumerate(values):
+        try:
+            number = parse_si(str(text), unit)
+        except ValueError as exc:
+            raise BinError(f"{key}: {exc}", file=path, line=values.line_of(i),
+                           hint="values are written like 4k7, 10k, 6n8, 100n or 4.7nF") from None
+        if number <= 0:
+            raise BinError(f"{key}: expected a positive value, got {text!r}", file=path,
+                           line=values.line_of(i))
+        result.append(number)
+    return sorted(set(result))

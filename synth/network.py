@@ -1,0 +1,152 @@
+"""The gate network: what the mapper hands to packing.
+
+Interface: ``Gate`` (one physical unit of a catalog part, with the net on each
+of its input and output pins), ``SignalOut`` (which net carries a spec signal
+and at which electrical level it is asserted), ``Network`` (gates, signals,
+cost and proof), ``evaluate_gate`` and ``evaluate_network`` (zero-delay logic
+values, the reference for every self-check).
+
+Nets are strings.  ``VDD`` and ``VSS`` are the rails (a tied input); any other
+name is a counter output, a gate output or a primary input.  A gate's
+``inputs`` list every input pin of the unit in catalog order, so an input
+joined to another carries the same net twice and an unused one is a rail:
+packing never has to guess how a unit is used.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import Literal, Mapping
+
+Op = Literal["and", "nand", "or", "nor", "xor", "xnor", "not", "buf", "mux", "decoder"]
+RAILS = {"VDD": True, "VSS": False}
+
+
+@dataclass(frozen=True)
+class Gate:
+    """One unit of a chip as used in the design.
+
+    ``op`` is the unit's own function as the catalog gives it.  For ``mux``
+    units ``inputs`` are the data pins (code 0, 1, ...) followed by the
+    selects (least significant first); for ``decoder`` units the selects
+    (lsb first) followed by the enables, with ``outputs`` one net per code
+    ('' = pin left open) and ``active`` saying their asserted level.
+    """
+
+    id: str
+    part: str
+    op: Op
+    inputs: tuple[str, ...]
+    outputs: tuple[str, ...]
+    schmitt: bool = False
+    active: Literal["high", "low"] = "high"
+    enables_active: tuple[str, ...] = ()
+
+    @property
+    def output(self) -> str:
+        return self.outputs[0]
+
+
+@dataclass(frozen=True)
+class SignalOut:
+    """The net that carries a signal and its level while asserted."""
+
+    net: str
+    polarity: Literal["high", "low"]
+
+
+@dataclass
+class Network:
+    """A mapped design: gates over counter nets, before packing into chips."""
+
+    gates: list[Gate]
+    signals: dict[str, SignalOut]
+    inputs: tuple[str, ...]
+    chips: dict[str, int] = field(default_factory=dict)
+    proven_minimal: bool = False
+    lower_bound: int | None = None
+    method: str = ""
+    notes: list[str] = field(default_factory=list)
+
+    def depth(self) -> int:
+        """Logic depth: the longest chain of gates from an input to a signal."""
+        by_output = {net: gate for gate in self.gates for net in gate.outputs if net}
+        memo: dict[str, int] = {}
+
+        def level(net: str) -> int:
+            if net in memo:
+                return memo[net]
+            gate = by_output.get(net)
+            memo[net] = 0 if gate is None else 1 + max((level(n) for n in gate.inputs), default=0)
+            return memo[net]
+
+        return max((level(s.net) for s in self.signals.values()), default=0)
+
+
+def _value(net: str, values: Mapping[str, bool]) -> bool:
+    return RAILS[net] if net in RAILS else values[net]
+
+
+def evaluate_gate(gate: Gate, values: Mapping[str, bool]) -> dict[str, bool]:
+    """Zero-delay output levels of one gate, given the levels of its input nets.
+
+    >>> g = Gate("g1", "4011", "nand", ("a", "a"), ("y",))
+    >>> evaluate_gate(g, {"a": True})
+    {'y': False}
+    """
+    ins = [_value(n, values) for n in gate.inputs]
+    op = gate.op
+    if op in ("and", "nand"):
+        out = all(ins) ^ (op == "nand")
+    elif op in ("or", "nor"):
+        out = any(ins) ^ (op == "nor")
+    elif op in ("xor", "xnor"):
+        out = (sum(ins) % 2 == 1) ^ (op == "xnor")
+    elif op in ("not", "buf"):
+        out = ins[0] ^ (op == "not")
+    elif op == "mux":
+        nsel = _select_count(len(ins))
+        data, sel = ins[: len(ins) - nsel], ins[len(ins) - nsel:]
+        code = sum(1 << i for i, s in enumerate(sel) if s)
+        return {gate.outputs[0]: data[code], **({gate.outputs[1]: not data[code]}
+                                                  if len(gate.outputs) > 1 and gate.outputs[1] else {})}
+    elif op == "decoder":
+        return _evaluate_decoder(gate, ins)
+    else:
+        raise ValueError(f"expected a known gate op, got {op!r}")
+    return {gate.outputs[0]: out}
+
+
+def _select_count(n_inputs: int) -> int:
+    """A mux with 2^k data pins and k selects has n = 2^k + k inputs."""
+    for k in range(1, 5):
+        if (1 << k) + k == n_inputs:
+            return k
+    raise ValueError(f"expected 2^k data pins plus k selects, got {n_inputs} inputs")
+
+
+def _evaluate_decoder(gate: Gate, ins: list[bool]) -> dict[str, bool]:
+    nsel = len(ins) - len(gate.enables_active)
+    sel, enables = ins[:nsel], ins[nsel:]
+    enabled = all(level == (active == "high") for level, active in zip(enables, gate.enables_active))
+    code = sum(1 << i for i, s in enumerate(sel) if s)
+    asserted = gate.active == "high"
+    return {net: (enabled and k == code) == asserted
+            for k, net in enumerate(gate.outputs) if net}
+
+
+def evaluate_network(network: Network, inputs: Mapping[str, bool]) -> dict[str, bool]:
+    """Every net's level for one input assignment (gates in any order, no loops)."""
+    values = dict(inputs)
+    pending = list(network.gates)
+    while pending:
+        progressed = []
+        for gate in pending:
+            if all(n in values or n in RAILS for n in gate.inputs):
+                values.update(evaluate_gate(gate, values))
+                progressed.append(gate)
+        if not progressed:
+            missing = sorted({n for g in pending for n in g.inputs if n not in values and n not in RAILS})
+            raise ValueError(f"expected a loop-free network, got undriven nets {missing}")
+        pending = [g for g in pending if g not in progressed]
+    return values
