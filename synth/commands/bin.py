@@ -1,0 +1,140 @@
+"""``binsynth bin BIN``: check a bin and show what it can provide."""
+
+from __future__ import annotations
+
+import argparse
+from collections import defaultdict
+
+NAME = "bin"
+HELP = "validate a bin file and show the gates, counters, switches and passives it provides"
+
+
+def add_arguments(parser: argparse.ArgumentParser) -> None:
+    parser.add_argument("bin", help="the bin file (YAML)")
+    parser.add_argument("--supply", default="5 V", help="supply voltage the circuit will run at (default 5 V)")
+    parser.add_argument("--json", action="store_true", help="print JSON for scripts")
+
+
+def run(args: argparse.Namespace) -> int:
+    from ..errors import UsageError
+    from ..inventory import load_bin, load_catalog
+    from ..render import print_json, show
+    from ..units import parse_quantity
+
+    try:
+        supply = parse_quantity(args.supply, "V")
+    except ValueError as exc:
+        raise UsageError(f"--supply: {exc}") from None
+    catalog = load_catalog()
+    stock = load_bin(args.bin, catalog, supply)
+    summary = provides(stock, catalog)
+    if args.json:
+        print_json(summary)
+    else:
+        show(summary_blocks(stock, summary))
+    return 0
+
+
+def provides(stock, catalog) -> dict:
+    """What the bin's usable chips offer, by kind of unit."""
+    gates: dict[tuple, dict] = defaultdict(lambda: {"units": 0, "chips": []})
+    counters, switches, programmable, flipflops = [], [], [], []
+    for part_type, count in sorted(stock.parts.items()):
+        part = catalog.parts[part_type]
+        for kind, units in _units_by_kind(part).items():
+            entry = gates[kind]
+            entry["units"] += len(units) * count
+            entry["chips"].append(f"{count} x {part_type}")
+        for unit in part.units_of("counter"):
+            counters.append(_counter_row(part, unit, count))
+        for unit_type in ("spdt", "spst", "analog_mux"):
+            units = part.units_of(unit_type)
+            if units:
+                switches.append({"part": part_type, "chips": count, "kind": unit_type,
+                                 "sections": len(units) * count})
+        for unit_type in ("decoder", "mux"):
+            units = part.units_of(unit_type)
+            if units:
+                programmable.append({"part": part_type, "chips": count, "kind": unit_type,
+                                     "units": len(units) * count,
+                                     "width": len(units[0].fields.get("selects", []))})
+        if part.units_of("flipflop"):
+            flipflops.append({"part": part_type, "chips": count,
+                              "units": len(part.units_of("flipflop")) * count})
+    gate_rows = [{"kind": _kind_name(kind), "op": kind[0], "inputs": kind[1], "schmitt": kind[2],
+                  "units": entry["units"], "from": ", ".join(entry["chips"])}
+                 for kind, entry in sorted(gates.items())]
+    return {"bin": stock.path, "supply_v": stock.supply,
+            "parts": dict(sorted(stock.parts.items())),
+            "left_out": dict(sorted(stock.excluded.items())),
+            "gates": gate_rows, "counters": counters, "switches": switches,
+            "decoders_and_muxes": programmable, "flipflops": flipflops,
+            "resistors_ohm": stock.resistors, "capacitors_f": stock.capacitors,
+            "warnings": list(stock.warnings)}
+
+
+def _units_by_kind(part) -> dict[tuple, list]:
+    kinds: dict[tuple, list] = defaultdict(list)
+    for unit in part.units_of("gate", "inverter", "buffer"):
+        kinds[(unit.op, len(unit.inputs), unit.schmitt)].append(unit)
+    return kinds
+
+
+def _kind_name(kind: tuple) -> str:
+    op, width, schmitt = kind
+    name = {"not": "inverter", "buf": "buffer"}.get(op, f"{width}-input {op.upper()}")
+    return name + (" (Schmitt)" if schmitt else "")
+
+
+def _counter_row(part, unit, count: int) -> dict:
+    fields = unit.fields
+    stages = sorted(int(k) for k in fields.get("stages", {}))
+    decoded = sorted(int(k) for k in fields.get("decoded", {}))
+    return {"part": part.type, "unit": unit.id, "chips": count, "mode": fields.get("mode"),
+            "modulus": fields.get("modulus"), "synchronous": bool(fields.get("synchronous")),
+            "edge": fields.get("clock", {}).get("edge"),
+            "stages_pinned": stages, "decoded_outputs": decoded,
+            "reset": fields.get("reset", {}).get("active")}
+
+
+def _stage_text(stages: list[int]) -> str:
+    """``[1, 4, 5, 6]`` -> ``Q1, Q4-Q6`` (stage numbers, Q1 = divide by 2)."""
+    runs, start = [], None
+    for i, s in enumerate(stages):
+        if start is None:
+            start = s
+        if i + 1 == len(stages) or stages[i + 1] != s + 1:
+            runs.append(f"Q{start}" if start == s else f"Q{start}-Q{s}")
+            start = None
+    return ", ".join(runs)
+
+
+def summary_blocks(stock, summary: dict) -> list:
+    from ..render import Table, Text
+    from ..units import format_si
+
+    blocks = [Text(f"bin {stock.path}: {sum(stock.parts.values())} usable chips at {stock.supply:g} V")]
+    blocks.append(Table("gates, inverters and buffers", ("kind", "units", "from"),
+                        [(g["kind"], g["units"], g["from"]) for g in summary["gates"]]))
+    if summary["counters"]:
+        blocks.append(Table("counters", ("part", "unit", "chips", "mode", "clocking", "stages pinned out"), [
+            (c["part"], c["unit"], c["chips"], f"{c['mode']} /{c['modulus']}",
+             ("synchronous" if c["synchronous"] else "ripple") + f", {c['edge']} edge",
+             _stage_text(c["stages_pinned"]) if c["stages_pinned"]
+             else f"decoded 0-{max(c['decoded_outputs'])}") for c in summary["counters"]]))
+    if summary["switches"]:
+        blocks.append(Table("analog switches", ("part", "chips", "kind", "sections"),
+                            [(s["part"], s["chips"], s["kind"], s["sections"]) for s in summary["switches"]]))
+    if summary["decoders_and_muxes"]:
+        blocks.append(Table("decoders and multiplexers", ("part", "chips", "kind", "select bits", "units"),
+                            [(d["part"], d["chips"], d["kind"], d["width"], d["units"])
+                             for d in summary["decoders_and_muxes"]]))
+    if summary["flipflops"]:
+        blocks.append(Table("flip-flops", ("part", "chips", "flip-flops"),
+                            [(f["part"], f["chips"], f["units"]) for f in summary["flipflops"]]))
+    passives = [("resistors", ", ".join(format_si(r, "Ω") for r in stock.resistors) or "none"),
+                ("capacitors", ", ".join(format_si(c, "F") for c in stock.capacitors) or "none")]
+    blocks.append(Table("passives", ("kind", "values on hand"), passives))
+    for warning in stock.warnings:
+        blocks.append(Text(f"warning: {warning}"))
+    return blocks
