@@ -3,7 +3,7 @@
 Interface: ``load_catalog(paths=None) -> Catalog``; ``Catalog.parts`` (generic
 type -> ``Part``), ``Catalog.normalise(marking)``, ``Catalog.closest(marking)``;
 ``Part`` and ``Unit`` records; ``load_bin(path, catalog, supply=5.0) -> Bin``;
-``data_path(*parts)`` for files shipped in ``inventory/``.
+``data_path(*parts)`` and ``example_path(*parts)`` for shipped files.
 
 Markings are normalised the way a technician reads a chip: maker prefixes
 (CD, HEF, MC1, SN, HCF, TC, M, MM ...) and grade/package suffixes (B, BE, BP,
@@ -33,11 +33,20 @@ UNIT_TYPES = ("gate", "inverter", "buffer", "counter", "flipflop", "decoder", "m
 
 def data_path(*parts: str) -> Path:
     """A path inside the shipped ``inventory/`` data (installed as ``synth._data``)."""
+    return _shipped("synth._data", "inventory").joinpath(*parts)
+
+
+def example_path(*parts: str) -> Path:
+    """A path inside the shipped ``examples/`` specs (installed as ``synth._examples``)."""
+    return _shipped("synth._examples", "examples").joinpath(*parts)
+
+
+def _shipped(package: str, folder: str) -> Path:
+    """The installed data package, or the source tree's folder when run from a checkout."""
     try:
-        root = Path(str(resources.files("synth._data")))
+        return Path(str(resources.files(package)))
     except ModuleNotFoundError:
-        root = Path(__file__).resolve().parent.parent / "inventory"
-    return root.joinpath(*parts)
+        return Path(__file__).resolve().parent.parent / folder
 
 
 # ---------------------------------------------------------------- records

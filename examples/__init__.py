@@ -1,0 +1,1 @@
+"""Data package: example specs (installed from examples/)."""
