@@ -179,8 +179,8 @@ class Part:
 def interpolate_inverse_v(points: list[tuple[float, float]], supply: float) -> float:
     """Interpolate (volts, value) points linearly in 1/V.
 
-    >>> interpolate_inverse_v([(5.0, 100.0), (10.0, 50.0)], 7.5)
-    66.66666666666667
+    >>> round(interpolate_inverse_v([(5.0, 100.0), (10.0, 50.0)], 7.5), 3)
+    66.667
     >>> interpolate_inverse_v([(5.0, 100.0)], 12.0)
     100.0
     """
