@@ -1,0 +1,186 @@
+"""``binsynth plan SPEC --bin BIN``: the main job, printed for a person.
+
+Interface: ``NAME``, ``HELP``, ``add_arguments(parser)``, ``run(args) -> int``,
+``plan_blocks(design)`` (what the terminal shows) and ``write_outputs(design,
+args)`` (the files asked for), shared with ``binsynth demo``.
+"""
+
+from __future__ import annotations
+
+import argparse
+
+NAME = "plan"
+HELP = "plan the circuit for a spec from the chips in a bin: chips, pins, wiring list and checks"
+
+SAFETY = ("Cautions: handle CMOS chips with ESD care (grounded mat or wrist strap); never leave a "
+          "CMOS input floating (every unused input is tied in this list); stay inside each part's "
+          "supply range; decouple every chip with 100 nF; anything touching mains or high-energy "
+          "equipment follows local codes and licensed practice.")
+
+
+def add_arguments(parser: argparse.ArgumentParser) -> None:
+    parser.add_argument("spec", help="the stimulus spec (YAML)")
+    parser.add_argument("--bin", required=True, metavar="BIN", help="the bin file (YAML)")
+    add_output_arguments(parser)
+
+
+def add_output_arguments(parser: argparse.ArgumentParser) -> None:
+    parser.add_argument("--json", metavar="FILE", help="write the plan as JSON ('-' for standard output)")
+    parser.add_argument("--wiring", metavar="FILE", help="write the wiring list as Markdown with checkboxes")
+    parser.add_argument("--verilog", metavar="FILE", help="write a structural Verilog model")
+    parser.add_argument("--vcd", metavar="FILE", help="write the simulated cycle as a VCD file")
+    parser.add_argument("--svg", metavar="FILE", help="write a timing diagram (SVG)")
+    parser.add_argument("--take", action="store_true",
+                        help="write the bin back with the parts this plan uses removed (keeps a .bak)")
+    parser.add_argument("--fix", action="append", choices=["glitches"], default=[],
+                        help="apply remedies: 'glitches' changes the design so no output spikes")
+    parser.add_argument("--exact", choices=["auto", "yes", "no"], default="auto",
+                        help="exact (proven) search where sizes allow (auto), always, or never")
+
+
+def run(args: argparse.Namespace) -> int:
+    from ..pipeline import make_plan
+    from ..render import show
+
+    design = make_plan(args.spec, args.bin, exact=args.exact, fix=args.fix)
+    to_stdout = args.json == "-"
+    if not to_stdout:
+        show(plan_blocks(design))
+    write_outputs(design, args)
+    return 0
+
+
+def write_outputs(design, args) -> list[str]:
+    """Write every file asked for; return the paths written."""
+    written = []
+    plan = design.plan
+    if args.json:
+        from ..exports.plan_json import plan_to_json, write_json
+        from ..render import print_json
+
+        if args.json == "-":
+            print_json(plan_to_json(plan))
+        else:
+            written.append(str(write_json(plan, args.json)))
+    if args.wiring:
+        from ..exports.wiring import write_wiring
+
+        written.append(str(write_wiring(plan, args.wiring)))
+    if args.verilog:
+        from ..exports.verilog import write_verilog
+
+        written.append(str(write_verilog(plan, design.catalog, args.verilog)))
+    if args.vcd:
+        from ..exports.vcd import write_vcd
+
+        written.append(str(write_vcd(design.trace, plan, args.vcd)))
+    if args.svg:
+        from ..exports.svg import write_svg
+
+        written.append(str(write_svg(design.trace, plan, args.svg)))
+    if args.take:
+        from ..bintake import take_from_bin
+
+        result = take_from_bin(plan.bin_path, plan.bom, design.catalog, supply=plan.supply)
+        written.append(str(getattr(result, "path", plan.bin_path)))
+    return written
+
+
+def _gate_count(plan) -> int:
+    return len(plan.network.gates)
+
+
+def summary_text(design) -> str:
+    plan = design.plan
+    roles = {}
+    for chip in plan.chips:
+        roles[chip.role] = roles.get(chip.role, 0) + 1
+    parts = ", ".join(f"{n} {role}" for role, n in sorted(roles.items()))
+    if plan.proven_minimal:
+        proof = "proven minimal"
+    else:
+        bound = f", lower bound {plan.lower_bound} chips" if plan.lower_bound is not None else ""
+        proof = f"best found{bound}"
+    return (f"plan {plan.name}: {len(plan.chips)} chips ({parts}), {_gate_count(plan)} gates, "
+            f"logic chips {proof} [{plan.method}]; supply {plan.supply:g} V, "
+            f"counting on the {plan.clock_edge} edge of CLK")
+
+
+def bin_rows(design) -> list[tuple]:
+    plan, stock = design.plan, design.stock
+    rows = []
+    for part, on_hand in sorted(stock.parts.items()):
+        used = plan.bom.get(part, 0)
+        rows.append((part, used, on_hand, on_hand - used))
+    return rows
+
+
+def signal_rows(design) -> list[tuple]:
+    from ..minimize import to_text
+
+    plan, decode = design.plan, design.decode
+    rows = []
+    for name, info in plan.signals.items():
+        source = info.get("source")
+        where = f"{source[0]} pin {source[1]}" if source else "-"
+        expression = to_text(decode.cover, name) if name in decode.cover.outputs else ""
+        rows.append((name, info.get("polarity"), where, expression))
+    return rows
+
+
+def plan_blocks(design) -> list:
+    from ..netlist import pin_table, wire_list
+    from ..render import Table, Text
+
+    plan = design.plan
+    blocks = [Text(summary_text(design)),
+              Table("taken from the bin", ("part", "used", "on hand", "left"), bin_rows(design)),
+              Table("signals", ("signal", "delivered active", "from", "decode (counter pins)"),
+                    signal_rows(design))]
+    for name, sw in plan.switches.items():
+        blocks.append(Text(f"switch {name}: {sw.get('ref')} section {sw.get('unit', '?')}; common joins "
+                           f"{sw.get('when_control_high')} while its control is high"))
+    for chip in plan.chips:
+        part = plan.part_of(chip.ref)
+        rows = [(r.pin, r.function, r.net or "(open)", ", ".join(r.goes_to)) for r in pin_table(plan, chip.ref)]
+        blocks.append(Table(f"{chip.ref}  {part.type}  {part.function}", ("pin", "function", "net", "goes to"),
+                            rows))
+    if plan.decoupling:
+        blocks.append(Table("decoupling (add one per chip, close to its supply pins)", ("chip", "capacitor"),
+                            list(plan.decoupling)))
+    wires = wire_list(plan)
+    blocks.append(Table(f"wiring list by net ({len(wires)} wires)", ("net", "from", "to"),
+                        [(w.net, _end(plan, w.frm), _end(plan, w.to)) for w in wires]))
+    if plan.glitches:
+        blocks.append(Table("glitches (a signal briefly wrong on a tick entry)",
+                            ("signal", "tick", "width ns", "cause"),
+                            [(g.get("signal"), g.get("at_tick"), g.get("width_ns"), g.get("cause", ""))
+                             for g in map(_as_dict, plan.glitches)]))
+    if plan.coincident_edges:
+        blocks.append(Table("coincident edges (two signals switch on the same clock edge)",
+                            ("signals", "tick"),
+                            [(" & ".join(e["signals"]), e["at_tick"]) for e in map(_as_dict, plan.coincident_edges)]))
+    for remedy in design.remedies.get("text", []):
+        blocks.append(Text(f"remedy: {remedy}"))
+    for warning in plan.warnings:
+        blocks.append(Text(f"warning: {warning}"))
+    for caution in plan.cautions:
+        blocks.append(Text(f"caution: {caution}"))
+    blocks.append(Text(SAFETY))
+    return blocks
+
+
+def _as_dict(item) -> dict:
+    if isinstance(item, dict):
+        return item
+    from dataclasses import asdict, is_dataclass
+
+    return asdict(item) if is_dataclass(item) else dict(item)
+
+
+def _end(plan, end) -> str:
+    from ..netlist import endpoint_text
+
+    if isinstance(end, str):
+        return end
+    return endpoint_text(plan, *end)

@@ -1,0 +1,117 @@
+"""The main job, stage by stage: spec + bin -> a checked plan.
+
+Interface: ``Design`` (the plan and what led to it), ``make_plan(spec_path,
+bin_path, *, catalog=None, exact='auto', fix=()) -> Design``, and
+``switch_polarity(spec)`` (which signals may be delivered either way up).
+
+Each stage is a pure function of the previous stage's result; this module
+only threads them together, so ``plan``, ``demo`` and the tests run the same
+path.  Nothing is returned that has not passed the zero-delay self-check
+tick by tick (``packing.pack`` runs it), and the timing checks fill the
+plan's ``glitches`` and ``coincident_edges``.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any, Iterable
+
+
+@dataclass
+class Design:
+    """A finished plan with the intermediate results the reports show."""
+
+    plan: Any
+    spec: Any
+    stock: Any
+    catalog: Any
+    counter: Any
+    decode: Any
+    network: Any
+    trace: Any = None
+    remedies: dict = field(default_factory=dict)
+
+
+def switch_polarity(spec) -> dict[str, str]:
+    """Each signal's polarity for the mapper: as the spec says.
+
+    A signal that only drives a switch and says ``polarity: free`` may come
+    out either way up: packing then swaps the switch's throws instead of
+    spending an inverter.
+    """
+    return {name: sig.polarity for name, sig in spec.signals.items()}
+
+
+def reserved_chips(counter_plan, spec, stock, catalog) -> dict[str, int]:
+    """Chips the counters and the spec's switches take before logic is mapped."""
+    reserved: dict[str, int] = {}
+    for _, part in {(chip.ref, chip.part) for chip in counter_plan.chips}:
+        reserved[part] = reserved.get(part, 0) + 1
+    for part, count in _switch_chips(spec, stock, catalog).items():
+        reserved[part] = reserved.get(part, 0) + count
+    return {p: n for p, n in reserved.items() if n}
+
+
+def _switch_chips(spec, stock, catalog) -> dict[str, int]:
+    """How many switch chips the spec's switches need (SPDT sections first)."""
+    wanted = len(spec.switches)
+    if not wanted:
+        return {}
+    taken: dict[str, int] = {}
+    for unit_types, per_switch in ((("spdt",), 1), (("spst",), 2), (("analog_mux",), 1)):
+        for part_type, count in sorted(stock.parts.items()):
+            part = catalog.parts[part_type]
+            sections = len(part.units_of(*unit_types))
+            if not sections or wanted <= 0:
+                continue
+            per_chip = sections // per_switch
+            if not per_chip:
+                continue
+            need = min(count, -(-wanted // per_chip))
+            taken[part_type] = need
+            wanted -= need * per_chip
+    return taken
+
+
+def make_plan(spec_path: str | Path, bin_path: str | Path, *, catalog=None, exact: str = "auto",
+              fix: Iterable[str] = ()) -> Design:
+    """Run every stage; raise SynthError subclasses for the user's problems."""
+    from .counter import allocate
+    from .decode import derive
+    from .inventory import load_bin, load_catalog
+    from .packing import pack
+    from .spec import load_spec
+    from .techmap import build_library, map_design
+
+    catalog = catalog or load_catalog()
+    spec = load_spec(spec_path)
+    stock = load_bin(bin_path, catalog, spec.supply)
+    counter_plan = allocate(spec, stock, catalog)
+    decode = derive(spec, counter_plan, exact=exact)
+    library = build_library(stock, catalog, reserved=reserved_chips(counter_plan, spec, stock, catalog))
+    polarity = switch_polarity(spec)
+    for function in decode.functions:
+        polarity.setdefault(function.name, _internal_polarity(counter_plan, function.name))
+    network = map_design(decode.functions, len(counter_plan.vars), [v.net for v in counter_plan.vars],
+                         library, polarity=polarity, cover=decode.cover, exact=exact)
+    plan = pack(network, counter_plan, spec, stock, catalog)
+    plan.warnings[:0] = list(stock.warnings) + list(getattr(counter_plan, "warnings", []))
+    design = Design(plan, spec, stock, catalog, counter_plan, decode, network)
+    _timing_checks(design, set(fix))
+    return design
+
+
+def _internal_polarity(counter_plan, name: str) -> str:
+    """The counter reset decode must meet the reset pin's active level."""
+    reset = getattr(counter_plan, "reset", None)
+    if reset is not None and getattr(reset, "name", None) == name:
+        return getattr(reset, "active", "high")
+    return "high"
+
+
+def _timing_checks(design: Design, fix: set[str]) -> None:
+    """Glitches and coincident edges, from the timing module."""
+    from .timing import analyse
+
+    analyse(design, fix=fix)
