@@ -1,0 +1,186 @@
+"""``binsynth delay TIME --bin BIN``: R and C from the bin for an RC delay between two stages.
+
+Interface: ``NAME``, ``HELP``, ``add_arguments(parser)``, ``run(args) -> int``;
+``choose_receiver(bin_, catalog, part_arg, supply) -> (type or None, thresholds)``
+and ``delay_blocks(...)`` / ``delay_json(...)`` for the two ways of printing.
+
+The receiving stage is a Schmitt input from the bin (any part whose catalog
+entry has ``thresholds``: 40106, 74HC14, 4093, 74HC132 ...), inverters first;
+without one the delay drives a plain CMOS input, which works but is the
+weaker choice (the design says why).
+"""
+
+from __future__ import annotations
+
+import argparse
+from dataclasses import asdict
+
+NAME = "delay"
+HELP = ("choose R and C from the bin for an RC delay between two logic stages, "
+        "with its spread over the input thresholds")
+
+
+def add_arguments(parser: argparse.ArgumentParser) -> None:
+    parser.add_argument("delay", help="the wanted delay, e.g. 50us, 1.5ms, '40 us'")
+    parser.add_argument("--bin", required=True, metavar="BIN", help="the bin file (YAML)")
+    parser.add_argument("--supply", default="5", help="supply voltage, e.g. 5 or '10 V' (default 5)")
+    parser.add_argument("--part", help="the receiving part, e.g. 40106 or CD40106BE (default: a "
+                                       "Schmitt part from the bin); 'plain' for a plain CMOS input")
+    fixed = parser.add_mutually_exclusive_group()
+    fixed.add_argument("--r", metavar="OHMS", help="use this resistor (e.g. 10k) and choose C")
+    fixed.add_argument("--c", metavar="FARADS", help="use this capacitor (e.g. 6n8) and choose R")
+    parser.add_argument("--edge", choices=("rising", "falling"), default="rising",
+                        help="the edge the values are chosen for (default rising: 0 V -> VT+)")
+    parser.add_argument("--json", action="store_true", help="print JSON for scripts")
+
+
+def run(args: argparse.Namespace) -> int:
+    from ..analog import rc_delay_design
+    from ..inventory import load_bin, load_catalog
+    from ..render import print_json, show
+
+    wanted = _quantity(args.delay, "s", "delay")
+    supply = _quantity(args.supply, "V", "--supply")
+    fixed_r = _quantity(args.r, "ohm", "--r") if args.r else None
+    fixed_c = _quantity(args.c, "F", "--c") if args.c else None
+    catalog = load_catalog()
+    bin_ = load_bin(args.bin, catalog, supply)
+    part_type, thresholds, notes = choose_receiver(bin_, catalog, args.part, supply)
+    design = rc_delay_design(wanted, supply=supply, thresholds=thresholds,
+                             resistors=bin_.resistors, capacitors=bin_.capacitors,
+                             fixed_r=fixed_r, fixed_c=fixed_c, edge=args.edge)
+    part = catalog.parts.get(part_type) if part_type else None
+    warnings = list(bin_.warnings) + notes + design.warnings
+    if args.json:
+        print_json(delay_json(design, part_type, thresholds, wiring_hint(design, part), warnings))
+    else:
+        show(delay_blocks(design, part_type, thresholds, wiring_hint(design, part), warnings))
+    return 0
+
+
+def _quantity(text: str, unit: str, what: str) -> float:
+    from ..errors import UsageError
+    from ..units import parse_quantity
+
+    try:
+        value = parse_quantity(text, unit)
+    except ValueError as exc:
+        raise UsageError(f"{what}: {exc}") from None
+    if value <= 0:
+        raise UsageError(f"{what}: expected a positive value, got {text!r}")
+    return value
+
+
+def choose_receiver(bin_, catalog, part_arg: str | None, supply: float):
+    """The receiving part type (None: plain input), its thresholds, and notes for the user."""
+    from ..analog import plain_input_thresholds, thresholds_at
+    from ..errors import ShortError, UsageError
+
+    if not bin_.parts:
+        raise ShortError(f"no part in the bin {bin_.path} runs at {supply:g} V to drive or "
+                         "receive the delay", hint="check --supply, or add a part rated for it")
+    if part_arg and part_arg.lower() == "plain":
+        return None, plain_input_thresholds(supply), []
+    if part_arg:
+        part_type = catalog.normalise(part_arg)
+        if part_type is None:
+            close = catalog.closest(part_arg)
+            raise UsageError(f"--part: unknown part {part_arg!r}",
+                             hint=f"closest known types: {', '.join(close)}" if close else None)
+        if bin_.count(part_type) == 0:
+            raise ShortError(f"the bin {bin_.path} has no usable {part_type} at {supply:g} V",
+                             hint="add it to the bin, or leave out --part to use what is there")
+        part = catalog.parts[part_type]
+        if part.thresholds:
+            return part_type, thresholds_at(part.thresholds, supply), []
+        return part_type, plain_input_thresholds(supply), [
+            f"{part_type} has no Schmitt thresholds in the catalog: treated as a plain CMOS input"]
+    schmitt = [t for t in bin_.parts if catalog.parts[t].thresholds]
+    if schmitt:
+        part_type = min(schmitt, key=lambda t: (catalog.parts[t].category != "inverter", t))
+        return part_type, thresholds_at(catalog.parts[part_type].thresholds, supply), []
+    return None, plain_input_thresholds(supply), [
+        "no Schmitt-input part (40106, 74HC14, 4093, 74HC132) in the bin: the delay drives a "
+        "plain CMOS input"]
+
+
+def _unit_pins(part, index: int):
+    """(input pins, output pin, unit id) of the part's index-th logic unit, if it has one."""
+    units = [u for u in part.units if u.type in ("inverter", "gate")]
+    if len(units) <= index:
+        return None
+    unit = units[index]
+    return unit.inputs, unit.output, unit.id
+
+
+def wiring_hint(design, part) -> list[str]:
+    """Where R and C go, with real pins when the receiving part is known."""
+    from ..units import format_si
+
+    r, c = format_si(design.r, "Ω"), format_si(design.c, "F")
+    lines = [f"stage 1 output → R ({r}) → delay node",
+             f"C ({c}) from the delay node to VSS, leads short",
+             "delay node → stage 2 input (nothing else on the node)"]
+    if part is None:
+        return lines
+    first, second = _unit_pins(part, 0), _unit_pins(part, 1)
+    vss = part.power.get("VSS")
+    if first and second:
+        (_, out1, id1), (ins2, _, id2) = first, second
+        example = (f"e.g. on one {part.type}: pin {out1} (unit {id1} output) → R → node → "
+                   f"pin {ins2[0]} (unit {id2} input); C from the node to pin {vss} (VSS)")
+        if len(ins2) > 1:
+            others = ", ".join(str(p) for p in ins2[1:])
+            example += (f"; tie unit {id2}'s other input (pin {others}) to VDD (Schmitt NAND "
+                        "thresholds are specified with one input switching; tying both inputs "
+                        "together shifts them)")
+        lines.append(example)
+    if part.category in ("inverter", "gate"):
+        lines.append("stage 2 inverts: its output carries the delayed edge the other way up")
+    return lines
+
+
+def delay_blocks(design, part_type, thresholds, wiring, warnings) -> list:
+    """The design as render blocks: values, formula, spread, wiring, warnings."""
+    from ..render import Table, Text
+    from ..units import format_si
+
+    receiver = part_type or "a plain CMOS input"
+    head = Text(f"RC delay of {format_si(design.wanted_s, 's')} into {receiver} at "
+                f"{design.supply:g} V, chosen for the {design.edge} edge\n{thresholds.get('note', '')}")
+    values = Table("values", ("", "needed", "chosen"), [
+        ("R", format_si(design.needed_r, "Ω") + f" (with {format_si(design.c, 'F')})",
+         format_si(design.r, "Ω")),
+        ("C", format_si(design.needed_c, "F") + f" (with {format_si(design.r, 'Ω')})",
+         format_si(design.c, "F")),
+        ("delay", format_si(design.wanted_s, "s"),
+         f"{format_si(design.delay_typ, 's')} ({design.error:+.1%})"),
+    ])
+    formula = Text("formula (typical thresholds):\n"
+                   f"  rising  (0 → VT+):   {design.formulas['rising']}\n"
+                   f"  falling (VDD → VT−): {design.formulas['falling']}")
+    th = design.thresholds
+    spread = Table("delay over the threshold spread", ("edge", "threshold min / typ / max",
+                                                       "delay min", "typ", "max"), [
+        ("rising", _row_text(th["vt_plus"]), format_si(design.rising.min, "s"),
+         format_si(design.rising.typ, "s"), format_si(design.rising.max, "s")),
+        ("falling", _row_text(th["vt_minus"]), format_si(design.falling.min, "s"),
+         format_si(design.falling.typ, "s"), format_si(design.falling.max, "s")),
+    ])
+    blocks = [head, values, formula, spread, Text("wiring:\n" + "\n".join(f"  {w}" for w in wiring))]
+    if warnings:
+        blocks.append(Text("warnings:\n" + "\n".join(f"  - {w}" for w in warnings), style="yellow"))
+    return blocks
+
+
+def _row_text(row: dict) -> str:
+    return f"{row['min']:.3g} / {row['typ']:.3g} / {row['max']:.3g} V"
+
+
+def delay_json(design, part_type, thresholds, wiring, warnings) -> dict:
+    """A JSON object for scripts (SI units: seconds, ohms, farads, volts)."""
+    body = asdict(design)
+    body.pop("warnings")
+    return {"format": "binsynth-delay/1", "receiver": part_type or "plain-input",
+            "thresholds_method": thresholds.get("method"), "thresholds_note": thresholds.get("note"),
+            **body, "wiring": wiring, "warnings": warnings}
