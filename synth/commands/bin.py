@@ -13,6 +13,8 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("bin", help="the bin file (YAML)")
     parser.add_argument("--supply", default="5 V", help="supply voltage the circuit will run at (default 5 V)")
     parser.add_argument("--json", action="store_true", help="print JSON for scripts")
+    parser.add_argument("--diff", metavar="OTHER",
+                        help="show how the bin file OTHER differs from BIN (e.g. BIN.bak after a take)")
 
 
 def run(args: argparse.Namespace) -> int:
@@ -27,12 +29,48 @@ def run(args: argparse.Namespace) -> int:
         raise UsageError(f"--supply: {exc}") from None
     catalog = load_catalog()
     stock = load_bin(args.bin, catalog, supply)
+    if args.diff:
+        return run_diff(stock, load_bin(args.diff, catalog, supply), args.json)
     summary = provides(stock, catalog)
     if args.json:
         print_json(summary)
     else:
         show(summary_blocks(stock, summary))
     return 0
+
+
+def run_diff(stock, other, as_json: bool) -> int:
+    """``--diff OTHER``: the part counts and passives that differ, BIN -> OTHER."""
+    from ..bintake import diff_bins
+    from ..render import print_json, show
+
+    diff = diff_bins(stock, other)
+    if as_json:
+        print_json({"bin": stock.path, "other": other.path, **diff.as_dict()})
+    else:
+        show(diff_blocks(stock, other, diff))
+    return 0
+
+
+def diff_blocks(stock, other, diff) -> list:
+    from ..render import Table, Text
+    from ..units import format_si
+
+    if not diff.changed:
+        return [Text(f"{stock.path} and {other.path} hold the same parts and passives")]
+    blocks = [Text(f"changes from {stock.path} to {other.path}")]
+    if diff.parts:
+        blocks.append(Table("parts", ("part", "before", "after", "change"),
+                            [(p, a, b, f"{b - a:+d}") for p, a, b in diff.parts]))
+    passives = [(kind, ", ".join(format_si(v, unit) for v in added) or "-",
+                 ", ".join(format_si(v, unit) for v in removed) or "-")
+                for kind, unit, added, removed in (
+                    ("resistors", "Ω", diff.resistors_added, diff.resistors_removed),
+                    ("capacitors", "F", diff.capacitors_added, diff.capacitors_removed))
+                if added or removed]
+    if passives:
+        blocks.append(Table("passives", ("kind", "added", "removed"), passives))
+    return blocks
 
 
 def provides(stock, catalog) -> dict:
