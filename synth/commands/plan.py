@@ -81,7 +81,7 @@ def write_outputs(design, args) -> list[str]:
     if args.take:
         from ..bintake import take_from_bin
 
-        result = take_from_bin(plan.bin_path, plan.bom, design.catalog, supply=plan.supply)
+        result = take_from_bin(plan.bin_path, plan.bom, design.catalog, supply=plan.supply, note=plan.name)
         written.append(str(getattr(result, "path", plan.bin_path)))
     return written
 
