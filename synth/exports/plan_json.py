@@ -1,0 +1,111 @@
+"""The plan as JSON (``--json``): formats.md section 3, format ``binsynth-plan/1``.
+
+Interface: ``FORMAT``; ``plan_to_json(plan) -> dict`` (every key of the
+contract, plus ``proven_minimal``, ``lower_bound``, ``method``, ``supply``,
+``decoupling``, ``cautions``, ``counter``, ``nets_external`` and per-chip pin
+notes); ``plan_to_text(plan) -> str``; ``write_json(plan, path)`` (atomic).
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import json
+from pathlib import Path
+from typing import Any
+
+from ..netlist import Plan, ref_key, verilog_module_name
+from . import atomic_write_text
+
+FORMAT = "binsynth-plan/1"
+
+
+def _endpoint(ref_pin: tuple[str, int] | None) -> dict | None:
+    return None if ref_pin is None else {"ref": ref_pin[0], "pin": int(ref_pin[1])}
+
+
+def _plain(value: Any) -> Any:
+    """Records, tuples and sets -> JSON values (glitch and edge records included)."""
+    if dataclasses.is_dataclass(value) and not isinstance(value, type):
+        return _plain(dataclasses.asdict(value))
+    if isinstance(value, dict):
+        return {str(k): _plain(v) for k, v in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [_plain(v) for v in value]
+    if isinstance(value, (set, frozenset)):
+        return sorted(_plain(v) for v in value)
+    if value is None or isinstance(value, (bool, int, float, str)):
+        return value
+    return str(value)
+
+
+def _switch(sw: dict) -> dict:
+    extra = {k: sw[k] for k in ("unit", "part", "kind", "select", "on", "off", "control_net",
+                                "control_pin", "common_pin", "common_net", "complement_net") if k in sw}
+    sections = [{"ref": r, "unit": u} for r, u in sw.get("sections", ())]
+    return {"ref": sw["ref"], "when_control_high": sw["when_control_high"], **extra,
+            "sections": sections}
+
+
+def _counter(plan: Plan) -> dict:
+    counter = plan.counter
+    chips = [{"ref": c.ref, "part": c.part, "unit": str(c.unit), "clock_net": str(c.clock_net),
+              "clock_pin": int(c.clock_pin), "reset_net": str(getattr(c, "reset_net", "") or ""),
+              "reset_pin": getattr(c, "reset_pin", None)} for c in counter.chips]
+    refs = [c.ref for c in counter.chips]
+    variables = [{"index": v.index, "net": v.net,
+                  "ref": refs[v.chip] if isinstance(v.chip, int) else str(v.chip), "pin": int(v.pin),
+                  "pin_name": getattr(v, "pin_name", ""), "weight": getattr(v, "weight", None)}
+                 for v in counter.vars]
+    return {"edge": str(counter.edge), "cycle": int(counter.cycle), "chips": chips,
+            "variables": variables}
+
+
+def _decoupling(plan: Plan) -> list[dict]:
+    rows = []
+    for ref, note in plan.decoupling:
+        part = plan.part_of(ref)
+        rows.append({"ref": ref, "value": "100 nF", "across": [
+            {"ref": ref, "pin": part.power["VDD"]}, {"ref": ref, "pin": part.power["VSS"]}],
+            "note": note})
+    return rows
+
+
+def plan_to_json(plan: Plan) -> dict:
+    """The plan as a JSON-ready dict, keys as formats.md section 3 names them."""
+    chips = sorted(plan.chips, key=lambda c: ref_key(c.ref))
+    return {
+        "format": FORMAT,
+        "name": plan.name,
+        "clock_edge": plan.clock_edge,
+        "verilog_module": verilog_module_name(plan.name),
+        "signals": {name: {"polarity": sig["polarity"], "source": _endpoint(sig["source"]),
+                           "net": sig["net"]} for name, sig in plan.signals.items()},
+        "switches": {name: _switch(sw) for name, sw in plan.switches.items()},
+        "bom": [{"part": part, "count": count} for part, count in sorted(plan.bom.items())],
+        "chips": [{"ref": c.ref, "part": c.part, "role": c.role, "function": plan.parts[c.part].function,
+                   "units": dict(c.units_used),
+                   "pin_notes": {str(pin): note for pin, note in c.notes.items()}} for c in chips],
+        "wires": [{"net": net, "pins": [_endpoint(p) for p in pins]} for net, pins in plan.nets.items()],
+        "glitches": _plain(list(plan.glitches)),
+        "coincident_edges": _plain(list(plan.coincident_edges)),
+        "warnings": list(plan.warnings),
+        "supply": plan.supply,
+        "spec": plan.spec_path,
+        "bin": plan.bin_path,
+        "proven_minimal": bool(plan.proven_minimal),
+        "lower_bound": plan.lower_bound,
+        "method": plan.method,
+        "decoupling": _decoupling(plan),
+        "cautions": list(plan.cautions),
+        "nets_external": dict(plan.external),
+        "counter": _counter(plan),
+    }
+
+
+def plan_to_text(plan: Plan) -> str:
+    return json.dumps(plan_to_json(plan), indent=2) + "\n"
+
+
+def write_json(plan: Plan, path: str | Path) -> Path:
+    """Write the plan JSON, replacing any old file in one step."""
+    return atomic_write_text(path, plan_to_text(plan))

@@ -1,0 +1,123 @@
+"""The wiring list (``--wiring FILE``): printable Markdown, one checkbox per wire.
+
+Interface: ``wiring_markdown(plan) -> str``; ``wire_line(plan, wire) -> str``;
+``write_wiring(plan, path)`` (atomic).
+
+Layout: title, supply, cautions, parts with their decoupling capacitors,
+signals and switches, then every chip in ref order with its pins in pin
+order (a checkbox for each wire that starts at the pin, a plain line for a
+pin that only receives wires, is left open or is not connected), then every
+net with its pins.  Each wire appears exactly once, so ticking every box
+means the board is built.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+from ..netlist import Plan, Wire, endpoint_text, pin_table, ref_key, wire_list
+from . import atomic_write_text
+
+
+def _end_text(plan: Plan, end: tuple[str, int] | str) -> str:
+    return end if isinstance(end, str) else endpoint_text(plan, *end)
+
+
+def wire_line(plan: Plan, wire: Wire) -> str:
+    """``- [ ] U2 pin 1 (1A) -> U1 pin 9 (Q1) [net Q1]``, with the pin's note if any."""
+    text = f"- [ ] {endpoint_text(plan, *wire.frm)} -> {_end_text(plan, wire.to)} [net {wire.net}]"
+    note = plan.chip(wire.frm[0]).notes.get(wire.frm[1])
+    if note and (wire.net in ("VDD", "VSS") or " joins the common" in note) and not note.startswith("supply"):
+        text += f": {note}"
+    return text
+
+
+def _header(plan: Plan) -> list[str]:
+    lines = [f"# Wiring list: {plan.name}", ""]
+    sources = ", ".join(x for x in (f"spec {plan.spec_path}" if plan.spec_path else "",
+                                    f"bin {plan.bin_path}" if plan.bin_path else "") if x)
+    if sources:
+        lines += [f"Made by binsynth from {sources}.", ""]
+    lines += ["Tick each box as the wire goes in. Every wire is listed once, under the chip "
+              "and pin where it starts.", "", "## Supply", "",
+              f"- VDD = {plan.supply:g} V, VSS = 0 V (ground).",
+              f"- The counter advances on the {plan.clock_edge} edge of the clock input.", ""]
+    lines += ["## Cautions", ""] + [f"- {c}" for c in plan.cautions] + [""]
+    return lines
+
+
+def _parts(plan: Plan) -> list[str]:
+    lines = ["## Parts", "", "| Part | Count | Function |", "|---|---|---|"]
+    for part, count in sorted(plan.bom.items()):
+        lines.append(f"| {part} | {count} | {plan.parts[part].function} |")
+    lines.append(f"| 100 nF ceramic capacitor | {len(plan.decoupling)} | decoupling, one per chip "
+                 "across its supply pins (common practice) |")
+    return lines + [""]
+
+
+def _signals(plan: Plan) -> list[str]:
+    lines = ["## Signals", "", "| Signal | Asserted level | Chip pin | Net |", "|---|---|---|---|"]
+    for name, sig in plan.signals.items():
+        source = endpoint_text(plan, *sig["source"]) if sig["source"] else f"constant ({sig['net']})"
+        lines.append(f"| {name} | {sig['polarity']} | {source} | {sig['net']} |")
+    lines.append("")
+    if plan.switches:
+        lines += ["## Switches", "", "| Switch | Chip | Common | Joins while control high | "
+                  "Joins while control low |", "|---|---|---|---|---|"]
+        for name, sw in plan.switches.items():
+            low = sw["off"] if sw["when_control_high"] == sw["on"] else sw["on"]
+            lines.append(f"| {name} | {sw['ref']} ({sw['part']}, {sw['kind']}) | "
+                         f"{endpoint_text(plan, sw['ref'], sw['common_pin'])} | "
+                         f"{sw['when_control_high']} | {low} |")
+        lines.append("")
+    return lines
+
+
+def _chips(plan: Plan, wires: list[Wire]) -> list[str]:
+    starts: dict[tuple[str, int], list[Wire]] = {}
+    for wire in wires:
+        starts.setdefault(wire.frm, []).append(wire)
+    decoupling = dict(plan.decoupling)
+    lines = ["## Wires by chip", ""]
+    for chip in sorted(plan.chips, key=lambda c: ref_key(c.ref)):
+        part = plan.parts[chip.part]
+        lines += [f"### {chip.ref}: {chip.part} ({part.function}), {chip.role}", ""]
+        if chip.ref in decoupling:
+            lines += [f"Decoupling: {decoupling[chip.ref]}.", ""]
+        for row in pin_table(plan, chip.ref):
+            here = starts.get((chip.ref, row.pin), [])
+            if here:
+                lines += [wire_line(plan, w) for w in here]
+            elif row.net == "NC":
+                lines.append(f"- {chip.ref} pin {row.pin} ({row.function}): not connected inside the chip")
+            elif not row.net:
+                note = chip.notes.get(row.pin, "not used, left open")
+                lines.append(f"- {chip.ref} pin {row.pin} ({row.function}): open ({note})")
+            else:
+                lines.append(f"- {chip.ref} pin {row.pin} ({row.function}): net {row.net}, "
+                             "its wires are listed at their other ends")
+        lines.append("")
+    return lines
+
+
+def _nets(plan: Plan) -> list[str]:
+    lines = ["## Wires by net", ""]
+    for net, pins in plan.nets.items():
+        ends = ", ".join(endpoint_text(plan, r, p) for r, p in pins)
+        outside = f"; leaves the board to {plan.external[net]}" if net in plan.external else ""
+        count = f"{len(pins)} pin" + ("s" if len(pins) != 1 else "")
+        lines.append(f"- **{net}** ({count}): {ends}{outside}")
+    return lines + [""]
+
+
+def wiring_markdown(plan: Plan) -> str:
+    """The whole wiring list as one Markdown document."""
+    wires = wire_list(plan)
+    lines = _header(plan) + _parts(plan) + _signals(plan) + _chips(plan, wires) + _nets(plan)
+    lines += [f"{len(wires)} wires in all."]
+    return "\n".join(lines) + "\n"
+
+
+def write_wiring(plan: Plan, path: str | Path) -> Path:
+    """Write the wiring list, replacing any old file in one step."""
+    return atomic_write_text(path, wiring_markdown(plan))
