@@ -1,0 +1,1325 @@
+"""Timing truth: the planned circuit simulated with its chips' own delays.
+
+Interface:
+
+- ``simulate(counter_plan, network, catalog, supply, *, corner='typ',
+  clock_period_ns=None, cycles=1, inertial=True, gate_names=None) -> Trace``:
+  event-driven simulation of the counters and gates over whole cycles.
+- ``Trace`` (per-net changes, tick times, reset pulses, settling, warnings),
+  ``ResetPulse``; ``Trace.level_at``, ``Trace.sample``, ``Trace.window``.
+- ``counter_models(counter_plan, network, catalog, supply, corner)`` and
+  ``gate_models(network, catalog, supply, corner, gate_names)``: the delay
+  model the simulator and the Verilog export share (``CounterModel``,
+  ``CounterOutput``, ``GateModel``).
+- ``glitches(trace, expected_levels=None) -> list[Glitch]``: every tick entry
+  where a signal takes a wrong level for a moment, with cause, path, width.
+- ``ripple_hazards(counter_plan, functions_or_network, catalog=None)
+  -> list[RippleHazard]``: the exact state-based analysis (transient states
+  of a ripple count), used to cross-check the event simulation.
+- ``coincident_edges(delivered, cycle)`` and ``edge_skews(trace, records)``.
+- ``remedies(glitch, plan, *, catalog=None, stock=None, spec=None) -> list[str]``.
+- ``analyse(design, fix=())``: fills ``plan.glitches``, ``plan.coincident_edges``,
+  ``design.trace`` and ``design.remedies`` (the plan command's timing step).
+- ``default_period_ns(...)``, ``nice_period_ns(ns)``.
+
+The delay model (documented here once, used everywhere):
+
+- Tick k's counting edge is at ``k * period`` (k >= 1); at time 0 every
+  counter holds its all-zero state (tick 0) and every net its settled level.
+  CLK sits at the level the counting edge leaves it in for the first half of
+  each tick and at the other level for the second half.
+- Ripple counters: stage k changes ``clock_to_q + (k - k0) * stage`` after
+  the edge that clocks the unit, k0 being the first pinned-out stage (the
+  catalog's ``clock_to_q`` is measured to that stage).  Synchronous and
+  decoded (Johnson) counters change every output ``clock_to_q`` after it.
+  A unit clocked from another unit's stage sees that stage's own edge.
+- An asynchronous reset going active clears the state at once and moves the
+  outputs to state 0 after the ``reset`` delay; clock edges are ignored while
+  it is held.  A synchronous reset makes the next counting edge load 0.
+  Counter outputs are transport delays: every scheduled change happens.
+- Gates change their outputs ``tpd`` after an input change.  Inertial model
+  (as a Verilog primitive with one delay): when a gate's computed value
+  changes, any pending output change is cancelled and the new value is
+  scheduled if it differs from the present output, so a pulse shorter than
+  the gate's delay is swallowed.  ``inertial=False`` gives transport delays,
+  which show every pulse a real, faster part may pass: the glitch report
+  uses both.
+- Times are kept in whole picoseconds; catalog delays are rounded to 1 ps.
+"""
+
+from __future__ import annotations
+
+import bisect
+import heapq
+import math
+from collections.abc import Callable, Mapping, Sequence
+from dataclasses import dataclass, field
+from typing import Any
+
+from .errors import InternalError
+from .network import RAILS, Gate, Network, evaluate_gate
+
+__all__ = [
+    "simulate", "Trace", "ResetPulse", "counter_models", "gate_models", "CounterModel",
+    "CounterOutput", "GateModel", "glitches", "Glitch", "ripple_hazards", "RippleHazard",
+    "coincident_edges", "edge_skews", "remedies", "analyse", "default_period_ns",
+    "nice_period_ns", "ps", "expected_from_delivered",
+]
+
+CORNERS = ("typ", "max")
+PS_PER_NS = 1000
+
+
+def ps(ns: float) -> int:
+    """Nanoseconds -> whole picoseconds (the simulator's time unit).
+
+    >>> ps(66.6667), ps(105)
+    (66667, 105000)
+    """
+    return int(round(float(ns) * PS_PER_NS))
+
+
+def _ns(t_ps: int) -> float:
+    return t_ps / PS_PER_NS
+
+
+# ---------------------------------------------------------------- the delay model
+
+@dataclass(frozen=True)
+class CounterOutput:
+    """One counter pin that drives a net: a stage, a decoded state or a carry."""
+
+    net: str
+    kind: str                 # 'stage' (bit index-1), 'decoded' (state == index), 'carry', 'tc'
+    index: int
+    pin: int
+    pin_name: str
+    delay_ps: int             # after the edge that clocks the unit
+
+
+@dataclass
+class CounterModel:
+    """One counter unit as the simulator and the Verilog export model it."""
+
+    ref: str
+    unit: str
+    part: str
+    mode: str
+    modulus: int
+    synchronous: bool
+    clock_net: str
+    edge: str                 # edge of clock_net that advances the unit
+    reset_net: str | None     # None: held inactive
+    reset_high: bool
+    reset_sync: bool
+    reset_ps: int
+    outputs: list[CounterOutput]
+    notes: list[str] = field(default_factory=list)
+
+    def level(self, output: CounterOutput, state: int) -> bool:
+        """The output's level in a counter state."""
+        if output.kind == "stage":
+            return bool((state >> (output.index - 1)) & 1)
+        if output.kind == "decoded":
+            return state == output.index
+        if output.kind == "carry":
+            return state < (self.modulus + 1) // 2
+        if output.kind == "tc":
+            return state == self.modulus - 1
+        raise ValueError(f"expected a counter output kind, got {output.kind!r}")
+
+    def next_state(self, state: int, reset_active: bool) -> int:
+        if self.reset_sync and reset_active:
+            return 0
+        return (state + 1) % self.modulus
+
+
+@dataclass(frozen=True)
+class GateModel:
+    """A gate with its delay and the physical name it has on the board (``U2_A``)."""
+
+    gate: Gate
+    name: str
+    delay_ps: int
+    also_op: str | None = None     # second output of the same inputs (4068 AND, 4078 OR)
+
+    def evaluate(self, values: Mapping[str, bool]) -> dict[str, bool]:
+        out = evaluate_gate(self.gate, values)
+        if self.also_op and len(self.gate.outputs) > 1 and self.gate.outputs[1]:
+            twin = Gate(self.gate.id, self.gate.part, self.also_op, self.gate.inputs,  # type: ignore[arg-type]
+                        (self.gate.outputs[1],))
+            out.update(evaluate_gate(twin, values))
+        return {net: level for net, level in out.items() if net}
+
+
+def _delay(part: Any, key: str, supply: float, corner: str) -> float | None:
+    """A catalog delay at the corner, the other corner when only that one is given."""
+    if part is None:
+        return None
+    value = part.delay_ns(key, supply, corner)
+    if value is None:
+        other = "max" if corner == "typ" else "typ"
+        value = part.delay_ns(key, supply, other)
+    return value
+
+
+def _chip_ref(counter_plan: Any, chip: Any) -> str:
+    if isinstance(chip, int) and not isinstance(chip, bool):
+        return str(counter_plan.chips[chip].ref)
+    return str(chip)
+
+
+def reset_net_of(counter_plan: Any, network: Network) -> str | None:
+    """The board net that carries the counter reset (the decode's net, as packing wires it)."""
+    reset = getattr(counter_plan, "reset", None)
+    if reset is None:
+        return None
+    if getattr(reset, "direct", False) and getattr(reset, "direct_pin", None):
+        ref, pin = reset.direct_pin
+        for var in counter_plan.vars:
+            if _chip_ref(counter_plan, var.chip) == ref and int(var.pin) == int(pin):
+                return str(var.net)
+        return str(reset.net)
+    decoded = network.signals.get(getattr(reset, "name", ""))
+    return str(decoded.net) if decoded is not None else str(reset.net)
+
+
+def counter_models(counter_plan: Any, network: Network, catalog: Any, supply: float,
+                   corner: str = "typ") -> list[CounterModel]:
+    """Every counter unit of the plan with its outputs and delays at the corner."""
+    if corner not in CORNERS:
+        raise ValueError(f"expected a corner in {CORNERS}, got {corner!r}")
+    reset = getattr(counter_plan, "reset", None)
+    board_reset = reset_net_of(counter_plan, network)
+    models = []
+    for index, cc in enumerate(counter_plan.chips):
+        part = catalog.parts[cc.part]
+        unit = next(u for u in part.units if str(u.id) == str(cc.unit))
+        f = unit.fields
+        stages = {int(pin): int(k) for k, pin in (f.get("stages") or {}).items()}
+        decoded = {int(pin): int(n) for n, pin in (f.get("decoded") or {}).items()}
+        k0 = min((int(k) for k in (f.get("stages") or {})), default=1)
+        tcq = _delay(part, "clock_to_q", supply, corner) or 0.0
+        stage = _delay(part, "stage", supply, corner) or 0.0
+        t_reset = _delay(part, "reset", supply, corner)
+        notes = []
+        if t_reset is None:
+            t_reset = tcq
+            notes.append(f"{cc.ref}: the catalog gives no reset delay for {part.type}; "
+                         "clock-to-output used")
+        pins: dict[int, str] = {}
+        for var in counter_plan.vars:
+            if _chip_ref(counter_plan, var.chip) in (cc.ref, str(index)) and \
+                    (var.chip == index or str(getattr(var, "unit", cc.unit)) == str(cc.unit)):
+                if int(var.pin) in stages or int(var.pin) in decoded or \
+                        int(var.pin) in (f.get("carry"), f.get("carry_out")):
+                    pins[int(var.pin)] = str(var.net)
+        if reset is not None and getattr(reset, "direct", False) and getattr(reset, "direct_pin", None):
+            ref, pin = reset.direct_pin
+            if ref == cc.ref and (int(pin) in stages or int(pin) in decoded):
+                pins.setdefault(int(pin), str(board_reset))
+        outputs = []
+        synchronous = bool(f.get("synchronous", False))
+        for pin, net in sorted(pins.items()):
+            if pin in stages:
+                k = stages[pin]
+                delay = tcq if synchronous else tcq + (k - k0) * stage
+                outputs.append(CounterOutput(net, "stage", k, pin, part.pins.get(pin, ""), ps(delay)))
+            elif pin in decoded:
+                outputs.append(CounterOutput(net, "decoded", decoded[pin], pin, part.pins.get(pin, ""),
+                                             ps(tcq)))
+            elif pin == f.get("carry"):
+                outputs.append(CounterOutput(net, "carry", 0, pin, part.pins.get(pin, ""), ps(tcq)))
+            else:
+                outputs.append(CounterOutput(net, "tc", 0, pin, part.pins.get(pin, ""), ps(tcq)))
+        reset_field = f.get("reset") or {}
+        net = str(cc.reset_net) if getattr(cc, "reset_net", None) else None
+        if net is not None and net not in RAILS and reset is not None and net == str(reset.net):
+            net = board_reset
+        reset_high = reset_field.get("active", "high") == "high"
+        if net in RAILS:
+            if RAILS[net] == reset_high:
+                raise InternalError(f"{cc.ref}: its reset is tied to {net}, its active level")
+            net = None
+        edge = str(getattr(cc, "clock_edge", None) or f.get("clock", {}).get("edge", "rising"))
+        models.append(CounterModel(
+            ref=str(cc.ref), unit=str(cc.unit), part=part.type, mode=str(f.get("mode", "binary")),
+            modulus=int(f.get("modulus", 2 ** max(stages.values(), default=1))),
+            synchronous=synchronous or f.get("mode") == "johnson",
+            clock_net=str(cc.clock_net), edge=edge, reset_net=net, reset_high=reset_high,
+            reset_sync=bool(reset_field.get("synchronous", False)), reset_ps=ps(t_reset),
+            outputs=outputs, notes=notes))
+    return models
+
+
+def gate_names_of(plan: Any) -> dict[str, str]:
+    """Gate id -> its physical name, chip ref and unit (``U2_A``)."""
+    names = {}
+    for chip in getattr(plan, "chips", ()):
+        for unit, purpose in (chip.units_used or {}).items():
+            names.setdefault(str(purpose), f"{chip.ref}_{unit}")
+    return names
+
+
+def _also_op(part: Any, gate: Gate) -> str | None:
+    if part is None or len(gate.outputs) < 2:
+        return None
+    for unit in part.units:
+        also = unit.fields.get("also") if unit.type == "gate" else None
+        if also and unit.op == gate.op and len(unit.inputs) == len(gate.inputs):
+            return str(also["op"])
+    return None
+
+
+def gate_models(network: Network, catalog: Any, supply: float, corner: str = "typ",
+                gate_names: Mapping[str, str] | None = None) -> list[GateModel]:
+    """Each gate with its catalog delay (``tpd``) at the supply and corner."""
+    models = []
+    for gate in network.gates:
+        part = catalog.parts.get(gate.part)
+        delay = _delay(part, "tpd", supply, corner)
+        if delay is None:
+            raise InternalError(f"gate {gate.id}: the catalog gives no delay for part {gate.part}")
+        name = (gate_names or {}).get(gate.id, gate.id)
+        models.append(GateModel(gate, name, ps(delay), _also_op(part, gate)))
+    return models
+
+
+# ---------------------------------------------------------------- the trace
+
+@dataclass(frozen=True)
+class ResetPulse:
+    """One assertion of a counter's asynchronous reset."""
+
+    ref: str
+    start_ns: float
+    width_ns: float
+    at_tick: int
+
+
+@dataclass
+class Trace:
+    """Every net's level changes over the simulated cycles.
+
+    ``changes[net]`` lists ``(time_ns, level)`` after the level in
+    ``initial[net]``; ``tick_times_ns[k]`` is the start of tick k (its counting
+    edge for k >= 1).  ``signals`` maps each spec signal to its net and
+    delivered polarity; ``counter_nets`` are the decode variables, lowest
+    weight first.
+    """
+
+    period_ns: float
+    cycle: int
+    cycles: int
+    corner: str
+    supply: float
+    inertial: bool
+    clock_net: str
+    edge: str
+    initial: dict[str, bool]
+    changes: dict[str, list[tuple[float, bool]]]
+    signals: dict[str, tuple[str, str]]
+    counter_nets: list[str]
+    counter_weights: dict[str, int | None]
+    var_index: dict[str, int]
+    internal_nets: list[str]
+    drivers: dict[str, str]
+    resets: list[ResetPulse]
+    warnings: list[str]
+    end_ns: float
+    settle_ns: float
+    causes: dict[tuple[str, int], tuple[str, int] | None] = field(default_factory=dict, repr=False)
+    gate_outputs: dict[str, str] = field(default_factory=dict, repr=False)
+
+    @property
+    def ticks(self) -> int:
+        """Tick windows in the trace: every tick of the cycles, then tick 0 once more."""
+        return self.cycles * self.cycle + 1
+
+    @property
+    def tick_times_ns(self) -> list[float]:
+        return [k * self.period_ns for k in range(self.ticks)]
+
+    def nets(self) -> list[str]:
+        return list(self.initial)
+
+    def level_at(self, net: str, time_ns: float) -> bool:
+        """The level after every change at or before ``time_ns``."""
+        if net in RAILS:
+            return RAILS[net]
+        changes = self.changes.get(net, [])
+        i = bisect.bisect_right(changes, (time_ns, True))
+        return changes[i - 1][1] if i else self.initial[net]
+
+    def before(self, net: str, time_ns: float) -> bool:
+        """The level just before ``time_ns`` (changes at exactly that time excluded)."""
+        if net in RAILS:
+            return RAILS[net]
+        changes = self.changes.get(net, [])
+        i = bisect.bisect_left(changes, (time_ns, False))
+        return changes[i - 1][1] if i else self.initial[net]
+
+    def sample(self, net: str) -> list[bool]:
+        """The net's level just before each counting edge: one value per tick window."""
+        return [self.before(net, (k + 1) * self.period_ns) for k in range(self.ticks - 1)] + \
+            [self.level_at(net, self.end_ns)]
+
+    def window(self, net: str, k: int) -> list[tuple[float, bool]]:
+        """The net's changes during tick window k (from its counting edge to the next)."""
+        changes = self.changes.get(net, [])
+        lo = bisect.bisect_left(changes, (k * self.period_ns, False))
+        hi = bisect.bisect_left(changes, ((k + 1) * self.period_ns, False))
+        return changes[lo:hi]
+
+    def counter_state(self, time_ns: float) -> int:
+        """The decode variables' levels as a minterm (bit ``index`` = variable)."""
+        return sum(1 << self.var_index[n] for n in self.counter_nets if self.level_at(n, time_ns))
+
+    def count_value(self, time_ns: float) -> int:
+        """The count the counter outputs show (sum of stage weights)."""
+        return sum(self.counter_weights.get(n) or 0 for n in self.counter_nets
+                   if self.level_at(n, time_ns))
+
+
+# ---------------------------------------------------------------- the simulator
+
+def nice_period_ns(ns: float) -> float:
+    """The next 1-2-5 round figure at or above ``ns``.
+
+    >>> nice_period_ns(730), nice_period_ns(2000), nice_period_ns(2001)
+    (1000.0, 2000.0, 5000.0)
+    """
+    if ns <= 0:
+        return 1000.0
+    decade = 10 ** math.floor(math.log10(ns))
+    for step in (1, 2, 5, 10):
+        if step * decade >= ns - 1e-9:
+            return float(step * decade)
+    return float(10 * decade)
+
+
+def default_period_ns(counters: Sequence[CounterModel], gates: Sequence[GateModel]) -> float:
+    """A clock period long enough for every net to settle four times over."""
+    ripple = sum(max((o.delay_ps for o in c.outputs), default=0) for c in counters)
+    resets = max((c.reset_ps for c in counters if c.reset_net), default=0)
+    depth = _depth(gates)
+    slowest = max((g.delay_ps for g in gates), default=0)
+    settle = ripple + resets + 3 * depth * slowest
+    return max(1000.0, nice_period_ns(4 * _ns(settle)))
+
+
+def _depth(gates: Sequence[GateModel]) -> int:
+    by_out = {n: g for g in gates for n in g.gate.outputs if n}
+    memo: dict[str, int] = {}
+
+    def level(net: str, seen: frozenset = frozenset()) -> int:
+        if net in memo:
+            return memo[net]
+        g = by_out.get(net)
+        if g is None or net in seen:
+            return 0
+        memo[net] = 1 + max((level(i, seen | {net}) for i in g.gate.inputs), default=0)
+        return memo[net]
+
+    return max((level(n) for n in by_out), default=0)
+
+
+@dataclass(order=True)
+class _Event:
+    time: int
+    seq: int
+    net: str = field(compare=False)
+    level: bool = field(compare=False)
+    cause: tuple[str, int] | None = field(compare=False)
+    kind: str = field(compare=False)      # 'clock', 'counter', 'gate'
+
+
+class _Engine:
+    """The event queue, net levels and the recorded changes."""
+
+    def __init__(self, counters: list[CounterModel], gates: list[GateModel], clock_net: str,
+                 inertial: bool, initial: dict[str, bool]) -> None:
+        self.counters = counters
+        self.gates = gates
+        self.inertial = inertial
+        self.clock_net = clock_net
+        self.levels = dict(initial)
+        self.changes: dict[str, list[tuple[int, bool]]] = {n: [] for n in initial}
+        self.causes: dict[tuple[str, int], tuple[str, int] | None] = {}
+        self.queue: list[_Event] = []
+        self.seq = 0
+        self.pending: dict[str, int] = {}
+        self.cancelled: set[int] = set()
+        self.computed: dict[tuple[int, str], bool] = {}
+        self.fanout: dict[str, list[int]] = {}
+        for i, g in enumerate(gates):
+            for net in set(g.gate.inputs):
+                self.fanout.setdefault(net, []).append(i)
+            for net in g.gate.outputs:
+                if net:
+                    self.computed[(i, net)] = initial[net]
+        self.state = [0 for _ in counters]
+        self.busy_until = [0 for _ in counters]
+        self.reset_started: list[int | None] = [None for _ in counters]
+        self.reset_pulses: list[tuple[int, int, int]] = []
+        self.warnings: list[str] = []
+
+    def schedule(self, time: int, net: str, level: bool, cause: tuple[str, int] | None,
+                 kind: str) -> int:
+        self.seq += 1
+        heapq.heappush(self.queue, _Event(time, self.seq, net, level, cause, kind))
+        return self.seq
+
+    def last_change(self, net: str) -> tuple[str, int] | None:
+        n = len(self.changes.get(net, ()))
+        return (net, n - 1) if n else None
+
+    def run(self, end: int, period: int) -> None:
+        limit = 200_000 + 400 * len(self.gates) * (end // max(period, 1) + 1)
+        steps = 0
+        while self.queue and self.queue[0].time <= end:
+            t = self.queue[0].time
+            changed: dict[str, bool] = {}
+            while self.queue and self.queue[0].time == t:
+                ev = heapq.heappop(self.queue)
+                steps += 1
+                if ev.seq in self.cancelled:
+                    self.cancelled.discard(ev.seq)
+                    continue
+                if self.pending.get(ev.net) == ev.seq:
+                    del self.pending[ev.net]
+                if self.levels[ev.net] != ev.level:
+                    before = changed.get(ev.net, self.levels[ev.net])
+                    self.levels[ev.net] = ev.level
+                    self.changes[ev.net].append((t, ev.level))
+                    self.causes[(ev.net, len(self.changes[ev.net]) - 1)] = ev.cause
+                    changed.setdefault(ev.net, before)
+            if steps > limit:
+                raise InternalError("timing simulation did not settle (an oscillating loop?)",
+                                    hint="a bug in binsynth or a feedback loop in the plan")
+            self._react(t, changed)
+
+    def _react(self, t: int, changed: dict[str, bool]) -> None:
+        for i, c in enumerate(self.counters):
+            if c.reset_net is not None and c.reset_net in changed:
+                self._reset_changed(i, c, t)
+            if c.clock_net in changed:
+                was, now = changed[c.clock_net], self.levels[c.clock_net]
+                if was != now and now == (c.edge == "rising"):
+                    self._count(i, c, t)
+        touched = sorted({g for net in changed for g in self.fanout.get(net, ())})
+        for gi in touched:
+            self._evaluate(gi, t, changed)
+
+    def _reset_active(self, c: CounterModel) -> bool:
+        return c.reset_net is not None and self.levels[c.reset_net] == c.reset_high
+
+    def _count(self, i: int, c: CounterModel, t: int) -> None:
+        if self._reset_active(c) and not c.reset_sync:
+            self.warnings.append(f"{c.ref}: a counting edge at {_ns(t):.3f} ns came while the "
+                                 "reset was still held; the count was lost")
+            return
+        old = self.state[i]
+        new = c.next_state(old, self._reset_active(c))
+        cause = self.last_change(c.clock_net)
+        for out in c.outputs:
+            before, after = c.level(out, old), c.level(out, new)
+            if before != after:
+                self.schedule(t + out.delay_ps, out.net, after, cause, "counter")
+                self.busy_until[i] = max(self.busy_until[i], t + out.delay_ps)
+        self.state[i] = new
+
+    def _reset_changed(self, i: int, c: CounterModel, t: int) -> None:
+        if c.reset_sync:
+            return
+        if self._reset_active(c):
+            if self.reset_started[i] is None:
+                self.reset_started[i] = t
+            if t < self.busy_until[i]:
+                self.warnings.append(f"{c.ref}: the reset went active at {_ns(t):.3f} ns while its "
+                                     "stages were still changing; a real chip holds them at 0, "
+                                     "the model lets the pending changes finish (check the reset decode)")
+            self.state[i] = 0
+            cause = self.last_change(c.reset_net)  # type: ignore[arg-type]
+            for out in c.outputs:
+                self.schedule(t + c.reset_ps, out.net, c.level(out, 0), cause, "counter")
+        elif self.reset_started[i] is not None:
+            self.reset_pulses.append((i, self.reset_started[i], t - self.reset_started[i]))
+            self.reset_started[i] = None
+
+    def _evaluate(self, gi: int, t: int, changed: dict[str, bool]) -> None:
+        g = self.gates[gi]
+        out = g.evaluate(self.levels)
+        trigger = next((n for n in g.gate.inputs if n in changed), None)
+        cause = self.last_change(trigger) if trigger else None
+        for net, value in out.items():
+            if self.computed[(gi, net)] == value:
+                continue
+            self.computed[(gi, net)] = value
+            if self.inertial:
+                pending = self.pending.pop(net, None)
+                if pending is not None:
+                    self.cancelled.add(pending)
+                if value != self.levels[net]:
+                    self.pending[net] = self.schedule(t + g.delay_ps, net, value, cause, "gate")
+            else:
+                self.schedule(t + g.delay_ps, net, value, cause, "gate")
+
+
+def _settled_levels(counters: list[CounterModel], gates: list[GateModel], clock_net: str,
+                    clock_level: bool, extra_inputs: Sequence[str]) -> dict[str, bool]:
+    """Every net's zero-delay level with the counters at zero (the state at time 0)."""
+    levels: dict[str, bool] = {clock_net: clock_level}
+    for c in counters:
+        for out in c.outputs:
+            levels[out.net] = c.level(out, 0)
+    for net in extra_inputs:
+        levels.setdefault(net, False)
+    pending = list(gates)
+    while pending:
+        ready = [g for g in pending if all(n in levels or n in RAILS for n in g.gate.inputs)]
+        if not ready:
+            missing = sorted({n for g in pending for n in g.gate.inputs
+                              if n not in levels and n not in RAILS})
+            if not missing:
+                raise InternalError("timing: a gate loop without a counter in it")
+            # A loop through a counter reset (decode -> reset -> counter) starts inactive.
+            levels[missing[0]] = False
+            continue
+        for g in ready:
+            values = {**levels, **RAILS}
+            levels.update(g.evaluate(values))
+            pending.remove(g)
+    return levels
+
+
+def simulate(counter_plan: Any, network: Network, catalog: Any, supply: float, *,
+             corner: str = "typ", clock_period_ns: float | None = None, cycles: int = 1,
+             inertial: bool = True, gate_names: Mapping[str, str] | None = None) -> Trace:
+    """Simulate the counters and gates over ``cycles`` whole cycles (see the module text)."""
+    counters = counter_models(counter_plan, network, catalog, supply, corner)
+    gates = gate_models(network, catalog, supply, corner, gate_names)
+    cycle = int(counter_plan.cycle)
+    edge = str(getattr(counter_plan, "edge", None) or (counters[0].edge if counters else "rising"))
+    driven = {o.net for c in counters for o in c.outputs} | {n for g in gates for n in g.gate.outputs if n}
+    clock_nets = [c.clock_net for c in counters if c.clock_net not in driven]
+    clock_net = clock_nets[0] if clock_nets else "CLK"
+    period = ps(clock_period_ns) if clock_period_ns else ps(default_period_ns(counters, gates))
+    period += period % 2
+    half = period // 2
+    after_edge = edge == "rising"
+    undriven = [n for g in gates for n in g.gate.inputs
+                if n not in driven and n not in RAILS and n != clock_net]
+    initial = _settled_levels(counters, gates, clock_net, after_edge, undriven)
+    engine = _Engine(counters, gates, clock_net, inertial, initial)
+    ticks = cycles * cycle
+    end = (ticks + 1) * period
+    for k in range(ticks + 1):
+        engine.schedule(k * period + half, clock_net, not after_edge, None, "clock")
+        if k:
+            engine.schedule(k * period, clock_net, after_edge, None, "clock")
+    engine.run(end - 1, period)
+    return _trace_of(engine, counter_plan, network, counters, gates, period, cycle, cycles,
+                     corner, supply, inertial, clock_net, edge, initial, end)
+
+
+def _trace_of(engine: _Engine, counter_plan: Any, network: Network, counters: list[CounterModel],
+              gates: list[GateModel], period: int, cycle: int, cycles: int, corner: str,
+              supply: float, inertial: bool, clock_net: str, edge: str,
+              initial: dict[str, bool], end: int) -> Trace:
+    reset = getattr(counter_plan, "reset", None)
+    internal_names = {getattr(reset, "name", None)} if reset is not None else set()
+    signals = {name: (s.net, s.polarity) for name, s in network.signals.items()
+               if name not in internal_names}
+    counter_nets = [str(v.net) for v in sorted(counter_plan.vars, key=lambda v: v.index)]
+    weights = {str(v.net): getattr(v, "weight", None) for v in counter_plan.vars}
+    var_index = {str(v.net): int(v.index) for v in counter_plan.vars}
+    shown = {clock_net, *counter_nets, *(n for n, _ in signals.values())}
+    internal = [n for n in initial if n not in shown and n not in RAILS]
+    drivers = {o.net: c.ref for c in counters for o in c.outputs}
+    drivers.update({n: g.name for g in gates for n in g.gate.outputs if n})
+    changes = {net: [(_ns(t), v) for t, v in rows] for net, rows in engine.changes.items()}
+    resets = [ResetPulse(counters[i].ref, _ns(start), _ns(width), (start // period) % cycle)
+              for i, start, width in engine.reset_pulses]
+    warnings = list(dict.fromkeys(engine.warnings + [n for c in counters for n in c.notes]))
+    settle = _settle(engine.changes, clock_net, period, end)
+    if settle >= period // 2 and any(c.clock_net == clock_net for c in counters):
+        warnings.append(f"nets are still changing {_ns(settle):.0f} ns after a counting edge, "
+                        f"more than half the {_ns(period):.0f} ns clock period")
+    gate_outputs = {n: g.name for g in gates for n in g.gate.outputs if n}
+    return Trace(
+        period_ns=_ns(period), cycle=cycle, cycles=cycles, corner=corner, supply=supply,
+        inertial=inertial, clock_net=clock_net, edge=edge, initial=dict(initial),
+        changes=changes, signals=signals, counter_nets=counter_nets, counter_weights=weights,
+        var_index=var_index, internal_nets=internal, drivers=drivers, resets=resets,
+        warnings=warnings, end_ns=_ns(end), settle_ns=_ns(settle), causes=dict(engine.causes),
+        gate_outputs=gate_outputs)
+
+
+def _settle(changes: dict[str, list[tuple[int, bool]]], clock_net: str, period: int, end: int) -> int:
+    """The longest time from a counting edge to the last change it causes (clock excluded)."""
+    worst = 0
+    for net, rows in changes.items():
+        if net == clock_net:
+            continue
+        for t, _ in rows:
+            worst = max(worst, t % period)
+    return worst
+
+
+# ---------------------------------------------------------------- glitches
+
+@dataclass
+class Glitch:
+    """A tick entry where a signal takes a wrong level for a moment.
+
+    ``width_ns`` is the longest wrong-level pulse; ``cause`` names the
+    transient counter state (or the unequal gate paths) behind it and
+    ``path`` the chain from the counter output to the signal.
+    """
+
+    signal: str
+    at_tick: int
+    width_ns: float
+    cause: str
+    path: str
+    kind: str = "static"          # 'static': should not move; 'dynamic': moves more than once
+    wrong_level: bool = False     # the electrical level it wrongly takes
+    start_ns: float = 0.0         # after the counting edge
+    transient_state: int | None = None    # the decode variables' minterm
+    transient_count: int | None = None
+    from_count: int | None = None
+    to_count: int | None = None
+    source_net: str = ""
+    gates: tuple[str, ...] = ()
+    corner: str = "typ"
+    seen_inertial: bool | None = None   # kept by the inertial (Verilog-like) model at typ delays
+    width_max_ns: float | None = None
+
+    def as_json(self) -> dict:
+        record = {"signal": self.signal, "at_tick": self.at_tick, "width_ns": round(self.width_ns, 1),
+                  "cause": self.cause, "path": self.path, "kind": self.kind,
+                  "wrong_level": "high" if self.wrong_level else "low",
+                  "start_ns": round(self.start_ns, 1)}
+        if self.width_max_ns is not None:
+            record["width_max_ns"] = round(self.width_max_ns, 1)
+        if self.seen_inertial is not None:
+            record["passes_gate_delay"] = self.seen_inertial
+        return record
+
+
+def expected_from_delivered(delivered: Mapping[str, frozenset[int]], polarity: Mapping[str, str],
+                            cycle: int) -> dict[str, list[bool]]:
+    """Asserted tick sets -> electrical levels per tick (the form ``glitches`` takes).
+
+    >>> expected_from_delivered({"s": frozenset({1})}, {"s": "low"}, 3)
+    {'s': [True, False, True]}
+    """
+    return {name: [(t in ticks) == (polarity[name] == "high") for t in range(cycle)]
+            for name, ticks in delivered.items()}
+
+
+def glitches(trace: Trace, expected_levels: Mapping[str, Sequence[bool]] | None = None,
+             *, signals: Sequence[str] | None = None) -> list[Glitch]:
+    """Every (signal, tick entry) whose net takes a wrong level for a moment.
+
+    ``expected_levels[name][t]`` is the electrical level of tick t over one
+    cycle (the trace's own settled levels when not given).  A static entry
+    (same level before and after) may not move at all; a dynamic one moves
+    once.  Entries repeat every cycle: each (signal, tick) is reported once,
+    with its widest pulse.  A tick that settles at the wrong level is not a
+    glitch: ``settle_mismatches`` reports it.
+    """
+    found: dict[tuple[str, int], Glitch] = {}
+    names = list(signals) if signals is not None else list(trace.signals)
+    for name in names:
+        net = trace.signals[name][0]
+        if net in RAILS:
+            continue
+        for k in range(1, trace.ticks):
+            glitch = _glitch_at(trace, name, net, k, expected_levels)
+            if glitch is None:
+                continue
+            key = (name, glitch.at_tick)
+            if key not in found or glitch.width_ns > found[key].width_ns:
+                found[key] = glitch
+    return sorted(found.values(), key=lambda g: (g.signal, g.at_tick))
+
+
+def settle_mismatches(trace: Trace, expected_levels: Mapping[str, Sequence[bool]]) -> list[str]:
+    """Ticks where a signal's net, sampled just before the next counting edge, is not
+    at the expected level (a clock too fast for the chips, or a bug)."""
+    problems = []
+    for name, levels in expected_levels.items():
+        if name not in trace.signals:
+            continue
+        got = trace.sample(trace.signals[name][0])
+        for k, level in enumerate(got):
+            if level != levels[k % trace.cycle]:
+                problems.append(f"signal {name} is {'high' if level else 'low'} at the end of tick "
+                                f"{k % trace.cycle} (cycle {k // trace.cycle + 1}), the design says "
+                                f"{'high' if levels[k % trace.cycle] else 'low'}")
+                break
+    return problems
+
+
+def _window_span(trace: Trace, net: str, k: int) -> tuple[int, int]:
+    changes = trace.changes.get(net, [])
+    lo = bisect.bisect_left(changes, (k * trace.period_ns, False))
+    hi = bisect.bisect_left(changes, ((k + 1) * trace.period_ns, False))
+    return lo, hi
+
+
+def _glitch_at(trace: Trace, name: str, net: str, k: int,
+               expected: Mapping[str, Sequence[bool]] | None) -> Glitch | None:
+    edge = k * trace.period_ns
+    lo, hi = _window_span(trace, net, k)
+    rows = trace.changes.get(net, [])[lo:hi]
+    before = trace.before(net, edge)
+    settled = rows[-1][1] if rows else before
+    tick = k % trace.cycle
+    if expected is not None and name in expected and expected[name][tick] != settled:
+        return None
+    if before == settled:
+        pulses = [(i, rows[i][0], rows[i + 1][0]) for i in range(0, len(rows) - 1, 2)]
+    else:
+        pulses = [(i, rows[i][0], rows[i + 1][0]) for i in range(1, len(rows) - 1, 2)]
+    if not pulses:
+        return None
+    i, t0, t1 = max(pulses, key=lambda p: (p[2] - p[1], -p[1]))
+    wrong = rows[i][1]
+    why = _explain(trace, net, lo + i, k, name, t1)
+    return Glitch(signal=name, at_tick=tick, width_ns=round(t1 - t0, 3), cause=why.cause,
+                  path=why.path, kind="static" if before == settled else "dynamic",
+                  wrong_level=wrong, start_ns=round(t0 - edge, 3), transient_state=why.state,
+                  transient_count=why.count, from_count=why.frm, to_count=why.to,
+                  source_net=why.source, gates=why.gates, corner=trace.corner)
+
+
+@dataclass(frozen=True)
+class _Why:
+    cause: str
+    path: str
+    source: str
+    gates: tuple[str, ...]
+    state: int | None
+    count: int | None
+    frm: int
+    to: int
+
+
+def _origin(trace: Trace, net: str, index: int) -> tuple[str, int, list[str]]:
+    """Follow the causes of a change back to a counter output (or the clock)."""
+    gates: list[str] = []
+    seen = 0
+    while seen < 64:
+        seen += 1
+        if net in trace.gate_outputs:
+            gates.append(trace.gate_outputs[net])
+        cause = trace.causes.get((net, index))
+        if cause is None or net in trace.counter_nets or net == trace.clock_net:
+            break
+        net, index = cause
+    return net, index, gates[::-1]
+
+
+def _explain(trace: Trace, net: str, index: int, k: int, name: str, t1: float) -> _Why:
+    """The cause sentence and the path of the pulse from change ``index`` to time t1.
+
+    The pulse is traced back to the counter output change that set it off;
+    the counter states it shows are those from that change until the change
+    that ends it, shifted by the same path delay.
+    """
+    source, sindex, gates = _origin(trace, net, index)
+    path = " -> ".join([source, *gates, name])
+    edge = k * trace.period_ns
+    frm = trace.count_value(edge - 1e-3)
+    to = trace.count_value((k + 1) * trace.period_ns - 1e-3)
+    if source not in trace.counter_nets or sindex >= len(trace.changes.get(source, ())):
+        what = "the clock" if source == trace.clock_net else source
+        return _Why(f"count {frm}->{to}: {what} reaches {name} through gates of unequal delay",
+                    path, source, tuple(gates), None, None, frm, to)
+    t_src = trace.changes[source][sindex][0]
+    t_end = t1 - (trace.changes[net][index][0] - t_src)
+    moves = sorted((t, n, v) for n in trace.counter_nets for t, v in trace.window(n, k)
+                   if t >= t_src - 1e-6)
+    inside = [m for m in moves if m[0] < t_end - 1e-6]
+    after = [m for m in moves if m[0] >= t_end - 1e-6]
+    if not after:
+        last = inside[-1] if inside else (t_src, source, trace.changes[source][sindex][1])
+        return _Why(f"count {frm}->{to}: {last[1]} {'rises' if last[2] else 'falls'} last and reaches "
+                    f"{name} through gates of unequal delay (a logic hazard)",
+                    path, source, tuple(gates), None, None, frm, to)
+    counts = list(dict.fromkeys(trace.count_value(t) for t, _, _ in inside))
+    steps = [f"{n} {'rises' if v else 'falls'}" for _, n, v in inside]
+    end = after[0]
+    ending = (f"until the reset clears it" if _reset_between(trace, t_src, end[0])
+              else f"then {end[1]} {'rises' if end[2] else 'falls'}")
+    cause = (f"count {frm}->{to} passes through {' and '.join(map(str, counts))} "
+             f"({', '.join(steps)}, {ending})")
+    state = trace.counter_state(t_src)
+    return _Why(cause, path, source, tuple(gates), state, trace.count_value(t_src), frm, to)
+
+
+def _reset_between(trace: Trace, t0: float, t1: float) -> bool:
+    return any(t0 <= r.start_ns <= t1 for r in trace.resets)
+
+
+# ---------------------------------------------------------------- state-based ripple analysis
+
+@dataclass(frozen=True)
+class RippleHazard:
+    """A decode that is wrong on a transient state of one count.
+
+    ``states`` is the sequence of minterms the counter outputs pass through on
+    the entry to ``at_tick``, held states first and last; ``transient`` is the
+    wrong one, ``order`` says which outputs move in which order.
+    """
+
+    signal: str
+    at_tick: int
+    transient: int
+    wrong_level: bool
+    states: tuple[int, ...]
+    order: str
+
+
+@dataclass(frozen=True)
+class _VarRole:
+    index: int
+    net: str
+    weight: int | None
+    decoded: int | None       # the state a decoded (Johnson) output shows, else None
+    rank: int                 # order of change after a counting edge (equal: together)
+
+
+def _var_roles(counter_plan: Any, catalog: Any | None) -> list[_VarRole]:
+    """Each decode variable with the order in which it can change after an edge.
+
+    A ripple unit's stages change one after another from the lowest; a
+    synchronous or decoded unit's outputs together; a unit clocked from a
+    stage of another changes after that stage.  Without a catalog: lowest
+    weight first, or all together for a synchronous plan.
+    """
+    vars_ = sorted(counter_plan.vars, key=lambda v: v.index)
+    if catalog is None:
+        sync = bool(getattr(counter_plan, "synchronous", False))
+        order = sorted(vars_, key=lambda v: (v.weight if v.weight is not None else 0, v.index))
+        return [_VarRole(v.index, str(v.net), v.weight, None, 0 if sync else order.index(v))
+                for v in vars_]
+    chips = list(counter_plan.chips)
+    var_nets = {str(v.net) for v in vars_}
+    net_rank: dict[str, int] = {}
+    roles: dict[int, _VarRole] = {}
+    pending = list(range(len(chips)))
+    for _ in range(len(chips) + 1):
+        for ci in list(pending):
+            cc = chips[ci]
+            clock = str(cc.clock_net)
+            if clock in var_nets and clock not in net_rank:
+                continue
+            base = net_rank[clock] + 1 if clock in net_rank else 0
+            part = catalog.parts[cc.part]
+            unit = next(u for u in part.units if str(u.id) == str(cc.unit))
+            f = unit.fields
+            together = bool(f.get("synchronous")) or f.get("mode") == "johnson"
+            stages = {int(p): int(k) for k, p in (f.get("stages") or {}).items()}
+            decoded = {int(p): int(n) for n, p in (f.get("decoded") or {}).items()}
+            for v in vars_:
+                if _chip_ref(counter_plan, v.chip) != cc.ref or str(v.unit) != str(cc.unit):
+                    continue
+                rank = base if together else base + stages.get(int(v.pin), 1) - 1
+                roles[v.index] = _VarRole(v.index, str(v.net), v.weight, decoded.get(int(v.pin)), rank)
+                net_rank[str(v.net)] = rank
+            pending.remove(ci)
+    return [roles.get(v.index, _VarRole(v.index, str(v.net), v.weight, None, 0)) for v in vars_]
+
+
+def _transients(a: int, b: int, roles: list[_VarRole]) -> list[int]:
+    """The minterms the outputs pass through from a to b, a and b included.
+
+    >>> roles = [_VarRole(i, f"Q{i + 1}", 1 << i, None, i) for i in range(4)]
+    >>> [bin(s) for s in _transients(0b0111, 0b1000, roles)]
+    ['0b111', '0b110', '0b100', '0b0', '0b1000']
+    """
+    changed = [r for r in roles if (a ^ b) >> r.index & 1]
+    states = [a]
+    s = a
+    for rank in sorted({r.rank for r in changed}):
+        for r in changed:
+            if r.rank == rank:
+                s ^= 1 << r.index
+        states.append(s)
+    return _squash(states)
+
+
+def _squash(states: list[int]) -> list[int]:
+    out = [states[0]]
+    for s in states[1:]:
+        if s != out[-1]:
+            out.append(s)
+    return out
+
+
+def _natural_next(a: int, roles: list[_VarRole]) -> int | None:
+    """The minterm one count after minterm a, before any reset acts."""
+    if all(r.weight is not None for r in roles):
+        count = sum(r.weight for r in roles if a >> r.index & 1)  # type: ignore[misc]
+        return sum(1 << r.index for r in roles if (count + 1) & r.weight)  # type: ignore[operator]
+    high = [r.decoded for r in roles if a >> r.index & 1 and r.decoded is not None]
+    if len(high) == 1:
+        return sum(1 << r.index for r in roles if r.decoded == high[0] + 1)
+    return None
+
+
+def _function_values(counter_plan: Any, functions_or_network: Any) -> Callable[[str, int], bool]:
+    if isinstance(functions_or_network, Network):
+        from .network import evaluate_network
+
+        net = functions_or_network
+        driven = {n for g in net.gates for n in g.outputs}
+        free = {n for g in net.gates for n in g.inputs if n not in RAILS and n not in driven}
+        clock_level = getattr(counter_plan, "edge", "rising") == "rising"
+
+        def value(name: str, minterm: int) -> bool:
+            inputs = {n: clock_level for n in free}
+            inputs.update({str(v.net): bool(minterm >> v.index & 1) for v in counter_plan.vars})
+            return evaluate_network(net, inputs)[net.signals[name].net] if net.gates or \
+                net.signals[name].net in inputs else RAILS.get(net.signals[name].net, False)
+        return value
+
+    def value_of(name: str, minterm: int) -> bool:
+        f = functions_or_network[name]
+        return bool(f(minterm)) if callable(f) else minterm in f
+    return value_of
+
+
+def ripple_hazards(counter_plan: Any, functions_or_network: Any, catalog: Any | None = None,
+                   signals: Sequence[str] | None = None) -> list[RippleHazard]:
+    """Enumerate each tick entry's transient states and the decodes wrong on them.
+
+    ``functions_or_network``: a ``Network`` (the levels of its signal nets), or
+    a mapping name -> set of minterms where the decode is high, or name ->
+    callable(minterm).  A decode true on a transient state but false before
+    and after spikes; one that changes and changes back is a dynamic hazard.
+    With an asynchronous reset the count passes through the reset state too.
+    """
+    value = _function_values(counter_plan, functions_or_network)
+    if signals is None:
+        if isinstance(functions_or_network, Network):
+            skip = {getattr(getattr(counter_plan, "reset", None), "name", None)}
+            signals = [n for n in functions_or_network.signals if n not in skip]
+        else:
+            signals = list(functions_or_network)
+    roles = _var_roles(counter_plan, catalog)
+    states = [int(s) for s in counter_plan.state_of_tick]
+    reset = getattr(counter_plan, "reset", None)
+    async_reset = reset is not None and not getattr(reset, "synchronous", False)
+    hazards = []
+    for k in range(len(states)):
+        a, b = states[k - 1], states[k]
+        seq = _entry_sequence(a, b, roles, async_reset)
+        if len(seq) < 3:
+            continue
+        order = _order_text(roles, seq)
+        for name in signals:
+            levels = [value(name, s) for s in seq]
+            for j in _wrong_positions(levels):
+                hazards.append(RippleHazard(name, k, seq[j], levels[j], tuple(seq), order))
+    return hazards
+
+
+def _entry_sequence(a: int, b: int, roles: list[_VarRole], async_reset: bool) -> list[int]:
+    """Held state a, the transients, held state b; an asynchronous reset cuts the
+    natural count short, so its state shows and then every output clears at once."""
+    natural = _natural_next(a, roles) if async_reset else None
+    if natural is not None and natural != b:
+        return _squash(_transients(a, natural, roles) + [b])
+    return _transients(a, b, roles)
+
+
+def _wrong_positions(levels: list[bool]) -> list[int]:
+    """Positions of the transient states whose level is wrong.
+
+    >>> _wrong_positions([False, False, True, False])   # a spike
+    [2]
+    >>> _wrong_positions([False, True, False, True])    # changes, changes back, changes again
+    [2]
+    >>> _wrong_positions([False, False, True])          # one clean edge
+    []
+    """
+    first, last = levels[0], levels[-1]
+    inner = range(1, len(levels) - 1)
+    if first == last:
+        return [j for j in inner if levels[j] != last]
+    moved = False
+    wrong = []
+    for j in inner:
+        if levels[j] == last:
+            moved = True
+        elif moved:
+            wrong.append(j)
+    return wrong
+
+
+def _order_text(roles: list[_VarRole], seq: list[int]) -> str:
+    steps = []
+    for s0, s1 in zip(seq, seq[1:]):
+        moved = [f"{r.net} {'rises' if s1 >> r.index & 1 else 'falls'}" for r in roles
+                 if (s0 ^ s1) >> r.index & 1]
+        steps.append(" and ".join(moved))
+    return ", then ".join(steps)
+
+
+# ---------------------------------------------------------------- coincident edges
+
+def _edges(ticks: frozenset[int], cycle: int) -> list[int]:
+    return [b for b in range(cycle) if ((b - 1) % cycle in ticks) != (b in ticks)]
+
+
+def coincident_edges(delivered: Mapping[str, frozenset[int]], cycle: int) -> list[dict]:
+    """Every pair of signals with an edge on the same boundary (between tick b-1 and b).
+
+    >>> coincident_edges({"a": frozenset({0, 1}), "b": frozenset({2}), "c": frozenset({1})}, 4)
+    [{'signals': ['a', 'b'], 'at_tick': 2}, {'signals': ['a', 'c'], 'at_tick': 2}, {'signals': ['b', 'c'], 'at_tick': 2}]
+    """
+    edges = {name: set(_edges(frozenset(t), cycle)) for name, t in delivered.items()}
+    names = sorted(edges)
+    out = []
+    for i, a in enumerate(names):
+        for b in names[i + 1:]:
+            out += [{"signals": [a, b], "at_tick": tick} for tick in sorted(edges[a] & edges[b])]
+    return out
+
+
+def edge_skews(trace: Trace, records: list[dict]) -> list[dict]:
+    """Each coincident pair with, from the trace, which signal settles first and by how much."""
+    out = []
+    for rec in records:
+        a, b = rec["signals"]
+        k = rec["at_tick"] or trace.cycle
+        entry = dict(rec)
+        times = {}
+        for name in (a, b):
+            net = trace.signals.get(name, ("",))[0]
+            rows = trace.window(net, k) if net and k < trace.ticks else []
+            times[name] = rows[-1][0] - k * trace.period_ns if rows else None
+        if times[a] is not None and times[b] is not None:
+            entry.update({"first": a if times[a] <= times[b] else b,
+                          "skew_ns": round(abs(times[a] - times[b]), 1),
+                          "settle_ns": {a: round(times[a], 1), b: round(times[b], 1)}})
+        out.append(entry)
+    return out
+
+
+# ---------------------------------------------------------------- remedies
+
+_CONTROLLING = {"and": (False, False), "nand": (False, True), "or": (True, True), "nor": (True, False)}
+"""op -> (controlling input level, the output level it forces)."""
+
+
+def spare_input(gate: Gate) -> int | None:
+    """An input that does not shape the gate's function: held at the
+    non-controlling level, or a second copy of another input.
+
+    >>> spare_input(Gate("g", "4073", "and", ("a", "b", "VDD"), ("y",)))
+    2
+    >>> spare_input(Gate("g", "4011", "nand", ("a", "b"), ("y",))) is None
+    True
+    """
+    if gate.op not in _CONTROLLING:
+        return None
+    controlling, _ = _CONTROLLING[gate.op]
+    for i, net in enumerate(gate.inputs):
+        if net in RAILS and RAILS[net] != controlling:
+            return i
+        if net not in RAILS and gate.inputs.index(net) != i:
+            return i
+    return None
+
+
+def _driver(network: Network, net: str) -> Gate | None:
+    return next((g for g in network.gates if net in g.outputs), None)
+
+
+def _ticks_of_states(counter_plan: Any) -> dict[int, list[int]]:
+    ticks: dict[int, list[int]] = {}
+    for t, s in enumerate(counter_plan.state_of_tick):
+        ticks.setdefault(int(s), []).append(t)
+    return ticks
+
+
+def _synchronous_parts(catalog: Any, stock: Any) -> list[str]:
+    found = []
+    for part_type in sorted(getattr(stock, "parts", {}) or {}):
+        part = catalog.parts.get(part_type)
+        if part is not None and any(u.type == "counter" and u.fields.get("synchronous")
+                                    and u.fields.get("mode") != "johnson" for u in part.units):
+            found.append(part_type)
+    return found
+
+
+def remedies(glitch: Glitch, plan: Any, *, catalog: Any = None, stock: Any = None,
+             spec: Any = None) -> list[str]:
+    """What would stop this glitch, as sentences: only the remedies this plan and bin allow.
+
+    Reads ``plan.counter`` (state_of_tick, unreachable, synchronous),
+    ``plan.network`` and ``plan.signals`` (the last gate, its spare input),
+    ``plan.chips`` (the gate's name), ``plan.switches``; ``spec`` for the
+    signal's don't-care ticks; ``stock`` (the Bin) with ``catalog`` for a
+    synchronous counter on hand.  The last sentence is always a note on
+    who can see the glitch.
+    """
+    out = []
+    counter = plan.counter
+    state = glitch.transient_state
+    if state is not None:
+        out += _decode_choice_remedy(glitch, counter, spec)
+        if not getattr(counter, "synchronous", False) and catalog is not None and stock is not None:
+            parts = _synchronous_parts(catalog, stock)
+            if parts:
+                out.append(f"a synchronous counter: the bin has {', '.join(parts)}, whose outputs change "
+                           "together on the clock edge, so the count never shows "
+                           f"{glitch.transient_count} on the way")
+    out += _clock_gating_remedy(glitch, plan)
+    switch = [n for n, s in (getattr(plan, "switches", {}) or {}).items() if s.get("select") == glitch.signal]
+    if switch:
+        out.append(f"note: {glitch.signal} drives switch {', '.join(switch)}: for {glitch.width_ns:.0f} ns "
+                   "the switch conducts the wrong way; a slow analog stage averages that away, a "
+                   "sample-and-hold or a charge-sensitive node does not")
+    else:
+        out.append(f"note: a level-sensitive consumer slower than {glitch.width_ns:.0f} ns (an LED, a relay "
+                   "or motor driver, an RC-filtered input) will not see it; an edge-triggered input "
+                   "(a counter clock, a flip-flop, an interrupt pin) will")
+    return out
+
+
+def _decode_choice_remedy(glitch: Glitch, counter: Any, spec: Any) -> list[str]:
+    """Remedy 1: the transient state is a don't-care for this signal."""
+    state = glitch.transient_state
+    ticks = _ticks_of_states(counter).get(int(state), [])  # type: ignore[arg-type]
+    sig = getattr(spec, "signals", {}).get(glitch.signal) if spec is not None else None
+    dont_care = set(getattr(sig, "dont_care", ()) or ())
+    never_held = not ticks and int(state) in set(getattr(counter, "unreachable", ()) or ())  # type: ignore[arg-type]
+    if not never_held and not (ticks and all(t in dont_care for t in ticks)):
+        return []
+    level = "low" if glitch.wrong_level else "high"
+    where = (f"count {glitch.transient_count} is never held" if never_held
+             else f"ticks {', '.join(map(str, ticks))} are don't-cares")
+    return [f"another decode choice: {where} for {glitch.signal}, so the decode may read {level} "
+            f"there, the level on both sides of tick {glitch.at_tick}'s entry; that removes this "
+            "spike at no extra cost"]
+
+
+def _clock_gating_remedy(glitch: Glitch, plan: Any) -> list[str]:
+    """Remedy 3: a spare input of the signal's last gate, driven from the clock phase
+    in which the counter is still, holds the output inactive while the count settles."""
+    info = plan.signals.get(glitch.signal) or {}
+    gate = _driver(plan.network, info.get("net", ""))
+    spare = spare_input(gate) if gate is not None else None
+    if gate is None or spare is None:
+        return []
+    controlling, forced = _CONTROLLING[gate.op]
+    if forced == (info.get("polarity", "high") == "high"):
+        return []        # gating would force the asserted level: no use
+    after_edge = getattr(plan, "clock_edge", "falling") == "rising"
+    phase = "CLK" if controlling == after_edge else "CLK through a spare inverter"
+    name = gate_names_of(plan).get(gate.id, gate.id)
+    return [f"gate the decode with the clock: wire {name}'s spare input (input {spare + 1}) to {phase}; "
+            f"{glitch.signal} is then held inactive in the first half of every tick while the counter "
+            "settles, and asserted only in the second half of each asserted tick (so a window of "
+            "several ticks becomes one pulse per tick)"]
+
+
+# ---------------------------------------------------------------- the plan command's timing step
+
+def _period_of(spec: Any) -> float | None:
+    freq = getattr(getattr(spec, "clock", None), "frequency_hz", None)
+    return 1e9 / freq if freq else None
+
+
+def analyse(design: Any, fix: Sequence[str] | set[str] = ()) -> None:
+    """Simulate the plan at typical and worst-case delays and fill in the timing results.
+
+    Sets ``plan.glitches`` (``Glitch.as_json`` records: what the transport
+    and inertial models show at both corners, and the state-based ripple
+    analysis), ``plan.coincident_edges`` (with which side settles first),
+    adds warnings (a clock too fast, reset pulse widths), and sets
+    ``design.trace`` (typical delays, inertial, two cycles: what the VCD and
+    SVG show) and ``design.remedies`` ({'text': [...], 'by_glitch':
+    {(signal, tick): [...]}, 'glitches': [Glitch]}).
+    """
+    from .netlist import delivered_sets, simulate_ticks
+
+    plan, catalog = design.plan, design.catalog
+    spec = getattr(design, "spec", None)
+    period = _period_of(spec)
+    run = dict(catalog=catalog, supply=plan.supply, clock_period_ns=period, cycles=2,
+               gate_names=gate_names_of(plan))
+    levels = simulate_ticks(plan)
+    typ = simulate(plan.counter, plan.network, **run, corner="typ")
+    expected = {n: list(levels[n]) for n in typ.signals if n in levels}
+    problems = settle_mismatches(typ, expected)
+    worst = simulate(plan.counter, plan.network, **run, corner="max")
+    problems_max = settle_mismatches(worst, expected)
+    if (problems or problems_max) and period is None:
+        raise InternalError(f"timing: {(problems or problems_max)[0]}",
+                            hint="a bug in binsynth; no design was printed")
+    if problems:
+        plan.warnings.append(f"the clock is too fast for these chips at typical delays: {problems[0]}")
+    elif problems_max:
+        plan.warnings.append(f"at worst-case delays the clock is too fast: {problems_max[0]}")
+    found = merge_glitches(plan, expected, typ, run)
+    plan.glitches = [g.as_json() for g in found]
+    delivered = {n: t for n, t in delivered_sets(plan, levels).items() if n in typ.signals}
+    plan.coincident_edges = edge_skews(typ, coincident_edges(delivered, typ.cycle))
+    for pulse in typ.resets[:1]:
+        plan.warnings.append(f"the counter reset pulse on {pulse.ref} lasts {pulse.width_ns:.0f} ns at "
+                             "typical delays (the catalog gives no minimum reset pulse width to check)")
+    plan.warnings += [w for w in dict.fromkeys(typ.warnings + worst.warnings) if w not in plan.warnings]
+    design.trace = typ
+    stock = getattr(design, "stock", None)
+    by_glitch = {(g.signal, g.at_tick): remedies(g, plan, catalog=catalog, stock=stock, spec=spec)
+                 for g in found}
+    text: list[str] = []
+    for g in found:
+        for line in by_glitch[(g.signal, g.at_tick)]:
+            entry = f"{g.signal} tick {g.at_tick}: {line}"
+            if not line.startswith("note:") and entry not in text:
+                text.append(entry)
+    if "glitches" in set(fix) and found:
+        text.append("--fix glitches: the remedies above are listed, not yet applied to the design")
+    design.remedies = {"text": text, "by_glitch": by_glitch, "glitches": found}
+
+
+def merge_glitches(plan: Any, expected: Mapping[str, Sequence[bool]], typ: Trace,
+                   run: Mapping[str, Any]) -> list[Glitch]:
+    """The union of the glitches the models show: transport delays at both corners
+    (what a faster part may pass), the inertial model (``passes_gate_delay``)
+    and the state-based ripple analysis."""
+    inertial = {(g.signal, g.at_tick): g for g in glitches(typ, expected)}
+    merged: dict[tuple[str, int], Glitch] = {}
+    for corner in CORNERS:
+        trace = simulate(plan.counter, plan.network, **run, corner=corner, inertial=False)
+        for g in glitches(trace, expected):
+            key = (g.signal, g.at_tick)
+            if key in merged:
+                merged[key].width_max_ns = g.width_ns
+                continue
+            g.seen_inertial = key in inertial
+            if corner == "max":
+                g.width_max_ns = g.width_ns
+            merged[key] = g
+    for key, g in inertial.items():
+        if key not in merged:
+            g.seen_inertial = True
+            merged[key] = g
+    for h in ripple_hazards(plan.counter, plan.network, run["catalog"], signals=list(typ.signals)):
+        key = (h.signal, h.at_tick)
+        if key not in merged:
+            merged[key] = Glitch(h.signal, h.at_tick, 0.0,
+                                 f"the outputs pass through minterm {h.transient} ({h.order}); "
+                                 "shorter than the gate paths at the catalog's delays",
+                                 "", wrong_level=h.wrong_level, transient_state=h.transient,
+                                 seen_inertial=False)
+    return sorted(merged.values(), key=lambda g: (g.signal, g.at_tick))
