@@ -248,7 +248,9 @@ def _panel(trace: Trace, plan: Any, tick: int, glitches: list[dict], coincident:
            _label(14, top + 18, f"tick {tick} entry: count {count_from} -> {count_to}, counting edge at "
                                 f"{edge:g} ns; times after the edge", "title"),
            ]
-    notes = [f"glitch on {g['signal']}: {g.get('width_ns', 0):g} ns, {g.get('cause', '')}" for g in here_g]
+    notes = [f"glitch on {g['signal']}: {g.get('width_ns', 0):g} ns"
+             + ("" if g.get("passes_gate_delay", True) else " (the gate delay swallows it here)")
+             + f", {g.get('cause', '')}" for g in here_g]
     notes += [f"{c['signals'][0]} and {c['signals'][1]} switch together" +
               (f", {c['first']} first by {c['skew_ns']:g} ns" if "skew_ns" in c else "") for c in here_c]
     out.append(_label(14, top + 34, "; ".join(notes)[:170], "sub"))
