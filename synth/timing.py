@@ -203,10 +203,13 @@ def counter_models(counter_plan: Any, network: Network, catalog: Any, supply: fl
         stage = _delay(part, "stage", supply, corner) or 0.0
         t_reset = _delay(part, "reset", supply, corner)
         notes = []
+        async_reset = not (f.get("reset") or {}).get("synchronous", False) and \
+            str(getattr(cc, "reset_net", "") or "VSS") not in RAILS
         if t_reset is None:
             t_reset = tcq
-            notes.append(f"{cc.ref}: the catalog gives no reset delay for {part.type}; "
-                         "clock-to-output used")
+            if async_reset:
+                notes.append(f"{cc.ref}: the catalog gives no reset delay for {part.type}; "
+                             "clock-to-output used")
         pins: dict[int, str] = {}
         for var in counter_plan.vars:
             if _chip_ref(counter_plan, var.chip) in (cc.ref, str(index)) and \
@@ -962,10 +965,23 @@ def _squash(states: list[int]) -> list[int]:
 
 
 def _natural_next(a: int, roles: list[_VarRole]) -> int | None:
-    """The minterm one count after minterm a, before any reset acts."""
+    """The minterm one count after minterm a, before any reset acts.
+
+    Weights are binary or BCD (1 2 4 8 10 20 40 80 ...): the next count is
+    spelt out greedily from the largest weight down.
+
+    >>> bcd = [_VarRole(i, f"v{i}", w, None, i) for i, w in enumerate((1, 2, 4, 8, 10, 20))]
+    >>> _natural_next(0b001001, bcd)    # 9 -> 10
+    16
+    """
     if all(r.weight is not None for r in roles):
-        count = sum(r.weight for r in roles if a >> r.index & 1)  # type: ignore[misc]
-        return sum(1 << r.index for r in roles if (count + 1) & r.weight)  # type: ignore[operator]
+        count = sum(r.weight for r in roles if a >> r.index & 1) + 1  # type: ignore[misc]
+        out = 0
+        for r in sorted(roles, key=lambda r: -r.weight):  # type: ignore[operator]
+            if r.weight <= count:  # type: ignore[operator]
+                count -= r.weight  # type: ignore[operator]
+                out |= 1 << r.index
+        return out if count == 0 else None
     high = [r.decoded for r in roles if a >> r.index & 1 and r.decoded is not None]
     if len(high) == 1:
         return sum(1 << r.index for r in roles if r.decoded == high[0] + 1)

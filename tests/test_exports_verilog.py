@@ -432,3 +432,64 @@ def test_every_example_cosimulates(stem, catalog, tmp_path):
     half = timing.ps(trace.period_ns) // 2
     for net, ident in verilog_names(plan, catalog).items():
         assert _theirs(run, ident, half) == _ours(trace, net, half), f"net {net}"
+
+
+# ---------------------------------------------------------------- counter plans from the allocator
+
+ALLOCATIONS = [   # (cycle, parts in the bin, supply): each counter style the catalog has
+    (6, ("4017",), 10),          # Johnson, Q6 wired to RESET
+    (12, ("74HC4040",), 5),      # ripple, decoded asynchronous reset
+    (12, ("74HC163",), 5),       # synchronous, synchronous clear
+    (12, ("74HC161",), 5),       # synchronous, asynchronous clear (active low)
+    (100, ("4520",), 10),        # dual synchronous, cascaded through ENABLE
+    (100, ("4518",), 10),        # dual BCD
+]
+
+
+def _allocated_plan(cycle, parts, supply, catalog):
+    counter = pytest.importorskip("synth.counter")
+    from synth.inventory import bin_from_yaml
+    from synth.spec import load_spec
+    from synth.yamlsrc import parse_yaml
+
+    spec = load_spec("alloc.yaml", text=f"cycle: {cycle}\nsupply: {supply} V\nsignals:\n  a: {{high: [0]}}\n")
+    stock = bin_from_yaml(parse_yaml("parts:\n" + "".join(f"  {p}: 1\n" for p in parts)), catalog,
+                          supply, "alloc-bin.yaml")
+    cp = counter.allocate(spec, stock, catalog)
+    gates, signals = [], {}
+    if cp.reset is not None and not cp.reset.direct:
+        minterm = min(cp.reset.on)
+        ins = [v.net for v in cp.vars if minterm >> v.index & 1]
+        hc = supply <= 6
+        op, part = ("and", "74HC21" if hc else "4082") if cp.reset.active == "high" else \
+            ("nand", "74HC20" if hc else "4012")
+        gates.append(Gate("rst", part, op, tuple(ins + ["VDD"] * (4 - len(ins))), ("RSTd",)))
+        signals[cp.reset.name] = SignalOut("RSTd", cp.reset.active)
+    first = cp.vars[0].net
+    gates.append(Gate("buf", "74HC08" if supply <= 6 else "4081", "and", (first, "VDD"), ("lsb",)))
+    signals["lsb"] = SignalOut("lsb", "high")
+    net = Network(gates, signals, ())
+    units = {"U8": {"A": "buf"}} | ({"U9": {"A": "rst"}} if len(gates) > 1 else {})
+    parts_of = {"U8": gates[-1].part, "U9": gates[0].part}
+    return make_plan(f"alloc-{cycle}-{parts[0]}", cp, net, units, parts_of, catalog, supply)
+
+
+@needs_iverilog
+@pytest.mark.parametrize("cycle, parts, supply", ALLOCATIONS)
+def test_allocated_counters_cosimulate(cycle, parts, supply, catalog, tmp_path):
+    plan = _allocated_plan(cycle, parts, supply, catalog)
+    cp = plan.counter
+    trace = _simulate(plan, catalog)
+    run = run_icarus(plan, catalog, trace, tmp_path)
+    names = verilog_names(plan, catalog)
+    period = timing.ps(trace.period_ns)
+    for var in cp.vars:        # the allocator's own tick -> minterm table, sampled in Icarus
+        wave = run.waves[names[var.net]]
+        for t in range(2 * cp.cycle):
+            at = (t + 1) * period - 1
+            level = [v for time, v in wave if time <= at][-1]
+            assert level == ("1" if cp.state_of_tick[t % cp.cycle] >> var.index & 1 else "0"), \
+                f"{var.net} at tick {t}"
+    half = period // 2
+    for net, ident in names.items():
+        assert _theirs(run, ident, half) == _ours(trace, net, half), f"net {net}"

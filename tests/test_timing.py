@@ -384,3 +384,35 @@ def test_reset_tied_to_its_active_level_is_refused(catalog):
     cp.chips[0].reset_net = "VDD"
     with pytest.raises(InternalError):
         timing.simulate(cp, decode(Gate("g", "4001", "nor", ("Q1", "Q2"), ("y",))), catalog, 5.0)
+
+
+# ---------------------------------------------------------------- the plan command's step
+
+def test_analyse_fills_the_plan(catalog):
+    from types import SimpleNamespace
+
+    from synth.netlist import ChipInstance, Plan
+
+    cp = counter("4040")
+    net = decode(Gate("g1", "4002", "nor", ("Q1", "Q2", "Q3", "Q4"), ("zero",)),
+                 Gate("g2", "4001", "nor", ("Q1", "Q3"), ("z13",)))
+    plan = Plan(name="bench", spec_path="", bin_path="", supply=5.0,
+                chips=[ChipInstance("U2", "4002", "logic", {"A": "g1"}),
+                       ChipInstance("U3", "4001", "logic", {"A": "g2"})],
+                nets={}, signals={n: {"net": s.net, "polarity": s.polarity} for n, s in net.signals.items()},
+                switches={}, bom={}, decoupling=[], clock_edge="falling", counter=cp, network=net)
+    spec = SimpleNamespace(clock=SimpleNamespace(frequency_hz=100e3), signals={})
+    design = SimpleNamespace(plan=plan, catalog=catalog, spec=spec, stock=Stock({"4040": 1, "4520": 1}))
+    timing.analyse(design, fix={"glitches"})
+    got = {(g["signal"], g["at_tick"]): g for g in plan.glitches}
+    assert sorted(got) == [("z13", 4), ("z13", 12), ("zero", 2), ("zero", 4), ("zero", 8)]
+    assert got[("z13", 4)]["passes_gate_delay"] is True and got[("z13", 4)]["width_ns"] == 160.0
+    assert got[("zero", 2)]["passes_gate_delay"] is False and got[("zero", 2)]["width_max_ns"] == 160.0
+    assert got[("zero", 2)]["path"] == "Q1 -> U2_A -> zero"
+    # zero rises on boundary 0 and falls on 1; z13 switches on both too (ticks 0, 2, 8, 10 high).
+    assert [(c["signals"], c["at_tick"]) for c in plan.coincident_edges] == [
+        (["z13", "zero"], 0), (["z13", "zero"], 1)]
+    assert plan.coincident_edges[1]["first"] == "z13"     # 4001 (120 ns) beats 4002 (160 ns)
+    assert design.trace.period_ns == 10_000 and design.trace.cycles == 2
+    assert any("a synchronous counter: the bin has 4520" in line for line in design.remedies["text"])
+    assert design.remedies["text"][-1].startswith("--fix glitches:")
