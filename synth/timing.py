@@ -11,13 +11,18 @@ Interface:
   ``gate_models(network, catalog, supply, corner, gate_names)``: the delay
   model the simulator and the Verilog export share (``CounterModel``,
   ``CounterOutput``, ``GateModel``).
+- ``gate_names_of(plan)`` (gate id -> ``U2_A``), ``reset_net_of(counter_plan, network)``.
 - ``glitches(trace, expected_levels=None) -> list[Glitch]``: every tick entry
-  where a signal takes a wrong level for a moment, with cause, path, width.
+  where a signal takes a wrong level for a moment, with cause, path, width;
+  ``settle_mismatches(trace, expected_levels)`` (ticks that settle wrong: a
+  clock too fast); ``merge_glitches(plan, expected, trace, run)`` (the union
+  the plan reports).
 - ``ripple_hazards(counter_plan, functions_or_network, catalog=None)
   -> list[RippleHazard]``: the exact state-based analysis (transient states
   of a ripple count), used to cross-check the event simulation.
 - ``coincident_edges(delivered, cycle)`` and ``edge_skews(trace, records)``.
-- ``remedies(glitch, plan, *, catalog=None, stock=None, spec=None) -> list[str]``.
+- ``remedies(glitch, plan, *, catalog=None, stock=None, spec=None) -> list[str]``;
+  ``spare_input(gate)``.
 - ``analyse(design, fix=())``: fills ``plan.glitches``, ``plan.coincident_edges``,
   ``design.trace`` and ``design.remedies`` (the plan command's timing step).
 - ``default_period_ns(...)``, ``nice_period_ns(ns)``.
@@ -60,10 +65,11 @@ from .errors import InternalError
 from .network import RAILS, Gate, Network, evaluate_gate
 
 __all__ = [
-    "simulate", "Trace", "ResetPulse", "counter_models", "gate_models", "CounterModel",
-    "CounterOutput", "GateModel", "glitches", "Glitch", "ripple_hazards", "RippleHazard",
-    "coincident_edges", "edge_skews", "remedies", "analyse", "default_period_ns",
-    "nice_period_ns", "ps", "expected_from_delivered",
+    "simulate", "Trace", "ResetPulse", "counter_models", "gate_models", "gate_names_of",
+    "reset_net_of", "CounterModel", "CounterOutput", "GateModel", "glitches", "Glitch",
+    "settle_mismatches", "merge_glitches", "ripple_hazards", "RippleHazard", "coincident_edges",
+    "edge_skews", "remedies", "spare_input", "analyse", "default_period_ns", "nice_period_ns",
+    "ps", "expected_from_delivered",
 ]
 
 CORNERS = ("typ", "max")
@@ -212,8 +218,8 @@ def counter_models(counter_plan: Any, network: Network, catalog: Any, supply: fl
                              "clock-to-output used")
         pins: dict[int, str] = {}
         for var in counter_plan.vars:
-            if _chip_ref(counter_plan, var.chip) in (cc.ref, str(index)) and \
-                    (var.chip == index or str(getattr(var, "unit", cc.unit)) == str(cc.unit)):
+            if _chip_ref(counter_plan, var.chip) == str(cc.ref) and \
+                    str(getattr(var, "unit", cc.unit)) == str(cc.unit):
                 if int(var.pin) in stages or int(var.pin) in decoded or \
                         int(var.pin) in (f.get("carry"), f.get("carry_out")):
                     pins[int(var.pin)] = str(var.net)
@@ -1333,9 +1339,19 @@ def merge_glitches(plan: Any, expected: Mapping[str, Sequence[bool]], typ: Trace
     for h in ripple_hazards(plan.counter, plan.network, run["catalog"], signals=list(typ.signals)):
         key = (h.signal, h.at_tick)
         if key not in merged:
-            merged[key] = Glitch(h.signal, h.at_tick, 0.0,
-                                 f"the outputs pass through minterm {h.transient} ({h.order}); "
-                                 "shorter than the gate paths at the catalog's delays",
-                                 "", wrong_level=h.wrong_level, transient_state=h.transient,
-                                 seen_inertial=False)
+            lasts = _state_duration(typ, h.at_tick or typ.cycle, h.transient)
+            merged[key] = Glitch(h.signal, h.at_tick, lasts,
+                                 f"the counter outputs pass through minterm {h.transient} for {lasts:g} ns "
+                                 f"({h.order}); at the catalog's delays the gate paths smooth it away, "
+                                 "a faster part may not", "", wrong_level=h.wrong_level,
+                                 transient_state=h.transient, seen_inertial=False)
     return sorted(merged.values(), key=lambda g: (g.signal, g.at_tick))
+
+
+def _state_duration(trace: Trace, k: int, minterm: int) -> float:
+    """How long the decode variables show ``minterm`` during tick window k (0 if never)."""
+    moves = sorted({t for n in trace.counter_nets for t, _ in trace.window(n, k)})
+    for t0, t1 in zip(moves, moves[1:]):
+        if trace.counter_state(t0) == minterm:
+            return round(t1 - t0, 3)
+    return 0.0

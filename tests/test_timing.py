@@ -416,3 +416,27 @@ def test_analyse_fills_the_plan(catalog):
     assert design.trace.period_ns == 10_000 and design.trace.cycles == 2
     assert any("a synchronous counter: the bin has 4520" in line for line in design.remedies["text"])
     assert design.remedies["text"][-1].startswith("--fix glitches:")
+
+
+def test_state_analysis_and_event_simulation_agree(catalog):
+    # Multi-level decodes over a 6-bit 4040 count: every transient-state hazard the
+    # enumeration finds is a pulse in the transport simulation, and every simulated
+    # pulse that the trace blames on a transient state is one the enumeration finds.
+    pins = {1: 9, 2: 7, 3: 6, 4: 5, 5: 3, 6: 2}
+    vars_ = [Var(i, f"Q{i + 1}", 0, "A", pins[i + 1], f"Q{i + 1}", 1 << i) for i in range(6)]
+    cp = CounterPlan([Chip("U1", "4040", "A", "CLK", 10, "falling", 11, "VSS")], vars_, 64,
+                     tuple(range(64)), "falling", False)
+    gates = [Gate("g1", "4081", "and", ("Q6", "Q5"), ("a",)),
+             Gate("g2", "4071", "or", ("a", "Q4"), ("b",)),
+             Gate("g3", "4069", "not", ("Q3",), ("c",)),
+             Gate("g4", "4081", "and", ("b", "c"), ("d",)),
+             Gate("g5", "4023", "nand", ("Q1", "Q2", "Q3"), ("e",)),
+             Gate("g6", "4071", "or", ("e", "d"), ("f",)),
+             Gate("g7", "4025", "nor", ("Q2", "Q4", "Q6"), ("g",))]
+    net = Network(gates, {"d": SignalOut("d", "high"), "f": SignalOut("f", "high"),
+                          "g": SignalOut("g", "high")}, ())
+    hazards = {(h.signal, h.at_tick) for h in timing.ripple_hazards(cp, net, catalog)}
+    trace = timing.simulate(cp, net, catalog, 5.0, cycles=1, inertial=False)
+    pulses = timing.glitches(trace)
+    assert hazards and hazards <= {(g.signal, g.at_tick) for g in pulses}
+    assert {(g.signal, g.at_tick) for g in pulses if g.transient_state is not None} <= hazards

@@ -26,6 +26,7 @@ from typing import Any
 from xml.sax.saxutils import escape, quoteattr
 
 from ..timing import Trace, nice_period_ns
+from ..units import format_si
 from . import atomic_write_text
 
 __all__ = ["trace_to_svg", "write_svg"]
@@ -74,6 +75,11 @@ def _marks(trace: Trace, glitches: list[dict], coincident: list[dict]) -> list[i
 
 
 # ---------------------------------------------------------------- drawing helpers
+
+def _time(ns: float) -> str:
+    """A time for people: ``5 us``, ``1 ms``, ``160 ns``."""
+    return format_si(ns * 1e-9, "s")
+
 
 def _step_path(points: list[tuple[float, bool]], x_end: float, y: float) -> str:
     """A digital waveform: (x, level) pairs in order, drawn to x_end; high is up."""
@@ -246,7 +252,7 @@ def _panel(trace: Trace, plan: Any, tick: int, glitches: list[dict], coincident:
     out = [f'<g class="zoom" id="panel-{tick}">',
            f'<rect class="panel" x="4" y="{top:.1f}" width="{WIDTH - 8}" height="{height - 6:.1f}" rx="6"/>',
            _label(14, top + 18, f"tick {tick} entry: count {count_from} -> {count_to}, counting edge at "
-                                f"{edge:g} ns; times after the edge", "title"),
+                                f"{_time(edge)}; times after the edge", "title"),
            ]
     notes = [f"glitch on {g['signal']}: {g.get('width_ns', 0):g} ns"
              + ("" if g.get("passes_gate_delay", True) else " (the gate delay swallows it here)")
@@ -305,7 +311,7 @@ def trace_to_svg(trace: Trace, plan: Any, glitches: list | None = None, coincide
     glitches = [_record(g) for g in (plan.glitches if glitches is None else glitches)]
     coincident = [_record(c) for c in (plan.coincident_edges if coincident is None else coincident)]
     name = getattr(plan, "name", "") or "plan"
-    body = [_label(12, 24, f"{name}: {trace.cycle} ticks per cycle, clock period {trace.period_ns:g} ns, "
+    body = [_label(12, 24, f"{name}: {trace.cycle} ticks per cycle, clock period {_time(trace.period_ns)}, "
                            f"{trace.corner} delays at {trace.supply:g} V", "title"),
             _legend(36, len(glitches), len(coincident))]
     main, y = _main(trace, plan, glitches, coincident, 48)
