@@ -116,14 +116,12 @@ def bin_rows(design) -> list[tuple]:
 
 
 def signal_rows(design) -> list[tuple]:
-    from ..minimize import to_text
-
     plan, decode = design.plan, design.decode
     rows = []
     for name, info in plan.signals.items():
         source = info.get("source")
         where = f"{source[0]} pin {source[1]}" if source else "-"
-        expression = to_text(decode.cover, name) if name in decode.cover.outputs else ""
+        expression = decode.signals[name].expression if name in decode.signals else ""
         rows.append((name, info.get("polarity"), where, expression))
     return rows
 
