@@ -1,0 +1,2045 @@
+"""Covers -> a gate network over the gates the bin really holds (the mapper).
+
+Interface:
+
+- ``Cell``: one usable unit kind of the bin (part type, unit op, width, units
+  per chip, chips available, Schmitt flag, typical delay at the supply).
+- ``Library``: the cells of one bin at one supply; ``build_library(bin,
+  catalog, *, reserved=None) -> Library``; ``Library.restricted(parts)``,
+  ``Library.with_extra(part, chips=1)``.
+- ``map_design(functions, nvars, var_nets, library, *, polarity, cover=None,
+  exact='auto', time_limit=10.0) -> Network``.
+- ``chips_of(gates, library) -> dict[part, chips]``.
+- ``parse_target(text) -> Target``; ``Construction``; ``substitute(target,
+  library, *, either_polarity=False, limit=5, time_limit=8.0) ->
+  list[Construction]`` (ranked by chips, then gates, then depth).
+
+Objective everywhere: chips taken from the bin, then gates, then logic depth,
+compared in that order, never more units of a part than the bin holds.
+
+Two engines, both over python-sat:
+
+1. Structure selection (every design).  The two-level covers of both phases
+   of every signal (the given one and one minimized for the other phase) are
+   read as AND nodes with complemented edges (a term is an AND of literals, a
+   sum is NOT AND of NOT terms).  Every node may be built by any gate tree the
+   bin offers: a dynamic programme over the number of fan-ins enumerates the
+   Pareto-best trees (units per cell, depth) mixing AND/NAND/OR/NOR of every
+   width on hand, 2:1 muxes as AND2/OR2, and inverters (real ones, NAND/NOR
+   with joined inputs, XOR tied high, XNOR tied low, a mux with its data pins
+   on the rails).  That covers cascades (two 3-input ANDs for a 4-input AND),
+   De Morgan forms (NAND-NAND, NOR-NOR from the complement's cover, NOR of
+   NANDs) and alternating trees.  Programmable units add per-signal choices:
+   a 2^s:1 mux realises any function of s select variables plus one literal
+   on its data pins; a decoder's outputs are minterms, OR-ed by gates (one
+   decoder shared by every signal over the same select variables).  A SAT
+   model then chooses, per signal, a phase and a structure, per node a tree,
+   per complemented net one inverting unit, counts units per cell with
+   totalizers and opens whole chips; the chips and then the gates are pushed
+   down by bound tightening.  A finished search proves the minimum *over these
+   candidate structures*; it is reported as such, never as a global proof.
+2. Exact synthesis (small designs): the published SAT encoding of a k-gate
+   circuit (gate types, fan-in selection and simulation variables per
+   minterm), here over the bin's gate types with per-part unit caps, rails
+   as constants for XOR/mux pins, joined inputs, free output phases and
+   don't cares, for k = lower bound, lower bound + 1, ...; each k is also
+   minimized for chips.  It finds multi-level optima such as XOR from four
+   NANDs.  When it runs to its stopping rule the result is "proven minimal
+   (chips, then gates) over all circuits of the bin's gates, inverters and
+   2:1 muxes"; wider muxes and decoders are outside that claim.
+
+Depth is only a tie-break (the tree enumeration keeps the shallower of two
+trees with equal units); it is reported, not proven.  Both engines are capped
+in time and size and fall back to "best found" with a lower bound.  The
+finished network is simulated (zero delay, ``evaluate_network``) on every
+minterm each signal cares about; a mismatch raises ``InternalError``.
+
+Library rules (the mapper's choices):
+
+- Chips ``reserved`` for counters or switches are not offered at all; their
+  spare sections are not used for logic (a partly used 4053 keeps its spares).
+- A 4068/4078 offers its main (NAND/NOR) output only; the second (AND/OR)
+  output is not used, since the network's gate record carries one function.
+- Mux units that share their select pins with other units of the chip (the
+  74HC153, 74HC157) count as one logic element per chip.
+- Analog switch sections (4053 SPDT) appear in the library and in
+  ``substitute``, but ``map_design`` does not use them as logic (packing
+  places them for spec switches only); a signal that only drives a switch is
+  given polarity 'free' by the caller, and packing swaps the throws.
+"""
+
+from __future__ import annotations
+
+import itertools
+import re
+import threading
+import time
+from dataclasses import dataclass, field, replace
+from typing import Iterable, Literal, Mapping, Sequence
+
+from .errors import InputError, InternalError, ShortError, UsageError
+from .inventory import Bin, Catalog, Part
+from .network import Gate, Network, SignalOut, evaluate_network
+
+__all__ = ["Cell", "Library", "build_library", "map_design", "chips_of", "Target",
+           "parse_target", "Construction", "substitute", "EXACT_MAX_VARS", "EXACT_MAX_GATES"]
+
+Polarity = Literal["high", "low", "free"]
+
+EXACT_MAX_VARS = 6        # exact synthesis in 'auto' mode: at most this many variables ...
+EXACT_MAX_GATES = 12      # ... and circuits of at most this many gates
+EXACT_MAX_OUTPUTS = 4     # ... and this many signals needing gates
+TREE_KEEP = 3             # trees kept per (fan-ins, phase, complemented leaves)
+GATE_OPS = ("and", "nand", "or", "nor")
+# A gate op as an AND over its inputs: (input phase a, output phase b), so that
+# op(x1..xk) = b XOR AND(x1^a, ..., xk^a).  De Morgan, common practice.
+AND_FORM = {"and": (0, 0), "nand": (0, 1), "nor": (1, 0), "or": (1, 1)}
+NEUTRAL_RAIL = {"and": "VDD", "nand": "VDD", "or": "VSS", "nor": "VSS",
+                "xor": "VSS", "xnor": "VSS"}
+
+
+# ---------------------------------------------------------------- the library
+
+@dataclass(frozen=True)
+class Cell:
+    """One kind of usable unit in the bin, with how many the bin can give.
+
+    ``op``: and nand or nor xor xnor not buf mux decoder spdt.  ``width`` is
+    the number of logic inputs (data pins for a mux, selects for a decoder).
+    """
+
+    part: str
+    op: str
+    width: int
+    units_per_chip: int
+    chips: int
+    schmitt: bool = False
+    delay: float | None = None
+    unit_ids: tuple[str, ...] = ()
+    selects: int = 0
+    output_inv: bool = False
+    active: str = "high"
+    enables: tuple[str, ...] = ()
+    codes: int = 0
+    shared_select: bool = False
+    mapped: bool = True
+
+    @property
+    def capacity(self) -> int:
+        """Units the bin can supply."""
+        return self.units_per_chip * self.chips
+
+    def label(self) -> str:
+        """``4073 and3``, ``74HC151 mux8``, ``4069 not``."""
+        if self.op in ("not", "buf"):
+            kind = self.op + (" (Schmitt)" if self.schmitt else "")
+        elif self.op == "decoder":
+            kind = f"decoder {self.width}-to-{self.codes}"
+        else:
+            kind = f"{self.op}{self.width}" + (" (Schmitt)" if self.schmitt else "")
+        return f"{self.part} {kind}"
+
+
+@dataclass
+class Library:
+    """The logic cells of one bin at one supply (the mapper's whole world)."""
+
+    cells: list[Cell]
+    supply: float
+    catalog: Catalog
+    available: dict[str, int]
+    reserved: dict[str, int] = field(default_factory=dict)
+    notes: list[str] = field(default_factory=list)
+    source: str = ""
+    cache: dict = field(default_factory=dict, repr=False, compare=False)
+
+    def parts(self) -> list[str]:
+        return sorted({c.part for c in self.cells})
+
+    def restricted(self, parts: Iterable[str]) -> "Library":
+        """The same bin with only these part types."""
+        keep = set(parts)
+        return Library([c for c in self.cells if c.part in keep], self.supply, self.catalog,
+                       {p: n for p, n in self.available.items() if p in keep},
+                       dict(self.reserved), list(self.notes), self.source)
+
+    def with_extra(self, part_type: str, chips: int = 1) -> "Library":
+        """The bin with ``chips`` more of ``part_type`` (to test a suggested fix)."""
+        available = dict(self.available)
+        available[part_type] = available.get(part_type, 0) + chips
+        cells = [c for c in self.cells if c.part != part_type]
+        cells += cells_of_part(self.catalog.parts[part_type], available[part_type], self.supply)
+        return Library(cells, self.supply, self.catalog, available, dict(self.reserved),
+                       list(self.notes), self.source)
+
+    def mapped(self) -> "Library":
+        """Only the cells packing can place in a plan."""
+        lib = Library([c for c in self.cells if c.mapped], self.supply, self.catalog,
+                      dict(self.available), dict(self.reserved), list(self.notes), self.source)
+        return lib
+
+
+def build_library(bin: Bin, catalog: Catalog, *, reserved: Mapping[str, int] | None = None) -> Library:
+    """Every logic unit kind of the bin's parts, minus the chips already reserved."""
+    reserved = dict(reserved or {})
+    cells: list[Cell] = []
+    available: dict[str, int] = {}
+    notes: list[str] = []
+    for part_type, count in sorted(bin.parts.items()):
+        chips = count - reserved.get(part_type, 0)
+        part = catalog.parts[part_type]
+        kinds = cells_of_part(part, max(chips, 0), bin.supply)
+        if not kinds:
+            continue
+        if chips <= 0:
+            notes.append(f"{part_type}: all {count} reserved for counters or switches")
+            continue
+        available[part_type] = chips
+        cells.extend(kinds)
+    return Library(cells, bin.supply, catalog, available, reserved, notes, bin.path)
+
+
+def cells_of_part(part: Part, chips: int, supply: float) -> list[Cell]:
+    """The logic cells one part type offers (identical units grouped)."""
+    groups: dict[tuple, list] = {}
+    for unit in part.units:
+        f = unit.fields
+        if unit.type == "gate" and f.get("op") in AND_FORM or (unit.type == "gate" and f.get("op") in ("xor", "xnor")):
+            key = (f["op"], len(f["inputs"]), bool(f.get("schmitt")), False, 0, "high", (), False)
+        elif unit.type == "inverter":
+            key = ("not", 1, bool(f.get("schmitt")), False, 0, "high", (), False)
+        elif unit.type == "buffer":
+            key = ("buf", 1, False, False, 0, "high", (), False)
+        elif unit.type == "mux":
+            shared = any(p in part.shared for p in f["selects"])
+            key = ("mux", len(f["data"]), False, bool(f.get("output_inv")), len(f["selects"]),
+                   "high", (), shared)
+        elif unit.type == "decoder":
+            shared = any(p in part.shared for p in f["selects"])
+            enables = tuple(str(e.get("active", "high")) for e in f.get("enables") or ())
+            key = ("decoder", len(f["selects"]), False, False, len(f["outputs"]),
+                   str(f.get("active", "high")), enables, shared)
+        elif unit.type == "spdt":
+            key = ("spdt", 2, False, False, 1, "high", (), False)
+        else:
+            continue
+        groups.setdefault(key, []).append(unit.id)
+    cells = []
+    for (op, width, schmitt, inv, extra, active, enables, shared), ids in groups.items():
+        timing_key = "select" if op == "spdt" and part.timing.get("select") else "tpd"
+        cells.append(Cell(
+            part=part.type, op=op, width=width,
+            units_per_chip=1 if shared else len(ids), chips=chips, schmitt=schmitt,
+            delay=part.delay_ns(timing_key, supply), unit_ids=tuple(ids),
+            selects=extra if op in ("mux", "spdt") else width if op == "decoder" else 0,
+            output_inv=inv, active=active, enables=enables,
+            codes=extra if op == "decoder" else 0, shared_select=shared,
+            mapped=op != "spdt"))
+    return cells
+
+
+def chips_of(gates: Sequence[Gate], library: Library) -> dict[str, int]:
+    """Whole chips per part that these gates take (units shared across signals)."""
+    units: dict[int, int] = {}
+    for gate in gates:
+        index = _cell_of_gate(gate, library)
+        units[index] = units.get(index, 0) + 1
+    return _chips_from_units(units, library.cells)
+
+
+def _cell_of_gate(gate: Gate, library: Library) -> int:
+    width = _gate_width(gate)
+    for i, cell in enumerate(library.cells):
+        op = "mux" if cell.op == "spdt" else cell.op
+        if cell.part == gate.part and op == gate.op and cell.width == width:
+            return i
+    raise InternalError(f"gate {gate.id} ({gate.part} {gate.op}) matches no cell of the library")
+
+
+def _gate_width(gate: Gate) -> int:
+    if gate.op == "mux":
+        for k in range(1, 5):
+            if (1 << k) + k == len(gate.inputs):
+                return 1 << k
+    if gate.op == "decoder":
+        return len(gate.inputs) - len(gate.enables_active)
+    return len(gate.inputs)
+
+
+def _chips_from_units(units: Mapping[int, int], cells: Sequence[Cell]) -> dict[str, int]:
+    chips: dict[str, int] = {}
+    for index, count in units.items():
+        if count <= 0:
+            continue
+        cell = cells[index]
+        need = -(-count // cell.units_per_chip)
+        chips[cell.part] = max(chips.get(cell.part, 0), need)
+    return dict(sorted(chips.items()))
+
+
+# ---------------------------------------------------------------- gate kinds
+
+@dataclass(frozen=True)
+class _AndKind:
+    """A cell used as an AND with input phase ``a`` and output phase ``b``."""
+
+    cell: int
+    a: int
+    b: int
+    width: int
+    form: str            # 'gate', 'mux_and', 'mux_or'
+
+
+@dataclass(frozen=True)
+class _InvKind:
+    """A cell used as an inverter, and how its other pins are held."""
+
+    cell: int
+    form: str            # 'not', 'joined', 'xor_high', 'xnor_low', 'mux_rails'
+
+
+def _and_kinds(cells: Sequence[Cell]) -> list[_AndKind]:
+    kinds = []
+    for i, c in enumerate(cells):
+        if c.op in AND_FORM and c.width >= 2:
+            a, b = AND_FORM[c.op]
+            kinds.append(_AndKind(i, a, b, c.width, "gate"))
+        elif c.op in ("mux", "spdt") and c.width == 2:
+            kinds.append(_AndKind(i, 0, 0, 2, "mux_and"))
+            kinds.append(_AndKind(i, 1, 1, 2, "mux_or"))
+    return kinds
+
+
+def _inv_kinds(cells: Sequence[Cell]) -> list[_InvKind]:
+    forms = {"not": "not", "nand": "joined", "nor": "joined", "xor": "xor_high",
+             "xnor": "xnor_low", "mux": "mux_rails", "spdt": "mux_rails"}
+    return [_InvKind(i, forms[c.op]) for i, c in enumerate(cells)
+            if c.op in forms and not (c.op in ("xor", "xnor") and c.width < 2)]
+
+
+# ---------------------------------------------------------------- gate trees
+
+@dataclass(frozen=True)
+class _Tree:
+    """A gate tree realising AND of k leaves: ``units`` per cell, leaves to complement."""
+
+    units: tuple[int, ...]
+    n1: int
+    depth: int
+    b: int
+    shape: tuple         # ('leaf', q) | ('gate', kind, children) | ('inv', kind, child)
+
+    @property
+    def gates(self) -> int:
+        return sum(self.units)
+
+
+def _dominates(x: tuple, y: tuple) -> bool:
+    """Entry x = (units, n1, depth, shape) is no worse than y in every unit and depth."""
+    return x[2] <= y[2] and all(a <= b for a, b in zip(x[0], y[0]))
+
+
+def _pareto(entries: Iterable[tuple], keep: int) -> list[tuple]:
+    best: list[tuple] = []
+    for e in sorted(entries, key=lambda e: (sum(e[0]), e[2], e[0])):
+        if not any(_dominates(o, e) for o in best):
+            best.append(e)
+            if len(best) >= keep:
+                break
+    return best
+
+
+def _bump(units: tuple[int, ...], index: int) -> tuple[int, ...]:
+    return units[:index] + (units[index] + 1,) + units[index + 1:]
+
+
+def _add(u: tuple[int, ...], v: tuple[int, ...]) -> tuple[int, ...]:
+    return tuple(a + b for a, b in zip(u, v))
+
+
+class _TreeTable:
+    """Pareto-best gate trees for an AND of k leaves, built once per library.
+
+    ``table[k][b][n1]`` lists entries (units, n1, depth, shape): trees whose
+    output is AND(leaves) XOR b, with n1 of the leaves fed complemented.
+    """
+
+    def __init__(self, ncells: int, kinds: list[_AndKind], invs: list[_InvKind]) -> None:
+        self.ncells, self.kinds, self.invs = ncells, kinds, invs
+        zero = (0,) * ncells
+        self.table: dict[int, dict[int, dict[int, list]]] = {
+            1: {0: {0: [(zero, 0, 0, ("leaf", 0))]}, 1: {1: [(zero, 1, 0, ("leaf", 1))]}}}
+        # fold[g][i][s]: dict n1 -> entries (units, n1, depth, children) of i children, s leaves
+        self.fold = [{1: {1: {kind.a: [(zero, kind.a, 0, (("leaf", kind.a),))]}}} for kind in kinds]
+        self.top = 1
+
+    def trees(self, k: int) -> list[_Tree]:
+        """Every kept tree for an AND of k fan-ins, both output phases."""
+        while self.top < k:
+            self._grow()
+        out = []
+        for b, by_n1 in self.table[k].items():
+            for n1, entries in by_n1.items():
+                out.extend(_Tree(e[0], n1, e[2], b, e[3]) for e in entries)
+        return out
+
+    def _grow(self) -> None:
+        s = self.top + 1
+        gate_entries: dict[int, dict[int, list]] = {0: {}, 1: {}}
+        for g, kind in enumerate(self.kinds):
+            fold = self.fold[g]
+            for i in range(2, min(kind.width, s) + 1):
+                bucket: dict[int, list] = {}
+                for s1 in range(i - 1, s):
+                    left = fold.get(i - 1, {}).get(s1)
+                    right = self.table[s - s1].get(kind.a)
+                    if not left or not right:
+                        continue
+                    for ln1, lentries in left.items():
+                        for rn1, rentries in right.items():
+                            for le in lentries:
+                                for re_ in rentries:
+                                    bucket.setdefault(ln1 + rn1, []).append(
+                                        (_add(le[0], re_[0]), ln1 + rn1, max(le[2], re_[2]),
+                                         le[3] + (re_[3],)))
+                pruned = {n1: _pareto(v, TREE_KEEP) for n1, v in bucket.items()}
+                fold.setdefault(i, {})[s] = pruned
+                for n1, entries in pruned.items():
+                    for units, _, depth, children in entries:
+                        gate_entries[kind.b].setdefault(n1, []).append(
+                            (_bump(units, kind.cell), n1, depth + 1, ("gate", g, children)))
+        final: dict[int, dict[int, list]] = {0: {}, 1: {}}
+        for b in (0, 1):
+            for n1, entries in gate_entries[b].items():
+                final[b].setdefault(n1, []).extend(entries)
+            for n1, entries in gate_entries[1 - b].items():
+                for units, _, depth, shape in _pareto(entries, TREE_KEEP):
+                    for v, inv in enumerate(self.invs):
+                        final[b].setdefault(n1, []).append(
+                            (_bump(units, inv.cell), n1, depth + 1, ("inv", v, shape)))
+        self.table[s] = {b: {n1: _pareto(v, TREE_KEEP) for n1, v in by.items()} for b, by in final.items()}
+        for g, kind in enumerate(self.kinds):
+            self.fold[g].setdefault(1, {})[s] = {
+                n1: [(e[0], n1, e[2], (e[3],)) for e in entries]
+                for n1, entries in self.table[s][kind.a].items()}
+        self.top = s
+
+
+def _tree_table(library_cells: Sequence[Cell], cache: dict) -> _TreeTable:
+    key = ("trees", tuple(library_cells))
+    if key not in cache:
+        cache[key] = _TreeTable(len(library_cells), _and_kinds(library_cells), _inv_kinds(library_cells))
+    return cache[key]
+
+
+# ---------------------------------------------------------------- the problem
+
+@dataclass(frozen=True)
+class _Signal:
+    """One signal to deliver: its asserted minterms, the ones it cares about."""
+
+    name: str
+    on: frozenset[int]
+    care: frozenset[int]
+    polarity: str
+
+    def value(self, minterm: int) -> bool:
+        return minterm in self.on
+
+
+@dataclass
+class _Problem:
+    nvars: int
+    var_nets: tuple[str, ...]
+    signals: list[_Signal]
+
+    @property
+    def minterms(self) -> list[int]:
+        """Every minterm some signal cares about (the simulation set)."""
+        return sorted(set().union(*(s.care for s in self.signals))) if self.signals else []
+
+
+def _constant_level(sig: _Signal) -> bool | None:
+    """True/False when the signal is constant over its care set, else None."""
+    if not sig.on:
+        return False
+    if sig.on >= sig.care:
+        return True
+    return None
+
+
+def _literal_of(sig: _Signal, nvars: int) -> tuple[int, int] | None:
+    """(variable, complemented) when the signal is one counter output (or its complement)."""
+    for i in range(nvars):
+        ones = {m for m in sig.care if m >> i & 1}
+        if ones == sig.on:
+            return i, 0
+        if sig.care - ones == sig.on:
+            return i, 1
+    return None
+
+
+def _needed_support(sig: _Signal, nvars: int) -> set[int]:
+    """Variables every completion of the signal depends on (a lower bound)."""
+    need = set()
+    for i in range(nvars):
+        bit = 1 << i
+        if any((m ^ bit) in sig.care and ((m ^ bit) in sig.on) != (m in sig.on)
+               for m in sig.care if not m & bit):
+            need.add(i)
+    return need
+
+
+# ---------------------------------------------------------------- SAT helpers
+
+class _Cnf:
+    """Clauses and fresh variables, with the counters both engines use."""
+
+    def __init__(self) -> None:
+        self.top = 0
+        self.clauses: list[list[int]] = []
+
+    def new(self) -> int:
+        self.top += 1
+        return self.top
+
+    def add(self, clause: Iterable[int]) -> None:
+        self.clauses.append(list(clause))
+
+    def exactly_one(self, lits: Sequence[int]) -> None:
+        self.add(lits)
+        self.at_most_one(lits)
+
+    def at_most_one(self, lits: Sequence[int]) -> None:
+        """Sequential (ladder) encoding: linear in the number of literals."""
+        if len(lits) <= 4:
+            for a, b in itertools.combinations(lits, 2):
+                self.add([-a, -b])
+            return
+        prev = None
+        for i, lit in enumerate(lits):
+            if prev is not None:
+                self.add([-lit, -prev])
+            if i < len(lits) - 1:
+                cur = self.new()
+                self.add([-lit, cur])
+                if prev is not None:
+                    self.add([-prev, cur])
+                prev = cur
+
+    def counter(self, lits: Sequence[int], ubound: int | None = None, exact: bool = False) -> list[int]:
+        """Unary count of ``lits`` (a totalizer): out[t] is true when at least t+1 are.
+
+        With ``exact`` the outputs are also forced false below the count, so
+        they pin it from both sides; with ``ubound`` outputs stop at ubound+1.
+        """
+        lits = list(lits)
+        if not lits:
+            return []
+        if len(lits) == 1:
+            return lits
+        mid = len(lits) // 2
+        a = self.counter(lits[:mid], ubound, exact)
+        b = self.counter(lits[mid:], ubound, exact)
+        n = len(a) + len(b)
+        if ubound is not None and not exact:
+            n = min(n, ubound + 1)
+        out = [self.new() for _ in range(n)]
+        for i in range(len(a) + 1):
+            for j in range(len(b) + 1):
+                if i + j:
+                    k = min(i + j, n)
+                    self.add(([-a[i - 1]] if i else []) + ([-b[j - 1]] if j else []) + [out[k - 1]])
+                if exact and i + j < n:
+                    self.add(([a[i]] if i < len(a) else []) + ([b[j]] if j < len(b) else [])
+                             + [-out[i + j]])
+        return out
+
+
+def _solve(solver, assumptions: Sequence[int], deadline: float) -> bool | None:
+    """Solve with a wall-clock deadline; None when time ran out."""
+    remaining = deadline - time.monotonic()
+    if remaining <= 0:
+        return None
+    timer = threading.Timer(remaining, solver.interrupt)
+    timer.start()
+    try:
+        result = solver.solve_limited(assumptions=list(assumptions), expect_interrupt=True)
+    finally:
+        timer.cancel()
+        solver.clear_interrupt()
+    return result
+
+
+def _new_solver(clauses: list[list[int]]):
+    from pysat.solvers import Glucose4
+
+    return Glucose4(bootstrap_with=clauses)
+
+
+@dataclass
+class _Costing:
+    """Units per cell, chips per part and the two objective counters of one model."""
+
+    unit_lits: dict[int, list[int]] = field(default_factory=dict)
+    chip_count: list[int] = field(default_factory=list)
+    gate_count: list[int] = field(default_factory=list)
+
+
+def _add_costing(cnf: _Cnf, cells: Sequence[Cell], unit_lits: dict[int, list[int]]) -> _Costing:
+    """Bin limits per cell, a chip variable per chip that may be opened, both counters."""
+    chip_vars: dict[str, list[int]] = {}
+    unary_units: list[int] = []
+    for index, lits in unit_lits.items():
+        if not lits:
+            continue
+        cell = cells[index]
+        cap = cell.capacity
+        out = cnf.counter(lits, ubound=cap)
+        if len(out) > cap:
+            cnf.add([-out[cap]])
+            out = out[:cap]
+        unary_units.extend(out)
+        ys = chip_vars.setdefault(cell.part, [cnf.new() for _ in range(cell.chips)])
+        for c in range(cell.chips):
+            t = c * cell.units_per_chip
+            if t < len(out):
+                cnf.add([-out[t], ys[c]])
+    all_chips = [y for ys in chip_vars.values() for y in ys]
+    return _Costing(unit_lits, cnf.counter(all_chips), cnf.counter(unary_units))
+
+
+def _minimise(solver, costing: _Costing, deadline: float, count_chips, count_gates,
+              fixed: Sequence[int] = ()) -> tuple[list[int] | None, bool, tuple[int, int] | None]:
+    """Chips first, then gates, by bound tightening.
+
+    Returns (model, proven, (chips, gates)); proven means both minima were
+    closed by an UNSAT answer before the deadline.
+    """
+    result = _solve(solver, fixed, deadline)
+    if not result:
+        return None, result is False, None
+    model = solver.get_model()
+    chips, gates = count_chips(model), count_gates(model)
+    proven = True
+    while chips > 0:
+        result = _solve(solver, list(fixed) + [-costing.chip_count[chips - 1]], deadline)
+        if result is None:
+            return model, False, (chips, gates)
+        if not result:
+            break
+        model = solver.get_model()
+        chips, gates = count_chips(model), count_gates(model)
+    keep = list(fixed) + ([-costing.chip_count[chips]] if chips < len(costing.chip_count) else [])
+    while gates > 0:
+        result = _solve(solver, keep + [-costing.gate_count[gates - 1]], deadline)
+        if result is None:
+            proven = False
+            break
+        if not result:
+            break
+        model = solver.get_model()
+        gates = count_gates(model)
+    return model, proven, (chips, gates)
+
+
+# ---------------------------------------------------------------- candidate structures
+
+@dataclass(frozen=True)
+class _Node:
+    """An AND over literals of nets; the node's value is that AND XOR ``invert``.
+
+    Net references: ``('v', i)`` counter variable i, ``('n', id)`` another
+    node, ``('d', decoder, code)`` one decoder output (its minterm).
+    """
+
+    fanins: tuple[tuple[tuple, int], ...]
+    invert: int
+
+
+@dataclass(frozen=True)
+class _Option:
+    """One way to deliver a signal.
+
+    'sop' and 'dec': the signal equals the value of ``net`` XOR ``e``.
+    'mux': one mux unit whose data pins hold rails or a literal, delivering
+    the fixed ``polarity``.
+    """
+
+    signal: str
+    kind: str
+    net: tuple | None = None
+    e: int = 0
+    polarity: str | None = None
+    cell: int | None = None
+    data: tuple = ()
+    selects: tuple = ()
+    inverted_output: bool = False
+    needs: tuple = ()
+
+
+@dataclass
+class _Candidates:
+    nodes: list[_Node] = field(default_factory=list)
+    index: dict = field(default_factory=dict)
+    options: dict[str, list[_Option]] = field(default_factory=dict)
+    decoders: list[tuple[int, tuple[int, ...]]] = field(default_factory=list)
+
+    def node(self, key: tuple, fanins: tuple, invert: int) -> tuple:
+        if key not in self.index:
+            self.index[key] = len(self.nodes)
+            self.nodes.append(_Node(fanins, invert))
+        return ("n", self.index[key])
+
+    def add_option(self, option: _Option) -> None:
+        options = self.options.setdefault(option.signal, [])
+        if option not in options:
+            options.append(option)
+
+
+def _cube_vars(cube: tuple[int, int], nvars: int) -> list[int]:
+    return [i for i in range(nvars) if cube[0] >> i & 1]
+
+
+def _literal_net(cube: tuple[int, int], nvars: int) -> tuple[tuple, int]:
+    """A one-literal cube as (net, complemented)."""
+    (i,) = _cube_vars(cube, nvars)
+    return ("v", i), 0 if cube[1] >> i & 1 else 1
+
+
+def _term(cands: _Candidates, cube: tuple[int, int], nvars: int) -> tuple[tuple, int]:
+    """The net (and complement flag) carrying one product term."""
+    vars_ = _cube_vars(cube, nvars)
+    if len(vars_) == 1:
+        return _literal_net(cube, nvars)
+    fanins = tuple((("v", i), 0 if cube[1] >> i & 1 else 1) for i in vars_)
+    return cands.node(("t", cube), fanins, 0), 0
+
+
+def _sum(cands: _Candidates, terms: Sequence[tuple[tuple, int]]) -> tuple[tuple, int]:
+    """OR of nets: as NOT AND of their complements (De Morgan)."""
+    if len(terms) == 1:
+        return terms[0]
+    fanins = tuple(sorted((net, c ^ 1) for net, c in terms))
+    return cands.node(("s", fanins), fanins, 1), 0
+
+
+@dataclass(frozen=True)
+class _Form:
+    """A signal's cover in one phase: the cubes realise f XOR k."""
+
+    k: int
+    cubes: tuple[tuple[int, int], ...]
+
+    def support(self, nvars: int) -> list[int]:
+        return sorted({i for c in self.cubes for i in _cube_vars(c, nvars)})
+
+    def value(self, minterm: int) -> bool:
+        return any((minterm & m) == (v & m) for m, v in self.cubes)
+
+
+def _forms(problem: _Problem, covers: Sequence) -> dict[str, list[_Form]]:
+    forms: dict[str, list[_Form]] = {}
+    for sig in problem.signals:
+        for cover in covers:
+            if sig.name not in cover.outputs:
+                continue
+            k = 1 if cover.phases.get(sig.name) == "complement" else 0
+            form = _Form(k, tuple(cover.cubes(sig.name)))
+            if form.cubes and (0, 0) not in form.cubes and form not in forms.get(sig.name, []):
+                forms.setdefault(sig.name, []).append(form)
+    return forms
+
+
+def _candidates(problem: _Problem, forms: dict[str, list[_Form]], cells: Sequence[Cell]) -> _Candidates:
+    cands = _Candidates()
+    n = problem.nvars
+    for sig in problem.signals:
+        for form in forms.get(sig.name, []):
+            net, c = _sum(cands, [_term(cands, cube, n) for cube in form.cubes])
+            cands.add_option(_Option(sig.name, "sop", net, c ^ form.k))
+    for ci, cell in enumerate(cells):
+        if cell.op == "mux" and cell.mapped:
+            for sig in problem.signals:
+                for option in _mux_options(sig, forms.get(sig.name, []), ci, cell, n):
+                    cands.add_option(option)
+        elif cell.op == "decoder":
+            _decoder_options(cands, problem, forms, ci, cell)
+    return cands
+
+
+def _mux_options(sig: _Signal, forms: Sequence[_Form], ci: int, cell: Cell, nvars: int) -> list[_Option]:
+    """A 2^s:1 mux as a function generator: s select variables, one literal on the data pins."""
+    best: dict[str, _Option] = {}
+    targets = ("high", "low") if sig.polarity == "free" else (sig.polarity,)
+    for form in forms:
+        supp = form.support(nvars)
+        if len(supp) > cell.selects + 1:
+            continue
+        residuals = [None] if len(supp) <= cell.selects else supp
+        for r in residuals:
+            sels = tuple(v for v in supp if v != r)
+            for target in targets:
+                for inverted in ((False, True) if cell.output_inv else (False,)):
+                    flip = form.k ^ (target == "low") ^ inverted
+                    data = []
+                    for code in range(cell.width):
+                        if code >> len(sels):
+                            data.append("VSS")
+                            continue
+                        m = sum(1 << v for b, v in enumerate(sels) if code >> b & 1)
+                        v0 = form.value(m) ^ flip
+                        if r is None:
+                            data.append("VDD" if v0 else "VSS")
+                            continue
+                        v1 = form.value(m | 1 << r) ^ flip
+                        data.append("VDD" if v0 and v1 else "VSS" if not (v0 or v1)
+                                    else ("v", r, 0) if v1 else ("v", r, 1))
+                    needs = ((("v", r), 1),) if ("v", r, 1) in data else ()
+                    option = _Option(sig.name, "mux", polarity=target, cell=ci, data=tuple(data),
+                                     selects=sels, inverted_output=inverted, needs=needs)
+                    if target not in best or len(needs) < len(best[target].needs):
+                        best[target] = option
+    return list(best.values())
+
+
+def _decoder_options(cands: _Candidates, problem: _Problem, forms: dict[str, list[_Form]],
+                     ci: int, cell: Cell) -> None:
+    """Decoder outputs as minterms, OR-ed by gates; one decoder per set of select variables."""
+    n = problem.nvars
+    keys = sorted({tuple(f.support(n)) for fs in forms.values() for f in fs
+                   if len(f.support(n)) <= cell.width}, key=lambda k: (-len(k), k))[:6]
+    for sig in problem.signals:
+        for form in forms.get(sig.name, []):
+            supp = set(form.support(n))
+            for key in keys:
+                if not supp <= set(key):
+                    continue
+                on = [code for code in range(1 << len(key))
+                      if form.value(sum(1 << v for b, v in enumerate(key) if code >> b & 1))]
+                if not on or any(code >= cell.codes for code in on):
+                    continue
+                if (ci, key) not in cands.decoders:
+                    cands.decoders.append((ci, key))
+                d = cands.decoders.index((ci, key))
+                net, c = _sum(cands, [(("d", d, code), 0) for code in on])
+                cands.add_option(_Option(sig.name, "dec", net, c ^ form.k))
+
+
+# ---------------------------------------------------------------- structure selection (SAT)
+
+TRUE = 0  # a "need" that is always met (a counter output in its true form)
+
+
+@dataclass
+class _Chosen:
+    """A decoded selection: what to build, before nets get names."""
+
+    options: dict[str, _Option]
+    phi: dict[str, int]
+    trees: dict[int, _Tree]
+    z: dict[int, tuple[int, ...]]
+    inverters: dict[tuple, int]          # net -> inverter kind index
+    cost: tuple[int, int]
+
+
+class _Selection:
+    """The SAT model over candidate structures (see the module docstring)."""
+
+    def __init__(self, problem: _Problem, cands: _Candidates, cells: Sequence[Cell],
+                 table: _TreeTable) -> None:
+        self.problem, self.cands, self.cells, self.table = problem, cands, cells, table
+        self.cnf = _Cnf()
+        self.unit_lits: dict[int, list[int]] = {}
+        self.needs: dict[tuple, int] = {}
+        self.inv: dict[tuple, int] = {}
+        self.iota: dict[tuple, list[tuple[int, int]]] = {}
+        self.used = [self.cnf.new() for _ in cands.nodes]
+        self.dl = [self.cnf.new() for _ in cands.nodes]
+        self.dec_used = [self.cnf.new() for _ in cands.decoders]
+        for d, (ci, _) in enumerate(cands.decoders):
+            self.unit_lits.setdefault(ci, []).append(self.dec_used[d])
+        self.x: dict[int, list[tuple[int, _Tree]]] = {}
+        self.zs: dict[int, list[int]] = {}
+        self.opt: dict[str, list[tuple[int, _Option]]] = {}
+        self.phi: dict[str, int] = {}
+        for n in range(len(cands.nodes)):
+            self._encode_node(n)
+        for sig in problem.signals:
+            self._encode_signal(sig)
+        self.costing = _add_costing(self.cnf, cells, self.unit_lits)
+
+    # ---- nets and their phases
+
+    def need(self, net: tuple, q: int) -> int:
+        """A variable meaning: net is wanted at logical level XOR q."""
+        if net[0] == "v" and q == 0:
+            return TRUE
+        key = (net, q)
+        if key in self.needs:
+            return self.needs[key]
+        var = self.needs[key] = self.cnf.new()
+        if net[0] == "v":
+            self.cnf.add([-var, self.inverter(net)])
+        elif net[0] == "n":
+            n = net[1]
+            self.cnf.add([-var, self.used[n]])
+            self.cnf.add([-var, -self.dl[n] if q == 0 else self.dl[n], self.inverter(net)])
+        else:
+            d = net[1]
+            self.cnf.add([-var, self.dec_used[d]])
+            natural = 1 if self.cells[self.cands.decoders[d][0]].active == "low" else 0
+            if q != natural:
+                self.cnf.add([-var, self.inverter(net)])
+        return var
+
+    def inverter(self, net: tuple) -> int:
+        if net in self.inv:
+            return self.inv[net]
+        var = self.inv[net] = self.cnf.new()
+        choices = []
+        for v, kind in enumerate(self.table.invs):
+            lit = self.cnf.new()
+            self.unit_lits.setdefault(kind.cell, []).append(lit)
+            self.cnf.add([-lit, var])
+            choices.append((lit, v))
+        self.iota[net] = choices
+        self.cnf.add([-var] + [lit for lit, _ in choices])
+        self.cnf.at_most_one([lit for lit, _ in choices])
+        return var
+
+    def _require(self, guard: Sequence[int], var: int) -> None:
+        if var != TRUE:
+            self.cnf.add([-g for g in guard] + [var])
+
+    # ---- nodes and signals
+
+    def _encode_node(self, n: int) -> None:
+        node = self.cands.nodes[n]
+        k = len(node.fanins)
+        used = self.used[n]
+        trees = self.table.trees(k)
+        xs: list[tuple[int, _Tree]] = []
+        slots: dict[int, list[int]] = {}
+        zs = [self.cnf.new() for _ in range(k)]
+        count = self.cnf.counter(zs, exact=True)
+        for tree in trees:
+            x = self.cnf.new()
+            xs.append((x, tree))
+            self.cnf.add([-x, self.dl[n] if tree.b ^ node.invert else -self.dl[n]])
+            for ci, units in enumerate(tree.units):
+                lits = slots.setdefault(ci, [])
+                while len(lits) < units:
+                    lit = self.cnf.new()
+                    lits.append(lit)
+                    self.unit_lits.setdefault(ci, []).append(lit)
+                for t in range(units):
+                    self.cnf.add([-x, lits[t]])
+            if tree.n1 >= 1:
+                self.cnf.add([-x, count[tree.n1 - 1]])
+            if tree.n1 < k:
+                self.cnf.add([-x, -count[tree.n1]])
+        self.cnf.add([-used] + [x for x, _ in xs])
+        self.x[n], self.zs[n] = xs, zs
+        for j, (net, c) in enumerate(node.fanins):
+            plain, flipped = self.need(net, c), self.need(net, c ^ 1)
+            if plain != TRUE:
+                self.cnf.add([-used, zs[j], plain])
+            if flipped != TRUE:
+                self.cnf.add([-used, -zs[j], flipped])
+
+    def _encode_signal(self, sig: _Signal) -> None:
+        options = self.cands.options.get(sig.name, [])
+        if sig.polarity == "free":
+            self.phi[sig.name] = self.cnf.new()
+        phi = self.phi.get(sig.name)
+        lits = []
+        for option in options:
+            x = self.cnf.new()
+            lits.append((x, option))
+            if option.kind == "mux":
+                self.unit_lits.setdefault(option.cell, []).append(x)
+                for net, q in option.needs:
+                    self._require([x], self.need(net, q))
+                if phi is not None:
+                    self.cnf.add([-x, phi if option.polarity == "low" else -phi])
+                continue
+            if phi is None:
+                q = option.e ^ (sig.polarity == "low")
+                self._require([x], self.need(option.net, q))
+            else:
+                self._require([x, -phi], self.need(option.net, option.e))
+                self._require([x, phi], self.need(option.net, option.e ^ 1))
+        self.opt[sig.name] = lits
+        self.cnf.exactly_one([x for x, _ in lits]) if lits else self.cnf.add([])
+
+    # ---- solving and reading the answer
+
+    def _units(self, model: set[int]) -> dict[int, int]:
+        return {ci: sum(1 for lit in lits if lit in model) for ci, lits in self.unit_lits.items()}
+
+    def chips_and_gates(self, model_list: list[int]) -> tuple[int, int]:
+        units = self._units(set(l for l in model_list if l > 0))
+        return sum(_chips_from_units(units, self.cells).values()), sum(units.values())
+
+    def hints(self) -> list[int]:
+        """Preferred phases: the cheapest tree per node, the cheapest option per signal."""
+        def tree_key(tree: _Tree) -> tuple:
+            return (tree.gates, tree.depth, tree.n1)
+
+        best_tree = {n: min(xs, key=lambda xt: tree_key(xt[1]))[0] for n, xs in self.x.items() if xs}
+        cheapest = {n: min(tree.gates for _, tree in xs) for n, xs in self.x.items() if xs}
+        lits: list[int] = []
+        wanted_nodes: set[int] = set()
+        for name, options in self.opt.items():
+            def cost(option: _Option) -> float:
+                if option.kind == "mux":
+                    return 1 + len(option.needs)
+                nodes = self._nodes_under(option.net)
+                return sum(cheapest.get(n, 99) for n in nodes)
+            if not options:
+                continue
+            pick = min(options, key=lambda xo: cost(xo[1]))[0]
+            lits += [x if x == pick else -x for x, _ in options]
+            if self._option_net(options, pick) is not None:
+                wanted_nodes |= self._nodes_under(self._option_net(options, pick))
+        for n, xs in self.x.items():
+            lits.append(self.used[n] if n in wanted_nodes else -self.used[n])
+            lits += [x if x == best_tree.get(n) else -x for x, _ in xs]
+            lits += [-z for z in self.zs[n]]
+        for lits_of_cell in self.unit_lits.values():
+            lits += [-l for l in lits_of_cell if l not in lits]
+        return lits
+
+    def _option_net(self, options, pick) -> tuple | None:
+        option = next(o for x, o in options if x == pick)
+        return option.net
+
+    def _nodes_under(self, net: tuple | None) -> set[int]:
+        found: set[int] = set()
+        stack = [net] if net else []
+        while stack:
+            ref = stack.pop()
+            if ref[0] == "n" and ref[1] not in found:
+                found.add(ref[1])
+                stack.extend(f for f, _ in self.cands.nodes[ref[1]].fanins)
+        return found
+
+    def solve(self, deadline: float) -> tuple[_Chosen | None, bool]:
+        solver = _new_solver(self.cnf.clauses)
+        solver.set_phases(self.hints())
+        try:
+            model, proven, cost = _minimise(
+                solver, self.costing, deadline,
+                lambda m: self.chips_and_gates(m)[0], lambda m: self.chips_and_gates(m)[1])
+        finally:
+            solver.delete()
+        if model is None:
+            return None, proven
+        return self._decode(set(l for l in model if l > 0), cost), proven
+
+    def _decode(self, model: set[int], cost: tuple[int, int]) -> _Chosen:
+        options = {}
+        for name, lits in self.opt.items():
+            options[name] = next(option for x, option in lits if x in model)
+        phi = {name: int(var in model) for name, var in self.phi.items()}
+        trees = {n: next(tree for x, tree in xs if x in model)
+                 for n, xs in self.x.items() if self.used[n] in model}
+        z = {n: tuple(int(v in model) for v in self.zs[n]) for n in trees}
+        inverters = {}
+        for net, var in self.inv.items():
+            if var in model:
+                inverters[net] = next(v for lit, v in self.iota[net] if lit in model)
+        return _Chosen(options, phi, trees, z, inverters, cost)
+
+
+# ---------------------------------------------------------------- building gates
+
+class _Emitter:
+    """Gate records with every pin's net, named nets, tie-offs as the trade does them."""
+
+    def __init__(self, cells: Sequence[Cell], var_nets: Sequence[str]) -> None:
+        self.cells, self.var_nets = cells, tuple(var_nets)
+        self.gates: list[Gate] = []
+        self.count = 0
+        self.names = set(var_nets) | {"VDD", "VSS"}
+
+    def fresh(self, stem: str = "n") -> str:
+        i = len(self.names)
+        while f"{stem}{i}" in self.names:
+            i += 1
+        self.names.add(f"{stem}{i}")
+        return f"{stem}{i}"
+
+    def gate(self, cell_index: int, op: str, inputs: Sequence[str], outputs: Sequence[str] | None = None,
+             **extra) -> str:
+        cell = self.cells[cell_index]
+        self.count += 1
+        outs = tuple(outputs) if outputs is not None else (self.fresh(),)
+        self.gates.append(Gate(f"g{self.count}", cell.part, op, tuple(inputs), outs,
+                               schmitt=cell.schmitt, **extra))
+        return next((o for o in outs if o), "")
+
+    def logic(self, cell_index: int, nets: Sequence[str]) -> str:
+        """An AND/NAND/OR/NOR/XOR/XNOR unit over these nets (unused pins tied or joined)."""
+        cell = self.cells[cell_index]
+        return self.gate(cell_index, cell.op, _pin_nets(cell, nets))
+
+    def and_kind(self, kind: _AndKind, nets: Sequence[str]) -> str:
+        if kind.form == "gate":
+            return self.logic(kind.cell, nets)
+        x, y = nets
+        data = ("VSS", x) if kind.form == "mux_and" else (x, "VDD")
+        return self.mux(kind.cell, data, (y,))
+
+    def mux(self, cell_index: int, data: Sequence[str], selects: Sequence[str],
+            inverted: bool = False) -> str:
+        cell = self.cells[cell_index]
+        data = tuple(data) + ("VSS",) * (cell.width - len(data))
+        selects = tuple(selects) + ("VSS",) * (cell.selects - len(selects))
+        out = self.fresh()
+        outputs = ("", out) if inverted else (out,)
+        return self.gate(cell_index, "mux", data + selects, outputs)
+
+    def inverter(self, kind: _InvKind, net: str) -> str:
+        cell = self.cells[kind.cell]
+        if kind.form == "not":
+            return self.gate(kind.cell, "not", (net,))
+        if kind.form == "joined":
+            return self.gate(kind.cell, cell.op, (net,) * cell.width)
+        if kind.form in ("xor_high", "xnor_low"):
+            tie = "VDD" if kind.form == "xor_high" else "VSS"
+            return self.gate(kind.cell, cell.op, (net, tie) + ("VSS",) * (cell.width - 2))
+        return self.mux(kind.cell, ("VDD", "VSS"), (net,))
+
+    def decoder(self, cell_index: int, selects: Sequence[str], outputs: Sequence[str]) -> None:
+        cell = self.cells[cell_index]
+        selects = tuple(selects) + ("VSS",) * (cell.width - len(selects))
+        enables = tuple("VDD" if a == "high" else "VSS" for a in cell.enables)
+        self.count += 1
+        self.gates.insert(0, Gate(f"g{self.count}", cell.part, "decoder", selects + enables,
+                                  tuple(outputs), active=cell.active, enables_active=cell.enables))
+
+
+def _pin_nets(cell: Cell, nets: Sequence[str]) -> tuple[str, ...]:
+    """Every input pin's net: one net joined to all pins, else unused pins tied neutral.
+
+    Common practice: unused AND/NAND inputs to VDD, OR/NOR inputs to VSS (so
+    they do not change the function); a single-input NAND/NOR use has all its
+    inputs joined (the textbook inverter); an XOR's spare input goes to VSS.
+    """
+    distinct = tuple(dict.fromkeys(nets))
+    if len(distinct) > cell.width:
+        raise InternalError(f"{cell.label()} given {len(distinct)} inputs")
+    if len(distinct) == 1 and cell.op in AND_FORM:
+        return distinct * cell.width
+    return distinct + (NEUTRAL_RAIL[cell.op],) * (cell.width - len(distinct))
+
+
+class _Builder:
+    """A chosen selection -> gates, emitting each node and complement once."""
+
+    def __init__(self, problem: _Problem, cands: _Candidates, cells: Sequence[Cell],
+                 table: _TreeTable, chosen: _Chosen) -> None:
+        self.problem, self.cands, self.cells, self.table, self.chosen = problem, cands, cells, table, chosen
+        self.em = _Emitter(cells, problem.var_nets)
+        self.node_net: dict[int, str] = {}
+        self.complement: dict[tuple, str] = {}
+        self.dec_out: dict[int, dict[int, str]] = {}
+
+    def phys(self, net: tuple, p: int) -> str:
+        """The net name carrying the logical value of ``net`` XOR p."""
+        if net[0] == "v":
+            natural, name = 0, self.problem.var_nets[net[1]]
+        elif net[0] == "n":
+            name = self.emit_node(net[1])
+            natural = self.chosen.trees[net[1]].b ^ self.cands.nodes[net[1]].invert
+        else:
+            ci = self.cands.decoders[net[1]][0]
+            outs = self.dec_out.setdefault(net[1], {})
+            if net[2] not in outs:
+                outs[net[2]] = self.em.fresh("y")
+            name, natural = outs[net[2]], 1 if self.cells[ci].active == "low" else 0
+        if p == natural:
+            return name
+        if net not in self.complement:
+            if net not in self.chosen.inverters:
+                raise InternalError(f"the selection needs the complement of {net} but chose no inverter")
+            self.complement[net] = self.em.inverter(self.table.invs[self.chosen.inverters[net]], name)
+        return self.complement[net]
+
+    def emit_node(self, n: int) -> str:
+        if n in self.node_net:
+            return self.node_net[n]
+        node, tree, z = self.cands.nodes[n], self.chosen.trees[n], self.chosen.z[n]
+        queues = {0: [], 1: []}
+        for (net, c), flip in zip(node.fanins, z):
+            queues[flip].append(self.phys(net, c ^ flip))
+        self.node_net[n] = self._emit_shape(tree.shape, queues)
+        if queues[0] or queues[1]:
+            raise InternalError(f"node {n}: leaves left over after building its tree")
+        return self.node_net[n]
+
+    def _emit_shape(self, shape: tuple, queues: dict[int, list[str]]) -> str:
+        if shape[0] == "leaf":
+            return queues[shape[1]].pop(0)
+        if shape[0] == "inv":
+            return self.em.inverter(self.table.invs[shape[1]], self._emit_shape(shape[2], queues))
+        nets = [self._emit_shape(child, queues) for child in shape[2]]
+        return self.em.and_kind(self.table.kinds[shape[1]], nets)
+
+    def signal(self, sig: _Signal) -> SignalOut:
+        option = self.chosen.options[sig.name]
+        if option.kind == "mux":
+            data = [d if isinstance(d, str) else self.phys(("v", d[1]), d[2]) for d in option.data]
+            selects = [self.problem.var_nets[v] for v in option.selects]
+            net = self.em.mux(option.cell, data, selects, option.inverted_output)
+            return SignalOut(net, option.polarity)
+        if sig.polarity == "free":
+            low = self.chosen.phi[sig.name]
+        else:
+            low = int(sig.polarity == "low")
+        return SignalOut(self.phys(option.net, option.e ^ low), "low" if low else "high")
+
+    def finish(self) -> list[Gate]:
+        for d, outs in self.dec_out.items():
+            ci, key = self.cands.decoders[d]
+            outputs = [outs.get(code, "") for code in range(self.cells[ci].codes)]
+            self.em.decoder(ci, [self.problem.var_nets[v] for v in key], outputs)
+        return self.em.gates
+
+
+# ---------------------------------------------------------------- exact synthesis (SAT)
+
+@dataclass(frozen=True)
+class _SatKind:
+    """A cell as a gate type of the exact encoding (``width`` input slots)."""
+
+    cell: int
+    op: str
+    width: int
+    consts: tuple[int, ...]      # rail nodes its pins may take (0 = VSS, 1 = VDD)
+    symmetric: bool
+
+
+def _sat_kinds(cells: Sequence[Cell]) -> list[_SatKind]:
+    kinds = []
+    for i, c in enumerate(cells):
+        if c.op in AND_FORM:
+            kinds.append(_SatKind(i, c.op, c.width, (), True))
+        elif c.op in ("xor", "xnor") and c.width >= 2:
+            kinds.append(_SatKind(i, c.op, 2, (1,) if c.op == "xor" else (0,), True))
+        elif c.op == "not":
+            kinds.append(_SatKind(i, "not", 1, (), True))
+        elif c.op in ("mux", "spdt"):
+            kinds.append(_SatKind(i, "mux", 3, (0, 1), False))
+    return kinds
+
+
+def _distinct_inputs(kind: _SatKind) -> int:
+    return {"not": 1, "xor": 2, "xnor": 2, "mux": 3}.get(kind.op, kind.width)
+
+
+def _chip_capacities(cells: Sequence[Cell]) -> list[int]:
+    """Units per chip for every chip the bin could open, largest first."""
+    per_part: dict[str, tuple[int, int]] = {}
+    for c in cells:
+        upc, chips = per_part.get(c.part, (0, c.chips))
+        per_part[c.part] = (max(upc, c.units_per_chip), chips)
+    return sorted((upc for upc, chips in per_part.values() for _ in range(chips)), reverse=True)
+
+
+def _chips_lower_bound(k: int, capacities: Sequence[int]) -> float:
+    """Fewest chips that can hold k units (inf when the bin cannot)."""
+    total = 0
+    for c, cap in enumerate(capacities, start=1):
+        total += cap
+        if total >= k:
+            return c
+    return 0 if k == 0 else float("inf")
+
+
+def _gate_lower_bound(problem: _Problem, kinds: Sequence[_SatKind]) -> float:
+    """Gates any circuit needs: a signal over s variables needs a tree joining them."""
+    widest = max((_distinct_inputs(k) for k in kinds), default=0)
+    bound = 1
+    for sig in problem.signals:
+        s = len(_needed_support(sig, problem.nvars))
+        if s >= 2:
+            if widest <= 1:
+                return float("inf")
+            bound = max(bound, -(-(s - 1) // (widest - 1)))
+    return bound
+
+
+class _ExactInstance:
+    """Is there a circuit of exactly k gates (every gate used) for all signals?"""
+
+    def __init__(self, problem: _Problem, cells: Sequence[Cell], kinds: Sequence[_SatKind], k: int) -> None:
+        self.problem, self.cells, self.kinds, self.k = problem, cells, kinds, k
+        cnf = self.cnf = _Cnf()
+        n = problem.nvars
+        self.minterms = problem.minterms
+        M = range(len(self.minterms))
+        W = max(kind.width for kind in kinds)
+        base = 2 + n
+        self.t = [[cnf.new() for _ in kinds] for _ in range(k)]
+        self.sel = [[[cnf.new() for _ in range(base + i)] for _ in range(W)] for i in range(k)]
+        self.v = [[cnf.new() for _ in M] for _ in range(k)]
+        allowed_consts = set(c for kind in kinds for c in kind.consts)
+
+        def node_value(j: int, mi: int):
+            """A constant (True/False) for rails and counter variables, else a variable."""
+            if j < 2:
+                return bool(j)
+            if j < base:
+                return bool(self.minterms[mi] >> (j - 2) & 1)
+            return self.v[j - base][mi]
+
+        for i in range(k):
+            cnf.exactly_one(self.t[i])
+            u = [[cnf.new() for _ in M] for _ in range(W)]
+            for s in range(W):
+                sel = self.sel[i][s]
+                cnf.exactly_one(sel)
+                for j in range(2):
+                    if j not in allowed_consts:
+                        cnf.add([-sel[j]])
+                for j, lit in enumerate(sel):
+                    for mi in M:
+                        val = node_value(j, mi)
+                        if isinstance(val, bool):
+                            cnf.add([-lit, u[s][mi] if val else -u[s][mi]])
+                        else:
+                            cnf.add([-lit, -val, u[s][mi]])
+                            cnf.add([-lit, val, -u[s][mi]])
+            for c, kind in enumerate(kinds):
+                tc = self.t[i][c]
+                for s in range(W):
+                    for j in range(2):
+                        if s < kind.width and j not in kind.consts:
+                            cnf.add([-tc, -self.sel[i][s][j]])
+                    if s >= kind.width:
+                        cnf.add([-tc, self.sel[i][s][0]])
+                self._function(tc, kind, [u[s] for s in range(kind.width)], self.v[i], M)
+                self._symmetry(tc, kind, self.sel[i])
+        users = [[self.sel[i2][s][base + i] for i2 in range(i + 1, k) for s in range(W)]
+                 for i in range(k)]
+        self.out: dict[str, list[int]] = {}
+        self.phi: dict[str, int] = {}
+        for sig in problem.signals:
+            self._output(sig, base, node_value)
+        for i in range(k):
+            gate_outs = [self.out[sig.name][n + i] for sig in problem.signals]
+            cnf.add(users[i] + gate_outs)
+        unit_lits: dict[int, list[int]] = {}
+        for i in range(k):
+            for c, kind in enumerate(kinds):
+                unit_lits.setdefault(kind.cell, []).append(self.t[i][c])
+        self.costing = _add_costing(cnf, cells, unit_lits)
+        self.unit_lits = unit_lits
+
+    def _function(self, tc: int, kind: _SatKind, u: list[list[int]], v: list[int], M) -> None:
+        add = self.cnf.add
+        op = kind.op
+        for mi in M:
+            ins = [u[s][mi] for s in range(kind.width)]
+            out = v[mi]
+            if op in ("and", "nand", "or", "nor"):
+                inv = op in ("nand", "nor")
+                y = -out if inv else out
+                if op in ("and", "nand"):
+                    add([-tc] + [-x for x in ins] + [y])
+                    for x in ins:
+                        add([-tc, x, -y])
+                else:
+                    add([-tc] + ins + [-y])
+                    for x in ins:
+                        add([-tc, -x, y])
+            elif op in ("xor", "xnor"):
+                a, b = ins
+                y = out if op == "xor" else -out
+                add([-tc, -a, -b, -y])
+                add([-tc, a, b, -y])
+                add([-tc, -a, b, y])
+                add([-tc, a, -b, y])
+            elif op == "not":
+                add([-tc, -ins[0], -out])
+                add([-tc, ins[0], out])
+            else:
+                d0, d1, s = ins
+                add([-tc, s, -d0, out])
+                add([-tc, s, d0, -out])
+                add([-tc, -s, -d1, out])
+                add([-tc, -s, d1, -out])
+
+    def _symmetry(self, tc: int, kind: _SatKind, sel: list[list[int]]) -> None:
+        """Ordered inputs for symmetric gates; no gate that is a mere wire or constant."""
+        add = self.cnf.add
+        if kind.symmetric:
+            for s in range(kind.width - 1):
+                for j, lit in enumerate(sel[s]):
+                    for j2 in range(min(j, len(sel[s + 1]))):
+                        add([-tc, -lit, -sel[s + 1][j2]])
+        if kind.op in ("and", "or", "xor", "xnor") and kind.width >= 2:
+            last = kind.width - 1
+            for j in range(len(sel[0])):
+                add([-tc, -sel[0][j], -sel[last][j]])
+        if kind.op == "mux":
+            add([-tc, -sel[2][0]])
+            add([-tc, -sel[2][1]])
+            for j in range(len(sel[0])):
+                add([-tc, -sel[0][j], -sel[1][j]])
+
+    def _output(self, sig: _Signal, base: int, node_value) -> None:
+        cnf = self.cnf
+        n = self.problem.nvars
+        lits = [cnf.new() for _ in range(n + self.k)]
+        cnf.exactly_one(lits)
+        self.out[sig.name] = lits
+        phi = None
+        if sig.polarity == "free":
+            phi = self.phi[sig.name] = cnf.new()
+        fixed_low = sig.polarity == "low"
+        for mi, m in enumerate(self.minterms):
+            if m not in sig.care:
+                continue
+            want = m in sig.on
+            for j, lit in enumerate(lits):
+                val = node_value(2 + j, mi)
+                if isinstance(val, bool):
+                    if phi is None:
+                        if val != (want ^ fixed_low):
+                            cnf.add([-lit])
+                    else:
+                        cnf.add([-lit, phi if val != want else -phi])
+                elif phi is None:
+                    cnf.add([-lit, val if want ^ fixed_low else -val])
+                else:
+                    cnf.add([-lit, phi, val if want else -val])
+                    cnf.add([-lit, -phi, -val if want else val])
+
+    def chips(self, model: list[int]) -> int:
+        truth = set(l for l in model if l > 0)
+        units = {ci: sum(1 for lit in lits if lit in truth) for ci, lits in self.unit_lits.items()}
+        return sum(_chips_from_units(units, self.cells).values())
+
+    def solve(self, deadline: float):
+        solver = _new_solver(self.cnf.clauses)
+        try:
+            result = _solve(solver, [], deadline)
+            if not result:
+                return None, result is False, None
+            model = solver.get_model()
+            chips = self.chips(model)
+            done = True
+            while chips > 1:
+                answer = _solve(solver, [-self.costing.chip_count[chips - 1]], deadline)
+                if answer is None:
+                    done = False
+                    break
+                if not answer:
+                    break
+                model = solver.get_model()
+                chips = self.chips(model)
+            return set(l for l in model if l > 0), done, (chips, self.k)
+        finally:
+            solver.delete()
+
+    def build(self, model: set[int]) -> tuple[list[Gate], dict[str, SignalOut]]:
+        em = _Emitter(self.cells, self.problem.var_nets)
+        n = self.problem.nvars
+        base = 2 + n
+        names: list[str] = ["VSS", "VDD"] + list(self.problem.var_nets)
+        for i in range(self.k):
+            c = next(c for c, lit in enumerate(self.t[i]) if lit in model)
+            kind = self.kinds[c]
+            nets = [names[next(j for j, lit in enumerate(self.sel[i][s]) if lit in model)]
+                    for s in range(kind.width)]
+            cell = self.cells[kind.cell]
+            if kind.op in AND_FORM:
+                out = em.logic(kind.cell, nets)
+            elif kind.op in ("xor", "xnor"):
+                out = em.gate(kind.cell, kind.op, tuple(nets) + ("VSS",) * (cell.width - 2))
+            elif kind.op == "not":
+                out = em.gate(kind.cell, "not", tuple(nets))
+            else:
+                out = em.mux(kind.cell, nets[:2], nets[2:])
+            names.append(out)
+        signals = {}
+        for sig in self.problem.signals:
+            j = next(j for j, lit in enumerate(self.out[sig.name]) if lit in model)
+            low = (self.phi[sig.name] in model) if sig.name in self.phi else sig.polarity == "low"
+            signals[sig.name] = SignalOut(names[2 + j], "low" if low else "high")
+        return em.gates, signals
+
+
+@dataclass
+class _Result:
+    """A mapped design before it becomes a Network."""
+
+    gates: list[Gate]
+    signals: dict[str, SignalOut]
+    cost: tuple[int, int]
+    proven: bool
+    method: str
+    lower_bound: int | None = None
+
+
+def _exact_search(problem: _Problem, cells: Sequence[Cell], deadline: float,
+                  incumbent: tuple[int, int] | None, max_gates: int = EXACT_MAX_GATES
+                  ) -> tuple[_Result | None, bool, float]:
+    """Exact synthesis for k = lower bound, ... until no better (chips, gates) can exist.
+
+    Returns (best result or None, proven, chip lower bound).  Proven with no
+    result means no circuit of the bin's gate types fits the bin at all.
+    """
+    kinds = _sat_kinds(cells)
+    if not kinds:
+        return None, True, float("inf")
+    capacities = _chip_capacities([cells[k.cell] for k in kinds])
+    k = _gate_lower_bound(problem, kinds)
+    best: _Result | None = None
+    bound = incumbent
+    while True:
+        lb = _chips_lower_bound(k, capacities) if k != float("inf") else float("inf")
+        if lb == float("inf"):
+            return best, True, min(best.cost[0] if best else lb, lb)
+        if bound is not None and not (lb < bound[0] or (lb == bound[0] and k < bound[1])):
+            return best, True, min(bound[0], lb)
+        if k > max_gates or time.monotonic() >= deadline:
+            floor = lb if bound is None else min(bound[0], lb)
+            return best, False, floor
+        instance = _ExactInstance(problem, cells, kinds, int(k))
+        model, done, cost = instance.solve(deadline)
+        if model is None:
+            if not done:
+                floor = lb if bound is None else min(bound[0], lb)
+                return best, False, floor
+            k += 1
+            continue
+        if bound is None or cost < bound:
+            gates, signals = instance.build(model)
+            best = _Result(gates, signals, cost, False, "exact synthesis")
+            bound = cost
+        if not done:
+            return best, False, min(bound[0], lb)
+        k += 1
+
+
+# ---------------------------------------------------------------- structure selection (local search)
+
+LOCAL_TREES = 12          # trees per node the local search tries
+
+
+@dataclass
+class _Eval:
+    key: tuple
+    cost: tuple[int, int]
+    nodes: list[int]
+    z: dict[int, tuple[int, ...]]
+    inverters: dict[tuple, int]
+
+
+class _LocalSearch:
+    """Hill climbing over the same candidates: options, trees, inverter units.
+
+    For designs too large for the SAT selection; every move is judged on the
+    whole design's (overflow, chips, gates, depth), spare units included.
+    """
+
+    def __init__(self, problem: _Problem, cands: _Candidates, cells: Sequence[Cell],
+                 table: _TreeTable) -> None:
+        self.problem, self.cands, self.cells, self.table = problem, cands, cells, table
+        self.trees = {n: sorted(table.trees(len(node.fanins)), key=lambda t: (t.gates, t.depth))
+                      for n, node in enumerate(cands.nodes)}
+        self.natural_dec = {d: 1 if cells[ci].active == "low" else 0
+                            for d, (ci, _) in enumerate(cands.decoders)}
+        self.opt = {s.name: 0 for s in problem.signals}
+        self.phi = {s.name: 0 for s in problem.signals if s.polarity == "free"}
+        self.tree = {n: 0 for n in self.trees}
+        self.inv_cells = sorted({k.cell for k in table.invs},
+                                key=lambda c: -cells[c].units_per_chip)
+
+    def natural(self, net: tuple, tree: Mapping[int, int]) -> int:
+        if net[0] == "v":
+            return 0
+        if net[0] == "n":
+            return self.trees[net[1]][tree[net[1]]].b ^ self.cands.nodes[net[1]].invert
+        return self.natural_dec[net[1]]
+
+    def evaluate(self, opt, phi, tree) -> _Eval | None:
+        cells = self.cells
+        units = [0] * len(cells)
+        complements: dict[tuple, int] = {}
+        depth_of: dict[int, int] = {}
+        z: dict[int, tuple[int, ...]] = {}
+        order: list[int] = []
+        decs: set[int] = set()
+        nodes = self.cands.nodes
+        chosen = {n: self.trees[n][tree[n]] for n in self.trees}
+        nat = {n: chosen[n].b ^ nodes[n].invert for n in chosen}
+        natural_dec = self.natural_dec
+
+        def natural(net: tuple) -> int:
+            kind = net[0]
+            return 0 if kind == "v" else nat[net[1]] if kind == "n" else natural_dec[net[1]]
+
+        def require(net: tuple, q: int) -> int:
+            d = 0
+            if net[0] == "n":
+                d = visit(net[1])
+            elif net[0] == "d":
+                decs.add(net[1])
+                d = 1
+            if q != natural(net):
+                if net not in complements:
+                    complements[net] = len(complements)
+                d += 1
+            return d
+
+        def visit(n: int) -> int:
+            if n in depth_of:
+                return depth_of[n]
+            depth_of[n] = 0
+            t = chosen[n]
+            for c, u in enumerate(t.units):
+                if u:
+                    units[c] += u
+            fanins = nodes[n].fanins
+            first, middle, last = [], [], []
+            for j, (net, c) in enumerate(fanins):
+                p = natural(net)
+                (first if p != c else middle if p == c ^ 1 else last).append(j)
+            flips = [0] * len(fanins)
+            for j in (first + middle + last)[:t.n1]:
+                flips[j] = 1
+            z[n] = tuple(flips)
+            deepest = 0
+            for (net, c), f in zip(fanins, flips):
+                deepest = max(deepest, require(net, c ^ f))
+            order.append(n)
+            depth_of[n] = deepest + t.depth
+            return depth_of[n]
+
+        depth = 0
+        for sig in self.problem.signals:
+            options = self.cands.options[sig.name]
+            option = options[opt[sig.name]]
+            if option.kind == "mux":
+                if sig.polarity != "free" and option.polarity != sig.polarity:
+                    return None
+                units[option.cell] += 1
+                for net, q in option.needs:
+                    require(net, q)
+                depth = max(depth, 2 if option.needs else 1)
+                continue
+            low = phi[sig.name] if sig.polarity == "free" else int(sig.polarity == "low")
+            depth = max(depth, require(option.net, option.e ^ low))
+        for d in decs:
+            units[self.cands.decoders[d][0]] += 1
+        inverters = self._place_inverters(units, list(complements))
+        if inverters is None:
+            return None
+        overflow = sum(max(0, u - c.capacity) for u, c in zip(units, cells))
+        chips = sum(_chips_from_units(dict(enumerate(units)), cells).values())
+        gates = sum(units)
+        return _Eval((overflow, chips, gates, depth), (chips, gates), order, z, inverters)
+
+    def _place_inverters(self, units: list[int], nets: list[tuple]) -> dict[tuple, int] | None:
+        """Spare units of chips already opened first, then the cell that opens fewest chips."""
+        if not nets:
+            return {}
+        if not self.inv_cells:
+            return None
+        kind_of = {k.cell: v for v, k in reversed(list(enumerate(self.table.invs)))}
+        placed: dict[tuple, int] = {}
+        todo = list(nets)
+        for c in self.inv_cells:
+            cell = self.cells[c]
+            if units[c]:
+                spare = -(-units[c] // cell.units_per_chip) * cell.units_per_chip - units[c]
+                spare = min(spare, cell.capacity - units[c])
+                while spare > 0 and todo:
+                    placed[todo.pop()] = kind_of[c]
+                    units[c] += 1
+                    spare -= 1
+        while todo:
+            room = [c for c in self.inv_cells if self.cells[c].capacity > units[c]]
+            c = min(room or self.inv_cells,
+                    key=lambda c: (-(-len(todo) // self.cells[c].units_per_chip), -self.cells[c].units_per_chip))
+            take = max(1, min(len(todo), self.cells[c].capacity - units[c])) if room else len(todo)
+            for _ in range(take):
+                placed[todo.pop()] = kind_of[c]
+                units[c] += 1
+        return placed
+
+    def run(self, deadline: float) -> _Chosen | None:
+        best = self._initial()
+        if best is None:
+            return None
+        improved = True
+        while improved and time.monotonic() < deadline:
+            improved = False
+            for sig in self.problem.signals:
+                for i in range(len(self.cands.options[sig.name])):
+                    for p in ((0, 1) if sig.name in self.phi else (None,)):
+                        trial_opt = {**self.opt, sig.name: i}
+                        trial_phi = {**self.phi, **({sig.name: p} if p is not None else {})}
+                        result = self.evaluate(trial_opt, trial_phi, self.tree)
+                        if result and result.key < best.key:
+                            self.opt, self.phi, best, improved = trial_opt, trial_phi, result, True
+            for n in list(best.nodes):
+                if time.monotonic() >= deadline:
+                    break
+                for ti in range(min(LOCAL_TREES, len(self.trees[n]))):
+                    if ti == self.tree[n]:
+                        continue
+                    for trial_tree in self._tree_moves(n, ti):
+                        result = self.evaluate(self.opt, self.phi, trial_tree)
+                        if result and result.key < best.key:
+                            self.tree, best, improved = trial_tree, result, True
+        return self._chosen(best)
+
+    def _tree_moves(self, n: int, ti: int) -> list[dict[int, int]]:
+        """The node on another tree, alone and with its fan-in nodes re-phased to suit it."""
+        plain = {**self.tree, n: ti}
+        result = self.evaluate(self.opt, self.phi, plain)
+        moves = [plain]
+        if result is None or n not in result.z:
+            return moves
+        fitted = dict(plain)
+        for (net, c), f in zip(self.cands.nodes[n].fanins, result.z[n]):
+            if net[0] == "n":
+                want = c ^ f
+                m = net[1]
+                inv = self.cands.nodes[m].invert
+                fits = [i for i, t in enumerate(self.trees[m][:LOCAL_TREES]) if t.b ^ inv == want]
+                if fits:
+                    fitted[m] = fits[0]
+        if fitted != plain:
+            moves.append(fitted)
+        return moves
+
+    def _initial(self) -> _Eval | None:
+        best = None
+        for sig in self.problem.signals:
+            options = self.cands.options[sig.name]
+            if sig.polarity != "free":
+                self.opt[sig.name] = next((i for i, o in enumerate(options)
+                                           if o.kind != "mux" or o.polarity == sig.polarity), 0)
+        best = self.evaluate(self.opt, self.phi, self.tree)
+        return best
+
+    def _chosen(self, best: _Eval) -> _Chosen:
+        options = {name: self.cands.options[name][i] for name, i in self.opt.items()}
+        trees = {n: self.trees[n][self.tree[n]] for n in best.nodes}
+        return _Chosen(options, dict(self.phi), trees, {n: best.z[n] for n in best.nodes},
+                       best.inverters, best.cost)
+
+
+# ---------------------------------------------------------------- the mapper
+
+def _select(problem: _Problem, forms: dict[str, list[_Form]], lib: Library,
+            deadline: float) -> tuple[_Result | None, bool]:
+    """Structure selection over the candidates; (result, search finished)."""
+    cells = lib.cells
+    table = _tree_table(cells, lib.cache)
+    cands = _candidates(problem, forms, cells)
+    if any(not cands.options.get(s.name) for s in problem.signals):
+        return None, True
+    selection = _Selection(problem, cands, cells, table)
+    chosen, proven = selection.solve(deadline)
+    if chosen is None:
+        return None, proven
+    builder = _Builder(problem, cands, cells, table, chosen)
+    signals = {sig.name: builder.signal(sig) for sig in problem.signals}
+    gates = builder.finish()
+    units = _units_of(gates, lib)
+    cost = (sum(_chips_from_units(units, cells).values()), len(gates))
+    return _Result(gates, signals, cost, False, "structure selection"), proven
+
+
+def _units_of(gates: Sequence[Gate], lib: Library) -> dict[int, int]:
+    units: dict[int, int] = {}
+    for gate in gates:
+        index = _cell_of_gate(gate, lib)
+        units[index] = units.get(index, 0) + 1
+    return units
+
+
+def _problem(functions, nvars: int, var_nets: Sequence[str], polarity: Mapping[str, str]
+             ) -> tuple[_Problem, dict[str, SignalOut], list[_Signal]]:
+    """Signals needing gates, and the ones a rail or a counter output already delivers."""
+    if len(var_nets) != nvars:
+        raise InternalError(f"expected {nvars} counter nets, got {len(var_nets)}")
+    universe = frozenset(range(1 << nvars))
+    every, needing, direct = [], [], {}
+    for f in functions:
+        pol = polarity.get(f.name, "high")
+        if pol not in ("high", "low", "free"):
+            raise UsageError(f"signal {f.name}: expected polarity high, low or free, got {pol!r}")
+        care = universe - frozenset(f.dc)
+        sig = _Signal(f.name, frozenset(f.on) & care, care, pol)
+        every.append(sig)
+        level = _constant_level(sig)
+        if level is not None:
+            low = pol == "low"
+            direct[f.name] = SignalOut("VDD" if level != low else "VSS", "low" if low else "high")
+            continue
+        literal = _literal_of(sig, nvars)
+        if literal is not None:
+            i, comp = literal
+            if pol == "free" or (pol == "low") == bool(comp):
+                direct[f.name] = SignalOut(var_nets[i], "low" if comp else "high")
+                continue
+        needing.append(sig)
+    return _Problem(nvars, tuple(var_nets), needing), direct, every
+
+
+def _covers(problem: _Problem, functions, cover, nvars: int, exact: str) -> list:
+    """Two covers per signal, one per phase: the given (or minimized) one and its opposite."""
+    from .minimize import Function, minimize
+
+    names = {s.name for s in problem.signals}
+    if not names:
+        return []
+    by_name = {f.name: f for f in functions if f.name in names}
+    sigs = {s.name: s for s in problem.signals}
+    mode = {"auto": "auto", "yes": "yes", "no": "no"}[exact]
+    if cover is None or not names <= set(cover.outputs):
+        first = minimize([by_name[n] for n in sorted(names)], nvars, exact=mode)
+    else:
+        first = cover
+    others = []
+    for name in sorted(names):
+        sig, f = sigs[name], by_name[name]
+        if first.phases.get(name) == "complement":
+            others.append(Function(name, sig.on, frozenset(f.dc)))
+        else:
+            others.append(Function(name, sig.care - sig.on, frozenset(f.dc)))
+    second = minimize(others, nvars, exact=mode)
+    flipped = {n for n in names if first.phases.get(n) != "complement"}
+    return [first, _Flipped(second, flipped)]
+
+
+@dataclass(frozen=True)
+class _Flipped:
+    """A cover of complemented functions, read so that phases refer to the originals."""
+
+    cover: object
+    flipped: frozenset[str] | set
+
+    @property
+    def outputs(self):
+        return self.cover.outputs
+
+    @property
+    def phases(self) -> dict[str, str]:
+        result = {}
+        for name, phase in self.cover.phases.items():
+            comp = (phase == "complement") != (name in self.flipped)
+            result[name] = "complement" if comp else "true"
+        return result
+
+    def cubes(self, name: str):
+        return self.cover.cubes(name)
+
+
+def map_design(functions, nvars: int, var_nets: Sequence[str], library: Library, *,
+               polarity: Mapping[str, str], cover=None, exact: str = "auto",
+               time_limit: float = 10.0) -> Network:
+    """Cover the decode functions with the bin's gates: fewest chips, then gates, then depth.
+
+    ``exact``: 'auto' runs exact synthesis on small designs, 'yes' on any
+    design (within ``time_limit``), 'no' never.  Raises ``ShortError`` when
+    the bin cannot realise a signal, naming what is short and one part that
+    would fix it.
+    """
+    if exact not in ("auto", "yes", "no"):
+        raise UsageError(f"expected exact to be auto, yes or no, got {exact!r}")
+    start = time.monotonic()
+    lib = library.mapped()
+    problem, direct, every = _problem(functions, nvars, var_nets, polarity)
+    if not problem.signals:
+        network = Network([], dict(direct), tuple(var_nets), {}, True, 0,
+                          "no gates needed", ["every signal is a rail or a counter output"])
+        _verify(network, every, nvars, lib)
+        return network
+    forms = _forms(problem, _covers(problem, functions, cover, nvars, exact))
+    run_exact = _exact_wanted(problem, exact)
+    budget = time_limit * (0.45 if run_exact else 0.95)
+    result, finished = _select(problem, forms, lib, start + budget)
+    notes = []
+    if result is not None:
+        notes.append("structure selection: " + (
+            "minimal chips, then gates, over the candidate structures considered" if finished
+            else "best found within the time limit"))
+    lower: float = 1
+    if run_exact:
+        incumbent = result.cost if result else None
+        exact_result, proven, lower = _exact_search(problem, lib.cells, start + time_limit * 0.95, incumbent)
+        if exact_result is not None:
+            result = exact_result
+        if result is not None and proven and _exact_complete(lib.cells):
+            result.proven = True
+            notes.append("exact synthesis: proven minimal (chips, then gates) over every circuit of "
+                         "the bin's gates, inverters and 2:1 muxes")
+        elif result is not None and proven:
+            notes.append("exact synthesis: no circuit of the bin's gates, inverters and 2:1 muxes does "
+                         "better; wider muxes and decoders are outside that proof")
+        elif result is not None:
+            notes.append(f"exact synthesis stopped (time or size cap): best found, at least "
+                         f"{int(lower)} chip(s)")
+        elif proven:
+            raise _shortage(problem, forms, lib, start + time_limit, proven_impossible=True)
+    if result is None:
+        raise _shortage(problem, forms, lib, start + time_limit)
+    signals = dict(direct)
+    signals.update(result.signals)
+    gates = _name_signal_nets(result.gates, signals, set(var_nets))
+    chips = chips_of(gates, lib)
+    lb = result.cost[0] if result.proven else max(1, min(int(lower), result.cost[0]))
+    method = ("exact synthesis" if result.method == "exact synthesis" else "structure selection") + \
+        (": proven minimal" if result.proven else ": best found")
+    network = Network(gates, signals, tuple(var_nets), chips, result.proven, lb, method, notes)
+    _verify(network, every, nvars, lib)
+    return network
+
+
+def _exact_complete(cells: Sequence[Cell]) -> bool:
+    """Whether exact synthesis sees every way the cells can be used."""
+    return all(c.op in AND_FORM or c.op in ("not", "buf") or (c.op in ("xor", "xnor") and c.width == 2)
+               or (c.op in ("mux", "spdt") and c.width == 2) for c in cells)
+
+
+def _exact_wanted(problem: _Problem, exact: str) -> bool:
+    if exact == "no":
+        return False
+    if exact == "yes":
+        return True
+    return problem.nvars <= EXACT_MAX_VARS and len(problem.signals) <= EXACT_MAX_OUTPUTS
+
+
+def _name_signal_nets(gates: list[Gate], signals: dict[str, SignalOut], fixed: set[str]) -> list[Gate]:
+    """Give each signal's gate output the signal's name (``_n`` when delivered low)."""
+    driven = {net for g in gates for net in g.outputs if net}
+    taken = fixed | driven | {"VDD", "VSS"}
+    rename: dict[str, str] = {}
+    for name, out in sorted(signals.items()):
+        if out.net in driven and out.net not in rename:
+            wanted = name if out.polarity == "high" else f"{name}_n"
+            candidate, i = wanted, 1
+            while candidate in taken or candidate in rename.values():
+                i += 1
+                candidate = f"{wanted}{i}"
+            rename[out.net] = candidate
+    for name, out in list(signals.items()):
+        if out.net in rename:
+            signals[name] = SignalOut(rename[out.net], out.polarity)
+    return [replace(g, inputs=tuple(rename.get(n, n) for n in g.inputs),
+                    outputs=tuple(rename.get(n, n) for n in g.outputs)) for g in gates]
+
+
+def _verify(network: Network, signals: Sequence[_Signal], nvars: int, lib: Library) -> None:
+    """Zero-delay simulation on every cared-for minterm; bin limits; loop freedom."""
+    for part, chips in network.chips.items():
+        if chips > lib.available.get(part, 0):
+            raise InternalError(f"the network takes {chips} x {part}, the bin offers "
+                                f"{lib.available.get(part, 0)}")
+    minterms = sorted(set().union(*(s.care for s in signals))) if signals else []
+    for m in minterms:
+        inputs = {net: bool(m >> i & 1) for i, net in enumerate(network.inputs)}
+        try:
+            values = evaluate_network(network, inputs)
+        except ValueError as exc:
+            raise InternalError(f"the mapped network does not simulate: {exc}") from exc
+        values.update({"VDD": True, "VSS": False})
+        for sig in signals:
+            if m not in sig.care:
+                continue
+            out = network.signals[sig.name]
+            level = values[out.net]
+            asserted = level if out.polarity == "high" else not level
+            if asserted != (m in sig.on):
+                raise InternalError(f"mapped signal {sig.name} is wrong at minterm {m}: "
+                                    f"expected {'asserted' if m in sig.on else 'not asserted'}")
+
+
+# ---------------------------------------------------------------- when the bin is short
+
+FIX_TRIES = 10
+
+
+def _can_invert(cells: Sequence[Cell]) -> bool:
+    return bool(_inv_kinds(cells))
+
+
+def _shortage(problem: _Problem, forms: dict[str, list[_Form]], lib: Library, deadline: float,
+              proven_impossible: bool = False) -> ShortError:
+    """What the bin lacks for these signals, and one part that would fix it."""
+    names = ", ".join(s.name for s in problem.signals)
+    roomy = _roomy(lib)
+    plenty, _ = _select(problem, forms, roomy, min(deadline, time.monotonic() + 2.0)) \
+        if roomy.cells else (None, True)
+    if plenty is None:
+        if not lib.cells:
+            reason = "the bin holds no logic gates"
+        elif not _can_invert(lib.cells):
+            reason = "no part in the bin can invert a signal (no inverter, NAND, NOR, XOR or mux)"
+        else:
+            reason = "the bin's gate kinds cannot form these functions"
+        fix = _one_part_fix(problem, forms, lib, deadline, prefer_inverting=True)
+    else:
+        need = chips_of(plenty.gates, roomy)
+        short = [f"{n} x {p} (the bin has {lib.available.get(p, 0)})"
+                 for p, n in need.items() if n > lib.available.get(p, 0)]
+        reason = "too few gates: it needs " + ", ".join(short) if short else \
+            "too few gates of the kinds it needs"
+        fix = _one_part_fix(problem, forms, lib, deadline, prefer_inverting=False)
+    hint = (f"one more {fix} ({lib.catalog.parts[fix].function}) would do it" if fix
+            else "no single extra chip would do it; add gates of the kinds named")
+    return ShortError(f"the bin cannot realise {names}: {reason}", file=lib.source or None, hint=hint)
+
+
+def _roomy(lib: Library) -> Library:
+    """The same gate kinds with plenty of chips (to tell kinds from counts)."""
+    plenty = 64
+    cells = [replace(c, chips=plenty) for c in lib.cells]
+    return Library(cells, lib.supply, lib.catalog, {p: plenty for p in lib.available},
+                   dict(lib.reserved), [], lib.source)
+
+
+def _one_part_fix(problem: _Problem, forms, lib: Library, deadline: float,
+                  prefer_inverting: bool) -> str | None:
+    """The first single extra chip (likeliest first) with which the signals map."""
+    for part in _fix_candidates(lib, prefer_inverting)[:FIX_TRIES]:
+        if time.monotonic() >= deadline:
+            break
+        trial = lib.with_extra(part).mapped()
+        result, _ = _select(problem, forms, trial, min(deadline, time.monotonic() + 1.5))
+        if result is not None:
+            return part
+    return None
+
+
+def _fix_candidates(lib: Library, prefer_inverting: bool) -> list[str]:
+    """Parts to try adding: more of what the bin has, inverters, NANDs, the rest of the family."""
+    catalog = lib.catalog
+    families = {catalog.parts[p].family for p in lib.available} or {"4000B"}
+    usable = [p for p in catalog.parts.values()
+              if p.family in families and p.suits(lib.supply)
+              and p.category in ("gate", "inverter", "mux", "decoder")]
+
+    def rank(part: Part) -> tuple:
+        cells = cells_of_part(part, 1, lib.supply)
+        inverting = _can_invert(cells)
+        ops = {c.op for c in cells}
+        kind = 0 if "not" in ops and not any(c.schmitt for c in cells) else \
+            1 if ops & {"nand", "nor"} else 2 if inverting else 3
+        in_bin = part.type in lib.available
+        if prefer_inverting:
+            return (kind, not in_bin, part.type)
+        return (not in_bin, kind, part.type)
+
+    return [p.type for p in sorted(usable, key=rank)]
