@@ -121,9 +121,16 @@ def signal_rows(design) -> list[tuple]:
     for name, info in plan.signals.items():
         source = info.get("source")
         where = f"{source[0]} pin {source[1]}" if source else "-"
-        expression = decode.signals[name].expression if name in decode.signals else ""
+        expression = _asserted_expression(decode.signals[name]) if name in decode.signals else ""
         rows.append((name, info.get("polarity"), where, expression))
     return rows
+
+
+def _asserted_expression(signal) -> str:
+    """The decode as the function that is true while the signal is asserted."""
+    if signal.phase == "true":
+        return signal.expression
+    return f"({signal.expression})'"
 
 
 def plan_blocks(design) -> list:
@@ -133,7 +140,7 @@ def plan_blocks(design) -> list:
     plan = design.plan
     blocks = [Text(summary_text(design)),
               Table("taken from the bin", ("part", "used", "on hand", "left"), bin_rows(design)),
-              Table("signals", ("signal", "delivered active", "from", "decode (counter pins)"),
+              Table("signals", ("signal", "delivered active", "from", "asserted when (counter pins)"),
                     signal_rows(design))]
     for name, sw in plan.switches.items():
         blocks.append(Text(f"switch {name}: {sw.get('ref')} section {sw.get('unit', '?')}; common joins "
