@@ -11,12 +11,14 @@ Interface:
 - ``Function(name, on, dc=frozenset())``: one signal; ``dc`` wins where the
   two sets overlap (a tick whose level does not matter is not asserted).
 - ``Cover``: the shared product terms and, per signal, which terms its OR
-  gathers and in which phase it is delivered; ``evaluate``, ``signal_value``,
-  ``cubes``, ``literals``, ``term_count``.
+  gathers and in which phase it is delivered, whether it is proven minimal
+  and a ``note`` saying why not; ``evaluate``, ``signal_value``, ``cubes``,
+  ``literals``, ``term_count``.
 - ``minimize(functions, nvars, var_names=None, *, exact='auto',
   free_phase=frozenset()) -> Cover``.
 - ``to_text(cover, name, style='trade') -> str``.
-- ``check_cover(cover, functions) -> list[Mismatch]``.
+- ``check_cover(cover, functions) -> list[Mismatch]``; ``Mismatch(name,
+  minterm, wanted, got)``.
 
 Cost (one definition, used by every path and reported in ``Cover.cost``):
 the tuple ``(terms, literals, connections)`` compared lexicographically --
@@ -36,16 +38,26 @@ Two paths:
 - The exact path generates every multi-output prime implicant with a
   Quine-McCluskey merge done on integer bitsets (all bases of one cube shape
   at once), then solves the minimum cover as weighted MaxSAT (python-sat's
-  RC2), free phases included as selector variables.  A cover of multi-output
+  RC2), free phases included as selector variables.  Shortcuts with the same
+  guarantee: a cover made of essential connections alone, and for a single
+  signal enumeration when few primes remain open.  A cover of multi-output
   primes with minimum cost always exists, so a finished solve is a proof:
   ``proven_minimal`` is True only then.  With ``exact='auto'`` the search runs
   within ``AUTO_MAX_VARS``, ``AUTO_MAX_WORK``, ``AUTO_MAX_PRIMES`` and
-  ``AUTO_CONFLICT_BUDGET`` (counted, not timed, so the same input always gives
-  the same cover); outside them the Espresso cover is kept and ``note`` says
-  "best found" and why.  ``exact='yes'`` runs it without limits; ``'no'``
-  skips it.
+  ``AUTO_CONFLICT_BUDGET`` (conflicts counted, not seconds timed, so reaching
+  the proof does not depend on machine speed); outside them the Espresso
+  cover is kept and ``note`` says "best found" and why.  ``exact='yes'`` runs
+  it without limits; ``'no'`` skips it.
 
 Every result is checked against every minterm before it is returned.
+
+Limits: pyeda's Espresso keeps internal state from one call to the next, so
+within one process a heuristic ("best found") cover of the same input may
+differ by a term between calls; a fresh process making the same calls gets
+the same covers, and proven covers never vary in cost.  The phase search
+for more than ``PHASE_ENUMERATE_MAX`` free signals is greedy (each signal's
+cheaper phase alone, then one pass of single flips in the shared context)
+unless the exact path finishes.
 """
 
 from __future__ import annotations
@@ -400,7 +412,7 @@ def _espresso(space: _Space, variants: dict[int, _Variant]) -> _Solution:
 
 def _espresso_phases(space: _Space, functions: Sequence[Function],
                      free: list[int]) -> tuple[_Solution, dict[int, Phase]]:
-    """Espresso with a phase search over the free signals (deterministic, no clock)."""
+    """Espresso with a phase search over the free signals (no clock involved)."""
     both = {(i, p): _variant(space, i, f, p)
             for i, f in enumerate(functions) for p in ("true", "complement")
             if p == "true" or i in free}
