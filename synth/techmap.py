@@ -610,19 +610,25 @@ def _add_costing(cnf: _Cnf, cells: Sequence[Cell], unit_lits: dict[int, list[int
 
 
 def _minimise(solver, costing: _Costing, deadline: float, count_chips, count_gates,
-              fixed: Sequence[int] = ()) -> tuple[list[int] | None, bool, tuple[int, int] | None]:
+              fixed: Sequence[int] = (), incumbent: tuple[int, int] | None = None
+              ) -> tuple[list[int] | None, bool, tuple[int, int] | None]:
     """Chips first, then gates, by bound tightening.
 
     Returns (model, proven, (chips, gates)); proven means both minima were
-    closed by an UNSAT answer before the deadline.
+    closed by an UNSAT answer before the deadline.  With an ``incumbent``
+    (a solution known from elsewhere) the search starts below it and a None
+    model with proven=True means the incumbent is minimal.
     """
-    result = _solve(solver, fixed, deadline)
-    if not result:
-        return None, result is False, None
-    model = solver.get_model()
-    chips, gates = count_chips(model), count_gates(model)
+    if incumbent is None:
+        result = _solve(solver, fixed, deadline)
+        if not result:
+            return None, result is False, None
+        model = solver.get_model()
+        chips, gates = count_chips(model), count_gates(model)
+    else:
+        model, (chips, gates) = None, incumbent
     proven = True
-    while chips > 0:
+    while 0 < chips <= len(costing.chip_count):
         result = _solve(solver, list(fixed) + [-costing.chip_count[chips - 1]], deadline)
         if result is None:
             return model, False, (chips, gates)
@@ -631,7 +637,7 @@ def _minimise(solver, costing: _Costing, deadline: float, count_chips, count_gat
         model = solver.get_model()
         chips, gates = count_chips(model), count_gates(model)
     keep = list(fixed) + ([-costing.chip_count[chips]] if chips < len(costing.chip_count) else [])
-    while gates > 0:
+    while 0 < gates <= len(costing.gate_count):
         result = _solve(solver, keep + [-costing.gate_count[gates - 1]], deadline)
         if result is None:
             proven = False
@@ -1025,13 +1031,33 @@ class _Selection:
                 stack.extend(f for f, _ in self.cands.nodes[ref[1]].fanins)
         return found
 
-    def solve(self, deadline: float) -> tuple[_Chosen | None, bool]:
+    def seed(self, chosen: _Chosen) -> list[int]:
+        """Phases that reproduce a known selection (the local search's)."""
+        lits: list[int] = []
+        for name, options in self.opt.items():
+            lits += [x if option == chosen.options.get(name) else -x for x, option in options]
+        for name, var in self.phi.items():
+            lits.append(var if chosen.phi.get(name) else -var)
+        for n, xs in self.x.items():
+            tree = chosen.trees.get(n)
+            lits.append(self.used[n] if tree is not None else -self.used[n])
+            lits += [x if t == tree else -x for x, t in xs]
+            flips = chosen.z.get(n, (0,) * len(self.zs[n]))
+            lits += [v if f else -v for v, f in zip(self.zs[n], flips)]
+        for net, var in self.inv.items():
+            kind = chosen.inverters.get(net)
+            lits.append(var if kind is not None else -var)
+            lits += [lit if v == kind else -lit for lit, v in self.iota[net]]
+        return lits
+
+    def solve(self, deadline: float, incumbent: _Chosen | None = None) -> tuple[_Chosen | None, bool]:
         solver = _new_solver(self.cnf.clauses)
-        solver.set_phases(self.hints())
+        solver.set_phases(self.seed(incumbent) if incumbent else self.hints())
         try:
             model, proven, cost = _minimise(
                 solver, self.costing, deadline,
-                lambda m: self.chips_and_gates(m)[0], lambda m: self.chips_and_gates(m)[1])
+                lambda m: self.chips_and_gates(m)[0], lambda m: self.chips_and_gates(m)[1],
+                incumbent=incumbent.cost if incumbent else None)
         finally:
             solver.delete()
         if model is None:
@@ -1541,6 +1567,17 @@ class _Eval:
     inverters: dict[tuple, int]
 
 
+def _tree_menu(trees: Sequence[_Tree], ncells: int) -> list[_Tree]:
+    """Trees worth trying: the fewest gates, and for each cell the ones sparing it most."""
+    by_gates = sorted(trees, key=lambda t: (t.gates, t.depth))
+    menu = by_gates[:LOCAL_TREES]
+    for c in range(ncells):
+        for b in (0, 1):
+            spare = sorted((t for t in trees if t.b == b), key=lambda t: (t.units[c], t.gates, t.depth))[:2]
+            menu += [t for t in spare if t not in menu]
+    return menu
+
+
 class _LocalSearch:
     """Hill climbing over the same candidates: options, trees, inverter units.
 
@@ -1551,7 +1588,7 @@ class _LocalSearch:
     def __init__(self, problem: _Problem, cands: _Candidates, cells: Sequence[Cell],
                  table: _TreeTable) -> None:
         self.problem, self.cands, self.cells, self.table = problem, cands, cells, table
-        self.trees = {n: sorted(table.trees(len(node.fanins)), key=lambda t: (t.gates, t.depth))
+        self.trees = {n: _tree_menu(table.trees(len(node.fanins)), len(cells))
                       for n, node in enumerate(cands.nodes)}
         self.natural_dec = {d: 1 if cells[ci].active == "low" else 0
                             for d, (ci, _) in enumerate(cands.decoders)}
@@ -1674,10 +1711,21 @@ class _LocalSearch:
                 units[c] += 1
         return placed
 
-    def run(self, deadline: float) -> _Chosen | None:
+    def run(self, deadline: float) -> tuple[_Chosen | None, int]:
+        """The best selection found, and how far it overflows the bin (0 = fits).
+
+        First climbs as if the bin were unlimited (the structure), then with
+        the bin's limits first (the repair).
+        """
         best = self._initial()
         if best is None:
-            return None
+            return None, 0
+        best = self._climb(best, lambda e: e.key[1:], deadline)
+        if best.key[0]:
+            best = self._climb(best, lambda e: e.key, deadline)
+        return self._chosen(best), best.key[0]
+
+    def _climb(self, best: _Eval, score, deadline: float) -> _Eval:
         improved = True
         while improved and time.monotonic() < deadline:
             improved = False
@@ -1687,19 +1735,19 @@ class _LocalSearch:
                         trial_opt = {**self.opt, sig.name: i}
                         trial_phi = {**self.phi, **({sig.name: p} if p is not None else {})}
                         result = self.evaluate(trial_opt, trial_phi, self.tree)
-                        if result and result.key < best.key:
+                        if result and score(result) < score(best):
                             self.opt, self.phi, best, improved = trial_opt, trial_phi, result, True
             for n in list(best.nodes):
                 if time.monotonic() >= deadline:
                     break
-                for ti in range(min(LOCAL_TREES, len(self.trees[n]))):
+                for ti in range(len(self.trees[n])):
                     if ti == self.tree[n]:
                         continue
                     for trial_tree in self._tree_moves(n, ti):
                         result = self.evaluate(self.opt, self.phi, trial_tree)
-                        if result and result.key < best.key:
+                        if result and score(result) < score(best):
                             self.tree, best, improved = trial_tree, result, True
-        return self._chosen(best)
+        return best
 
     def _tree_moves(self, n: int, ti: int) -> list[dict[int, int]]:
         """The node on another tree, alone and with its fan-in nodes re-phased to suit it."""
@@ -1714,7 +1762,7 @@ class _LocalSearch:
                 want = c ^ f
                 m = net[1]
                 inv = self.cands.nodes[m].invert
-                fits = [i for i, t in enumerate(self.trees[m][:LOCAL_TREES]) if t.b ^ inv == want]
+                fits = [i for i, t in enumerate(self.trees[m]) if t.b ^ inv == want]
                 if fits:
                     fitted[m] = fits[0]
         if fitted != plain:
@@ -1748,8 +1796,14 @@ def _select(problem: _Problem, forms: dict[str, list[_Form]], lib: Library,
     cands = _candidates(problem, forms, cells)
     if any(not cands.options.get(s.name) for s in problem.signals):
         return None, True
-    selection = _Selection(problem, cands, cells, table)
-    chosen, proven = selection.solve(deadline)
+    local, overflow = _LocalSearch(problem, cands, cells, table).run(deadline)
+    chosen = local if local is not None and not overflow else None
+    proven = False
+    if _selection_is_small(cands, table) and time.monotonic() < deadline:
+        selection = _Selection(problem, cands, cells, table)
+        exact_choice, proven = selection.solve(deadline, chosen)
+        if exact_choice is not None:
+            chosen = exact_choice
     if chosen is None:
         return None, proven
     builder = _Builder(problem, cands, cells, table, chosen)
@@ -1758,6 +1812,14 @@ def _select(problem: _Problem, forms: dict[str, list[_Form]], lib: Library,
     units = _units_of(gates, lib)
     cost = (sum(_chips_from_units(units, cells).values()), len(gates))
     return _Result(gates, signals, cost, False, "structure selection"), proven
+
+
+SELECTION_MAX_TREES = 6000   # tree variables beyond which only the local search runs
+
+
+def _selection_is_small(cands: _Candidates, table: _TreeTable) -> bool:
+    trees = sum(len(table.trees(len(node.fanins))) for node in cands.nodes)
+    return trees <= SELECTION_MAX_TREES
 
 
 def _units_of(gates: Sequence[Gate], lib: Library) -> dict[int, int]:
