@@ -77,6 +77,7 @@ class Plan:
     method: str = ""
     parts: dict[str, Part] = field(default_factory=dict)
     external: dict[str, str] = field(default_factory=dict)
+    bin_lacks: dict | None = None   # wishlist.BinLacks.to_json(), when the plan ran that search
 
     def chip(self, ref: str) -> ChipInstance:
         for chip in self.chips:

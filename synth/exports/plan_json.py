@@ -99,6 +99,7 @@ def plan_to_json(plan: Plan) -> dict:
         "cautions": list(plan.cautions),
         "nets_external": dict(plan.external),
         "counter": _counter(plan),
+        "bin_lacks": plan.bin_lacks,
     }
 
 
