@@ -64,10 +64,20 @@ class NotApplicable(Exception):
 def apply_fixes(design: Any, fix: Iterable[str], *, exact: str = "auto") -> Any:
     """The design with the glitch remedies applied (see the module text)."""
     fix = set(fix)
+    widths = _widest(design.plan.glitches)
     if "glitches" in fix:
         design = _fix_glitches(design, exact)
-    design.plan.rc_offers = rc_offers(design)
+    design.plan.rc_offers = rc_offers(design, widths)
     return design
+
+
+def _widest(glitch_records) -> dict[str, float]:
+    """Signal -> its widest glitch (worst-case width where the max corner shows it)."""
+    out: dict[str, float] = {}
+    for g in glitch_records:
+        width = g.get("width_max_ns") or g.get("width_ns") or 0.0
+        out[g["signal"]] = max(out.get(g["signal"], 0.0), float(width))
+    return out
 
 
 def _fix_glitches(design: Any, exact: str) -> Any:
@@ -388,25 +398,26 @@ def _spare_input_rewrite(network, signal, out, clock, settle, plan, stock, catal
 
 
 def _series_gate_rewrite(network, signal, out, clock, settle, free, plan, stock, catalog):
-    """A new gate after the decode: op(decode, clock phase), from a spare unit or a new chip."""
+    """A new gate after the decode: op(decode, clock phase), from a spare unit or a new chip;
+    an inverting gate is followed by an inverter when the signal's polarity is fixed."""
     active_high = out.polarity == "high"
     choices = []
     for op in ("and", "nand", "or", "nor"):
         controlling = _CONTROLLING[op]
         forced = controlling ^ (not _KEEPS_LEVEL[op])
-        new_high = active_high if _KEEPS_LEVEL[op] else not active_high
-        if forced == new_high or (new_high != active_high and not free):
+        gate_high = active_high if _KEEPS_LEVEL[op] else not active_high
+        if forced == gate_high:
             continue
-        for unit in _unit_options(plan, stock, catalog, op, min_inputs=2):
-            choices.append((unit[2], unit[1], op, unit[0], controlling, new_high))
+        restore = gate_high != active_high and not free
+        for part, width, new_chip in _unit_options(plan, stock, catalog, op, min_inputs=2):
+            choices.append((restore, new_chip, width, op, part, controlling, gate_high))
     if not choices:
-        need = "an AND (or a NAND, turning it active low" if active_high else \
-            "an OR (or a NOR, turning it active high"
-        raise NotApplicable(f"gating an active-{out.polarity} output needs {need}, where its polarity "
-                            "is free) with a spare unit or a chip left in the bin, and there is none")
-    new_chip, width, op, part, controlling, new_high = min(choices)
-    gates, phase_net, added = _phase(network, clock, settle, controlling, plan, stock, catalog,
-                                     avoid_part=part if new_chip else None)
+        need = "an AND or a NAND" if active_high else "an OR or a NOR"
+        raise NotApplicable(f"gating an active-{out.polarity} output needs {need} with a spare unit "
+                            "or a chip left in the bin, and there is none")
+    restore, new_chip, width, op, part, controlling, gate_high = min(choices)
+    gates, phase_net, _ = _phase(network, clock, settle, controlling, plan, stock, catalog,
+                                 avoid_part=part if new_chip else None)
     taken = {n for g in gates for n in (*g.inputs, *g.outputs)}
     if not any(out.net in g.outputs for g in gates):       # a counter output used as it is
         source, target, body = out.net, _fresh(signal, taken), gates
@@ -416,18 +427,37 @@ def _series_gate_rewrite(network, signal, out, clock, settle, free, plan, stock,
         body = [dataclasses.replace(g, inputs=tuple(source if n == out.net else n for n in g.inputs),
                                     outputs=tuple(source if n == out.net else n for n in g.outputs))
                 for g in gates]
+    taken |= {source, target}
+    ids = {g.id for g in gates}
     fill = "VSS" if controlling else "VDD"
-    gate = Gate(_fresh(f"strobe_{signal}", {g.id for g in network.gates}), part, op,
-                (source, phase_net) + (fill,) * (width - 2), (target,),
-                schmitt=bool(catalog.parts[part].thresholds))
-    signals = dict(network.signals)
-    signals[signal] = SignalOut(target, "high" if new_high else "low")
+    gated = _fresh(f"{signal}_gated", taken) if restore else target
+    new_gates = [Gate(_fresh(f"strobe_{signal}", ids), part, op,
+                      (source, phase_net) + (fill,) * (width - 2), (gated,),
+                      schmitt=bool(catalog.parts[part].thresholds))]
     how = (f"a {op.upper()} gate ({part}{', a new chip from the bin' if new_chip else ', a spare unit'}) "
            f"after the decode, its other input on {_phase_wording(clock, settle, controlling)}")
+    if restore:
+        inv_part, inv_width, inv_op = _restoring_inverter(plan, stock, catalog, part, signal)
+        new_gates.append(Gate(_fresh(f"strobe_{signal}_inv", ids), inv_part, inv_op,
+                              (gated,) * inv_width, (target,),
+                              schmitt=bool(catalog.parts[inv_part].thresholds)))
+        how += f", then an inverter ({inv_part} {inv_op.upper()}) to keep {signal} active {out.polarity}"
+    new_high = gate_high if not restore else active_high
+    signals = dict(network.signals)
+    signals[signal] = SignalOut(target, "high" if new_high else "low")
     if new_high != active_high:
         how += f"; {signal} is now delivered active {'high' if new_high else 'low'}"
-    return (dataclasses.replace(network, gates=body + [gate], signals=signals),
+    return (dataclasses.replace(network, gates=body + new_gates, signals=signals),
             _record("series_gate", signal, "high" if new_high else "low", clock, settle, how, []))
+
+
+def _restoring_inverter(plan, stock, catalog, gate_part: str, signal: str) -> tuple[str, int, str]:
+    """An inverter (or a NAND/NOR with its inputs joined) after an inverting gating gate."""
+    options = [(o, op) for op in ("not", "nand", "nor") for o in _unit_options(plan, stock, catalog, op, 1)]
+    if not options:
+        raise NotApplicable(f"{signal} would need an inverter after the gating gate and none is left")
+    (part, width, _), op = min(options, key=lambda x: (x[0][2] and x[0][0] != gate_part, x[0][1]))
+    return part, width, op
 
 
 def _phase_wording(clock: str, settle: bool, controlling: bool) -> str:
@@ -521,22 +551,30 @@ def _record(how: str, signal: str, polarity: str, clock: str, settle: bool, text
 
 # ---------------------------------------------------------------- RC delay offers
 
-def rc_offers(design: Any) -> list[dict]:
+def rc_offers(design: Any, widths: dict[str, float] | None = None) -> list[dict]:
     """RC delays between Schmitt stages for races and for glitches a logic fix cannot
-    remove without a new chip; offered with values, spread and wiring, never applied."""
+    remove without a new chip; offered with values, spread and wiring, never applied.
+
+    One race offer per signal to delay (the one of each coincident pair that
+    settles later, so the gap only grows); ``widths`` are the glitch widths
+    found before any fix (signal -> widest, ns)."""
     plan = design.plan
     period = _period_ns(design)
+    widths = dict(widths if widths is not None else _widest(plan.glitches))
     offers = []
+    races: dict[str, list[dict]] = {}
     for edge in plan.coincident_edges:
-        offers.append(_race_offer(design, edge, period))
-    costly = {r["signal"] for r in getattr(plan, "timing_fixes", []) or []
-              if r.get("glitches_after") or r.get("cost", {}).get("chips", 0) > 0}
-    if not getattr(plan, "timing_fixes", None):
-        costly = {g["signal"] for g in plan.glitches}
+        a, b = edge["signals"]
+        races.setdefault(b if edge.get("first") == a else a, []).append(edge)
+    for signal, edges in sorted(races.items()):
+        offers.append(_race_offer(design, signal, edges, period))
+    fixes = getattr(plan, "timing_fixes", None)
+    if fixes is None:
+        costly = set(widths)
+    else:
+        costly = {r["signal"] for r in fixes if r.get("glitches_after") or r["cost"].get("chips", 0) > 0}
     for signal in sorted(costly):
-        widths = [g.get("width_max_ns") or g.get("width_ns") or 0 for g in plan.glitches
-                  if g["signal"] == signal] or [0]
-        offers.append(_glitch_offer(design, signal, max(widths), period))
+        offers.append(_glitch_offer(design, signal, widths.get(signal, 0.0), period))
     return [o for o in offers if o is not None]
 
 
@@ -548,17 +586,16 @@ def _period_ns(design: Any) -> float | None:
     return getattr(trace, "period_ns", None)
 
 
-def _race_offer(design: Any, edge: dict, period: float | None) -> dict | None:
-    a, b = edge["signals"]
-    later = b if edge.get("first") == a else a
+def _race_offer(design: Any, later: str, edges: list[dict], period: float | None) -> dict | None:
     if period is None:
         return None
-    wanted_ns = period / 4
-    offer = _rc_design(design, later, wanted_ns, period)
-    offer.update({"problem": "race", "signals": [a, b], "at_tick": edge["at_tick"],
-                  "why": (f"{a} and {b} switch on the same clock edge (tick {edge['at_tick']}); "
-                          f"delaying {later} by about a quarter tick moves its edges clear of the other's "
-                          "without changing what is sampled at the end of the tick")})
+    others = sorted({n for e in edges for n in e["signals"] if n != later})
+    ticks = sorted({e["at_tick"] for e in edges})
+    offer = _rc_design(design, later, period / 4, period)
+    offer.update({"problem": "race", "signals": [later, *others], "at_ticks": ticks,
+                  "why": (f"{later} switches on the same clock edge as {', '.join(others)} (ticks "
+                          f"{', '.join(map(str, ticks))}); delayed by about a quarter tick its edges "
+                          "come clear of theirs and the level sampled at the end of each tick is unchanged")})
     return offer
 
 
