@@ -602,7 +602,7 @@ def _race_offer(design: Any, later: str, edges: list[dict], period: float | None
 def _glitch_offer(design: Any, signal: str, width_ns: float, period: float | None) -> dict | None:
     if period is None:
         return None
-    wanted_ns = max(4 * width_ns, 2000.0)
+    wanted_ns = max(4 * width_ns, 1000.0)
     if wanted_ns > period / 4:
         return {"problem": "glitch", "signal": signal, "applicable": False,
                 "why": f"a filter slower than the {width_ns:.0f} ns pulse would take more than a "
@@ -644,7 +644,12 @@ def _rc_design(design: Any, signal: str, wanted_ns: float, period: float) -> dic
               "same polarity (two inversions); move its loads there"]
     spread = {"rising": [round(x * 1e9, 1) for x in (d.rising.min, d.rising.typ, d.rising.max)],
               "falling": [round(x * 1e9, 1) for x in (d.falling.min, d.falling.typ, d.falling.max)]}
-    return {**base, "applicable": True, "r_ohm": d.r, "c_farad": d.c, "r": r, "c": c,
+    longest = max(d.rising.max, d.falling.max) * 1e9
+    fits = longest < period / 2
+    if not fits:
+        base["why_not"] = (f"the nearest values on hand ({r}, {c}) give up to {longest:.0f} ns, more than "
+                           f"half the {period:.0f} ns tick: the delayed level would be sampled late")
+    return {**base, "applicable": fits, "r_ohm": d.r, "c_farad": d.c, "r": r, "c": c,
             "delay_ns": spread, "formula": d.formula, "wiring": wiring, "warnings": list(d.warnings),
             "tick_ns": round(period, 1)}
 
