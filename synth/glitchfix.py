@@ -416,8 +416,8 @@ def _series_gate_rewrite(network, signal, out, clock, settle, free, plan, stock,
         raise NotApplicable(f"gating an active-{out.polarity} output needs {need} with a spare unit "
                             "or a chip left in the bin, and there is none")
     restore, new_chip, width, op, part, controlling, gate_high = min(choices)
-    gates, phase_net, _ = _phase(network, clock, settle, controlling, plan, stock, catalog,
-                                 avoid_part=part if new_chip else None)
+    gates, phase_net, added = _phase(network, clock, settle, controlling, plan, stock, catalog,
+                                     avoid_part=part if new_chip else None)
     taken = {n for g in gates for n in (*g.inputs, *g.outputs)}
     if not any(out.net in g.outputs for g in gates):       # a counter output used as it is
         source, target, body = out.net, _fresh(signal, taken), gates
@@ -448,7 +448,7 @@ def _series_gate_rewrite(network, signal, out, clock, settle, free, plan, stock,
     if new_high != active_high:
         how += f"; {signal} is now delivered active {'high' if new_high else 'low'}"
     return (dataclasses.replace(network, gates=body + new_gates, signals=signals),
-            _record("series_gate", signal, "high" if new_high else "low", clock, settle, how, []))
+            _record("series_gate", signal, "high" if new_high else "low", clock, settle, how, added))
 
 
 def _restoring_inverter(plan, stock, catalog, gate_part: str, signal: str) -> tuple[str, int, str]:
@@ -542,6 +542,9 @@ def _fresh(base: str, taken: set[str]) -> str:
 def _record(how: str, signal: str, polarity: str, clock: str, settle: bool, text: str,
             added: list[Gate]) -> dict:
     still = _phase_text(clock, not settle)
+    if added:
+        inv = added[0]
+        text += f" (the inverted clock from a {inv.part} {inv.op.upper()} unit)"
     return {"how": how, "still_phase": still, "polarity": polarity,
             "detail": (f"{text}: {signal} is asserted only while {still} (the second half of each "
                        "asserted tick, when the counter is still), so a window of several ticks "
@@ -608,8 +611,12 @@ def _glitch_offer(design: Any, signal: str, width_ns: float, period: float | Non
                 "why": f"a filter slower than the {width_ns:.0f} ns pulse would take more than a "
                        f"quarter of the {period:.0f} ns tick"}
     offer = _rc_design(design, signal, wanted_ns, period)
+    fixed = next((r for r in getattr(design.plan, "timing_fixes", None) or [] if r["signal"] == signal
+                  and r["applied"] and not r["glitches_after"]), None)
+    instead = (f"instead of the {fixed['remedy'].replace('_', ' ')} applied, which took "
+               f"{fixed['cost']['chips']} new chip(s): " if fixed else "")
     offer.update({"problem": "glitch", "signal": signal,
-                  "why": (f"an RC low-pass between two Schmitt stages swallows a pulse shorter than its "
+                  "why": (f"{instead}an RC low-pass between two Schmitt stages swallows a pulse shorter than its "
                           f"delay: the {width_ns:.0f} ns (worst case) pulse never charges C to the "
                           "threshold, while each real edge arrives one RC delay later")})
     if offer.get("applicable") and min(offer["delay_ns"]["rising"][0], offer["delay_ns"]["falling"][0]) \

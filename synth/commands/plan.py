@@ -124,6 +124,9 @@ def signal_rows(design) -> list[tuple]:
         source = info.get("source")
         where = f"{source[0]} pin {source[1]}" if source else "-"
         expression = _asserted_expression(decode.signals[name]) if name in decode.signals else ""
+        gated = (getattr(plan, "strobed", None) or {}).get(name)
+        if gated:
+            expression = f"({expression}) and {gated['still_phase']} (gated with the clock)"
         rows.append((name, info.get("polarity"), where, expression))
     return rows
 
