@@ -103,7 +103,12 @@ def _fix_glitches(design: Any, exact: str) -> Any:
         sync = _attempt(records, "synchronous_counter", lambda: _synchronous(current, exact), current)
         if sync is not None:
             left = sorted(_by_signal(sync.plan.glitches))
-            both = _strobe_all(sync, left, records=None) if left else sync
+            both = sync
+            if left:
+                try:
+                    both = _strobe_all(sync, left)
+                except (NotApplicable, SynthError):
+                    both = sync
             candidates.append(("synchronous_counter", both))
     if candidates:
         name, best = min(candidates, key=lambda c: (_count(c[1]), _chips(c[1]), _gates(c[1])))
@@ -123,7 +128,7 @@ def _attempt(records: dict, remedy: str, build, base: Any) -> Any:
     except NotApplicable as exc:
         _note_all(records, remedy, f"not applicable: {exc}")
         return None
-    except (ShortError, InternalError) as exc:
+    except SynthError as exc:
         _note_all(records, remedy, f"not applicable: {exc.args[0] if exc.args else exc}")
         return None
     _note_all(records, remedy, f"tried: {_count(result)} glitches left (was {_count(base)}), "
@@ -301,14 +306,14 @@ def _synchronous(design: Any, exact: str) -> Any:
     except SynthError as exc:
         raise NotApplicable(f"the synchronous counters on hand cannot count the cycle: {exc.args[0]}") \
             from None
-    if not cp.synchronous:
-        raise NotApplicable("the allocation without ripple counters is still not synchronous")
+    if sorted(c.part for c in cp.chips) == sorted(c.part for c in design.counter.chips):
+        raise NotApplicable("without the ripple counters the allocation comes out the same")
     return _rebuild(design, counter_plan=cp, exact=exact)
 
 
 # ---------------------------------------------------------------- (c) gating with the clock
 
-def _strobe_all(design: Any, signals: list[str], records: dict | None = None) -> Any:
+def _strobe_all(design: Any, signals: list[str]) -> Any:
     """Gate each signal in turn; a signal that cannot be gated keeps its decode."""
     network = design.network
     strobed = dict(getattr(design.plan, "strobed", {}) or {})
@@ -619,6 +624,9 @@ def _glitch_offer(design: Any, signal: str, width_ns: float, period: float | Non
                   "why": (f"{instead}an RC low-pass between two Schmitt stages swallows a pulse shorter than its "
                           f"delay: the {width_ns:.0f} ns (worst case) pulse never charges C to the "
                           "threshold, while each real edge arrives one RC delay later")})
+    if offer.get("receiver") == "plain-input":
+        offer["why"] = offer["why"].replace("two Schmitt stages", "two inverting stages (the bin has no "
+                                            "Schmitt part; a Schmitt second stage is the better receiver)")
     if offer.get("applicable") and min(offer["delay_ns"]["rising"][0], offer["delay_ns"]["falling"][0]) \
             <= width_ns:
         offer["applicable"] = False
@@ -631,7 +639,11 @@ def _rc_design(design: Any, signal: str, wanted_ns: float, period: float) -> dic
     from .units import format_si
 
     plan, stock, catalog = design.plan, design.stock, design.catalog
-    receiver, where = _schmitt_pair(plan, stock, catalog)
+    try:
+        receiver, where = _schmitt_pair(plan, stock, catalog)
+    except NotApplicable as exc:
+        return {"delayed": signal, "wanted_ns": round(wanted_ns, 1), "applied": False,
+                "applicable": False, "why_not": str(exc)}
     thresholds = (thresholds_at(catalog.parts[receiver].thresholds, plan.supply) if receiver
                   else plain_input_thresholds(plan.supply))
     base = {"delayed": signal, "wanted_ns": round(wanted_ns, 1), "receiver": receiver or "plain-input",
@@ -678,10 +690,26 @@ def _schmitt_pair(plan: Any, stock: Any, catalog: Any) -> tuple[str | None, list
                 return part_type, [_unit_text(chip.ref, u) for u in free[:2]]
         if stock.count(part_type) - plan.bom.get(part_type, 0) > 0:
             return part_type, [_unit_text(f"a new {part_type}", u) for u in units[:2]]
-    return None, ["any spare inverting gate", "a plain CMOS input (no Schmitt part in the bin)"]
+    for op in ("not", "nand", "nor"):
+        for part_type, _width, new_chip in _unit_options(plan, stock, catalog, op, 1):
+            part = catalog.parts[part_type]
+            units = [u for u in part.units if u.op == op]
+            chip = next((c for c in plan.chips if c.part == part_type and not new_chip
+                         and sum(u.id not in c.units_used for u in units) >= 2), None)
+            if chip is not None:
+                free = [u for u in units if u.id not in chip.units_used]
+                return None, [_unit_text(chip.ref, u, joined=True) for u in free[:2]]
+            if new_chip or stock.count(part_type) - plan.bom.get(part_type, 0) > 0:
+                return None, [_unit_text(f"a new {part_type}", u, joined=True) for u in units[:2]]
+    raise NotApplicable("no Schmitt part and no two spare inverting gates on the board or in the bin")
 
 
-def _unit_text(ref: str, unit: Any) -> str:
+def _unit_text(ref: str, unit: Any, joined: bool = False) -> str:
     ins = unit.inputs
-    tie = f", other inputs to VDD" if len(ins) > 1 else ""
+    if len(ins) > 1 and joined:
+        tie = f", its other inputs joined to pin {ins[0]} (plain CMOS threshold, not Schmitt)"
+    elif len(ins) > 1:
+        tie = ", other inputs to VDD"
+    else:
+        tie = ""
     return f"{ref} unit {unit.id}: in pin {ins[0]}, out pin {unit.output}{tie}"

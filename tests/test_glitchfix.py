@@ -233,3 +233,24 @@ def test_fixed_example_cosimulates_without_unreported_spikes(catalog, tmp_path):
                 hi = lo + period_ps // windows
                 moves = [x for x in wave if lo <= x[0] < hi]
                 assert len(moves) <= 1, f"{name}: unreported spike in tick {k}: {moves}"
+
+
+def test_synchronous_counter_from_the_bin_when_no_gate_is_left(tmp_path, catalog):
+    # A 9-stage all-zero decode on a 4040 (one chip) spikes on every power-of-two entry
+    # (common practice); the bin has no AND/NAND for gating, but two 4520 dual synchronous
+    # counters: re-allocated on them, only the entries where one 4-bit unit carries into the
+    # next (16 and 256, ripple between units) still pass through the all-zero state.
+    spec = tmp_path / "s.yaml"
+    spec.write_text("name: sync-try\nsupply: 5 V\nclock: {frequency: 10 kHz}\ncycle: 512\n"
+                    "signals:\n  zero: {high: [0]}\n")
+    stock = tmp_path / "b.yaml"
+    stock.write_text("parts:\n  4040: 1\n  4520: 2\n  4002: 2\n  4025: 1\n  4001: 1\n")
+    before = make_plan(spec, stock, catalog=catalog)
+    assert _ticks(before) == [2, 4, 8, 16, 32, 64, 128, 256]
+    after = make_plan(spec, stock, catalog=catalog, fix=["glitches"])
+    record, = after.plan.timing_fixes
+    assert record["remedy"] == "synchronous_counter" and record["cost"]["chips"] == 1
+    assert {c.part for c in after.counter.chips} == {"4520"}
+    states = {g["at_tick"] for g in after.plan.glitches if "states" in g["models"]}
+    assert states == {16, 256}
+    assert list(simulate_ticks(after.plan)["zero"]) == [t == 0 for t in range(512)]
