@@ -143,14 +143,14 @@ def _note_all(records: dict, remedy: str, text: str) -> None:
 
 
 def _credit(fixed_by: dict, old: Any, new: Any, remedy: str, only_strobed: bool = False) -> None:
-    """Signals whose glitches this step reduced are credited to the remedy."""
+    """Signals whose glitches this step reduced are credited to the remedy (in order)."""
     was, now = _by_signal(old.plan.glitches), _by_signal(new.plan.glitches)
     strobed = getattr(new.plan, "strobed", {}) or {}
     for signal, ticks in was.items():
         if only_strobed and signal not in strobed:
             continue
         if only_strobed or len(now.get(signal, ())) < len(ticks):
-            fixed_by[signal] = (remedy, old, new)
+            fixed_by.setdefault(signal, []).append((remedy, old, new))
 
 
 def _finish_records(records: dict, fixed_by: dict, start: Any, final: Any) -> None:
@@ -162,20 +162,25 @@ def _finish_records(records: dict, fixed_by: dict, start: Any, final: Any) -> No
             rec["tried"].append({"remedy": "clock_gating", "result": f"not applicable to {signal}: "
                                  f"{skipped[signal]}"})
         rec["glitches_after"] = after.get(signal, [])
-        remedy, old, new = fixed_by.get(signal, ("note", start, start))
-        rec["remedy"] = remedy
-        rec["applied"] = remedy != "note"
-        if remedy == "clock_gating" and signal in strobed:
-            rec["cost"] = dict(strobed[signal]["cost"])
-            rec["detail"] = strobed[signal]["detail"]
-        elif remedy == "note":
-            rec["cost"] = {"chips": 0, "gates": 0}
-            rec["detail"] = _note_text(final, signal)
-        else:
-            rec["cost"] = {"chips": _chips(new) - _chips(old), "gates": _gates(new) - _gates(old),
-                           "shared": "the whole design was re-derived; the cost is the design's"}
-            rec["detail"] = _global_detail(remedy, new)
-        if rec["glitches_after"] and remedy != "note":
+        steps = fixed_by.get(signal, [])
+        rec["remedies_applied"] = [remedy for remedy, _, _ in steps]
+        rec["remedy"] = steps[-1][0] if steps else "note"
+        rec["applied"] = bool(steps)
+        chips = gates = 0
+        details = []
+        for remedy, old, new in steps:
+            if remedy == "clock_gating" and signal in strobed:
+                chips += strobed[signal]["cost"]["chips"]
+                gates += strobed[signal]["cost"]["gates"]
+                details.append(strobed[signal]["detail"])
+            else:
+                chips += _chips(new) - _chips(old)
+                gates += _gates(new) - _gates(old)
+                details.append(_global_detail(remedy, new))
+                rec["cost_shared"] = "the whole design was re-derived: its change counts for every signal"
+        rec["cost"] = {"chips": chips, "gates": gates}
+        rec["detail"] = "; then ".join(details) if details else _note_text(final, signal)
+        if rec["glitches_after"] and steps:
             rec["note"] = _note_text(final, signal)
     final.plan.timing_fixes = [records[s] for s in sorted(records)]
 
@@ -439,7 +444,8 @@ def _series_gate_rewrite(network, signal, out, clock, settle, free, plan, stock,
     new_gates = [Gate(_fresh(f"strobe_{signal}", ids), part, op,
                       (source, phase_net) + (fill,) * (width - 2), (gated,),
                       schmitt=bool(catalog.parts[part].thresholds))]
-    how = (f"a {op.upper()} gate ({part}{', a new chip from the bin' if new_chip else ', a spare unit'}) "
+    article = "an" if op in ("and", "or") else "a"
+    how = (f"{article} {op.upper()} gate ({part}{', a new chip from the bin' if new_chip else ', a spare unit'}) "
            f"after the decode, its other input on {_phase_wording(clock, settle, controlling)}")
     if restore:
         inv_part, inv_width, inv_op = _restoring_inverter(plan, stock, catalog, part, signal)

@@ -254,3 +254,26 @@ def test_synchronous_counter_from_the_bin_when_no_gate_is_left(tmp_path, catalog
     states = {g["at_tick"] for g in after.plan.glitches if "states" in g["models"]}
     assert states == {16, 256}
     assert list(simulate_ticks(after.plan)["zero"]) == [t == 0 for t in range(512)]
+
+
+def test_another_decode_choice_where_the_transient_is_a_dont_care(tmp_path, catalog):
+    # s is asserted at tick 14 only, tick 6 does not matter.  The cheapest decode,
+    # Q3·Q2·Q1' (covering 6 and 14), spikes on the entry to 8: the ripple passes through
+    # 0110 (7 = 0111 -> 0110 -> 0100 -> 0000 -> 1000, common practice).  With 6 given the
+    # steady (low) level the decode becomes Q4·Q3·Q2·Q1' and that spike is gone; the one on
+    # the entry to 0 passes through 14, where s is specified, so the clock gating takes it.
+    spec = tmp_path / "s.yaml"
+    spec.write_text("name: dc-try\nsupply: 5 V\nclock: {frequency: 100 kHz}\ncycle: 16\n"
+                    "signals:\n  s: {high: [14], dont_care: [6]}\n")
+    stock = tmp_path / "b.yaml"
+    stock.write_text("parts:\n  74HC4040: 1\n  74HC21: 1\n  74HC04: 1\n")
+    before = make_plan(spec, stock, catalog=catalog)
+    assert {(g["at_tick"], g["transient_state"]) for g in before.plan.glitches} == {(0, 14), (8, 6)}
+    after = make_plan(spec, stock, catalog=catalog, fix=["glitches"])
+    record, = after.plan.timing_fixes
+    assert record["remedies_applied"] == ["decode_choice", "clock_gating"]
+    assert record["tried"][0] == {"remedy": "decode_choice", "result": record["tried"][0]["result"]}
+    assert record["tried"][0]["result"].startswith("tried: 1 glitches left (was 2), +0 chips")
+    assert after.plan.glitches == [] and record["cost"] == {"chips": 0, "gates": 1}
+    got = simulate_ticks(after.plan)["s"]
+    assert [got[t] for t in range(16) if t != 6] == [t == 14 for t in range(16) if t != 6]

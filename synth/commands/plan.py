@@ -191,7 +191,7 @@ def _fix_blocks(plan) -> list:
     if fixes:
         blocks.append(Table("glitch fixes (--fix glitches; glitches re-analysed after the fix)",
                             ("signal", "fix applied", "cost", "glitch ticks before", "after", "how"),
-                            [(r["signal"], r["remedy"].replace("_", " "),
+                            [(r["signal"], " + ".join(r.get("remedies_applied") or ["note"]).replace("_", " "),
                               f"+{r['cost']['chips']} chips, +{r['cost']['gates']} gates",
                               " ".join(map(str, r["glitches_before"])),
                               " ".join(map(str, r["glitches_after"])) or "none",
