@@ -189,6 +189,12 @@ def _note_text(design: Any, signal: str) -> str:
     widths = [g.get("width_max_ns") or g.get("width_ns") or 0 for g in design.plan.glitches
               if g.get("signal") == signal]
     widest = max(widths, default=0)
+    switches = [n for n, sw in (getattr(design.spec, "switches", None) or {}).items()
+                if getattr(sw, "select", None) == signal]
+    if switches:
+        return (f"{signal} selects switch {', '.join(switches)}: for up to {widest:.0f} ns it conducts the "
+                "wrong way; a slow analog stage averages that away, a sample-and-hold or a "
+                "charge-sensitive node does not")
     return (f"a level-sensitive consumer slower than {widest:.0f} ns (an LED, a relay or motor driver, "
             "an RC-filtered input) will not see what remains; an edge-triggered input will")
 
@@ -366,6 +372,11 @@ def strobe_network(network: Network, signal: str, plan: Any, stock: Any, catalog
     others = [n for n, s in network.signals.items() if s.net == out.net and n != signal]
     if others:
         raise NotApplicable(f"its net also carries {', '.join(others)}")
+    switches = [n for n, sw in (getattr(spec, "switches", None) or {}).items()
+                if getattr(sw, "select", None) == signal]
+    if switches:
+        raise NotApplicable(f"it selects switch {', '.join(switches)}, which would then throw over "
+                            "twice in every tick of the window")
     free = spec is not None and getattr(spec.signals.get(signal), "polarity", "") == "free"
     spare = _spare_input_rewrite(network, signal, out, clock, settle, plan, stock, catalog)
     if spare is not None:

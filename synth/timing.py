@@ -1325,7 +1325,8 @@ def analyse(design: Any, fix: Sequence[str] | set[str] = ()) -> None:
     adds warnings (a clock too fast, reset pulse widths), and sets
     ``design.trace`` (typical delays, inertial, two cycles: what the VCD and
     SVG show) and ``design.remedies`` ({'text': [...], 'by_glitch':
-    {(signal, tick): [...]}, 'glitches': [Glitch]}).
+    {(signal, tick): [...]}, 'glitches': [Glitch]}).  ``fix`` is accepted for
+    the callers' sake: applying remedies is ``synth.glitchfix``'s job.
     """
     from .netlist import delivered_sets, simulate_ticks
 
