@@ -74,6 +74,14 @@ __all__ = [
 
 CORNERS = ("typ", "max")
 MODELS = ("transport_typ", "transport_max", "inertial_typ", "states")
+MODEL_TEXT = {
+    "transport_typ": "event simulation, typical catalog delays, every pulse passed (transport delays)",
+    "transport_max": "event simulation, worst-case (max) catalog delays, every pulse passed",
+    "inertial_typ": "event simulation, typical delays, a pulse shorter than a gate's delay swallowed "
+                    "(as a Verilog primitive; what the exported Verilog shows)",
+    "states": "the decode evaluated on every state the ripple count passes through, "
+              "independent of gate delays",
+}
 """The analyses behind a glitch report: the event simulation with transport
 delays at typical and worst-case (max) catalog delays (every pulse a part may
 pass), with inertial delays at typical (what a Verilog primitive and a real

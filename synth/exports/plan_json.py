@@ -70,6 +70,13 @@ def _decoupling(plan: Plan) -> list[dict]:
     return rows
 
 
+def _glitch_models() -> dict:
+    """What each name in a glitch record's ``models`` list means."""
+    from ..timing import MODEL_TEXT
+
+    return dict(MODEL_TEXT)
+
+
 def plan_to_json(plan: Plan) -> dict:
     """The plan as a JSON-ready dict, keys as formats.md section 3 names them."""
     chips = sorted(plan.chips, key=lambda c: ref_key(c.ref))
@@ -87,6 +94,7 @@ def plan_to_json(plan: Plan) -> dict:
                    "pin_notes": {str(pin): note for pin, note in c.notes.items()}} for c in chips],
         "wires": [{"net": net, "pins": [_endpoint(p) for p in pins]} for net, pins in plan.nets.items()],
         "glitches": _plain(list(plan.glitches)),
+        "glitch_models": _glitch_models(),
         "coincident_edges": _plain(list(plan.coincident_edges)),
         "timing_fixes": _plain(list(getattr(plan, "timing_fixes", None) or [])),
         "clock_gated": _plain(dict(getattr(plan, "strobed", None) or {})),
