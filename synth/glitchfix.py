@@ -67,6 +67,8 @@ def apply_fixes(design: Any, fix: Iterable[str], *, exact: str = "auto") -> Any:
     widths = _widest(design.plan.glitches)
     if "glitches" in fix:
         design = _fix_glitches(design, exact)
+    if not hasattr(design.plan, "strobed"):
+        design.plan.strobed = {}
     design.plan.rc_offers = rc_offers(design, widths)
     return design
 
@@ -595,7 +597,7 @@ def rc_offers(design: Any, widths: dict[str, float] | None = None) -> list[dict]
         offers.append(_race_offer(design, signal, edges, period))
     fixes = getattr(plan, "timing_fixes", None)
     if fixes is None:
-        costly = set(widths)
+        costly = set()          # the costs are known once --fix glitches has tried the remedies
     else:
         costly = {r["signal"] for r in fixes if r.get("glitches_after") or r["cost"].get("chips", 0) > 0}
     for signal in sorted(costly):
@@ -629,8 +631,8 @@ def _glitch_offer(design: Any, signal: str, width_ns: float, period: float | Non
         return None
     wanted_ns = max(4 * width_ns, 1000.0)
     if wanted_ns > period / 4:
-        return {"problem": "glitch", "signal": signal, "applicable": False,
-                "why": f"a filter slower than the {width_ns:.0f} ns pulse would take more than a "
+        return {"problem": "glitch", "signal": signal, "delayed": signal, "applicable": False,
+                "applied": False, "why": f"a filter slower than the {width_ns:.0f} ns pulse would take more than a "
                        f"quarter of the {period:.0f} ns tick"}
     offer = _rc_design(design, signal, wanted_ns, period)
     fixed = next((r for r in getattr(design.plan, "timing_fixes", None) or [] if r["signal"] == signal

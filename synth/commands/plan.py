@@ -199,9 +199,39 @@ def _fix_blocks(plan) -> list:
                                                      for t in r["tried"] if "not applicable" in t["result"])
                                              if not r["applied"] else ""))
                              for r in fixes]))
-    for offer in getattr(plan, "rc_offers", None) or []:
-        blocks.append(Text(_offer_text(offer)))
+    offers = getattr(plan, "rc_offers", None) or []
+    races = [o for o in offers if o["problem"] == "race" and o.get("applicable")]
+    if races:
+        blocks.append(Text(_race_offers_text(races)))
+    refused: dict[str, list[str]] = {}
+    for offer in offers:
+        if not offer.get("applicable"):
+            why = offer.get("why_not") or offer.get("why", "")
+            refused.setdefault(why, []).append(f"{offer['delayed']} ({offer['problem']})")
+        elif offer not in races:
+            blocks.append(Text(_offer_text(offer)))
+    for why, names in refused.items():
+        blocks.append(Text(f"RC delay on {', '.join(names)}: not offered, {why}"))
+    if plan.glitches and getattr(plan, "timing_fixes", None) is None:
+        blocks.append(Text("glitches: --fix glitches tries the remedies, says what each costs, and "
+                           "offers an RC delay where a logic fix would take a new chip"))
     return blocks
+
+
+def _race_offers_text(races: list[dict]) -> str:
+    """The race offers share one R and C (a quarter tick): one block for all of them."""
+    first = races[0]
+    rise, fall = first["delay_ns"]["rising"], first["delay_ns"]["falling"]
+    names = ", ".join(o["delayed"] for o in races)
+    return "\n".join([
+        f"offer (not applied): an RC delay of about a quarter tick on {names}, each of which switches "
+        "on the same clock edge as another signal (see coincident edges): its edges then come clear "
+        "of the other's and the level sampled at the end of each tick is unchanged",
+        f"  R {first['r']}, C {first['c']} into {_receiver(first)}: {first['formula']}; delay min / typ / "
+        f"max rising {rise[0]:g} / {rise[1]:g} / {rise[2]:g} ns, falling {fall[0]:g} / {fall[1]:g} / "
+        f"{fall[2]:g} ns",
+        "  wiring: " + "; ".join(first["wiring"]) + (
+            "; likewise for the others from their own source pins" if len(races) > 1 else "")])
 
 
 def _offer_text(offer: dict) -> str:
