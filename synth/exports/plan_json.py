@@ -77,6 +77,14 @@ def _glitch_models() -> dict:
     return dict(MODEL_TEXT)
 
 
+def _glitches_by_model(glitches) -> dict:
+    """Model -> the (signal, at_tick) entries it found, so each analysis can be compared alone."""
+    from ..timing import MODELS
+
+    return {model: [[g["signal"], g["at_tick"]] for g in glitches if model in g.get("models", ())]
+            for model in MODELS}
+
+
 def plan_to_json(plan: Plan) -> dict:
     """The plan as a JSON-ready dict, keys as formats.md section 3 names them."""
     chips = sorted(plan.chips, key=lambda c: ref_key(c.ref))
@@ -95,6 +103,7 @@ def plan_to_json(plan: Plan) -> dict:
         "wires": [{"net": net, "pins": [_endpoint(p) for p in pins]} for net, pins in plan.nets.items()],
         "glitches": _plain(list(plan.glitches)),
         "glitch_models": _glitch_models(),
+        "glitches_by_model": _glitches_by_model(plan.glitches),
         "coincident_edges": _plain(list(plan.coincident_edges)),
         "timing_fixes": _plain(list(getattr(plan, "timing_fixes", None) or [])),
         "clock_gated": _plain(dict(getattr(plan, "strobed", None) or {})),
