@@ -103,7 +103,7 @@ def plan_to_json(plan: Plan) -> dict:
         "wires": [{"net": net, "pins": [_endpoint(p) for p in pins]} for net, pins in plan.nets.items()],
         "glitches": _plain(list(plan.glitches)),
         "glitch_models": _glitch_models(),
-        "glitches_by_model": _glitches_by_model(plan.glitches),
+        "glitches_by_model": _glitches_by_model(_plain(list(plan.glitches))),
         "coincident_edges": _plain(list(plan.coincident_edges)),
         "timing_fixes": _plain(list(getattr(plan, "timing_fixes", None) or [])),
         "clock_gated": _plain(dict(getattr(plan, "strobed", None) or {})),
