@@ -101,7 +101,7 @@ def _fix_glitches(design: Any, exact: str) -> Any:
     if remaining:
         strobed = _attempt(records, "clock_gating", lambda: _strobe_all(current, remaining), current)
         if strobed is not None:
-            candidates.append(("clock_gating", strobed))
+            candidates.append(("clock_gating", strobed, strobed))
         sync = _attempt(records, "synchronous_counter", lambda: _synchronous(current, exact), current)
         if sync is not None:
             left = sorted(_by_signal(sync.plan.glitches))
@@ -111,13 +111,13 @@ def _fix_glitches(design: Any, exact: str) -> Any:
                     both = _strobe_all(sync, left)
                 except (NotApplicable, SynthError):
                     both = sync
-            candidates.append(("synchronous_counter", both))
+            candidates.append(("synchronous_counter", sync, both))
     if candidates:
-        name, best = min(candidates, key=lambda c: (_count(c[1]), _chips(c[1]), _gates(c[1])))
+        name, step, best = min(candidates, key=lambda c: (_count(c[2]), _chips(c[2]), _gates(c[2])))
         if _count(best) < _count(current):
-            _credit(fixed_by, current, best, name)
-            if name == "synchronous_counter":
-                _credit(fixed_by, current, best, "clock_gating", only_strobed=True)
+            _credit(fixed_by, current, step, name)
+            if step is not best:
+                _credit(fixed_by, step, best, "clock_gating", only_strobed=True)
             current = best
     _finish_records(records, fixed_by, design, current)
     return current
