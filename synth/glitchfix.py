@@ -6,13 +6,21 @@ Interface:
   in ``fix``, tries the remedies for every signal that ``timing.analyse``
   reported glitches on and returns the design that keeps the cheapest one
   that removes them (the plan passes the tick-by-tick self-check again and
-  is re-analysed); always sets ``plan.rc_offers``; sets ``plan.timing_fixes``
-  (one record per glitching signal, see ``FixRecord``) when asked to fix.
-- ``rc_offers(design) -> list[dict]``: an RC delay between two Schmitt
-  stages, sized with ``analog.rc_delay_design`` from the bin's passives and
-  the catalog thresholds, for each race (coincident edges) and each glitching
-  signal whose logic fix needs a new chip or has none.  Offered, never applied.
-- ``strobe_network(network, signal, ...)``: the clock-gating rewrite on its own.
+  is re-analysed); always sets ``plan.rc_offers`` and ``plan.strobed``
+  (signal -> how it is gated with the clock); sets ``plan.timing_fixes`` when
+  asked to fix: one record per glitching signal with ``glitches_before``,
+  ``remedies_applied``, ``remedy`` (the last one, or ``note``), ``applied``,
+  ``cost`` ({chips, gates} added), ``glitches_after`` (re-analysed),
+  ``detail`` and ``tried`` (every remedy's outcome, "not applicable: why").
+- ``rc_offers(design, widths=None) -> list[dict]``: an RC delay between two
+  Schmitt stages (two spare inverting gates when the bin has no Schmitt part),
+  sized with ``analog.rc_delay_design`` from the bin's passives and the
+  catalog thresholds, for each race (coincident edges) and, once the fixes
+  were tried, each glitching signal whose logic fix took a new chip or failed.
+  Offered with values, spread and wiring; never applied (no ``--fix`` choice
+  applies them: the netlist and the Verilog model hold no passives).
+- ``strobe_network(network, signal, plan, stock, catalog, spec)``: the
+  clock-gating rewrite on its own (raises ``NotApplicable`` with the reason).
 
 The order the remedies are tried in, and why:
 
@@ -24,7 +32,11 @@ The order the remedies are tried in, and why:
    re-allocated without the bin's ripple counters, the decode re-derived;
 3. gating with the clock's still half (``clock_gating``): the signal is ANDed
    (in its polarity's sense) with the clock phase in which the counter does
-   not move, using a spare input of the signal's last gate or a spare gate.
+   not move, using a spare input of the signal's last gate, else a spare gate
+   (a new chip from the bin if need be, costed), an inverter on the clock when
+   the phase is the wrong way up (the fastest on hand: it must switch before
+   the counter's first output does).  Never for a switch select, which would
+   then throw over twice a tick.
    This changes the waveform inside a tick: the signal is asserted only in the
    second half of each asserted tick (a window of n ticks becomes n pulses).
    The tick-sampled check samples just before each counting edge, where the
@@ -43,7 +55,7 @@ import dataclasses
 from collections.abc import Iterable
 from typing import Any
 
-from .errors import InternalError, ShortError, SynthError
+from .errors import ShortError, SynthError
 from .network import RAILS, Gate, Network, SignalOut
 
 __all__ = ["apply_fixes", "rc_offers", "strobe_network", "FIXES", "NotApplicable"]
