@@ -140,7 +140,13 @@ def _attempt(records: dict, remedy: str, build, base: Any) -> Any:
     try:
         result = build()
     except NotApplicable as exc:
-        _note_all(records, remedy, f"not applicable: {exc}")
+        per_signal = getattr(exc, "per_signal", None)
+        if per_signal:
+            for signal, rec in records.items():
+                rec["tried"].append({"remedy": remedy,
+                                     "result": f"not applicable: {per_signal.get(signal, exc)}"})
+        else:
+            _note_all(records, remedy, f"not applicable: {exc}")
         return None
     except SynthError as exc:
         _note_all(records, remedy, f"not applicable: {exc.args[0] if exc.args else exc}")
@@ -354,12 +360,17 @@ def _strobe_all(design: Any, signals: list[str]) -> Any:
         except NotApplicable as exc:
             skipped.append(f"{signal}: {exc}")
             continue
+        except SynthError as exc:          # the re-packed plan failed a check: keep the decode
+            skipped.append(f"{signal}: the gated plan failed a check ({exc.args[0] if exc.args else exc})")
+            continue
         info["cost"] = {"chips": len(new_plan.chips) - len(plan.chips),
                         "gates": len(new_plan.network.gates) - len(plan.network.gates)}
         strobed[signal] = info
         network, plan, applied = new_net, new_plan, applied + 1
     if not applied:
-        raise NotApplicable("; ".join(skipped) or "no signal to gate")
+        failure = NotApplicable("; ".join(skipped) or "no signal to gate")
+        failure.per_signal = dict(item.split(": ", 1) for item in skipped)
+        raise failure
     new = _rebuild(design, network=network, strobed=strobed)
     new.plan.strobe_skipped = dict(s.split(": ", 1) for s in skipped)
     return new
