@@ -42,7 +42,11 @@ def example_path(*parts: str) -> Path:
 
 
 def _shipped(package: str, folder: str) -> Path:
-    """The installed data package, or the source tree's folder when run from a checkout."""
+    """The source tree's folder when run from a checkout (an editable install of
+    another checkout must not hand over its data), else the installed data package."""
+    checkout = Path(__file__).resolve().parent.parent
+    if (checkout / "pyproject.toml").is_file() and (checkout / folder / "__init__.py").is_file():
+        return checkout / folder
     try:
         return Path(str(resources.files(package)))
     except ModuleNotFoundError:

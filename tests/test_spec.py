@@ -111,7 +111,7 @@ def test_defaults():
     assert spec.name == "row-scan"                 # "default: the file's stem"
     assert spec.supply == 5.0                      # "default 5 V"
     assert spec.clock == ClockSpec(None, "external", None)
-    assert spec.switches == {} and spec.levels is None
+    assert spec.switches == {} and spec.levels == {}
     pulse = spec.signals["pulse"]
     assert (pulse.polarity, pulse.every, pulse.stretch, pulse.clear_of) == ("high", None, 0, {})
     assert pulse.dont_care == frozenset() and pulse.line == 3
