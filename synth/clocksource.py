@@ -62,11 +62,10 @@ class Site:
     order: int           # the preference rank (1..5 in the module docstring)
 
     def describe(self) -> str:
-        where = f"{self.ref}" if self.ref else "a new chip from the bin"
         what = {"counter-stage": "the built-in RC oscillator stage",
                 "inverter": f"Schmitt inverter {self.unit}",
                 "nand": f"Schmitt NAND {self.unit} (other input tied to VDD)"}[self.kind]
-        return f"{what} of {self.part} ({where})"
+        return f"{what} of a {self.part}"
 
 
 @dataclass
@@ -92,6 +91,7 @@ class OscillatorPlan:
     pins: dict[str, int]              # role -> pin of ``ref``
     passives: list[str]
     counter_fmax_mhz: float | None
+    corners: list[tuple[str, float, float, float]] = field(default_factory=list)  # label, VT+, VT-, f
     warnings: list[str] = field(default_factory=list)
 
     def as_json(self) -> dict:
@@ -103,7 +103,9 @@ class OscillatorPlan:
             "tolerance": self.tolerance, "tolerance_default": not self.tolerance_given,
             "thresholds": self.thresholds, "clock_net": self.clock_net,
             "pins": dict(self.pins), "passives": list(self.passives),
-            "counter_fmax_mhz": self.counter_fmax_mhz, "warnings": list(self.warnings),
+            "counter_fmax_mhz": self.counter_fmax_mhz,
+            "corners": [{"label": l, "vt_plus": p, "vt_minus": m, "f": f} for l, p, m, f in self.corners],
+            "warnings": list(self.warnings),
         }
 
 
@@ -318,6 +320,7 @@ def add_oscillator(plan, spec, bin, catalog) -> OscillatorPlan:
             raise _short_values(design, wanted, tolerance, bin, given)
         ref, opened, pins = _wire_counter_stage(plan, site, part, design)
         r, c, rs, f_nom, thresholds = design.rt, design.ct, design.rs, design.freq_hz, None
+        corners = []
         f_min, f_max = f_nom * (1 - COUNTER_OSC_SPREAD), f_nom * (1 + COUNTER_OSC_SPREAD)
         formula = COUNTER_FORMULA
         worked = design.formula + f", Rs = {format_si(design.rs, 'Ω')}"
@@ -337,6 +340,7 @@ def add_oscillator(plan, spec, bin, catalog) -> OscillatorPlan:
         r, c, rs = design.r, design.c, None
         f_nom, f_min, f_max = design.freq_typ, design.freq_min, design.freq_max
         formula, worked = PERIOD_FORMULA, design.formula
+        corners = [(k.label, k.vt_plus, k.vt_minus, k.freq_hz) for k in design.corners]
         warnings += design.warnings
     if not given:
         warnings.append(f"clock.tolerance not given: {DEFAULT_TOLERANCE:.0%} assumed for the "
@@ -350,5 +354,5 @@ def add_oscillator(plan, spec, bin, catalog) -> OscillatorPlan:
         tolerance_given=given,
         thresholds={k: dict(thresholds[k]) for k in ("vt_plus", "vt_minus")} if thresholds else None,
         clock_net="CLK", pins={k: v for k, v in pins.items() if isinstance(v, int)},
-        passives=passives, counter_fmax_mhz=fmax, warnings=warnings)
+        passives=passives, counter_fmax_mhz=fmax, corners=corners, warnings=warnings)
     return oscillator

@@ -269,11 +269,11 @@ def _plan_one(plan, spec, bin, catalog, level) -> LadderPlan:
         ideal = r2r_ladder(n, r, r2, supply)
         construction, why = choice.description, choice.why
         refs = _wire_r2r(plan, level.name, nets, r, r2, choice.construction)
-        if choice.construction == "series":
-            warnings.append(f"staircase {level.name}: each 2R is two resistors in series; the "
-                            "tolerance analysis treats each 2R as one resistor of the marked "
-                            "tolerance (the worst case is the same, the Monte Carlo a little "
-                            "pessimistic)")
+        if choice.construction in ("series", "parallel"):
+            made = "2R is two R in series" if choice.construction == "series" else "R is two 2R in parallel"
+            warnings.append(f"staircase {level.name}: each {made}; the tolerance analysis treats "
+                            "each such pair as one resistor of the marked tolerance (the worst case "
+                            "is the same, the Monte Carlo a little pessimistic)")
     worst = worst_case_linearity(ladder, level.tolerance)
     monte = monte_carlo(ladder, level.tolerance, MONTE_CARLO_TRIALS, MONTE_CARLO_SEED)
     if not routed:
@@ -281,6 +281,11 @@ def _plan_one(plan, spec, bin, catalog, level) -> LadderPlan:
                                      f"{format_si(ladder.output_resistance, 'Ω')}: buffer it before a load)")
     elif plan.external.get(level.name, "").endswith("(your circuit)"):
         plan.external.pop(level.name)
+    where = f"through switch {', '.join(routed)} " if routed else ""
+    warnings.append(f"staircase {level.name}: the ladder's source resistance is "
+                    f"{format_si(ladder.output_resistance, 'Ω')} {where}(plus any switch on-resistance): "
+                    "buffer it (an op-amp follower) before a load or a sampling ADC input "
+                    "(common practice)")
     if not level.tolerance_given:
         warnings.append(f"staircase {level.name}: no tolerance given, 5 % resistors assumed")
     if not worst.monotonic:
