@@ -185,7 +185,12 @@ def oscillator_blocks(plan) -> list:
     if osc is None:
         return []
     hz = lambda f: format_si(f, "Hz") if f is not None else "-"  # noqa: E731
-    where = "a new chip from the bin" if osc.opened else "a spare unit of a chip already in the plan"
+    if osc.opened:
+        where = "a new chip from the bin"
+    elif osc.site.kind == "counter-stage":
+        where = "the counter chip itself"
+    else:
+        where = "a spare unit of a chip already in the plan"
     parts = ", ".join(f"{ref} = {plan.passive(ref).label()}" for ref in osc.passives)
     clock_pins = ", ".join(f"{r} pin {p}" for r, p in plan.nets.get(osc.clock_net, [])
                            if not r.startswith(("R", "C")))
