@@ -108,6 +108,7 @@ class Plan:
     method: str = ""
     parts: dict[str, Part] = field(default_factory=dict)
     external: dict[str, str] = field(default_factory=dict)
+    bin_lacks: dict | None = None   # wishlist.BinLacks.to_json(), when the plan ran that search
     passives: list[Passive] = field(default_factory=list)
     oscillator: Any = None          # clocksource.OscillatorPlan when the spec asks for one
     ladders: dict = field(default_factory=dict)   # staircase.LadderPlan by net name

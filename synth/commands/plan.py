@@ -34,6 +34,9 @@ def add_output_arguments(parser: argparse.ArgumentParser) -> None:
                         help="write the bin back with the parts this plan uses removed (keeps a .bak)")
     parser.add_argument("--fix", action="append", choices=["glitches"], default=[],
                         help="apply remedies: 'glitches' changes the design so no output spikes")
+    parser.add_argument("--lacks", type=seconds, default=2.0, metavar="SECONDS",
+                        help="time for re-planning with one extra chip type to find what the bin "
+                             "lacks (default 2; 0 skips it)")
     parser.add_argument("--exact", choices=["auto", "yes", "no"], default="auto",
                         help="exact (proven) search where sizes allow (auto), always, or never")
 
@@ -43,11 +46,30 @@ def run(args: argparse.Namespace) -> int:
     from ..render import show
 
     design = make_plan(args.spec, args.bin, exact=args.exact, fix=args.fix)
+    find_what_bin_lacks(design, args.lacks)
     to_stdout = args.json == "-"
     if not to_stdout:
         show(plan_blocks(design))
     write_outputs(design, args)
     return 0
+
+
+def seconds(text: str) -> float:
+    """A non-negative number of seconds (argparse turns the ValueError into exit 2)."""
+    value = float(text)
+    if value < 0 or value != value:
+        raise ValueError(text)
+    return value
+
+
+def find_what_bin_lacks(design, budget: float) -> None:
+    """Re-plan with one extra chip type (wishlist) and keep the answer on the plan."""
+    if budget <= 0:
+        return
+    from ..wishlist import bin_lacks
+
+    design.lacks = bin_lacks(design, budget=budget)
+    design.plan.bin_lacks = design.lacks.to_json()
 
 
 def write_outputs(design, args) -> list[str]:
@@ -168,6 +190,9 @@ def plan_blocks(design) -> list:
                             [(" & ".join(e["signals"]), e["at_tick"]) for e in map(_as_dict, plan.coincident_edges)]))
     for remedy in design.remedies.get("text", []):
         blocks.append(Text(f"remedy: {remedy}"))
+    lacks = getattr(design, "lacks", None)
+    if lacks is not None:
+        blocks.append(Text(lacks.text()))
     for warning in plan.warnings:
         blocks.append(Text(f"warning: {warning}"))
     for caution in plan.cautions:

@@ -102,6 +102,7 @@ def plan_to_json(plan: Plan) -> dict:
         "cautions": list(plan.cautions),
         "nets_external": dict(plan.external),
         "counter": _counter(plan),
+        "bin_lacks": plan.bin_lacks,
         "passives": [{"ref": p.ref, "kind": p.kind, "value": p.value, "label": p.label(),
                       "ends": [{"end": 1, "net": p.ends[0]}, {"end": 2, "net": p.ends[1]}],
                       "purpose": p.purpose} for p in plan.passives],
