@@ -249,7 +249,7 @@ def ladder_blocks(plan) -> list:
                            f"driven by {drivers}; output on net {name}{routed}"))
         blocks.append(Text(f"staircase {name} output resistance: {ohm(lad.ideal_output_resistance)} "
                            f"ideal, {ohm(lad.output_resistance)} with the drivers' "
-                           f"{ohm(lad.r_out_driver)} each ({lad.r_out_note}); the drivers move a "
+                           f"{ohm(lad.r_out_driver)} each ({lad.r_out_note.split(';')[0]}); the drivers move a "
                            f"level by at most {lad.driver_error_lsb:.3f} LSB"))
         rows = [(code, format(code, f"0{len(lad.bits)}b"), f"{ideal:.4f}", f"{level:.4f}",
                  f"{(level - ideal) * 1000:+.2f}")
