@@ -227,10 +227,12 @@ def _driver_nets(plan, spec, level) -> list[str]:
     for bit, line in zip(level.bits, level.bit_lines):
         if bit not in available:
             parts = ", ".join(sorted({c.part for c in plan.counter.chips})) or "no counter"
-            have = ", ".join(str(k) for k in sorted(available)) or "none"
+            have = ", ".join(str(k) for k in sorted(available))
+            hint = (f"the counter's pins carry tick bits {have}" if have else
+                    "this counter brings out no binary tick bits (a decoded or BCD count); a binary "
+                    "counter such as a 4040 does")
             raise SpecError(f"levels.{level.name}.bits: tick bit {bit} is not brought out by the "
-                            f"counter ({parts})", file=spec.path, line=line,
-                            hint=f"the counter's pins carry tick bits {have}")
+                            f"counter ({parts})", file=spec.path, line=line, hint=hint)
         nets.append(available[bit])
     return nets
 
