@@ -3,7 +3,8 @@
 Interface: ``allocate(spec, bin, catalog) -> CounterPlan``; the records
 ``CounterVar`` (one counter output the decode may use), ``CounterChip`` (one
 counter unit as wired), ``ResetDecode`` (the state that cuts a cycle short)
-and ``CounterPlan``; ``bits_for(cycle)``; ``RESET_NAME``, ``MAX_VARIABLES``.
+and ``CounterPlan``; ``bits_for(cycle)``; ``counter_fmax_mhz(part, supply)``;
+``RESET_NAME``, ``MAX_VARIABLES``.
 
 The count starts from all zeros at tick 0 (the format contract), so tick t is
 count t until the cycle's end state is decoded into the reset.  Candidate
@@ -288,6 +289,12 @@ def _clock_hold(fields: dict) -> str:
     if "clock_hold" in enable:
         return "VDD" if enable["clock_hold"] in ("high", "VDD") else "VSS"
     return "VSS" if enable.get("active", "high") == "high" else "VDD"
+
+
+def counter_fmax_mhz(part: Part, supply: float) -> tuple[float | None, str]:
+    """The clock rate a counter part can be trusted with at the supply, and how it was had
+    (the rule of ``_Kind.fmax_mhz``), for stages that pick a clock after allocation."""
+    return _Kind(part, tuple(part.units_of("counter")), 1).fmax_mhz(supply)
 
 
 def _kinds(stock: Bin, catalog: Catalog) -> list[_Kind]:

@@ -253,7 +253,7 @@ def _rebuild(design: Any, *, counter_plan: Any = None, network: Network | None =
     """The pipeline's stages from the counter plan on (or from packing on, given a
     network), then the timing analysis; raises what the stages raise."""
     from .packing import pack
-    from .pipeline import Design
+    from .pipeline import Design, _analog_parts
     from .timing import analyse
 
     spec, stock, catalog = design.spec, design.stock, design.catalog
@@ -263,6 +263,7 @@ def _rebuild(design: Any, *, counter_plan: Any = None, network: Network | None =
         decode, network = _decode_and_map(spec, stock, catalog, cp, exact)
     plan = pack(network, cp, spec, stock, catalog)
     plan.warnings[:0] = list(stock.warnings) + list(getattr(cp, "warnings", []))
+    _analog_parts(plan, spec, stock, catalog)
     plan.strobed = dict(strobed or {})
     new = Design(plan, spec, stock, catalog, cp, decode, network)
     analyse(new)
@@ -377,10 +378,14 @@ def _strobe_all(design: Any, signals: list[str]) -> Any:
 
 
 def _pack(design: Any, network: Network):
+    """Re-pack a changed network; the oscillator and staircases go on it as in the pipeline."""
     from .packing import pack
+    from .pipeline import _analog_parts
 
     try:
-        return pack(network, design.counter, design.spec, design.stock, design.catalog)
+        plan = pack(network, design.counter, design.spec, design.stock, design.catalog)
+        _analog_parts(plan, design.spec, design.stock, design.catalog)
+        return plan
     except ShortError as exc:
         raise NotApplicable(f"no gate of the kind left in the bin ({exc.args[0]})") from None
 

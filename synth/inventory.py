@@ -42,7 +42,11 @@ def example_path(*parts: str) -> Path:
 
 
 def _shipped(package: str, folder: str) -> Path:
-    """The installed data package, or the source tree's folder when run from a checkout."""
+    """The source tree's folder when run from a checkout (an editable install of
+    another checkout must not hand over its data), else the installed data package."""
+    checkout = Path(__file__).resolve().parent.parent
+    if (checkout / "pyproject.toml").is_file() and (checkout / folder / "__init__.py").is_file():
+        return checkout / folder
     try:
         return Path(str(resources.files(package)))
     except ModuleNotFoundError:
@@ -128,6 +132,7 @@ class Part:
     shared: tuple[int, ...] = ()
     thresholds: dict = field(default_factory=dict)
     r_on: dict = field(default_factory=dict)
+    r_out: dict = field(default_factory=dict)   # output resistance, ohms, by supply
     notes: str = ""
     raw: dict = field(default_factory=dict, compare=False, repr=False)
 
@@ -327,6 +332,7 @@ def _part_from_entry(name: str, family: str, entry: dict) -> Part:
         shared=tuple(int(p) for p in entry.get("shared") or ()),
         thresholds=_voltage_table(entry.get("thresholds")),
         r_on=_voltage_table(entry.get("r_on")),
+        r_out=_voltage_table(entry.get("r_out")),
         notes=str(entry.get("notes") or ""), raw=_plain(entry),
     )
 
@@ -351,7 +357,7 @@ def _hct_twin(part: Part, variant: dict) -> Part:
         power=part.power, units=part.units,
         supply=(float(supply["min"]), float(supply["max"])), timing=part.timing,
         source=source, nc=part.nc, ties=part.ties, shared=part.shared,
-        thresholds={}, r_on=part.r_on,  # HCT Schmitt levels differ: not in the catalog
+        thresholds={}, r_on=part.r_on, r_out=part.r_out,  # HCT Schmitt levels differ: not in the catalog
         notes=(part.notes + " " if part.notes else "") + f"HCT: {variant.get('input_levels', 'TTL input levels')}",
         raw=part.raw,
     )

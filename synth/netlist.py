@@ -9,7 +9,9 @@ driver per net); ``counter_levels(counter, t)``, ``simulate_nets(plan)`` and
 ``self_check(plan, spec_or_delivered)``; ``PinRow`` and ``pin_table(plan, ref)``;
 ``Wire`` and ``wire_list(plan)`` (what a person builds, one wire per pair of
 endpoints); ``endpoint_text(plan, ref, pin)``; ``ref_key(ref)``;
-``verilog_module_name(name)``.
+``verilog_module_name(name)``; ``Passive`` (a resistor or capacitor of the
+plan: its ref ``R1``/``C1`` and the nets at its two ends, which appear in
+``Plan.nets`` as pins 1 and 2 of that ref) and ``is_passive(ref)``.
 
 A net is a list of ``(ref, pin)`` package pins.  ``VDD`` and ``VSS`` are the
 rails; nets in ``Plan.external`` leave the board (the clock input, the spec
@@ -28,7 +30,7 @@ from .inventory import Part
 from .network import Network, evaluate_network
 
 RAIL_NETS = ("VDD", "VSS")
-Role = Literal["counter", "logic", "switch"]
+Role = Literal["counter", "logic", "switch", "oscillator"]
 Direction = Literal["in", "out", "analog", "power", "nc", "other"]
 
 
@@ -49,6 +51,35 @@ class ChipInstance:
     units_used: dict[str, str]
     pins: dict[int, str] = field(default_factory=dict)
     notes: dict[int, str] = field(default_factory=dict)
+
+
+@dataclass(frozen=True)
+class Passive:
+    """One resistor or capacitor: ``ends`` are the nets at its end 1 and end 2.
+
+    ``kind`` is ``resistor`` or ``capacitor``; ``value`` is in ohms or farads;
+    ``purpose`` says what it does (shown in the wiring list).
+    """
+
+    ref: str
+    kind: str
+    value: float
+    ends: tuple[str, str]
+    purpose: str
+
+    def label(self) -> str:
+        from .units import format_si
+
+        return format_si(self.value, "Ω" if self.kind == "resistor" else "F")
+
+
+def is_passive(ref: str) -> bool:
+    """Resistors and capacitors have refs R1, C1...; chips U1...
+
+    >>> is_passive("R3"), is_passive("C1"), is_passive("U2")
+    (True, True, False)
+    """
+    return bool(re.fullmatch(r"[RC]\d+", ref))
 
 
 @dataclass
@@ -78,6 +109,15 @@ class Plan:
     parts: dict[str, Part] = field(default_factory=dict)
     external: dict[str, str] = field(default_factory=dict)
     bin_lacks: dict | None = None   # wishlist.BinLacks.to_json(), when the plan ran that search
+    passives: list[Passive] = field(default_factory=list)
+    oscillator: Any = None          # clocksource.OscillatorPlan when the spec asks for one
+    ladders: dict = field(default_factory=dict)   # staircase.LadderPlan by net name
+
+    def passive(self, ref: str) -> Passive:
+        for item in self.passives:
+            if item.ref == ref:
+                return item
+        raise KeyError(f"expected a resistor or capacitor ref of this plan, got {ref!r}")
 
     def chip(self, ref: str) -> ChipInstance:
         for chip in self.chips:
@@ -169,6 +209,8 @@ def net_problems(plan: Plan) -> list[str]:
             if (ref, pin) in seen:
                 problems.append(f"{ref} pin {pin} is on net {seen[(ref, pin)]} and on net {net}")
             seen[(ref, pin)] = net
+            if is_passive(ref):
+                continue
             if ref not in chips:
                 problems.append(f"net {net} names {ref}, which is not a chip of the plan")
                 continue
@@ -179,7 +221,25 @@ def net_problems(plan: Plan) -> list[str]:
                 problems.append(f"net {net}: {ref} pin {pin} is not connected inside the chip (NC)")
     for chip in plan.chips:
         problems += _chip_problems(plan, chip, seen)
+    problems += _passive_problems(plan, seen)
     problems += _driver_problems(plan)
+    return problems
+
+
+def _passive_problems(plan: Plan, seen: dict[tuple[str, int], str]) -> list[str]:
+    """Both ends of every resistor and capacitor on the net the record names."""
+    problems = []
+    refs = {item.ref for item in plan.passives}
+    for (ref, pin), net in seen.items():
+        if is_passive(ref) and ref not in refs:
+            problems.append(f"net {net} names {ref}, which is not a part of the plan")
+    for item in plan.passives:
+        for end, net in enumerate(item.ends, start=1):
+            if seen.get((item.ref, end)) != net:
+                problems.append(f"{item.ref} end {end} should be on net {net}, nets say "
+                                f"{seen.get((item.ref, end)) or 'nothing'}")
+        if item.ends[0] == item.ends[1]:
+            problems.append(f"{item.ref} has both ends on net {item.ends[0]}")
     return problems
 
 
@@ -213,7 +273,8 @@ def _driver_problems(plan: Plan) -> list[str]:
         elif len(drivers) > 1:
             names = ", ".join(f"{r} pin {p}" for r, p in drivers)
             problems.append(f"net {net} has {len(drivers)} outputs driving it: {names}")
-        elif not drivers and inputs and net not in plan.external:
+        elif not drivers and inputs and net not in plan.external and \
+                not any(is_passive(ref) for ref, _ in pins):
             problems.append(f"net {net} feeds inputs but nothing drives it (floating)")
     return problems
 
@@ -225,6 +286,13 @@ def check_nets(plan: Plan) -> None:
         more = f" (and {len(problems) - 3} more)" if len(problems) > 3 else ""
         raise InternalError(f"net check failed for plan {plan.name}: {'; '.join(problems[:3])}{more}",
                             hint="a bug in binsynth's packing; no design was printed")
+
+
+def pin_direction(plan: Plan, ref: str, pin: int) -> Direction:
+    """A pin's direction; resistor and capacitor ends are ``analog``."""
+    if is_passive(ref):
+        return "analog"
+    return _direction(plan, ref, pin)
 
 
 def _direction(plan: Plan, ref: str, pin: int) -> Direction:
@@ -456,7 +524,9 @@ class PinRow(NamedTuple):
 
 
 def endpoint_text(plan: Plan, ref: str, pin: int) -> str:
-    """``U1 pin 9 (Q1)``: a pin as a person finds it on the chip."""
+    """``U1 pin 9 (Q1)``: a pin as a person finds it on the chip; ``R1 end 2 (10 kΩ)``."""
+    if is_passive(ref):
+        return f"{ref} end {pin} ({plan.passive(ref).label()})"
     name = plan.part_of(ref).pins.get(pin, "?")
     return f"{ref} pin {pin} ({name})"
 
@@ -511,7 +581,8 @@ def wire_list(plan: Plan) -> list[Wire]:
             wires += [Wire(net, p, f"{net} rail") for p in pins]
             continue
         drivers = [p for p in pins if _direction(plan, *p) == "out"]
-        anchor = drivers[0] if drivers else pins[0]
+        on_chips = [p for p in pins if not is_passive(p[0])]
+        anchor = drivers[0] if drivers else (on_chips or pins)[0]
         wires += [Wire(net, p, anchor) for p in pins if p != anchor]
         if net in plan.external:
             wires.append(Wire(net, anchor, plan.external[net]))

@@ -6,6 +6,11 @@ chips; every unused input tied, unused outputs open, power and chip-level
 ties wired, a 100 nF decoupling capacitor listed per chip; the plan passes
 ``check_nets`` and ``self_check`` before it is returned); ``unit_logic_pins(unit)``;
 ``spec_net(name)``; ``check_nets`` (re-exported from ``netlist``).
+Later stages that add parts to a packed plan (the clock oscillator, the
+ladders) use ``add_chip(plan, part, role, units, pins, notes)`` (a new chip,
+finished like the others), ``rewire_pin(plan, ref, pin, net, note)`` (a spare
+unit's pin taken off its tie) and ``refresh(plan, bin)`` (nets, BOM,
+decoupling and cautions rebuilt from the chips and passives).
 
 Switch routing, for each spec switch in turn: an SPDT section; else two SPST
 sections with complementary controls (the complement comes from the network,
@@ -23,11 +28,11 @@ from typing import Any
 
 from .errors import InternalError, ShortError, SpecError
 from .inventory import Bin, Catalog, Part, Unit
-from .netlist import (RAIL_NETS, ChipInstance, Plan, check_nets, pin_directions, ref_key,
-                      self_check)
+from .netlist import (RAIL_NETS, ChipInstance, Plan, check_nets, is_passive, pin_direction,
+                      pin_directions, ref_key, self_check)
 from .network import Gate, Network, evaluate_gate
 
-__all__ = ["pack", "unit_logic_pins", "spec_net", "check_nets"]
+__all__ = ["pack", "unit_logic_pins", "spec_net", "check_nets", "add_chip", "rewire_pin", "refresh"]
 
 # Common practice: an unused CMOS input is tied to a rail, never left floating;
 # either rail is fine for a gate input, and binsynth always uses VSS.
@@ -629,20 +634,31 @@ def _build_plan(board: _Board, network: Network, counter_plan: Any, spec: Any,
     return plan
 
 
-def _collect_nets(chips: list[ChipInstance], counter_plan: Any) -> dict[str, list[tuple[str, int]]]:
+def _collect_nets(chips: list[ChipInstance], counter_plan: Any,
+                  passives: tuple = ()) -> dict[str, list[tuple[str, int]]]:
     """Net -> pins; rails first, then the clock, the counter outputs, the rest by first pin."""
     nets: dict[str, list[tuple[str, int]]] = {}
     for chip in chips:
         for pin, net in chip.pins.items():
             nets.setdefault(net, []).append((chip.ref, pin))
+    for item in passives:
+        for end, net in enumerate(item.ends, start=1):
+            nets.setdefault(net, []).append((item.ref, end))
     for pins in nets.values():
         pins.sort(key=lambda p: (ref_key(p[0]), p[1]))
     first = [n for n in RAIL_NETS if n in nets]
     first += [str(c.clock_net) for c in counter_plan.chips if str(c.clock_net) in nets]
     first += [v.net for v in counter_plan.vars if v.net in nets]
     first = list(dict.fromkeys(first))
-    rest = sorted((n for n in nets if n not in first), key=lambda n: (ref_key(nets[n][0][0]), nets[n][0][1]))
+    rest = sorted((n for n in nets if n not in first), key=lambda n: _net_order(nets[n]))
     return {n: nets[n] for n in first + rest}
+
+
+def _net_order(pins: list[tuple[str, int]]) -> tuple:
+    """Nets sort by their first chip pin; nets of resistors and capacitors only go last."""
+    chip_pins = [p for p in pins if not is_passive(p[0])]
+    first = (chip_pins or pins)[0]
+    return (not chip_pins, ref_key(first[0]), first[1])
 
 
 def _bom(chips: list[ChipInstance]) -> dict[str, int]:
@@ -666,7 +682,7 @@ def _signals(plan: Plan, network: Network, spec: Any) -> dict[str, dict]:
         if name not in wanted:
             continue
         drivers = [(r, p) for r, p in plan.nets.get(sig.net, [])
-                   if pin_directions(plan.part_of(r)).get(p) == "out"]
+                   if pin_direction(plan, r, p) == "out"]
         if not drivers:
             plan.warnings.append(f"signal {name} is constant ({sig.net}); no chip pin carries it")
         out[name] = {"polarity": sig.polarity, "net": sig.net,
@@ -696,7 +712,7 @@ def _external_nets(plan: Plan, routes: list[_Route], net_for: Any) -> dict[str, 
     for net, pins in plan.nets.items():
         if net in RAIL_NETS:
             continue
-        dirs = [pin_directions(plan.part_of(r)).get(p) for r, p in pins]
+        dirs = [pin_direction(plan, r, p) for r, p in pins]
         if "out" not in dirs and any(
                 c.clock_net == net for c in plan.counter.chips):
             external[net] = "clock source (a square wave from VSS to VDD)"
@@ -741,3 +757,46 @@ def _capacitor_warnings(bin: Bin, chips: int) -> list[str]:
         return [f"the bin lists no capacitor near 100 nF; decoupling wants {chips} x 100 nF "
                 "ceramic, one per chip (common practice)"]
     return []
+
+
+# ---------------------------------------------------------------- later additions
+
+def add_chip(plan: Plan, part: Part, role: str, units: dict[str, str], pins: dict[int, str],
+             notes: dict[int, str]) -> ChipInstance:
+    """A chip opened after packing (an oscillator's Schmitt gate): next free ref,
+    power, ties and every unused input tied as ``pack`` does."""
+    numbers = [ref_key(c.ref)[1] for c in plan.chips]
+    chip = _Chip(part, role, f"U{max(numbers, default=0) + 1}")
+    chip.units_used.update(units)
+    for pin, net in pins.items():
+        chip.set_pin(pin, net, notes.get(pin, ""))
+    _finish_chip(chip)
+    instance = ChipInstance(chip.ref, part.type, role, dict(chip.units_used), dict(sorted(chip.pins.items())),
+                            dict(sorted(chip.notes.items())))
+    plan.chips.append(instance)
+    plan.parts[part.type] = part
+    return instance
+
+
+def rewire_pin(plan: Plan, ref: str, pin: int, net: str | None, note: str) -> None:
+    """Move a pin of a spare unit (tied or open after packing) onto ``net`` (None: open)."""
+    chip = plan.chip(ref)
+    if net is None:
+        chip.pins.pop(pin, None)
+    else:
+        chip.pins[pin] = net
+    chip.notes[pin] = note
+    chip.pins = dict(sorted(chip.pins.items()))
+    chip.notes = dict(sorted(chip.notes.items()))
+
+
+def refresh(plan: Plan, bin: Bin) -> None:
+    """Nets, BOM, decoupling and cautions again after chips or passives were added."""
+    plan.nets = _collect_nets(plan.chips, plan.counter, tuple(plan.passives))
+    plan.bom = _bom(plan.chips)
+    plan.decoupling = [(c.ref, _decoupling_note(plan.parts[c.part])) for c in plan.chips]
+    plan.cautions = _cautions(plan, plan.counter)
+    stale = [w for w in plan.warnings if w.startswith("the bin lists no capacitor near 100 nF")]
+    plan.warnings = [w for w in plan.warnings if w not in stale]
+    if stale:
+        plan.warnings += _capacitor_warnings(bin, len(plan.chips))

@@ -3,6 +3,9 @@
 Interface: ``Design`` (the plan and what led to it), ``make_plan(spec_path,
 bin_path, *, catalog=None, exact='auto', fix=()) -> Design``, and
 ``switch_polarity(spec)`` (which signals may be delivered either way up).
+After packing, ``clocksource.add_oscillator`` (``clock.source: oscillator``)
+and ``staircase.add_ladders`` (``levels``) add their parts to the plan, and
+the net check runs again.
 
 Each stage is a pure function of the previous stage's result; this module
 only threads them together, so ``plan``, ``demo`` and the tests run the same
@@ -97,9 +100,35 @@ def make_plan(spec_path: str | Path, bin_path: str | Path, *, catalog=None, exac
                          library, polarity=polarity, cover=decode.cover, exact=exact)
     plan = pack(network, counter_plan, spec, stock, catalog)
     plan.warnings[:0] = list(stock.warnings) + list(getattr(counter_plan, "warnings", []))
+    _analog_parts(plan, spec, stock, catalog)
     design = Design(plan, spec, stock, catalog, counter_plan, decode, network)
     _timing_checks(design, set(fix))
     return _timing_fixes(design, set(fix), exact)
+
+
+def _analog_parts(plan, spec, stock, catalog) -> None:
+    """The clock oscillator and the staircases, added to the packed plan and re-checked."""
+    from .clocksource import add_oscillator
+    from .netlist import check_nets
+    from .packing import refresh
+    from .staircase import add_ladders
+
+    wants_oscillator = spec.clock.source == "oscillator"
+    if wants_oscillator and not plan.counter.chips:
+        plan.warnings.append("clock.source: oscillator, but a cycle of 1 tick needs no clock")
+        wants_oscillator = False
+    if not wants_oscillator and not spec.levels:
+        return
+    if wants_oscillator:
+        plan.oscillator = add_oscillator(plan, spec, stock, catalog)
+        refresh(plan, stock)
+        plan.warnings += [f"oscillator: {w}" for w in plan.oscillator.warnings]
+    if spec.levels:
+        plan.ladders = add_ladders(plan, spec, stock, catalog)
+        for ladder in plan.ladders.values():
+            plan.warnings += ladder.warnings
+    refresh(plan, stock)
+    check_nets(plan)
 
 
 def _internal_polarity(counter_plan, name: str) -> str:

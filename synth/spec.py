@@ -6,7 +6,7 @@ Interface:
   ``path`` then only names the file in messages).  Bad input raises
   ``SpecError`` (exit 2) naming file, line and the fix.
 - Records (frozen dataclasses): ``Spec``, ``ClockSpec``, ``SignalSpec``,
-  ``SwitchSpec``; ``ClearOfViolation`` (a named tuple).
+  ``SwitchSpec``, ``LevelSpec``; ``ClearOfViolation`` (a named tuple).
 - Pure helpers for later stages: ``edges(ticks, cycle)``,
   ``cyclic_distance(a, b, cycle)``, ``windows_of(ticks, cycle)``,
   ``cyclic_runs(ticks, cycle)``, ``time_to_ticks(seconds, frequency_hz,
@@ -63,8 +63,24 @@ choice open, this module decides as follows.
   or ``GND`` in any case (the clock port and the power nets).  Switch ``on``
   and ``off`` are net names (identifiers; ``GND``, ``VDD``, ``VSS`` in
   capitals), both required and different; the bare keys ``on:``/``off:``,
-  which YAML 1.1 reads as booleans, are taken back as the words.  ``levels`` is kept as read; every other unknown key is an
-  error naming the closest known one.
+  which YAML 1.1 reads as booleans, are taken back as the words.  Every
+  unknown key is an error naming the closest known one.
+- ``clock.source: oscillator`` asks the plan for an on-board RC oscillator
+  (a spare Schmitt gate or a 4060's own stage, R and C from the bin) at
+  ``clock.frequency``; ``clock.tolerance`` is how far the frequency may move
+  over the datasheet threshold spread (the plan assumes 10 % and says so
+  when it is not given).
+- ``levels``: analog staircases made from counter bits through a resistor
+  ladder.  Each entry is named by the net its output gets (an identifier,
+  not a signal, switch or power net name; a switch's ``on``/``off`` may
+  name it) and has ``bits`` (required: tick bits, least significant first,
+  each k with 2^k < cycle, no repeats; ladder bit i is driven by tick bit
+  ``bits[i]``), ``kind`` (``r2r``, the default, or ``binary`` for
+  binary-weighted resistors), ``tolerance`` (the resistors' tolerance as a
+  percentage, default ``5 %``, below 50 %) and ``load`` (optional: a
+  resistance from the output to VSS, e.g. ``100k``).  Whether the counter
+  brings those bits out is checked when the plan is made (also exit 2,
+  naming the ``bits`` line).
 - ``cycle`` is at most ``MAX_CYCLE`` ticks: tick sets are built in memory.
 """
 
@@ -85,7 +101,7 @@ from .units import format_si, parse_quantity
 from .yamlsrc import MarkedDict, MarkedList, load_yaml, parse_yaml
 
 __all__ = [
-    "Spec", "ClockSpec", "SignalSpec", "SwitchSpec", "ClearOfViolation", "load_spec",
+    "Spec", "ClockSpec", "SignalSpec", "SwitchSpec", "LevelSpec", "ClearOfViolation", "load_spec",
     "edges", "cyclic_distance", "windows_of", "cyclic_runs", "time_to_ticks",
     "clear_of_violations", "stretch_options", "stretch_option_count",
     "clear_of_feasible", "stretch_needed", "MAX_CYCLE", "STRETCH_OPTION_LIMIT",
@@ -102,6 +118,10 @@ SEARCH_BUDGET = 200_000
 
 TOP_KEYS = ("name", "supply", "clock", "cycle", "signals", "switches", "levels")
 CLOCK_KEYS = ("frequency", "source", "tolerance")
+LEVEL_KEYS = ("bits", "kind", "tolerance", "load")
+LEVEL_KINDS = ("r2r", "binary")
+DEFAULT_LADDER_TOLERANCE = 0.05
+"""Resistor tolerance assumed when a ``levels`` entry gives none (5 %, common stock)."""
 SIGNAL_KEYS = ("high", "every", "polarity", "dont_care", "clear_of", "stretch")
 SWITCH_KEYS = ("select", "on", "off")
 POLARITIES = ("high", "low", "free")
@@ -170,6 +190,20 @@ class SwitchSpec:
 
 
 @dataclass(frozen=True)
+class LevelSpec:
+    """A staircase: counter tick bits (LSB first) through a resistor ladder onto net ``name``."""
+
+    name: str
+    bits: tuple[int, ...]
+    kind: str
+    tolerance: float
+    tolerance_given: bool
+    load_ohms: float | None
+    line: int
+    bit_lines: tuple[int, ...]
+
+
+@dataclass(frozen=True)
 class Spec:
     """The whole stimulus spec, checked and in ticks."""
 
@@ -180,7 +214,7 @@ class Spec:
     cycle: int
     signals: dict[str, SignalSpec]
     switches: dict[str, SwitchSpec]
-    levels: object | None
+    levels: dict[str, LevelSpec]
     line_of_signal: dict[str, int]
 
     def period_of(self, name: str) -> int:
@@ -709,9 +743,10 @@ class _Reader:
         self.frequency = clock.frequency_hz
         cycle = self.cycle(data)
         signals = self.signals(data, cycle)
+        levels = self.levels(data, cycle, signals)
         switches = self.switches(data, signals)
         spec = Spec(name=name, path=self.path, supply=supply, clock=clock, cycle=cycle,
-                    signals=signals, switches=switches, levels=data.get("levels"),
+                    signals=signals, switches=switches, levels=levels,
                     line_of_signal={n: s.line for n, s in signals.items()})
         self.check_clear_of(spec, data)
         return spec
@@ -954,6 +989,91 @@ class _Reader:
                 line = data["signals"][name]["clear_of"].line_of(other)
                 message, hint = _clear_of_message(spec, name, other, needed)
                 self.fail(message, line, hint)
+
+    # -- levels (staircases)
+    def levels(self, data: MarkedDict, cycle: int, signals: dict) -> dict[str, LevelSpec]:
+        if "levels" not in data or data["levels"] is None:
+            return {}
+        example = "{ramp: {bits: [0, 1, 2, 3]}}"
+        body = self.mapping(data["levels"], "levels", data.line_of("levels"), example)
+        switch_names = set(data.get("switches") or ()) if isinstance(data.get("switches"), dict) else set()
+        result = {}
+        for name, entry in body.items():
+            line = body.line_of(name)
+            if not isinstance(name, str) or not _IDENTIFIER.match(name):
+                self.fail(f"levels: expected a net name (letters, digits, _), got {name!r}", line)
+            if name.upper() in POWER_NETS or name.lower() == "clk":
+                self.fail(f"levels: the name {name!r} is taken by a power net or the clock", line,
+                          "name the staircase, e.g. ramp")
+            if name in signals or name in switch_names:
+                self.fail(f"levels: the name {name!r} is already a signal or a switch", line,
+                          "a staircase needs a net name of its own, e.g. ramp")
+            result[name] = self.level(name, entry, line, cycle)
+        return result
+
+    def level(self, name: str, entry: object, line: int, cycle: int) -> LevelSpec:
+        where = f"levels.{name}"
+        entry = self.mapping(entry, where, line, "{bits: [0, 1, 2, 3], kind: r2r, tolerance: 5 %}")
+        self.check_keys(entry, LEVEL_KEYS, where)
+        if "bits" not in entry:
+            self.fail(f"{where}: missing 'bits' (the counter tick bits driving the ladder)", line,
+                      "add bits: [0, 1, 2, 3], least significant first")
+        bits, bit_lines = self.level_bits(entry, where, cycle)
+        kind = entry.get("kind", "r2r")
+        if kind not in LEVEL_KINDS:
+            self.fail(f"{where}.kind: expected r2r or binary, got {_kind(kind)}",
+                      entry.line_of("kind"), _closest(kind, LEVEL_KINDS))
+        tolerance, given = DEFAULT_LADDER_TOLERANCE, "tolerance" in entry
+        if given:
+            tolerance = self.level_tolerance(entry["tolerance"], f"{where}.tolerance",
+                                             entry.line_of("tolerance"))
+        load = None
+        if "load" in entry:
+            load = self.resistance(entry["load"], f"{where}.load", entry.line_of("load"))
+        return LevelSpec(name, bits, kind, tolerance, given, load, line, bit_lines)
+
+    def level_bits(self, entry: MarkedDict, where: str, cycle: int) -> tuple[tuple[int, ...], tuple[int, ...]]:
+        value = entry["bits"]
+        line = entry.line_of("bits")
+        if not isinstance(value, MarkedList) or not value:
+            self.fail(f"{where}.bits: expected a list of tick bits such as [0, 1, 2, 3], got "
+                      f"{_kind(value)}", line)
+        width = max(1, (cycle - 1).bit_length())
+        seen: dict[int, int] = {}
+        for index, bit in enumerate(value):
+            at = value.line_of(index)
+            if isinstance(bit, bool) or not isinstance(bit, int):
+                self.fail(f"{where}.bits: expected whole numbers (tick bit k has weight 2^k), got "
+                          f"{_kind(bit)}", at)
+            if not 0 <= bit < width:
+                self.fail(f"{where}.bits: bit {bit} is out of range for a cycle of {cycle} ticks",
+                          at, f"the tick bits are 0 .. {width - 1}")
+            if bit in seen:
+                self.fail(f"{where}.bits: bit {bit} is listed twice", at)
+            seen[bit] = at
+        if len(value) > 16:
+            self.fail(f"{where}.bits: expected at most 16 bits, got {len(value)}", line)
+        return tuple(value), tuple(value.line_of(i) for i in range(len(value)))
+
+    def level_tolerance(self, value: object, where: str, line: int) -> float:
+        match = _PERCENT.match(value) if isinstance(value, str) else None
+        if match is None:
+            self.fail(f"{where}: expected a percentage such as '5 %', got {_kind(value)}", line,
+                      "write it with a % sign")
+        fraction = float(match.group(1)) / 100
+        if not 0 < fraction < 0.5:
+            self.fail(f"{where}: expected a tolerance above 0 % and below 50 %, got {value!r}", line,
+                      "resistors are marked 1 %, 2 %, 5 %, 10 % or 20 %")
+        return fraction
+
+    def resistance(self, value: object, where: str, line: int) -> float:
+        try:
+            ohms = parse_quantity(value, "ohm")
+        except (ValueError, TypeError):
+            ohms = None
+        if ohms is None or not math.isfinite(ohms) or ohms <= 0:
+            self.fail(f"{where}: expected a resistance such as '100k', got {_kind(value)}", line)
+        return ohms
 
     # -- switches
     def switches(self, data: MarkedDict, signals: dict[str, SignalSpec]) -> dict[str, SwitchSpec]:

@@ -193,3 +193,33 @@ def test_plan_records_the_counter_and_network(scan):
     assert scan.counter.cycle == 8 and len(scan.network.gates) == 5
     assert scan.network.signals == scan_network().signals
     assert counter_4040(3).vars[0].pin == 9
+
+
+# ---------------------------------------------------------------- resistors and capacitors
+
+def _with_pullup(plan, ends=("VDD", "Q1"), listed=True):
+    """A 100k from VDD to the counter's Q1 net (a made-up part, only for the checks)."""
+    from synth.netlist import Passive
+    from synth.packing import refresh
+
+    plan = copy.deepcopy(plan)
+    plan.passives.append(Passive("R1", "resistor", 100e3, ends, "test"))
+    stock = type("Stock", (), {"capacitors": [], "path": "bin.yaml"})()
+    refresh(plan, stock)
+    if not listed:
+        plan.passives.clear()
+    return plan
+
+
+def test_passive_ends_join_the_nets_and_pass_the_check(scan):
+    plan = _with_pullup(scan)
+    assert ("R1", 1) in plan.nets["VDD"] and ("R1", 2) in plan.nets["Q1"]
+    assert net_problems(plan) == []
+    ends = [w for w in wire_list(plan) if w.frm[0] == "R1" or w.to == ("R1", 2)]
+    assert {w.net for w in ends} == {"VDD", "Q1"}
+
+
+def test_a_resistor_not_in_the_record_or_on_one_net_is_a_problem(scan):
+    assert any("names R1, which is not a part of the plan" in p
+               for p in net_problems(_with_pullup(scan, listed=False)))
+    assert any("has both ends on net Q1" in p for p in net_problems(_with_pullup(scan, ("Q1", "Q1"))))

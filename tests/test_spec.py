@@ -111,7 +111,7 @@ def test_defaults():
     assert spec.name == "row-scan"                 # "default: the file's stem"
     assert spec.supply == 5.0                      # "default 5 V"
     assert spec.clock == ClockSpec(None, "external", None)
-    assert spec.switches == {} and spec.levels is None
+    assert spec.switches == {} and spec.levels == {}
     pulse = spec.signals["pulse"]
     assert (pulse.polarity, pulse.every, pulse.stretch, pulse.clear_of) == ("high", None, 0, {})
     assert pulse.dont_care == frozenset() and pulse.line == 3
@@ -135,13 +135,46 @@ def test_clock_extensions():
     assert spec.clock == ClockSpec(32768.0, "oscillator", 0.1)
 
 
-def test_levels_kept_raw():
+def test_levels_read_with_defaults():
     spec = load("""\
-        cycle: 4
+        cycle: 64
         signals: {a: {high: [0]}}
-        levels: {ladder_out: [0, 1.25, 2.5]}
+        levels:
+          ramp: {bits: [2, 3, 4, 5]}
+          coarse: {bits: [4, 5], kind: binary, tolerance: 1 %, load: 100k}
         """)
-    assert spec.levels == {"ladder_out": [0, 1.25, 2.5]}
+    ramp, coarse = spec.levels["ramp"], spec.levels["coarse"]
+    assert (ramp.bits, ramp.kind, ramp.tolerance, ramp.tolerance_given, ramp.load_ohms) == \
+        ((2, 3, 4, 5), "r2r", 0.05, False, None)
+    assert (coarse.kind, coarse.tolerance, coarse.load_ohms, coarse.line) == ("binary", 0.01, 100e3, 5)
+
+
+@pytest.mark.parametrize("entry, line, message", [
+    ("ramp: {bits: [0, 1], gain: 2}", 4, "levels.ramp: unknown key 'gain'"),
+    ("ramp: {bits: [0, 6]}", 4, "levels.ramp.bits: bit 6 is out of range for a cycle of 64 ticks"),
+    ("ramp: {bits: [0, 0]}", 4, "levels.ramp.bits: bit 0 is listed twice"),
+    ("ramp: {bits: []}", 4, "levels.ramp.bits: expected a list of tick bits"),
+    ("ramp: {bits: [0.5]}", 4, "levels.ramp.bits: expected whole numbers"),
+    ("ramp: {kind: r2r}", 4, "levels.ramp: missing 'bits'"),
+    ("ramp: {bits: [0], kind: weighted}", 4, "levels.ramp.kind: expected r2r or binary"),
+    ("ramp: {bits: [0], tolerance: 5}", 4, "levels.ramp.tolerance: expected a percentage"),
+    ("ramp: {bits: [0], tolerance: 60 %}", 4, "expected a tolerance above 0 % and below 50 %"),
+    ("ramp: {bits: [0], tolerance: 0 %}", 4, "expected a tolerance above 0 % and below 50 %"),
+    ("ramp: {bits: [0], load: lots}", 4, "levels.ramp.load: expected a resistance"),
+    ("a: {bits: [0]}", 4, "levels: the name 'a' is already a signal or a switch"),
+    ("VDD: {bits: [0]}", 4, "levels: the name 'VDD' is taken by a power net"),
+    ("ramp: [0, 1]", 4, "levels.ramp: expected a mapping"),
+])
+def test_bad_levels_name_the_line(entry, line, message):
+    with pytest.raises(SpecError) as caught:
+        load(f"""\
+            cycle: 64
+            signals: {{a: {{high: [0]}}}}
+            levels:
+              {entry}
+            """, path="bench.yaml")
+    assert caught.value.line == line and caught.value.file == "bench.yaml"
+    assert message in caught.value.message
 
 
 def test_reads_a_file_and_names_it(tmp_path):

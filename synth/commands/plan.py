@@ -172,6 +172,7 @@ def plan_blocks(design) -> list:
     for name, sw in plan.switches.items():
         blocks.append(Text(f"switch {name}: {sw.get('ref')} section {sw.get('unit', '?')}; common joins "
                            f"{sw.get('when_control_high')} while its control is high"))
+    blocks += oscillator_blocks(plan) + ladder_blocks(plan) + passive_blocks(plan)
     for chip in plan.chips:
         part = plan.part_of(chip.ref)
         rows = [(r.pin, r.function, r.net or "(open)", ", ".join(r.goes_to)) for r in pin_table(plan, chip.ref)]
@@ -274,6 +275,86 @@ def _offer_text(offer: dict) -> str:
 
 def _receiver(offer: dict) -> str:
     return "a plain CMOS input" if offer["receiver"] == "plain-input" else f"a {offer['receiver']} Schmitt input"
+
+
+def oscillator_blocks(plan) -> list:
+    """The on-board clock: where, the formula with its numbers, the frequency spread."""
+    from ..render import Table, Text
+    from ..units import format_si
+
+    osc = plan.oscillator
+    if osc is None:
+        return []
+    hz = lambda f: format_si(f, "Hz") if f is not None else "-"  # noqa: E731
+    if osc.opened:
+        where = "a new chip from the bin"
+    elif osc.site.kind == "counter-stage":
+        where = "the counter chip itself"
+    else:
+        where = "a spare unit of a chip already in the plan"
+    parts = ", ".join(f"{ref} = {plan.passive(ref).label()}" for ref in osc.passives)
+    clock_pins = ", ".join(f"{r} pin {p}" for r, p in plan.nets.get(osc.clock_net, [])
+                           if not r.startswith(("R", "C")))
+    tol = f"{osc.tolerance:.0%}" + ("" if osc.tolerance_given else " (default: the spec sets none)")
+    fmax = (f"; counter maximum clock {osc.counter_fmax_mhz:g} MHz at {plan.supply:g} V"
+            if osc.counter_fmax_mhz else "")
+    blocks = [Text(f"oscillator: {osc.site.describe()} on {osc.ref} ({where}); {parts}; "
+                   f"net {osc.clock_net} joins {clock_pins}"),
+              Text(f"oscillator formula: {osc.formula}"),
+              Text(f"oscillator numbers: {osc.worked}")]
+    rows = [("typical thresholds", "", "", hz(osc.f_nom))]
+    rows += [(label, f"{p:g}", f"{m:g}", hz(f)) for label, p, m, f in osc.corners]
+    blocks.append(Table(f"oscillator frequency: wanted {hz(osc.wanted_hz)}, nominal {hz(osc.f_nom)}, "
+                        f"range {hz(osc.f_min)} .. {hz(osc.f_max)}, tolerance {tol}{fmax}",
+                        ("thresholds", "VT+ V", "VT- V", "frequency"), rows))
+    return blocks
+
+
+def ladder_blocks(plan) -> list:
+    """Each staircase: values, every code's level, output resistance, DNL / INL."""
+    from ..render import Table, Text
+    from ..units import format_si
+
+    blocks = []
+    for name, lad in plan.ladders.items():
+        drivers = ", ".join(f"tick bit {b} = {net} ({ref} pin {pin})"
+                            for b, (ref, pin, net) in zip(lad.bits, lad.drivers))
+        ohm = lambda v: format_si(v, "Ω")  # noqa: E731
+        routed = f"; routed by switch {', '.join(lad.routed_by)}" if lad.routed_by else ""
+        blocks.append(Text(f"staircase {name}: {lad.kind} ladder, {lad.construction} ({lad.why}); "
+                           f"driven by {drivers}; output on net {name}{routed}"))
+        blocks.append(Text(f"staircase {name} output resistance: {ohm(lad.ideal_output_resistance)} "
+                           f"ideal, {ohm(lad.output_resistance)} with the drivers' "
+                           f"{ohm(lad.r_out_driver)} each ({lad.r_out_note.split(';')[0]}); the drivers move a "
+                           f"level by at most {lad.driver_error_lsb:.3f} LSB"))
+        rows = [(code, format(code, f"0{len(lad.bits)}b"), f"{ideal:.4f}", f"{level:.4f}",
+                 f"{(level - ideal) * 1000:+.2f}")
+                for code, (ideal, level) in enumerate(zip(lad.ideal_levels, lad.levels))]
+        blocks.append(Table(f"staircase {name} levels at {plan.supply:g} V "
+                            f"(ideal = VDD x code / {len(lad.ideal_levels) if lad.kind == 'r-2r' else len(lad.ideal_levels) - 1})",
+                            ("code", "bits", "ideal V", "with drivers V", "difference mV"), rows))
+        w, m = lad.worst, lad.monte
+        tol = f"{lad.tolerance:.0%}" + ("" if lad.tolerance_given else " (default)")
+        blocks.append(Text(
+            f"staircase {name} linearity (endpoint fit, LSB) with {tol} resistors: nominal DNL "
+            f"{lad.nominal.worst_dnl:+.4f}, INL {lad.nominal.worst_inl:+.4f}; worst case "
+            f"({w.method}, {w.corners} corners) DNL {w.worst_dnl:+.3f} at code {w.worst_dnl_code}, "
+            f"INL {w.worst_inl:+.3f} at code {w.worst_inl_code}, "
+            f"{'monotonic' if w.monotonic else 'NOT monotonic'}; Monte Carlo ({m.trials} trials, "
+            f"seed {m.seed}, {m.distribution}) |DNL| p95 {m.dnl_abs_p95:.3f} max {m.dnl_abs_max:.3f}, "
+            f"|INL| p95 {m.inl_abs_p95:.3f} max {m.inl_abs_max:.3f}"))
+    return blocks
+
+
+def passive_blocks(plan) -> list:
+    """Every resistor and capacitor with the nets at its two ends."""
+    from ..render import Table
+
+    if not plan.passives:
+        return []
+    return [Table(f"resistors and capacitors ({len(plan.passives)})",
+                  ("ref", "value", "end 1", "end 2", "purpose"),
+                  [(p.ref, p.label(), p.ends[0], p.ends[1], p.purpose) for p in plan.passives])]
 
 
 def _as_dict(item) -> dict:

@@ -2,8 +2,11 @@
 
 Interface: ``FORMAT``; ``plan_to_json(plan) -> dict`` (every key of the
 contract, plus ``proven_minimal``, ``lower_bound``, ``method``, ``supply``,
-``decoupling``, ``cautions``, ``counter``, ``nets_external`` and per-chip pin
-notes); ``plan_to_text(plan) -> str``; ``write_json(plan, path)`` (atomic).
+``decoupling``, ``cautions``, ``counter``, ``nets_external``, per-chip pin
+notes, ``passives`` (every resistor and capacitor: ref, value, the net at
+each end; their ends appear in ``wires`` as pins 1 and 2 of refs R1, C1 ...),
+``oscillator`` (null unless ``clock.source: oscillator``) and ``levels`` (one
+entry per staircase)); ``plan_to_text(plan) -> str``; ``write_json(plan, path)`` (atomic).
 """
 
 from __future__ import annotations
@@ -120,6 +123,11 @@ def plan_to_json(plan: Plan) -> dict:
         "nets_external": dict(plan.external),
         "counter": _counter(plan),
         "bin_lacks": plan.bin_lacks,
+        "passives": [{"ref": p.ref, "kind": p.kind, "value": p.value, "label": p.label(),
+                      "ends": [{"end": 1, "net": p.ends[0]}, {"end": 2, "net": p.ends[1]}],
+                      "purpose": p.purpose} for p in plan.passives],
+        "oscillator": plan.oscillator.as_json() if plan.oscillator is not None else None,
+        "levels": {name: ladder.as_json() for name, ladder in plan.ladders.items()},
     }
 
 

@@ -278,6 +278,15 @@ def plan_to_verilog(plan: Any, catalog: Any) -> str:
         f"{len(gates)} gate(s), typical delays at {plan.supply:g} V.",
         f"// Counting edge: {plan.clock_edge} edge of clk. The count starts from all zeros; "
         "sample the outputs just before each counting edge.",
+    ]
+    osc = getattr(plan, "oscillator", None)
+    if osc is not None:
+        # The RC oscillator is analog: the model keeps clk a port, so a testbench
+        # drives it at the oscillator's nominal frequency (formats.md: ports are clk
+        # and the signals).
+        head.append(f"// clk is made on the board by an RC oscillator ({osc.site.part} {osc.ref}, "
+                    f"nominal {osc.f_nom:.6g} Hz); it stays an input here: drive it from the testbench.")
+    head += [
         "`timescale 1ns/1ps",
         f"module {module} ({', '.join(['clk', *ports.values()])});",
         "  input clk;",

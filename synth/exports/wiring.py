@@ -15,7 +15,8 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from ..netlist import Plan, Wire, endpoint_text, pin_table, ref_key, wire_list
+from ..netlist import Plan, Wire, endpoint_text, is_passive, pin_table, ref_key, wire_list
+from ..units import format_si
 from . import atomic_write_text
 
 
@@ -26,6 +27,8 @@ def _end_text(plan: Plan, end: tuple[str, int] | str) -> str:
 def wire_line(plan: Plan, wire: Wire) -> str:
     """``- [ ] U2 pin 1 (1A) -> U1 pin 9 (Q1) [net Q1]``, with the pin's note if any."""
     text = f"- [ ] {endpoint_text(plan, *wire.frm)} -> {_end_text(plan, wire.to)} [net {wire.net}]"
+    if is_passive(wire.frm[0]):
+        return text
     note = plan.chip(wire.frm[0]).notes.get(wire.frm[1])
     if note and (wire.net in ("VDD", "VSS") or " joins the common" in note) and not note.startswith("supply"):
         text += f": {note}"
@@ -52,7 +55,58 @@ def _parts(plan: Plan) -> list[str]:
         lines.append(f"| {part} | {count} | {plan.parts[part].function} |")
     lines.append(f"| 100 nF ceramic capacitor | {len(plan.decoupling)} | decoupling, one per chip "
                  "across its supply pins (common practice) |")
+    values: dict[tuple[str, str], int] = {}
+    for item in plan.passives:
+        key = (item.kind, item.label())
+        values[key] = values.get(key, 0) + 1
+    for (kind, label), count in sorted(values.items()):
+        lines.append(f"| {label} {kind} | {count} | oscillator and staircase parts (below) |")
     return lines + [""]
+
+
+def _analog(plan: Plan) -> list[str]:
+    """The oscillator and the staircases in words, before the wires."""
+    lines: list[str] = []
+    osc = plan.oscillator
+    if osc is not None:
+        lines += ["## Clock oscillator", "",
+                  f"- {osc.site.describe()} on {osc.ref}; its output is net {osc.clock_net}, the "
+                  "counter clock.",
+                  f"- {osc.formula}", f"- {osc.worked}"]
+        if osc.f_min is not None:
+            lines.append(f"- Over the datasheet thresholds: {format_si(osc.f_min, 'Hz')} .. "
+                         f"{format_si(osc.f_max, 'Hz')} (nominal {format_si(osc.f_nom, 'Hz')}, wanted "
+                         f"{format_si(osc.wanted_hz, 'Hz')}).")
+        lines.append("")
+    for name, lad in plan.ladders.items():
+        lines += [f"## Staircase {name}", "",
+                  f"- {lad.kind} ladder: {lad.construction}; output on net {name}, source "
+                  f"resistance {format_si(lad.output_resistance, 'Ω')}.",
+                  "- Levels at the supply: " + ", ".join(f"{code}: {v:.3f} V"
+                                                          for code, v in enumerate(lad.levels)), ""]
+    return lines
+
+
+def _passives(plan: Plan, wires: list[Wire]) -> list[str]:
+    """Each resistor and capacitor with a box for every wire that starts at one of its ends."""
+    if not plan.passives:
+        return []
+    starts: dict[tuple[str, int], list[Wire]] = {}
+    for wire in wires:
+        starts.setdefault(wire.frm, []).append(wire)
+    lines = ["## Resistors and capacitors", ""]
+    for item in plan.passives:
+        lines += [f"### {item.ref}: {item.label()} {item.kind}, {item.purpose}", "",
+                  f"End 1 on net {item.ends[0]}, end 2 on net {item.ends[1]}.", ""]
+        for end in (1, 2):
+            here = starts.get((item.ref, end), [])
+            if here:
+                lines += [wire_line(plan, w) for w in here]
+            else:
+                lines.append(f"- {item.ref} end {end}: net {item.ends[end - 1]}, its wire is listed "
+                             "at the other end")
+        lines.append("")
+    return lines
 
 
 def _signals(plan: Plan) -> list[str]:
@@ -113,7 +167,8 @@ def _nets(plan: Plan) -> list[str]:
 def wiring_markdown(plan: Plan) -> str:
     """The whole wiring list as one Markdown document."""
     wires = wire_list(plan)
-    lines = _header(plan) + _parts(plan) + _signals(plan) + _chips(plan, wires) + _nets(plan)
+    lines = (_header(plan) + _parts(plan) + _signals(plan) + _analog(plan) + _chips(plan, wires)
+             + _passives(plan, wires) + _nets(plan))
     lines += [f"{len(wires)} wires in all."]
     return "\n".join(lines) + "\n"
 
