@@ -200,18 +200,29 @@ def thresholds_at(part_thresholds: dict, supply: float) -> dict:
             "extrapolated": not inside, "note": note}
 
 
-def plain_input_thresholds(supply: float) -> dict:
+def plain_input_thresholds(supply: float, band: tuple[float, float, str] | None = None) -> dict:
     """A plain (non-Schmitt) CMOS input: trips at VDD/2 typ, anywhere in VIL..VIH.
+
+    ``band`` is the catalog's guaranteed (VIL max, VIH min, source) at this
+    supply (``Catalog.plain_input_levels``); without it the 30 % / 70 % of VDD
+    rule is used, which the 4000B sheets keep at 5 and 10 V but not at 15 V
+    (4.0 / 11.0 V there), so callers with a catalog pass the band.
 
     >>> plain_input_thresholds(5.0)["vt_plus"]
     {'min': 1.5, 'typ': 2.5, 'max': 3.5}
+    >>> plain_input_thresholds(15.0, (4.0, 11.0, "4000B"))["vt_plus"]
+    {'min': 4.0, 'typ': 7.5, 'max': 11.0}
     """
-    row = {"min": round(PLAIN_VIL_FRACTION * supply, 12), "typ": supply / 2,
-           "max": round(PLAIN_VIH_FRACTION * supply, 12)}
+    if band is None:
+        vil, vih = PLAIN_VIL_FRACTION * supply, PLAIN_VIH_FRACTION * supply
+        where = "VIL = 30 % to VIH = 70 % of VDD (4000B / 74HC input spec, common practice)"
+    else:
+        vil, vih, source = band
+        where = f"VIL = {vil:g} V to VIH = {vih:g} V at {supply:g} V ({source})"
+    row = {"min": round(vil, 12), "typ": supply / 2, "max": round(vih, 12)}
     return {"vt_plus": dict(row), "vt_minus": dict(row), "supply": supply,
             "method": "plain-input", "extrapolated": False,
-            "note": "plain CMOS input: switching point taken as VDD/2, anywhere from VIL = 30 % "
-                    "to VIH = 70 % of VDD (4000B / 74HC input spec, common practice)"}
+            "note": f"plain CMOS input: switching point taken as VDD/2, anywhere from {where}"}
 
 
 def _check_thresholds(supply: float, thresholds: dict) -> None:
@@ -362,9 +373,10 @@ def rc_delay_design(wanted_s: float, *, supply: float, thresholds: dict, resisto
     if fixed_c is not None and fixed_c not in capacitors:
         warnings.append(f"C = {format_si(fixed_c, 'F')} is not in the bin's capacitor list")
     if plain:
-        warnings.append("a plain CMOS input switches anywhere between 30 % and 70 % of VDD and a "
-                        "slow edge can make it chatter and draw current; a Schmitt input "
-                        "(40106, 74HC14, 4093, 74HC132) is the safer receiver")
+        band = thresholds["vt_plus"]
+        warnings.append(f"a plain CMOS input switches anywhere between {_v(band['min'])} V and "
+                        f"{_v(band['max'])} V at {supply:g} V and a slow edge can make it chatter and "
+                        "draw current; a Schmitt input (40106, 74HC14, 4093, 74HC132) is the safer receiver")
     if thresholds.get("extrapolated"):
         warnings.append(str(thresholds.get("note")))
     if wanted_s < 10e-6:

@@ -692,7 +692,8 @@ def _rc_design(design: Any, signal: str, wanted_ns: float, period: float) -> dic
         return {"delayed": signal, "wanted_ns": round(wanted_ns, 1), "applied": False,
                 "applicable": False, "why_not": str(exc)}
     thresholds = (thresholds_at(catalog.parts[receiver].thresholds, plan.supply) if receiver
-                  else plain_input_thresholds(plan.supply))
+                  else plain_input_thresholds(plan.supply, design.catalog.plain_input_levels(
+                      {p.family for p in plan.parts.values()}, plan.supply)))
     base = {"delayed": signal, "wanted_ns": round(wanted_ns, 1), "receiver": receiver or "plain-input",
             "stages": where, "applied": False}
     try:

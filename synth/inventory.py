@@ -214,6 +214,25 @@ class Catalog:
 
     parts: dict[str, Part]
     files: tuple[Path, ...] = ()
+    input_levels: dict[str, dict] = field(default_factory=dict)   # family -> plain-input VIL/VIH rows
+
+    def plain_input_levels(self, families: Iterable[str], supply: float) -> tuple[float, float, str] | None:
+        """The guaranteed switching band (VIL max, VIH min) of a plain input at ``supply``.
+
+        Linear between the family file's supply rows (held proportional to the
+        supply outside them); with several families the widest band is taken,
+        since the receiving input could be any of them.  None when no family
+        file gives ``input_levels``.
+        """
+        bands = []
+        for family in sorted(set(families)):
+            table = self.input_levels.get(family)
+            if table:
+                vil, vih = _band_at(table["rows"], supply)
+                bands.append((vil, vih, f"{family}: {table['source']}"))
+        if not bands:
+            return None
+        return (min(b[0] for b in bands), max(b[1] for b in bands), "; ".join(b[2] for b in bands))
 
     def normalise(self, marking: str) -> str | None:
         """The generic type for a chip marking, or None when it is not known.
@@ -278,16 +297,47 @@ def load_catalog(paths: Iterable[str | Path] | None = None) -> Catalog:
     files = tuple(Path(p) for p in paths) if paths is not None else \
         tuple(sorted(data_path("catalog").glob("*.yaml")))
     parts: dict[str, Part] = {}
+    levels: dict[str, dict] = {}
     for path in files:
-        for part in _parts_of_file(path):
+        doc = load_yaml(path)
+        for part in _parts_of_file(path, doc):
             if part.type in parts:
                 raise CatalogError(f"part {part.type} defined twice", file=path)
             parts[part.type] = part
-    return Catalog(parts, files)
+        family, table = _input_levels_of_file(path, doc)
+        if table:
+            levels[family] = table
+    return Catalog(parts, files, levels)
 
 
-def _parts_of_file(path: Path) -> list[Part]:
-    doc = load_yaml(path)
+def _band_at(rows: dict[float, dict], supply: float) -> tuple[float, float]:
+    """VIL and VIH at ``supply`` from rows by supply voltage (see plain_input_levels)."""
+    points = sorted(rows)
+    if supply <= points[0] or supply >= points[-1]:
+        edge = points[0] if supply <= points[0] else points[-1]
+        scale = supply / edge
+        return rows[edge]["vil"] * scale, rows[edge]["vih"] * scale
+    hi = next(v for v in points if v >= supply)
+    lo = max(v for v in points if v <= supply)
+    w = 0.0 if hi == lo else (supply - lo) / (hi - lo)
+    return tuple(rows[lo][k] + w * (rows[hi][k] - rows[lo][k]) for k in ("vil", "vih"))
+
+
+def _input_levels_of_file(path: Path, doc: Any) -> tuple[str, dict]:
+    """A family file's ``input_levels``: guaranteed VIL max / VIH min of plain inputs by supply."""
+    family = str(doc.get("family", "")) if isinstance(doc, dict) else ""
+    table = doc.get("input_levels") if isinstance(doc, dict) else None
+    if not table:
+        return family, {}
+    try:
+        rows = {float(v): {"vil": float(r["vil"]), "vih": float(r["vih"])} for v, r in table["rows"].items()}
+    except (KeyError, TypeError, ValueError, AttributeError) as exc:
+        raise CatalogError(f"input_levels: expected rows of {{vil, vih}} by supply, got {exc!r}",
+                           file=path, line=line_of(doc, "input_levels")) from exc
+    return family, {"rows": rows, "source": str(table.get("source", ""))}
+
+
+def _parts_of_file(path: Path, doc: Any) -> list[Part]:
     if not isinstance(doc, dict) or "parts" not in doc:
         raise CatalogError("expected a mapping with 'family' and 'parts'", file=path)
     family = str(doc.get("family", ""))

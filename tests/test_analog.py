@@ -422,3 +422,34 @@ def test_solve_linear_agrees_with_numpy(seed):
 def test_module_exports_what_its_docstring_lists():
     for name in analog.__all__:
         assert name in analog.__doc__ or name[0].isupper()
+
+
+# ---------------------------------------------------------------- plain-input band from the catalog
+
+@pytest.mark.parametrize("family, supply, vil, vih", [
+    # NXP HEF4049B Rev 05 table 6 and Fairchild CD4049UBC/CD4050BC (B-series input spec)
+    ("4000B", 5.0, 1.5, 3.5),
+    ("4000B", 10.0, 3.0, 7.0),
+    ("4000B", 15.0, 4.0, 11.0),     # not 30 % / 70 %: 4.5 / 10.5 V would promise more margin
+    # 74HC at 4.5 V: 1.35 / 3.15 V (30 % / 70 % of VCC, TI CD54HC4017)
+    ("74HC", 4.5, 1.35, 3.15),
+])
+def test_plain_input_band_comes_from_the_family_file(family, supply, vil, vih):
+    from synth.inventory import load_catalog
+
+    band = load_catalog().plain_input_levels({family}, supply)
+    assert band[0] == pytest.approx(vil) and band[1] == pytest.approx(vih)
+    row = plain_input_thresholds(supply, band)["vt_plus"]
+    assert (row["min"], row["max"]) == (pytest.approx(vil), pytest.approx(vih))
+
+
+def test_rc_delay_into_a_plain_4000b_input_at_15_v_uses_the_datasheet_band():
+    # hand calculation: t = R C ln(V / (V - Vt)) with 10 kOhm, 6.8 nF, 15 V and the
+    # 4.0 V / 11.0 V band (NXP HEF4049B table 6): 21.1 us and 89.9 us
+    from synth.inventory import load_catalog
+
+    band = load_catalog().plain_input_levels({"4000B"}, 15.0)
+    low = rc_time(10e3, 6.8e-9, 0.0, 15.0, band[0])
+    high = rc_time(10e3, 6.8e-9, 0.0, 15.0, band[1])
+    assert low == pytest.approx(10e3 * 6.8e-9 * math.log(15 / 11), rel=1e-9)
+    assert (low * 1e6, high * 1e6) == (pytest.approx(21.09, abs=0.01), pytest.approx(89.88, abs=0.01))

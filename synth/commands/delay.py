@@ -76,11 +76,13 @@ def choose_receiver(bin_, catalog, part_arg: str | None, supply: float):
     from ..analog import plain_input_thresholds, thresholds_at
     from ..errors import ShortError, UsageError
 
+    families = {catalog.parts[t].family for t in bin_.parts}
+    band = catalog.plain_input_levels(families, supply)
     if not bin_.parts:
         raise ShortError(f"no part in the bin {bin_.path} runs at {supply:g} V to drive or "
                          "receive the delay", hint="check --supply, or add a part rated for it")
     if part_arg and part_arg.lower() == "plain":
-        return None, plain_input_thresholds(supply), []
+        return None, plain_input_thresholds(supply, band), []
     if part_arg:
         part_type = catalog.normalise(part_arg)
         if part_type is None:
@@ -93,13 +95,13 @@ def choose_receiver(bin_, catalog, part_arg: str | None, supply: float):
         part = catalog.parts[part_type]
         if part.thresholds:
             return part_type, thresholds_at(part.thresholds, supply), []
-        return part_type, plain_input_thresholds(supply), [
+        return part_type, plain_input_thresholds(supply, band), [
             f"{part_type} has no Schmitt thresholds in the catalog: treated as a plain CMOS input"]
     schmitt = [t for t in bin_.parts if catalog.parts[t].thresholds]
     if schmitt:
         part_type = min(schmitt, key=lambda t: (catalog.parts[t].category != "inverter", t))
         return part_type, thresholds_at(catalog.parts[part_type].thresholds, supply), []
-    return None, plain_input_thresholds(supply), [
+    return None, plain_input_thresholds(supply, band), [
         "no Schmitt-input part (40106, 74HC14, 4093, 74HC132) in the bin: the delay drives a "
         "plain CMOS input"]
 
