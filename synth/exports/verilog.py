@@ -233,7 +233,9 @@ def _mux_lines(gate: Any, ins: list[str], names: dict[str, str], delay: str) -> 
     expr = data[-1]
     for i in range(len(data) - 2, -1, -1):
         expr = f"({code} == {i}) ? {data[i]} : {expr}"
-    lines = [f"  assign #({delay}) {names[gate.outputs[0]]} = {expr};"]
+    lines = []
+    if gate.outputs[0]:           # a mux used only through its inverted output leaves Y open
+        lines.append(f"  assign #({delay}) {names[gate.outputs[0]]} = {expr};")
     if len(gate.outputs) > 1 and gate.outputs[1]:
         lines.append(f"  assign #({delay}) {names[gate.outputs[1]]} = !({expr});")
     return lines
