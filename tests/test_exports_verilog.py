@@ -493,3 +493,15 @@ def test_allocated_counters_cosimulate(cycle, parts, supply, catalog, tmp_path):
     half = period // 2
     for net, ident in names.items():
         assert _theirs(run, ident, half) == _ours(trace, net, half), f"net {net}"
+
+
+def test_a_mux_used_only_through_its_inverted_output_assigns_only_that_net():
+    # 74HC151 (hc-74.md): Y and its complement W_n; found by fuzzing plans whose mapper took
+    # only W_n, which left Y open and the export looked up an empty net name
+    from types import SimpleNamespace
+
+    from synth.exports.verilog import _mux_lines
+
+    gate = SimpleNamespace(outputs=("", "n5"))
+    lines = _mux_lines(gate, ["a", "b", "c", "d", "s0", "s1"], {"n5": "n5"}, "18")
+    assert len(lines) == 1 and lines[0].startswith("  assign #(18) n5 = !(")
