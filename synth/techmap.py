@@ -1715,8 +1715,11 @@ class _LocalSearch:
         """The best selection found, and how far it overflows the bin (0 = fits).
 
         First climbs as if the bin were unlimited (the structure), then with
-        the bin's limits first (the repair).
+        the bin's limits first (the repair).  A node no gate of the bin can
+        build (no AND-like gate at all) leaves only the options without it.
         """
+        if any(not menu for menu in self.trees.values()):
+            return None, 0
         best = self._initial()
         if best is None:
             return None, 0
@@ -2051,7 +2054,8 @@ def _shortage(problem: _Problem, forms: dict[str, list[_Form]], lib: Library, de
             reason = "no part in the bin can invert a signal (no inverter, NAND, NOR, XOR or mux)"
         else:
             reason = "the bin's gate kinds cannot form these functions"
-        fix = _one_part_fix(problem, forms, lib, deadline, prefer_inverting=True)
+        has_gates = any(c.op in AND_FORM and c.width >= 2 for c in lib.cells)
+        fix = _one_part_fix(problem, forms, lib, deadline, prefer_inverting=has_gates)
     else:
         need = chips_of(plenty.gates, roomy)
         short = [f"{n} x {p} (the bin has {lib.available.get(p, 0)})"
@@ -2100,6 +2104,9 @@ def _fix_candidates(lib: Library, prefer_inverting: bool) -> list[str]:
         kind = 0 if "not" in ops and not any(c.schmitt for c in cells) else \
             1 if ops & {"nand", "nor"} else 2 if inverting else 3
         in_bin = part.type in lib.available
+        if not prefer_inverting and not any(c.op in AND_FORM and c.width >= 2 for c in lib.cells):
+            # no multi-input gate at all: a NAND/NOR chip both combines and inverts
+            return (0 if ops & {"nand", "nor"} else 1, not in_bin, part.type)
         if prefer_inverting:
             return (kind, not in_bin, part.type)
         return (not in_bin, kind, part.type)
