@@ -94,12 +94,21 @@ def make_plan(spec_path: str | Path, bin_path: str | Path, *, catalog=None, exac
     for function in decode.functions:
         polarity.setdefault(function.name, _internal_polarity(counter_plan, function.name))
     network = map_design(decode.functions, len(counter_plan.vars), [v.net for v in counter_plan.vars],
-                         library, polarity=polarity, cover=decode.cover, exact=exact)
+                         library, polarity=polarity, cover=decode.cover, exact=exact,
+                         glitch_free=_async_reset_names(counter_plan))
     plan = pack(network, counter_plan, spec, stock, catalog)
     plan.warnings[:0] = list(stock.warnings) + list(getattr(counter_plan, "warnings", []))
     design = Design(plan, spec, stock, catalog, counter_plan, decode, network)
     _timing_checks(design, set(fix))
     return design
+
+
+def _async_reset_names(counter_plan) -> tuple[str, ...]:
+    """A decoded asynchronous reset must not pulse on a counter step (it would clear the count)."""
+    reset = getattr(counter_plan, "reset", None)
+    if reset is None or getattr(reset, "synchronous", False) or getattr(reset, "direct", False):
+        return ()
+    return (reset.name,)
 
 
 def _internal_polarity(counter_plan, name: str) -> str:

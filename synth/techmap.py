@@ -79,7 +79,7 @@ from typing import Iterable, Literal, Mapping, Sequence
 
 from .errors import InputError, InternalError, ShortError, UsageError
 from .inventory import Bin, Catalog, Part
-from .network import Gate, Network, SignalOut, evaluate_network
+from .network import Gate, Network, SignalOut, evaluate_gate, evaluate_network
 
 __all__ = ["Cell", "Library", "build_library", "map_design", "chips_of", "Target",
            "parse_target", "Construction", "substitute", "EXACT_MAX_VARS", "EXACT_MAX_GATES"]
@@ -1913,13 +1913,16 @@ class _Flipped:
 
 def map_design(functions, nvars: int, var_nets: Sequence[str], library: Library, *,
                polarity: Mapping[str, str], cover=None, exact: str = "auto",
-               time_limit: float = 10.0) -> Network:
+               time_limit: float = 10.0, glitch_free: Iterable[str] = ()) -> Network:
     """Cover the decode functions with the bin's gates: fewest chips, then gates, then depth.
 
     ``exact``: 'auto' runs exact synthesis on small designs, 'yes' on any
     design (within ``time_limit``), 'no' never.  Raises ``ShortError`` when
     the bin cannot realise a signal, naming what is short and one part that
-    would fix it.
+    would fix it.  ``glitch_free`` names signals (an asynchronous counter
+    reset) that must not pulse while a single counter bit changes: an exact
+    synthesis circuit with such a static hazard gives way to the structure
+    selection's two-level-derived one.
     """
     if exact not in ("auto", "yes", "no"):
         raise UsageError(f"expected exact to be auto, yes or no, got {exact!r}")
@@ -1944,6 +1947,13 @@ def map_design(functions, nvars: int, var_nets: Sequence[str], library: Library,
     if run_exact:
         incumbent = result.cost if result else None
         exact_result, proven, lower = _exact_search(problem, lib.cells, start + time_limit * 0.95, incumbent)
+        if exact_result is not None and glitch_free and _static_hazards(
+                exact_result.gates, exact_result.signals, glitch_free, every, var_nets):
+            if result is None:
+                raise _shortage(problem, forms, lib, start + time_limit)
+            notes.append("exact synthesis: its circuit could pulse " + ", ".join(sorted(glitch_free)) +
+                         " on a single counter step; the glitch-free structure is used")
+            exact_result, proven = None, False
         if exact_result is not None:
             result = exact_result
         if result is not None and proven and _exact_complete(lib.cells):
@@ -1970,6 +1980,58 @@ def map_design(functions, nvars: int, var_nets: Sequence[str], library: Library,
     network = Network(gates, signals, tuple(var_nets), chips, result.proven, lb, method, notes)
     _verify(network, every, nvars, lib)
     return network
+
+
+def _ternary_levels(gates: Sequence[Gate], inputs: Mapping[str, bool | None]) -> dict[str, bool | None]:
+    """Every net's level with some inputs unknown (None): a gate whose output the
+    unknown inputs can move is unknown (Eichelberger's ternary simulation)."""
+    values: dict[str, bool | None] = {"VDD": True, "VSS": False, **inputs}
+    pending = list(gates)
+    while pending:
+        rest = []
+        for gate in pending:
+            if not all(n in values for n in gate.inputs):
+                rest.append(gate)
+                continue
+            unknown = sorted({n for n in gate.inputs if values[n] is None})
+            outcomes: dict[str, set] = {}
+            for bits in itertools.product((False, True), repeat=len(unknown)):
+                trial = {n: values[n] for n in gate.inputs}
+                trial.update(zip(unknown, bits))
+                for net, level in evaluate_gate(gate, trial).items():
+                    outcomes.setdefault(net, set()).add(level)
+            for net, levels in outcomes.items():
+                values[net] = levels.pop() if len(levels) == 1 else None
+        if len(rest) == len(pending):
+            raise InternalError("the mapped network has a loop")
+        pending = rest
+    return values
+
+
+def _static_hazards(gates: Sequence[Gate], signals: Mapping[str, SignalOut], names: Iterable[str],
+                    every: Sequence[_Signal], var_nets: Sequence[str]) -> list[str]:
+    """Signals that may pulse to their asserted level while one counter bit changes
+    between two cared-for states where they stay unasserted (a reset would fire)."""
+    by_name = {s.name: s for s in every}
+    found = []
+    for name in names:
+        sig, out = by_name.get(name), signals.get(name)
+        if sig is None or out is None or out.net in ("VDD", "VSS") or out.net in var_nets:
+            continue
+        quiet = sorted(sig.care - sig.on)
+        quiet_set = set(quiet)
+        for m in quiet:
+            for i in range(len(var_nets)):
+                other = m ^ (1 << i)
+                if other < m or other not in quiet_set:
+                    continue
+                inputs = {net: (None if j == i else bool(m >> j & 1)) for j, net in enumerate(var_nets)}
+                if _ternary_levels(gates, inputs).get(out.net, False) is None:
+                    found.append(name)
+                    break
+            if found and found[-1] == name:
+                break
+    return found
 
 
 def _exact_complete(cells: Sequence[Cell]) -> bool:
