@@ -757,6 +757,11 @@ def _shortage(spec, stock: Bin, catalog: Catalog, rejected: list[_Verdict], supp
         return ShortError(f"the clock is too fast for the bin's counters: "
                           f"{min(rejected, key=_Verdict.key).reason}", file=stock.path, hint=fix)
     total, listing = _binary_stage_total(stock, catalog)
+    unchainable = _unchainable(kinds, n)
+    if total >= n and unchainable and not rejected:
+        return ShortError(f"the cycle of {cycle} ticks needs {n} binary stages; the bin's binary counters "
+                          f"have {total} ({listing}) but cannot be chained: {unchainable}",
+                          file=stock.path, hint=fix)
     if not rejected or total < n:
         short = max(n - total, 1)
         have = f"{total} ({listing})" if listing else "none"
@@ -768,6 +773,18 @@ def _shortage(spec, stock: Bin, catalog: Catalog, rejected: list[_Verdict], supp
     worst = min(rejected, key=_Verdict.key)
     return ShortError(f"the bin's counters cannot count a cycle of {cycle} ticks: {worst.reason}",
                       file=stock.path, hint=fix)
+
+
+def _unchainable(kinds: list[_Kind], n: int) -> str:
+    """Why the bin's short binary counters cannot follow one another ('' if they can)."""
+    short = [k for k in kinds if k.mode == "binary" and k.width < n]
+    stuck = [k.part.type for k in short if k.clocking("falling") is None]
+    if not stuck or len(stuck) < len(short):
+        return ""
+    names = _or_list(sorted(set(stuck)))
+    return (f"the {names} counts only on a rising clock edge and has no falling-edge enable, so it "
+            "cannot be clocked from another counter's stage (synchronous carry cascades through "
+            "TC are not built)")
 
 
 def _fixes(spec, stock: Bin, catalog: Catalog, supply: float, frequency: float | None,

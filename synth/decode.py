@@ -354,7 +354,8 @@ def _signal_decode(cover: Cover, name: str, plan: CounterPlan, patterns: list[in
 def _reset_decode(cover: Cover, plan: CounterPlan, patterns: list[int]) -> SignalDecode:
     reset = plan.reset
     fires = _members(_cover_bits(cover, reset.name, patterns))
-    if fires & set(plan.state_of_tick) or not reset.on <= fires:
+    # a synchronous clear decodes the last held state itself (reset.on); nothing else held may fire
+    if (fires - reset.on) & set(plan.state_of_tick) or not reset.on <= fires:
         raise InternalError("the reset decode fires on a held state or misses its own",
                             hint="a bug in binsynth; no design was printed")
     return SignalDecode(

@@ -63,7 +63,7 @@ unless the exact path finishes.
 from __future__ import annotations
 
 import itertools
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from typing import Iterable, Iterator, Literal, Sequence
 
 from .errors import InternalError
@@ -552,7 +552,9 @@ def _single_output_exact(variants: list[_Variant], primes, classes,
         own = [tuple(renumber[p] for p in cov) for cov in classes[v]]
         found = _essential_cover(mine, [own]) or _small_cover(mine, own)
         if found is None:
-            result = _maxsat_cover([variant], mine, [own], [], 1, limits)
+            # alone, either phase is a plain cover of its own care set: solve it as a fixed
+            # true phase so the solver links its terms (a fixed complement would link none)
+            result = _maxsat_cover([replace(variant, phase="true")], mine, [own], [], 1, limits)
             if isinstance(result, str):
                 return result
             found = result[0]

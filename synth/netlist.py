@@ -77,6 +77,7 @@ class Plan:
     method: str = ""
     parts: dict[str, Part] = field(default_factory=dict)
     external: dict[str, str] = field(default_factory=dict)
+    bin_lacks: dict | None = None   # wishlist.BinLacks.to_json(), when the plan ran that search
 
     def chip(self, ref: str) -> ChipInstance:
         for chip in self.chips:
@@ -259,12 +260,23 @@ def counter_levels(counter: Any, t: int) -> dict[str, bool]:
     return levels
 
 
+def sampled_clock_levels(counter: Any) -> dict[str, bool]:
+    """The clock net at the level it has just before a counting edge, where ticks are
+    sampled: a decode gated with the clock's still half reads its tick's level there."""
+    var_nets = {str(v.net) for v in getattr(counter, "vars", ())}
+    level = str(getattr(counter, "edge", "rising")) == "falling"
+    return {str(c.clock_net): level for c in getattr(counter, "chips", ())
+            if str(c.clock_net) not in var_nets}
+
+
 def simulate_nets(plan: Plan) -> list[dict[str, bool]]:
-    """Every net's zero-delay level at each tick of one cycle (rails included)."""
+    """Every net's zero-delay level at each tick of one cycle (rails included), the
+    clock at its level just before the next counting edge."""
     rows = []
+    clock = sampled_clock_levels(plan.counter)
     for t in range(tick_count(plan.counter)):
         try:
-            values = evaluate_network(plan.network, counter_levels(plan.counter, t))
+            values = evaluate_network(plan.network, {**clock, **counter_levels(plan.counter, t)})
         except (ValueError, KeyError) as exc:
             raise InternalError(f"self-check could not evaluate plan {plan.name} at tick {t}: {exc}",
                                 hint="a bug in binsynth; no design was printed") from exc

@@ -100,7 +100,7 @@ def make_plan(spec_path: str | Path, bin_path: str | Path, *, catalog=None, exac
     plan.warnings[:0] = list(stock.warnings) + list(getattr(counter_plan, "warnings", []))
     design = Design(plan, spec, stock, catalog, counter_plan, decode, network)
     _timing_checks(design, set(fix))
-    return design
+    return _timing_fixes(design, set(fix), exact)
 
 
 def _async_reset_names(counter_plan) -> tuple[str, ...]:
@@ -124,3 +124,10 @@ def _timing_checks(design: Design, fix: set[str]) -> None:
     from .timing import analyse
 
     analyse(design, fix=fix)
+
+
+def _timing_fixes(design: Design, fix: set[str], exact: str) -> Design:
+    """``--fix glitches`` and the RC-delay offers, from the glitch-fix module."""
+    from .glitchfix import apply_fixes
+
+    return apply_fixes(design, fix, exact=exact)

@@ -73,6 +73,21 @@ __all__ = [
 ]
 
 CORNERS = ("typ", "max")
+MODELS = ("transport_typ", "transport_max", "inertial_typ", "states")
+MODEL_TEXT = {
+    "transport_typ": "event simulation, typical catalog delays, every pulse passed (transport delays)",
+    "transport_max": "event simulation, worst-case (max) catalog delays, every pulse passed",
+    "inertial_typ": "event simulation, typical delays, a pulse shorter than a gate's delay swallowed "
+                    "(as a Verilog primitive; what the exported Verilog shows)",
+    "states": "the decode evaluated on every state the ripple count passes through, "
+              "independent of gate delays",
+}
+"""The analyses behind a glitch report: the event simulation with transport
+delays at typical and worst-case (max) catalog delays (every pulse a part may
+pass), with inertial delays at typical (what a Verilog primitive and a real
+gate of exactly that delay pass), and the state enumeration of the ripple
+transients (``ripple_hazards``: the decode evaluated on every state the count
+passes through, independent of gate delays)."""
 PS_PER_NS = 1000
 
 
@@ -651,7 +666,7 @@ def _trace_of(engine: _Engine, counter_plan: Any, network: Network, counters: li
     resets = [ResetPulse(counters[i].ref, _ns(start), _ns(width), (start // period) % cycle)
               for i, start, width in engine.reset_pulses]
     warnings = list(dict.fromkeys(engine.warnings + [n for c in counters for n in c.notes]))
-    settle = _settle(engine.changes, clock_net, period, end)
+    settle = _settle(engine.changes, _clock_fed(gates, clock_net), period, end)
     if settle >= period // 2 and any(c.clock_net == clock_net for c in counters):
         warnings.append(f"nets are still changing {_ns(settle):.0f} ns after a counting edge, "
                         f"more than half the {_ns(period):.0f} ns clock period")
@@ -665,11 +680,28 @@ def _trace_of(engine: _Engine, counter_plan: Any, network: Network, counters: li
         gate_outputs=gate_outputs)
 
 
-def _settle(changes: dict[str, list[tuple[int, bool]]], clock_net: str, period: int, end: int) -> int:
-    """The longest time from a counting edge to the last change it causes (clock excluded)."""
+def _clock_fed(gates: Sequence[GateModel], clock_net: str) -> set[str]:
+    """The clock and every net a gate drives from it (a decode gated with the clock
+    changes at mid-tick by design)."""
+    fed = {clock_net}
+    grew = True
+    while grew:
+        grew = False
+        for g in gates:
+            if fed & set(g.gate.inputs):
+                for n in g.gate.outputs:
+                    if n and n not in fed:
+                        fed.add(n)
+                        grew = True
+    return fed
+
+
+def _settle(changes: dict[str, list[tuple[int, bool]]], skip: set[str], period: int, end: int) -> int:
+    """The longest time from a counting edge to the last change it causes (the clock and
+    the nets it gates excluded)."""
     worst = 0
     for net, rows in changes.items():
-        if net == clock_net:
+        if net in skip:
             continue
         for t, _ in rows:
             worst = max(worst, t % period)
@@ -704,6 +736,13 @@ class Glitch:
     corner: str = "typ"
     seen_inertial: bool | None = None   # kept by the inertial (Verilog-like) model at typ delays
     width_max_ns: float | None = None
+    models: set[str] = field(default_factory=set)   # which analyses found it (MODELS)
+
+    @property
+    def mechanism(self) -> str:
+        """'transient_state': the decode is wrong on a state the count passes through;
+        'gate_paths': every state is right, unequal gate delays make the pulse."""
+        return "transient_state" if self.transient_state is not None else "gate_paths"
 
     def as_json(self) -> dict:
         record = {"signal": self.signal, "at_tick": self.at_tick, "width_ns": round(self.width_ns, 1),
@@ -714,6 +753,11 @@ class Glitch:
             record["width_max_ns"] = round(self.width_max_ns, 1)
         if self.seen_inertial is not None:
             record["passes_gate_delay"] = self.seen_inertial
+        record["mechanism"] = self.mechanism
+        if self.transient_state is not None:
+            record["transient_state"] = self.transient_state
+        if self.models:
+            record["models"] = [m for m in MODELS if m in self.models]
         return record
 
 
@@ -729,7 +773,8 @@ def expected_from_delivered(delivered: Mapping[str, frozenset[int]], polarity: M
 
 
 def glitches(trace: Trace, expected_levels: Mapping[str, Sequence[bool]] | None = None,
-             *, signals: Sequence[str] | None = None) -> list[Glitch]:
+             *, signals: Sequence[str] | None = None,
+             strobed: Mapping[str, bool] | None = None) -> list[Glitch]:
     """Every (signal, tick entry) whose net takes a wrong level for a moment.
 
     ``expected_levels[name][t]`` is the electrical level of tick t over one
@@ -738,6 +783,11 @@ def glitches(trace: Trace, expected_levels: Mapping[str, Sequence[bool]] | None 
     once.  Entries repeat every cycle: each (signal, tick) is reported once,
     with its widest pulse.  A tick that settles at the wrong level is not a
     glitch: ``settle_mismatches`` reports it.
+
+    ``strobed[name]`` is the inactive electrical level of a signal gated with
+    the clock's still half (``synth.glitchfix``): it is meant to sit at that
+    level for the first half of every tick and at the tick's level for the
+    second, so each half is checked on its own.
     """
     found: dict[tuple[str, int], Glitch] = {}
     names = list(signals) if signals is not None else list(trace.signals)
@@ -745,8 +795,9 @@ def glitches(trace: Trace, expected_levels: Mapping[str, Sequence[bool]] | None 
         net = trace.signals[name][0]
         if net in RAILS:
             continue
+        inactive = (strobed or {}).get(name)
         for k in range(1, trace.ticks):
-            glitch = _glitch_at(trace, name, net, k, expected_levels)
+            glitch = _glitch_at(trace, name, net, k, expected_levels, inactive)
             if glitch is None:
                 continue
             key = (name, glitch.at_tick)
@@ -772,22 +823,32 @@ def settle_mismatches(trace: Trace, expected_levels: Mapping[str, Sequence[bool]
     return problems
 
 
-def _window_span(trace: Trace, net: str, k: int) -> tuple[int, int]:
-    changes = trace.changes.get(net, [])
-    lo = bisect.bisect_left(changes, (k * trace.period_ns, False))
-    hi = bisect.bisect_left(changes, ((k + 1) * trace.period_ns, False))
-    return lo, hi
-
-
 def _glitch_at(trace: Trace, name: str, net: str, k: int,
-               expected: Mapping[str, Sequence[bool]] | None) -> Glitch | None:
-    edge = k * trace.period_ns
-    lo, hi = _window_span(trace, net, k)
-    rows = trace.changes.get(net, [])[lo:hi]
-    before = trace.before(net, edge)
-    settled = rows[-1][1] if rows else before
+               expected: Mapping[str, Sequence[bool]] | None,
+               inactive: bool | None = None) -> Glitch | None:
+    """The widest wrong-level pulse of tick window k (each half on its own when strobed)."""
     tick = k % trace.cycle
-    if expected is not None and name in expected and expected[name][tick] != settled:
+    want = expected[name][tick] if expected is not None and name in expected else None
+    edge = k * trace.period_ns
+    end = (k + 1) * trace.period_ns
+    if inactive is None:
+        return _glitch_in(trace, name, net, k, edge, end, want)
+    middle = edge + trace.period_ns / 2
+    found = [g for g in (_glitch_in(trace, name, net, k, edge, middle, inactive),
+                         _glitch_in(trace, name, net, k, middle, end, want)) if g is not None]
+    return max(found, key=lambda g: g.width_ns) if found else None
+
+
+def _glitch_in(trace: Trace, name: str, net: str, k: int, lo_ns: float, hi_ns: float,
+               want: bool | None) -> Glitch | None:
+    """Pulses between lo_ns and hi_ns of tick window k, on a net meant to end at ``want``."""
+    changes = trace.changes.get(net, [])
+    lo = bisect.bisect_left(changes, (lo_ns, False))
+    hi = bisect.bisect_left(changes, (hi_ns, False))
+    rows = changes[lo:hi]
+    before = trace.before(net, lo_ns)
+    settled = rows[-1][1] if rows else before
+    if want is not None and want != settled:
         return None
     if before == settled:
         pulses = [(i, rows[i][0], rows[i + 1][0]) for i in range(0, len(rows) - 1, 2)]
@@ -795,10 +856,11 @@ def _glitch_at(trace: Trace, name: str, net: str, k: int,
         pulses = [(i, rows[i][0], rows[i + 1][0]) for i in range(1, len(rows) - 1, 2)]
     if not pulses:
         return None
+    edge = k * trace.period_ns
     i, t0, t1 = max(pulses, key=lambda p: (p[2] - p[1], -p[1]))
     wrong = rows[i][1]
     why = _explain(trace, net, lo + i, k, name, t1)
-    return Glitch(signal=name, at_tick=tick, width_ns=round(t1 - t0, 3), cause=why.cause,
+    return Glitch(signal=name, at_tick=k % trace.cycle, width_ns=round(t1 - t0, 3), cause=why.cause,
                   path=why.path, kind="static" if before == settled else "dynamic",
                   wrong_level=wrong, start_ns=round(t0 - edge, 3), transient_state=why.state,
                   transient_count=why.count, from_count=why.frm, to_count=why.to,
@@ -1200,9 +1262,11 @@ def remedies(glitch: Glitch, plan: Any, *, catalog: Any = None, stock: Any = Non
         if not getattr(counter, "synchronous", False) and catalog is not None and stock is not None:
             parts = _synchronous_parts(catalog, stock)
             if parts:
+                shown = (glitch.transient_count if glitch.transient_count is not None
+                         else f"minterm {state}")
                 out.append(f"a synchronous counter: the bin has {', '.join(parts)}, whose outputs change "
                            "together on the clock edge, so the count never shows "
-                           f"{glitch.transient_count} on the way")
+                           f"{shown} on the way")
     out += _clock_gating_remedy(glitch, plan)
     switch = [n for n, s in (getattr(plan, "switches", {}) or {}).items() if s.get("select") == glitch.signal]
     if switch:
@@ -1269,7 +1333,8 @@ def analyse(design: Any, fix: Sequence[str] | set[str] = ()) -> None:
     adds warnings (a clock too fast, reset pulse widths), and sets
     ``design.trace`` (typical delays, inertial, two cycles: what the VCD and
     SVG show) and ``design.remedies`` ({'text': [...], 'by_glitch':
-    {(signal, tick): [...]}, 'glitches': [Glitch]}).
+    {(signal, tick): [...]}, 'glitches': [Glitch]}).  ``fix`` is accepted for
+    the callers' sake: applying remedies is ``synth.glitchfix``'s job.
     """
     from .netlist import delivered_sets, simulate_ticks
 
@@ -1309,33 +1374,37 @@ def analyse(design: Any, fix: Sequence[str] | set[str] = ()) -> None:
             entry = f"{g.signal} tick {g.at_tick}: {line}"
             if not line.startswith("note:") and entry not in text:
                 text.append(entry)
-    if "glitches" in set(fix) and found:
-        text.append("--fix glitches: the remedies above are listed, not yet applied to the design")
     design.remedies = {"text": text, "by_glitch": by_glitch, "glitches": found}
 
 
 def merge_glitches(plan: Any, expected: Mapping[str, Sequence[bool]], typ: Trace,
                    run: Mapping[str, Any]) -> list[Glitch]:
-    """The union of the glitches the models show: transport delays at both corners
-    (what a faster part may pass), the inertial model (``passes_gate_delay``)
-    and the state-based ripple analysis."""
-    inertial = {(g.signal, g.at_tick): g for g in glitches(typ, expected)}
+    """The union of the glitches the models show (``MODELS``), each record naming
+    the models that found it: transport delays at both corners (what a faster
+    part may pass; ``width_ns`` at typ, ``width_max_ns`` at max), the inertial
+    model at typ (``passes_gate_delay``) and the state-based ripple analysis.
+    Signals gated with the clock (``plan.strobed``) are checked half by half."""
+    strobed = _strobed_levels(plan)
+    inertial = {(g.signal, g.at_tick): g for g in glitches(typ, expected, strobed=strobed)}
     merged: dict[tuple[str, int], Glitch] = {}
     for corner in CORNERS:
         trace = simulate(plan.counter, plan.network, **run, corner=corner, inertial=False)
-        for g in glitches(trace, expected):
+        for g in glitches(trace, expected, strobed=strobed):
             key = (g.signal, g.at_tick)
             if key in merged:
                 merged[key].width_max_ns = g.width_ns
+                merged[key].models.add(f"transport_{corner}")
                 continue
             g.seen_inertial = key in inertial
             if corner == "max":
                 g.width_max_ns = g.width_ns
+            g.models.add(f"transport_{corner}")
             merged[key] = g
     for key, g in inertial.items():
         if key not in merged:
             g.seen_inertial = True
             merged[key] = g
+        merged[key].models.add("inertial_typ")
     for h in ripple_hazards(plan.counter, plan.network, run["catalog"], signals=list(typ.signals)):
         key = (h.signal, h.at_tick)
         if key not in merged:
@@ -1345,7 +1414,16 @@ def merge_glitches(plan: Any, expected: Mapping[str, Sequence[bool]], typ: Trace
                                  f"({h.order}); at the catalog's delays the gate paths smooth it away, "
                                  "a faster part may not", "", wrong_level=h.wrong_level,
                                  transient_state=h.transient, seen_inertial=False)
+        elif merged[key].transient_state is None:
+            merged[key].transient_state = h.transient
+        merged[key].models.add("states")
     return sorted(merged.values(), key=lambda g: (g.signal, g.at_tick))
+
+
+def _strobed_levels(plan: Any) -> dict[str, bool]:
+    """Signal -> its inactive electrical level, for signals gated with the clock."""
+    return {name: info["polarity"] != "high" for name, info in plan.signals.items()
+            if name in (getattr(plan, "strobed", None) or {})}
 
 
 def _state_duration(trace: Trace, k: int, minterm: int) -> float:

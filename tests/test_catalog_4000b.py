@@ -225,3 +225,19 @@ def test_supply_matches_datasheet(part, expected):
 def test_4066_switches_turn_on_with_control_high():
     # TI CD4066B functional block diagram note (ti.com SCHS051J): switch on when VC = VDD
     assert [sw["on_when"] for sw in PARTS["4066"]["units"]] == ["high"] * 4
+
+
+# Facts read in the "from memory" clean-up; each row: part, fact path, value, source.
+READ_FACTS = [
+    # TI SN74LV4052A pin functions (SCLS429K), the same 4052 layout: 1Y0 12, 1-COM 13,
+    # 1Y1 14, 1Y2 15, 1Y3 11 (CD4052B pins 1-11 from [ti4051pins]).
+    ("4052", ("units", 0, "common"), 13),
+    ("4052", ("units", 0, "channels"), [12, 14, 15, 11]),
+    ("4052", ("power", "VDD"), 16),
+    ("4052", ("pins", 13), "X_COM"),
+]
+
+
+@pytest.mark.parametrize("part, path, expected", READ_FACTS)
+def test_read_facts(part, path, expected):
+    assert dig(PARTS[part], path) == expected

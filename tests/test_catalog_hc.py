@@ -209,3 +209,54 @@ def test_switch_on_resistance(part, supply, field, ohms):
 ])
 def test_supply_ceiling(part, top):
     assert PARTS[part]["supply"] == {"min": 2, "max": top}
+
+
+# Facts read in the "from memory" clean-up; each row: part, fact, value, source.
+READ_PIN_NAMES = [
+    # TI SN74LV4052A pin functions (SCLS429K), the same 4052 layout in the LV family;
+    # NXP 74HC/HCT4052 Rev 06 states it is pin compatible with the HEF4052B.
+    ("74HC4052", {1: "2Y0", 2: "2Y2", 3: "2Z", 4: "2Y3", 5: "2Y1", 6: "E_n", 9: "S1", 10: "S0",
+                  11: "1Y3", 12: "1Y0", 13: "1Z", 14: "1Y1", 15: "1Y2", 16: "VCC"}),
+    # TI CD4052B pin functions ([ti4051pins]): VEE on pin 7, VSS (GND) on pin 8.
+    ("74HC4052", {7: "VEE", 8: "GND"}),
+    # TI SN74LV4051A pin functions (JAJSUR3J), same 4051 layout: Y0-Y7 on 13, 14, 15, 12, 1, 5, 2, 4.
+    ("74HC4051", {13: "Y0", 14: "Y1", 15: "Y2", 12: "Y3", 1: "Y4", 5: "Y5", 2: "Y6", 4: "Y7",
+                  3: "Z", 6: "E_n", 11: "S0", 10: "S1", 9: "S2", 16: "VCC"}),
+    # TI CD74HC138 SCHS147J pin functions (1-7) and TI SN74AHCT138 SCLS266N (8-16).
+    ("74HC138", {2: "A1", 7: "Y7_n", 8: "GND", 9: "Y6_n", 12: "Y3_n", 14: "Y1_n", 16: "VCC"}),
+    # TI SN74AHC74 / SN74LV2T74-EP pin tables (same '74 layout; no HC74 table read).
+    ("74HC74", {1: "1RD_n", 2: "1D", 3: "1CP", 4: "1SD_n", 5: "1Q", 6: "1Q_n", 7: "GND",
+                8: "2Q_n", 9: "2Q", 10: "2SD_n", 11: "2CP", 12: "2D", 13: "2RD_n", 14: "VCC"}),
+]
+
+
+@pytest.mark.parametrize("part, names", READ_PIN_NAMES)
+def test_read_pin_names(part, names):
+    pins = PARTS[part]["pins"]
+    assert {pin: pins[pin] for pin in names} == names
+
+
+READ_FACTS = [
+    # (part, fact path, value) -- source beside each row.
+    # TI SN74LV4052A pin table: port 1 (X) common 13, channels 0-3 on 12, 14, 15, 11; A (S0) 10, B (S1) 9.
+    ("74HC4052", ("units", 0), {"id": "A", "type": "analog_mux", "selects": [10, 9], "common": 13,
+                                "channels": [12, 14, 15, 11]}),
+    # TI SN74LV4052A pin table: port 2 (Y) common 3, channels 0-3 on 1, 5, 2, 4.
+    ("74HC4052", ("units", 1), {"id": "B", "type": "analog_mux", "selects": [10, 9], "common": 3,
+                                "channels": [1, 5, 2, 4]}),
+    # NXP 74HC/HCT4052 Rev 06 (2010): VCC to GND 2.0-10.0 V for the 74HC4052.
+    ("74HC4052", ("supply",), {"min": 2, "max": 10}),
+    # TI CD54HC4017 SGDS011 function table: MR HIGH regardless of CP and CE (asynchronous), CE active LOW.
+    ("74HC4017", ("units", 0, "reset"), {"pin": 15, "active": "high", "synchronous": False}),
+    ("74HC4017", ("units", 0, "enable"), {"pin": 13, "active": "low"}),
+    # TI SN74HC4060 SCLS161D: a HIGH-to-LOW transition on CLKI (pin 11) increments the counter.
+    ("74HC4060", ("units", 0, "clock", "edge"), "falling"),
+]
+
+
+@pytest.mark.parametrize("part, path, expected", READ_FACTS)
+def test_read_facts(part, path, expected):
+    node = PARTS[part]
+    for step in path:
+        node = node[step]
+    assert node == expected

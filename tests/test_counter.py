@@ -210,6 +210,16 @@ def test_not_enough_stages_exits_3_through_the_cli(tmp_path, capsys):
     assert "Traceback" not in err
 
 
+def test_rising_edge_counters_that_cannot_ripple_say_why(tmp_path):
+    # Motorola MC74HC161A/163A data sheet (hc-74.md): the 163 counts on the rising clock edge, no falling-edge enable; two of them
+    # hold 8 stages but only a carry cascade (not built) could chain them
+    with pytest.raises(ShortError) as caught:
+        plan_for(tmp_path, 100, {"74HC163": 2})
+    text = str(caught.value)
+    assert "have 8" in text and "cannot be chained" in text and "short" not in text.split("(add")[0]
+    assert "74HC393" in text                    # a falling-edge dual 4-bit counter would do it
+
+
 def test_clock_above_fmax_names_a_faster_part(tmp_path):
     # [phil4020] HEF4020B (used for the 4040): fmax 5 MHz min at 5 V; hc-74.md: 74HC4040
     # is specified far faster (30 MHz min at 5 V in the catalog)

@@ -180,6 +180,20 @@ def test_cycle_100_reset_decodes_q7_q6_q3(tmp_path):
     assert (decode.reset.literals, decode.reset.terms, decode.reset.polarity) == (3, 1, "high")
 
 
+@pytest.mark.parametrize("cycle", [3, 10, 12])
+def test_synchronous_clear_decodes_the_last_held_state(tmp_path, cycle):
+    # Motorola MC74HC161A/163A data sheet (hc-74.md): the 163's reset is synchronous, so a
+    # mod-N count decodes state N-1 into it and the next rising clock edge clears to 0;
+    # the decode must fire on N-1 (a held state) and on no other held state
+    decode = decode_for(tmp_path, cycle, {"74HC163": 1, "74HC00": 2, "74HC04": 1},
+                        "  frame: {high: [0]}\n")
+    plan = decode.plan
+    assert plan.reset is not None
+    for t in range(cycle):
+        counts = {v.net: binary_q0_based(t, v.pin_name) for v in plan.vars}
+        assert evaluate(decode.reset.expression, counts) == (t == cycle - 1)
+
+
 def test_and_of_the_four_lowest_outputs_asserts_one_tick_in_sixteen(tmp_path):
     # common practice: Q1·Q2·Q3·Q4 of a binary divider is high in one count of every 16
     # (count 15), a 6.25 % duty cycle

@@ -120,6 +120,31 @@ def test_single_output_never_larger_than_sympy(case):
     assert ours <= theirs, (to_text(cover, f.name), theirs)
 
 
+@examples(120)
+@given(window_functions(max_bits=9))
+def test_free_phase_cover_is_exact_and_no_larger_than_sympy_of_either_phase(case):
+    # Reference: sympy.logic.SOPform of the function and of its complement
+    # (off-set as on-set, same don't-cares); the free-phase cover must equal
+    # the function on every minterm and cost no more than the cheaper of the two.
+    nbits, f = case
+    cover = minimize([f], nbits, free_phase={f.name})
+    assert delivered_ok(cover, f)
+    complement = Function(f.name, frozenset(range(1 << nbits)) - f.on - f.dc, f.dc)
+    best = min(sympy_size(sympy_reference(f, nbits)), sympy_size(sympy_reference(complement, nbits)))
+    assert (cover.term_count(f.name), cover.literals(f.name)) <= best
+
+
+def test_free_phase_complement_needing_the_solver_is_not_empty():
+    # Regression (found by fuzzing the CLI): 7 bits, on 55..77, don't-care 78..79; the
+    # complement phase has too many open primes for enumeration and went to the solver,
+    # which linked none of its terms: an empty cover, asserted on every off tick.
+    f = Function("s0", frozenset(range(55, 78)), frozenset({78, 79}))
+    cover = minimize([f], 7, free_phase={"s0"}, exact="yes")
+    assert check_cover(cover, [f]) == []
+    assert cover.phases["s0"] == "true"          # 3 terms beat the complement's cover
+    assert cover.term_count("s0") == 3
+
+
 @examples(8)
 @given(window_functions(min_bits=10, max_bits=10))
 def test_ten_bit_functions_never_larger_than_sympy(case):

@@ -33,7 +33,12 @@ def add_output_arguments(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--take", action="store_true",
                         help="write the bin back with the parts this plan uses removed (keeps a .bak)")
     parser.add_argument("--fix", action="append", choices=["glitches"], default=[],
-                        help="apply remedies: 'glitches' changes the design so no output spikes")
+                        help="apply remedies: 'glitches' tries another decode choice, a synchronous "
+                             "counter, then gating with the clock's still half (the signal is then "
+                             "asserted only in the second half of each tick), and says what it did")
+    parser.add_argument("--lacks", type=seconds, default=2.0, metavar="SECONDS",
+                        help="time for re-planning with one extra chip type to find what the bin "
+                             "lacks (default 2; 0 skips it)")
     parser.add_argument("--exact", choices=["auto", "yes", "no"], default="auto",
                         help="exact (proven) search where sizes allow (auto), always, or never")
 
@@ -43,11 +48,30 @@ def run(args: argparse.Namespace) -> int:
     from ..render import show
 
     design = make_plan(args.spec, args.bin, exact=args.exact, fix=args.fix)
+    find_what_bin_lacks(design, args.lacks)
     to_stdout = args.json == "-"
     if not to_stdout:
         show(plan_blocks(design))
     write_outputs(design, args)
     return 0
+
+
+def seconds(text: str) -> float:
+    """A non-negative number of seconds (argparse turns the ValueError into exit 2)."""
+    value = float(text)
+    if value < 0 or value != value:
+        raise ValueError(text)
+    return value
+
+
+def find_what_bin_lacks(design, budget: float) -> None:
+    """Re-plan with one extra chip type (wishlist) and keep the answer on the plan."""
+    if budget <= 0:
+        return
+    from ..wishlist import bin_lacks
+
+    design.lacks = bin_lacks(design, budget=budget)
+    design.plan.bin_lacks = design.lacks.to_json()
 
 
 def write_outputs(design, args) -> list[str]:
@@ -122,6 +146,9 @@ def signal_rows(design) -> list[tuple]:
         source = info.get("source")
         where = f"{source[0]} pin {source[1]}" if source else "-"
         expression = _asserted_expression(decode.signals[name]) if name in decode.signals else ""
+        gated = (getattr(plan, "strobed", None) or {}).get(name)
+        if gated:
+            expression = f"({expression}) and {gated['still_phase']} (gated with the clock)"
         rows.append((name, info.get("polarity"), where, expression))
     return rows
 
@@ -158,21 +185,95 @@ def plan_blocks(design) -> list:
                         [(w.net, _end(plan, w.frm), _end(plan, w.to)) for w in wires]))
     if plan.glitches:
         blocks.append(Table("glitches (a signal briefly wrong on a tick entry)",
-                            ("signal", "tick", "width ns", "cause"),
-                            [(g.get("signal"), g.get("at_tick"), g.get("width_ns"), g.get("cause", ""))
+                            ("signal", "tick", "width ns", "found by", "cause"),
+                            [(g.get("signal"), g.get("at_tick"), g.get("width_ns"),
+                              ", ".join(g.get("models", ())), g.get("cause", ""))
                              for g in map(_as_dict, plan.glitches)]))
+    blocks += _fix_blocks(plan)
     if plan.coincident_edges:
         blocks.append(Table("coincident edges (two signals switch on the same clock edge)",
                             ("signals", "tick"),
                             [(" & ".join(e["signals"]), e["at_tick"]) for e in map(_as_dict, plan.coincident_edges)]))
     for remedy in design.remedies.get("text", []):
         blocks.append(Text(f"remedy: {remedy}"))
+    lacks = getattr(design, "lacks", None)
+    if lacks is not None:
+        blocks.append(Text(lacks.text()))
     for warning in plan.warnings:
         blocks.append(Text(f"warning: {warning}"))
     for caution in plan.cautions:
         blocks.append(Text(f"caution: {caution}"))
     blocks.append(Text(SAFETY))
     return blocks
+
+
+def _fix_blocks(plan) -> list:
+    """What ``--fix glitches`` did per signal, and the RC delays offered (glitchfix)."""
+    from ..render import Table, Text
+
+    blocks = []
+    fixes = getattr(plan, "timing_fixes", None) or []
+    if fixes:
+        blocks.append(Table("glitch fixes (--fix glitches; glitches re-analysed after the fix)",
+                            ("signal", "fix applied", "cost", "glitch ticks before", "after", "how"),
+                            [(r["signal"], " + ".join(r.get("remedies_applied") or ["note"]).replace("_", " "),
+                              f"+{r['cost']['chips']} chips, +{r['cost']['gates']} gates",
+                              " ".join(map(str, r["glitches_before"])),
+                              " ".join(map(str, r["glitches_after"])) or "none",
+                              r["detail"] + ("".join(f"; {t['remedy'].replace('_', ' ')}: {t['result']}"
+                                                     for t in r["tried"] if "not applicable" in t["result"])
+                                             if not r["applied"] else ""))
+                             for r in fixes]))
+    offers = getattr(plan, "rc_offers", None) or []
+    races = [o for o in offers if o["problem"] == "race" and o.get("applicable")]
+    if races:
+        blocks.append(Text(_race_offers_text(races)))
+    refused: dict[str, list[str]] = {}
+    for offer in offers:
+        if not offer.get("applicable"):
+            why = offer.get("why_not") or offer.get("why", "")
+            refused.setdefault(why, []).append(f"{offer['delayed']} ({offer['problem']})")
+        elif offer not in races:
+            blocks.append(Text(_offer_text(offer)))
+    for why, names in refused.items():
+        blocks.append(Text(f"RC delay on {', '.join(names)}: not offered, {why}"))
+    if plan.glitches and getattr(plan, "timing_fixes", None) is None:
+        blocks.append(Text("glitches: --fix glitches tries the remedies, says what each costs, and "
+                           "offers an RC delay where a logic fix would take a new chip"))
+    return blocks
+
+
+def _race_offers_text(races: list[dict]) -> str:
+    """The race offers share one R and C (a quarter tick): one block for all of them."""
+    first = races[0]
+    rise, fall = first["delay_ns"]["rising"], first["delay_ns"]["falling"]
+    names = ", ".join(o["delayed"] for o in races)
+    return "\n".join([
+        f"offer (not applied): an RC delay of about a quarter tick on {names}, each of which switches "
+        "on the same clock edge as another signal (see coincident edges): its edges then come clear "
+        "of the other's and the level sampled at the end of each tick is unchanged",
+        f"  R {first['r']}, C {first['c']} into {_receiver(first)}: {first['formula']}; delay min / typ / "
+        f"max rising {rise[0]:g} / {rise[1]:g} / {rise[2]:g} ns, falling {fall[0]:g} / {fall[1]:g} / "
+        f"{fall[2]:g} ns",
+        "  wiring: " + "; ".join(first["wiring"]) + (
+            "; likewise for the others from their own source pins" if len(races) > 1 else "")])
+
+
+def _offer_text(offer: dict) -> str:
+    head = f"offer (not applied): an RC delay on {offer['delayed']} for the {offer['problem']}"
+    if not offer.get("applicable"):
+        return f"{head}: not applicable, {offer.get('why_not') or offer.get('why')}"
+    rise, fall = offer["delay_ns"]["rising"], offer["delay_ns"]["falling"]
+    return "\n".join([
+        f"{head}: {offer['why']}",
+        f"  R {offer['r']}, C {offer['c']} into {_receiver(offer)}: {offer['formula']}; delay min / typ / "
+        f"max rising {rise[0]:g} / {rise[1]:g} / {rise[2]:g} ns, falling {fall[0]:g} / {fall[1]:g} / "
+        f"{fall[2]:g} ns",
+        "  wiring: " + "; ".join(offer["wiring"])])
+
+
+def _receiver(offer: dict) -> str:
+    return "a plain CMOS input" if offer["receiver"] == "plain-input" else f"a {offer['receiver']} Schmitt input"
 
 
 def _as_dict(item) -> dict:

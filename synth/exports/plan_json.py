@@ -70,6 +70,21 @@ def _decoupling(plan: Plan) -> list[dict]:
     return rows
 
 
+def _glitch_models() -> dict:
+    """What each name in a glitch record's ``models`` list means."""
+    from ..timing import MODEL_TEXT
+
+    return dict(MODEL_TEXT)
+
+
+def _glitches_by_model(glitches) -> dict:
+    """Model -> the (signal, at_tick) entries it found, so each analysis can be compared alone."""
+    from ..timing import MODELS
+
+    return {model: [[g["signal"], g["at_tick"]] for g in glitches if model in g.get("models", ())]
+            for model in MODELS}
+
+
 def plan_to_json(plan: Plan) -> dict:
     """The plan as a JSON-ready dict, keys as formats.md section 3 names them."""
     chips = sorted(plan.chips, key=lambda c: ref_key(c.ref))
@@ -87,7 +102,12 @@ def plan_to_json(plan: Plan) -> dict:
                    "pin_notes": {str(pin): note for pin, note in c.notes.items()}} for c in chips],
         "wires": [{"net": net, "pins": [_endpoint(p) for p in pins]} for net, pins in plan.nets.items()],
         "glitches": _plain(list(plan.glitches)),
+        "glitch_models": _glitch_models(),
+        "glitches_by_model": _glitches_by_model(_plain(list(plan.glitches))),
         "coincident_edges": _plain(list(plan.coincident_edges)),
+        "timing_fixes": _plain(list(getattr(plan, "timing_fixes", None) or [])),
+        "clock_gated": _plain(dict(getattr(plan, "strobed", None) or {})),
+        "rc_offers": _plain(list(getattr(plan, "rc_offers", None) or [])),
         "warnings": list(plan.warnings),
         "supply": plan.supply,
         "spec": plan.spec_path,
@@ -99,6 +119,7 @@ def plan_to_json(plan: Plan) -> dict:
         "cautions": list(plan.cautions),
         "nets_external": dict(plan.external),
         "counter": _counter(plan),
+        "bin_lacks": plan.bin_lacks,
     }
 
 

@@ -1,0 +1,757 @@
+"""Applying the glitch remedies (``plan --fix glitches``) and offering RC delays.
+
+Interface:
+
+- ``apply_fixes(design, fix, *, exact='auto') -> Design``: with ``'glitches'``
+  in ``fix``, tries the remedies for every signal that ``timing.analyse``
+  reported glitches on and returns the design that keeps the cheapest one
+  that removes them (the plan passes the tick-by-tick self-check again and
+  is re-analysed); always sets ``plan.rc_offers`` and ``plan.strobed``
+  (signal -> how it is gated with the clock); sets ``plan.timing_fixes`` when
+  asked to fix: one record per glitching signal with ``glitches_before``,
+  ``remedies_applied``, ``remedy`` (the last one, or ``note``), ``applied``,
+  ``cost`` ({chips, gates} added), ``glitches_after`` (re-analysed),
+  ``detail`` and ``tried`` (every remedy's outcome, "not applicable: why").
+- ``rc_offers(design, widths=None) -> list[dict]``: an RC delay between two
+  Schmitt stages (two spare inverting gates when the bin has no Schmitt part),
+  sized with ``analog.rc_delay_design`` from the bin's passives and the
+  catalog thresholds, for each race (coincident edges) and, once the fixes
+  were tried, each glitching signal whose logic fix took a new chip or failed.
+  Offered with values, spread and wiring; never applied (no ``--fix`` choice
+  applies them: the netlist and the Verilog model hold no passives).
+- ``strobe_network(network, signal, plan, stock, catalog, spec)``: the
+  clock-gating rewrite on its own (raises ``NotApplicable`` with the reason).
+
+The order the remedies are tried in, and why:
+
+1. another decode choice (``decode_choice``): the ripple transient states of
+   the glitching entries are handed to the decode as states passed on the way
+   (``CounterPlan.passing``), so where they are don't-cares the decode is
+   re-derived with them at the steady level; free, kept when it adds no chip;
+2. a synchronous counter from the bin (``synchronous_counter``): the counter
+   re-allocated without the bin's ripple counters, the decode re-derived;
+3. gating with the clock's still half (``clock_gating``): the signal is ANDed
+   (in its polarity's sense) with the clock phase in which the counter does
+   not move, using a spare input of the signal's last gate, else a spare gate
+   (a new chip from the bin if need be, costed), an inverter on the clock when
+   the phase is the wrong way up (the fastest on hand: it must switch before
+   the counter's first output does).  Never for a switch select, which would
+   then throw over twice a tick.
+   This changes the waveform inside a tick: the signal is asserted only in the
+   second half of each asserted tick (a window of n ticks becomes n pulses).
+   The tick-sampled check samples just before each counting edge, where the
+   clock is in its still half (``netlist.sampled_clock_levels``), and the
+   Verilog export carries the gate like any other, so both agree with it;
+4. otherwise a note: a level-sensitive consumer slower than the pulse will not
+   see it.
+
+2 and 3 are compared as whole candidates (3 alone, or 2 then 3 for what
+remains): fewest glitches left, then fewest chips, then fewest gates.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+from collections.abc import Iterable
+from typing import Any
+
+from .errors import ShortError, SynthError
+from .network import RAILS, Gate, Network, SignalOut
+
+__all__ = ["apply_fixes", "rc_offers", "strobe_network", "FIXES", "NotApplicable"]
+
+FIXES = ("glitches",)
+_CONTROLLING = {"and": False, "nand": False, "or": True, "nor": True}
+"""op -> the input level that decides the output (AND/NAND: low, OR/NOR: high)."""
+_KEEPS_LEVEL = {"and": True, "or": True, "nand": False, "nor": False}
+"""op -> whether the output follows the other input (non-inverting) in the still half."""
+
+
+class NotApplicable(Exception):
+    """A remedy this plan and bin cannot use; the message says why."""
+
+
+# ---------------------------------------------------------------- the fixing loop
+
+def apply_fixes(design: Any, fix: Iterable[str], *, exact: str = "auto") -> Any:
+    """The design with the glitch remedies applied (see the module text)."""
+    fix = set(fix)
+    widths = _widest(design.plan.glitches)
+    if "glitches" in fix:
+        design = _fix_glitches(design, exact)
+    if not hasattr(design.plan, "strobed"):
+        design.plan.strobed = {}
+    design.plan.rc_offers = rc_offers(design, widths)
+    return design
+
+
+def _widest(glitch_records) -> dict[str, float]:
+    """Signal -> its widest glitch (worst-case width where the max corner shows it)."""
+    out: dict[str, float] = {}
+    for g in glitch_records:
+        width = g.get("width_max_ns") or g.get("width_ns") or 0.0
+        out[g["signal"]] = max(out.get(g["signal"], 0.0), float(width))
+    return out
+
+
+def _fix_glitches(design: Any, exact: str) -> Any:
+    before = _by_signal(design.plan.glitches)
+    records = {s: {"signal": s, "glitches_before": ticks, "tried": []} for s, ticks in before.items()}
+    if not before:
+        design.plan.timing_fixes = []
+        return design
+    current, fixed_by = design, {}
+    choice = _attempt(records, "decode_choice", lambda: _decode_choice(current, exact), current)
+    if choice is not None and _chips(choice) <= _chips(current) and \
+            _count(choice) < _count(current):
+        _credit(fixed_by, current, choice, "decode_choice")
+        current = choice
+    elif choice is not None:
+        _note_all(records, "decode_choice", "re-derived, but it removed no glitch without a new chip")
+    remaining = sorted(_by_signal(current.plan.glitches))
+    candidates = []
+    if remaining:
+        strobed = _attempt(records, "clock_gating", lambda: _strobe_all(current, remaining), current)
+        if strobed is not None:
+            candidates.append(("clock_gating", strobed, strobed))
+        sync = _attempt(records, "synchronous_counter", lambda: _synchronous(current, exact), current)
+        if sync is not None:
+            left = sorted(_by_signal(sync.plan.glitches))
+            both = sync
+            if left:
+                try:
+                    both = _strobe_all(sync, left)
+                except (NotApplicable, SynthError):
+                    both = sync
+            candidates.append(("synchronous_counter", sync, both))
+    if candidates:
+        name, step, best = min(candidates, key=lambda c: (_count(c[2]), _chips(c[2]), _gates(c[2])))
+        if _count(best) < _count(current):
+            _credit(fixed_by, current, step, name)
+            if step is not best:
+                _credit(fixed_by, step, best, "clock_gating", only_strobed=True)
+            current = best
+    _finish_records(records, fixed_by, design, current)
+    return current
+
+
+def _attempt(records: dict, remedy: str, build, base: Any) -> Any:
+    """Run one remedy; note its outcome for every signal; None when it does not apply."""
+    try:
+        result = build()
+    except NotApplicable as exc:
+        per_signal = getattr(exc, "per_signal", None)
+        if per_signal:
+            for signal, rec in records.items():
+                rec["tried"].append({"remedy": remedy,
+                                     "result": f"not applicable: {per_signal.get(signal, exc)}"})
+        else:
+            _note_all(records, remedy, f"not applicable: {exc}")
+        return None
+    except SynthError as exc:
+        _note_all(records, remedy, f"not applicable: {exc.args[0] if exc.args else exc}")
+        return None
+    _note_all(records, remedy, f"tried: {_count(result)} glitches left (was {_count(base)}), "
+                               f"{_chips(result) - _chips(base):+d} chips, "
+                               f"{_gates(result) - _gates(base):+d} gates")
+    return result
+
+
+def _note_all(records: dict, remedy: str, text: str) -> None:
+    for rec in records.values():
+        rec["tried"].append({"remedy": remedy, "result": text})
+
+
+def _credit(fixed_by: dict, old: Any, new: Any, remedy: str, only_strobed: bool = False) -> None:
+    """Signals whose glitches this step reduced are credited to the remedy (in order)."""
+    was, now = _by_signal(old.plan.glitches), _by_signal(new.plan.glitches)
+    strobed = getattr(new.plan, "strobed", {}) or {}
+    for signal, ticks in was.items():
+        if only_strobed and signal not in strobed:
+            continue
+        if only_strobed or len(now.get(signal, ())) < len(ticks):
+            fixed_by.setdefault(signal, []).append((remedy, old, new))
+
+
+def _finish_records(records: dict, fixed_by: dict, start: Any, final: Any) -> None:
+    after = _by_signal(final.plan.glitches)
+    strobed = getattr(final.plan, "strobed", {}) or {}
+    skipped = getattr(final.plan, "strobe_skipped", {}) or {}
+    for signal, rec in records.items():
+        if signal in skipped:
+            rec["tried"].append({"remedy": "clock_gating", "result": f"not applicable to {signal}: "
+                                 f"{skipped[signal]}"})
+        rec["glitches_after"] = after.get(signal, [])
+        steps = fixed_by.get(signal, [])
+        rec["remedies_applied"] = [remedy for remedy, _, _ in steps]
+        rec["remedy"] = steps[-1][0] if steps else "note"
+        rec["applied"] = bool(steps)
+        chips = gates = 0
+        details = []
+        for remedy, old, new in steps:
+            if remedy == "clock_gating" and signal in strobed:
+                chips += strobed[signal]["cost"]["chips"]
+                gates += strobed[signal]["cost"]["gates"]
+                details.append(strobed[signal]["detail"])
+            else:
+                chips += _chips(new) - _chips(old)
+                gates += _gates(new) - _gates(old)
+                details.append(_global_detail(remedy, new))
+                rec["cost_shared"] = "the whole design was re-derived: its change counts for every signal"
+        rec["cost"] = {"chips": chips, "gates": gates}
+        rec["detail"] = "; then ".join(details) if details else _note_text(final, signal)
+        if rec["glitches_after"] and steps:
+            rec["note"] = _note_text(final, signal)
+    final.plan.timing_fixes = [records[s] for s in sorted(records)]
+
+
+def _note_text(design: Any, signal: str) -> str:
+    widths = [g.get("width_max_ns") or g.get("width_ns") or 0 for g in design.plan.glitches
+              if g.get("signal") == signal]
+    widest = max(widths, default=0)
+    switches = [n for n, sw in (getattr(design.spec, "switches", None) or {}).items()
+                if getattr(sw, "select", None) == signal]
+    if switches:
+        return (f"{signal} selects switch {', '.join(switches)}: for up to {widest:.0f} ns it conducts the "
+                "wrong way; a slow analog stage averages that away, a sample-and-hold or a "
+                "charge-sensitive node does not")
+    return (f"a level-sensitive consumer slower than {widest:.0f} ns (an LED, a relay or motor driver, "
+            "an RC-filtered input) will not see what remains; an edge-triggered input will")
+
+
+def _global_detail(remedy: str, design: Any) -> str:
+    if remedy == "decode_choice":
+        return ("the transient states of the glitching entries, where they are don't-cares, were "
+                "given the steady level and the decode re-derived")
+    parts = sorted({c.part for c in design.counter.chips})
+    return f"counter re-allocated as a synchronous counter ({', '.join(parts)}); the decode re-derived"
+
+
+def _by_signal(glitch_records) -> dict[str, list[int]]:
+    out: dict[str, list[int]] = {}
+    for g in glitch_records:
+        out.setdefault(g["signal"], []).append(int(g["at_tick"]))
+    return {s: sorted(t) for s, t in out.items()}
+
+
+def _count(design: Any) -> int:
+    return len(design.plan.glitches)
+
+
+def _chips(design: Any) -> int:
+    return len(design.plan.chips)
+
+
+def _gates(design: Any) -> int:
+    return len(design.plan.network.gates)
+
+
+# ---------------------------------------------------------------- rebuilding a design
+
+def _rebuild(design: Any, *, counter_plan: Any = None, network: Network | None = None,
+             strobed: dict | None = None, exact: str = "auto") -> Any:
+    """The pipeline's stages from the counter plan on (or from packing on, given a
+    network), then the timing analysis; raises what the stages raise."""
+    from .packing import pack
+    from .pipeline import Design
+    from .timing import analyse
+
+    spec, stock, catalog = design.spec, design.stock, design.catalog
+    cp = counter_plan if counter_plan is not None else design.counter
+    decode = design.decode
+    if network is None:
+        decode, network = _decode_and_map(spec, stock, catalog, cp, exact)
+    plan = pack(network, cp, spec, stock, catalog)
+    plan.warnings[:0] = list(stock.warnings) + list(getattr(cp, "warnings", []))
+    plan.strobed = dict(strobed or {})
+    new = Design(plan, spec, stock, catalog, cp, decode, network)
+    analyse(new)
+    return new
+
+
+def _decode_and_map(spec, stock, catalog, cp, exact: str):
+    from .decode import derive
+    from .pipeline import _internal_polarity, reserved_chips, switch_polarity
+    from .techmap import build_library, map_design
+
+    decode = derive(spec, cp, exact=exact)
+    library = build_library(stock, catalog, reserved=reserved_chips(cp, spec, stock, catalog))
+    polarity = switch_polarity(spec)
+    for function in decode.functions:
+        polarity.setdefault(function.name, _internal_polarity(cp, function.name))
+    network = map_design(decode.functions, len(cp.vars), [v.net for v in cp.vars], library,
+                         polarity=polarity, cover=decode.cover, exact=exact)
+    return decode, network
+
+
+# ---------------------------------------------------------------- (a) another decode choice
+
+def _decode_choice(design: Any, exact: str) -> Any:
+    """Re-derive with the glitching entries' transient states passed at the steady level."""
+    from .timing import _entry_sequence, _var_roles
+
+    cp = design.counter
+    functions = {f.name: f for f in design.decode.functions}
+    roles = _var_roles(cp, design.catalog)
+    reset = getattr(cp, "reset", None)
+    async_reset = reset is not None and not getattr(reset, "synchronous", False)
+    states = [int(s) for s in cp.state_of_tick]
+    passing = {t: frozenset(s) for t, s in (cp.passing or {}).items()}
+    usable = False
+    for g in design.plan.glitches:
+        k = int(g["at_tick"])
+        seq = _entry_sequence(states[k - 1], states[k], roles, async_reset)
+        shown = frozenset(seq[1:-1])
+        function = functions.get(g["signal"])
+        if function is not None and shown & function.dc:
+            usable = True
+        t = (k - 1) % cp.cycle
+        passing[t] = passing.get(t, frozenset()) | shown
+    if not usable:
+        raise NotApplicable("no transient state of a glitching entry is a don't-care of its signal "
+                            "(each is a count the signal is specified on)")
+    return _rebuild(design, counter_plan=dataclasses.replace(cp, passing=passing),
+                    strobed=getattr(design.plan, "strobed", None), exact=exact)
+
+
+# ---------------------------------------------------------------- (b) a synchronous counter
+
+def _is_ripple(part: Any) -> bool:
+    return any(u.type == "counter" and not u.fields.get("synchronous")
+               and u.fields.get("mode") != "johnson" for u in part.units)
+
+
+def _synchronous(design: Any, exact: str) -> Any:
+    """The counter re-allocated from the bin's synchronous (or Johnson) counters only."""
+    from .counter import allocate
+    from .timing import _synchronous_parts
+
+    if getattr(design.counter, "synchronous", False):
+        raise NotApplicable("the counter is already synchronous")
+    stock, catalog = design.stock, design.catalog
+    if not _synchronous_parts(catalog, stock):
+        raise NotApplicable("the bin has no synchronous counter (e.g. 4520, 74HC161, 74HC163)")
+    parts = {t: n for t, n in stock.parts.items() if not _is_ripple(catalog.parts[t])}
+    try:
+        cp = allocate(design.spec, dataclasses.replace(stock, parts=parts), catalog)
+    except SynthError as exc:
+        raise NotApplicable(f"the synchronous counters on hand cannot count the cycle: {exc.args[0]}") \
+            from None
+    if sorted(c.part for c in cp.chips) == sorted(c.part for c in design.counter.chips):
+        raise NotApplicable("without the ripple counters the allocation comes out the same")
+    return _rebuild(design, counter_plan=cp, exact=exact)
+
+
+# ---------------------------------------------------------------- (c) gating with the clock
+
+def _strobe_all(design: Any, signals: list[str]) -> Any:
+    """Gate each signal in turn; a signal that cannot be gated keeps its decode."""
+    network = design.network
+    strobed = dict(getattr(design.plan, "strobed", {}) or {})
+    plan, applied = design.plan, 0
+    skipped = []
+    for signal in signals:
+        if signal in strobed:
+            continue
+        try:
+            new_net, info = strobe_network(network, signal, plan, design.stock, design.catalog,
+                                           design.spec)
+            new_plan = _pack(design, new_net)
+        except NotApplicable as exc:
+            skipped.append(f"{signal}: {exc}")
+            continue
+        except SynthError as exc:          # the re-packed plan failed a check: keep the decode
+            skipped.append(f"{signal}: the gated plan failed a check ({exc.args[0] if exc.args else exc})")
+            continue
+        info["cost"] = {"chips": len(new_plan.chips) - len(plan.chips),
+                        "gates": len(new_plan.network.gates) - len(plan.network.gates)}
+        strobed[signal] = info
+        network, plan, applied = new_net, new_plan, applied + 1
+    if not applied:
+        failure = NotApplicable("; ".join(skipped) or "no signal to gate")
+        failure.per_signal = dict(item.split(": ", 1) for item in skipped)
+        raise failure
+    new = _rebuild(design, network=network, strobed=strobed)
+    new.plan.strobe_skipped = dict(s.split(": ", 1) for s in skipped)
+    return new
+
+
+def _pack(design: Any, network: Network):
+    from .packing import pack
+
+    try:
+        return pack(network, design.counter, design.spec, design.stock, design.catalog)
+    except ShortError as exc:
+        raise NotApplicable(f"no gate of the kind left in the bin ({exc.args[0]})") from None
+
+
+def strobe_network(network: Network, signal: str, plan: Any, stock: Any, catalog: Any,
+                   spec: Any = None) -> tuple[Network, dict]:
+    """The network with ``signal`` held inactive while the clock is in the counter's
+    moving half; returns it and a record (how, which gate, which clock phase)."""
+    out = network.signals.get(signal)
+    if out is None or out.net in RAILS:
+        raise NotApplicable("the signal is constant")
+    clock = _clock_net(plan.counter)
+    settle = str(plan.counter.edge) == "rising"     # CLK's level in the half the count moves in
+    others = [n for n, s in network.signals.items() if s.net == out.net and n != signal]
+    if others:
+        raise NotApplicable(f"its net also carries {', '.join(others)}")
+    switches = [n for n, sw in (getattr(spec, "switches", None) or {}).items()
+                if getattr(sw, "select", None) == signal]
+    if switches:
+        raise NotApplicable(f"it selects switch {', '.join(switches)}, which would then throw over "
+                            "twice in every tick of the window")
+    free = spec is not None and getattr(spec.signals.get(signal), "polarity", "") == "free"
+    spare = _spare_input_rewrite(network, signal, out, clock, settle, plan, stock, catalog)
+    if spare is not None:
+        return spare
+    return _series_gate_rewrite(network, signal, out, clock, settle, free, plan, stock, catalog)
+
+
+def _clock_net(counter: Any) -> str:
+    var_nets = {str(v.net) for v in counter.vars}
+    return next((str(c.clock_net) for c in counter.chips if str(c.clock_net) not in var_nets), "CLK")
+
+
+def _phase_text(clock: str, level: bool) -> str:
+    return f"{clock} {'high' if level else 'low'}"
+
+
+def _spare_input_rewrite(network, signal, out, clock, settle, plan, stock, catalog):
+    """Use a spare input of the signal's last gate when its controlling level is the inactive one."""
+    from .timing import gate_names_of, spare_input
+
+    gate = next((g for g in network.gates if out.net in g.outputs), None)
+    if gate is None or gate.op not in _CONTROLLING or len(gate.outputs) != 1:
+        return None
+    if any(out.net in g.inputs for g in network.gates):
+        return None             # the net feeds other gates: gating it would change them too
+    index = spare_input(gate)
+    controlling = _CONTROLLING[gate.op]
+    forced = controlling ^ (not _KEEPS_LEVEL[gate.op])
+    if index is None or forced == (out.polarity == "high"):
+        return None
+    gates, phase_net, added = _phase(network, clock, settle, controlling, plan, stock, catalog)
+    inputs = list(gate.inputs)
+    inputs[index] = phase_net
+    gates = [dataclasses.replace(g, inputs=tuple(inputs)) if g.id == gate.id else g for g in gates]
+    name = gate_names_of(plan).get(gate.id, gate.id)
+    return (dataclasses.replace(network, gates=gates),
+            _record("spare_input", signal, out.polarity, clock, settle,
+                    f"{name}'s spare input {index + 1} wired to {_phase_wording(clock, settle, controlling)}",
+                    added))
+
+
+def _series_gate_rewrite(network, signal, out, clock, settle, free, plan, stock, catalog):
+    """A new gate after the decode: op(decode, clock phase), from a spare unit or a new chip;
+    an inverting gate is followed by an inverter when the signal's polarity is fixed."""
+    active_high = out.polarity == "high"
+    choices = []
+    for op in ("and", "nand", "or", "nor"):
+        controlling = _CONTROLLING[op]
+        forced = controlling ^ (not _KEEPS_LEVEL[op])
+        gate_high = active_high if _KEEPS_LEVEL[op] else not active_high
+        if forced == gate_high:
+            continue
+        restore = gate_high != active_high and not free
+        for part, width, new_chip in _unit_options(plan, stock, catalog, op, min_inputs=2):
+            choices.append((restore, new_chip, width, op, part, controlling, gate_high))
+    if not choices:
+        need = "an AND or a NAND" if active_high else "an OR or a NOR"
+        raise NotApplicable(f"gating an active-{out.polarity} output needs {need} with a spare unit "
+                            "or a chip left in the bin, and there is none")
+    restore, new_chip, width, op, part, controlling, gate_high = min(choices)
+    gates, phase_net, added = _phase(network, clock, settle, controlling, plan, stock, catalog,
+                                     avoid_part=part if new_chip else None)
+    taken = {n for g in gates for n in (*g.inputs, *g.outputs)}
+    if not any(out.net in g.outputs for g in gates):       # a counter output used as it is
+        source, target, body = out.net, _fresh(signal, taken), gates
+    else:                                                   # the decode keeps its gates on a new net
+        source = _fresh(f"{out.net}_decode", taken)
+        target = out.net
+        body = [dataclasses.replace(g, inputs=tuple(source if n == out.net else n for n in g.inputs),
+                                    outputs=tuple(source if n == out.net else n for n in g.outputs))
+                for g in gates]
+    taken |= {source, target}
+    ids = {g.id for g in gates}
+    fill = "VSS" if controlling else "VDD"
+    gated = _fresh(f"{signal}_gated", taken) if restore else target
+    new_gates = [Gate(_fresh(f"strobe_{signal}", ids), part, op,
+                      (source, phase_net) + (fill,) * (width - 2), (gated,),
+                      schmitt=bool(catalog.parts[part].thresholds))]
+    article = "an" if op in ("and", "or") else "a"
+    how = (f"{article} {op.upper()} gate ({part}{', a new chip from the bin' if new_chip else ', a spare unit'}) "
+           f"after the decode, its other input on {_phase_wording(clock, settle, controlling)}")
+    if restore:
+        inv_part, inv_width, inv_op = _restoring_inverter(plan, stock, catalog, part, signal)
+        new_gates.append(Gate(_fresh(f"strobe_{signal}_inv", ids), inv_part, inv_op,
+                              (gated,) * inv_width, (target,),
+                              schmitt=bool(catalog.parts[inv_part].thresholds)))
+        how += f", then an inverter ({inv_part} {inv_op.upper()}) to keep {signal} active {out.polarity}"
+    new_high = gate_high if not restore else active_high
+    signals = dict(network.signals)
+    signals[signal] = SignalOut(target, "high" if new_high else "low")
+    if new_high != active_high:
+        how += f"; {signal} is now delivered active {'high' if new_high else 'low'}"
+    return (dataclasses.replace(network, gates=body + new_gates, signals=signals),
+            _record("series_gate", signal, "high" if new_high else "low", clock, settle, how, added))
+
+
+def _restoring_inverter(plan, stock, catalog, gate_part: str, signal: str) -> tuple[str, int, str]:
+    """An inverter (or a NAND/NOR with its inputs joined) after an inverting gating gate."""
+    options = [(o, op) for op in ("not", "nand", "nor") for o in _unit_options(plan, stock, catalog, op, 1)]
+    if not options:
+        raise NotApplicable(f"{signal} would need an inverter after the gating gate and none is left")
+    (part, width, _), op = min(options, key=lambda x: (x[0][2] and x[0][0] != gate_part, x[0][1]))
+    return part, width, op
+
+
+def _phase_wording(clock: str, settle: bool, controlling: bool) -> str:
+    return clock if controlling == settle else f"{clock} inverted"
+
+
+def _phase(network, clock, settle, controlling, plan, stock, catalog, avoid_part=None):
+    """The gates, the net carrying the clock phase that is at ``controlling`` while the
+    count moves, and the gates added for it (an inverter when the clock is the wrong way up)."""
+    if controlling == settle:
+        return list(network.gates), clock, []
+    for g in network.gates:
+        if g.op in ("not", "nand", "nor") and set(g.inputs) == {clock}:
+            return list(network.gates), g.output, []
+    options = _unit_options(plan, stock, catalog, "not", min_inputs=1)
+    options += [o for op in ("nand", "nor") for o in _unit_options(plan, stock, catalog, op, min_inputs=2)]
+    if not options:
+        raise NotApplicable(f"{clock} is needed inverted and no inverter or NAND/NOR is left in the bin")
+    part, width, _new = min(options, key=lambda o: (_too_slow(catalog, o[0], plan),
+                                                    o[2], o[0] == avoid_part,
+                                                    _delay_ns(catalog, o[0], plan.supply), o[1]))
+    op = next(u.op for u in catalog.parts[part].units if u.op in ("not", "nand", "nor"))
+    taken = {n for g in network.gates for n in (*g.inputs, *g.outputs)}
+    net = _fresh(f"{clock}_inv", taken)
+    inv = Gate(_fresh("strobe_clock_inv", {g.id for g in network.gates}), part, op,
+               (clock,) * width, (net,), schmitt=bool(catalog.parts[part].thresholds))
+    return list(network.gates) + [inv], net, [inv]
+
+
+def _delay_ns(catalog, part_type: str, supply: float, corner: str = "typ") -> float:
+    from .timing import _delay
+
+    return _delay(catalog.parts[part_type], "tpd", supply, corner) or 0.0
+
+
+def _too_slow(catalog, part_type: str, plan) -> bool:
+    """Whether an inverter on the clock is slower than the counter's first output change
+    at either corner: the gate would then open while the count is still moving."""
+    return any(_delay_ns(catalog, part_type, plan.supply, corner) >= _first_counter_move_ns(plan, catalog, corner)
+               for corner in ("typ", "max"))
+
+
+def _first_counter_move_ns(plan, catalog, corner: str = "typ") -> float:
+    """The earliest a counter output moves after a counting edge."""
+    from .timing import counter_models
+
+    models = counter_models(plan.counter, plan.network, catalog, plan.supply, corner)
+    return min((o.delay_ps / 1000 for c in models for o in c.outputs), default=0.0)
+
+
+def _unit_options(plan, stock, catalog, op: str, min_inputs: int) -> list[tuple[str, int, bool]]:
+    """(part, inputs, needs a new chip) for every unit of ``op`` the board or the bin has spare."""
+    from .packing import unit_logic_pins
+
+    out = []
+    for part_type in sorted(stock.parts):
+        part = catalog.parts.get(part_type)
+        if part is None:
+            continue
+        units = [u for u in part.units if u.type in ("gate", "inverter") and u.op == op
+                 and not u.fields.get("also") and len(unit_logic_pins(u)[0]) >= min_inputs]
+        if not units:
+            continue
+        width = min(len(unit_logic_pins(u)[0]) for u in units)
+        spare = any(u.id not in chip.units_used for chip in plan.chips
+                    if chip.part == part_type and chip.role == "logic" for u in units)
+        left = stock.count(part_type) - plan.bom.get(part_type, 0)
+        if spare:
+            out.append((part_type, width, False))
+        elif left > 0:
+            out.append((part_type, width, True))
+    return out
+
+
+def _fresh(base: str, taken: set[str]) -> str:
+    name, k = base, 2
+    while name in taken:
+        name, k = f"{base}_{k}", k + 1
+    return name
+
+
+def _record(how: str, signal: str, polarity: str, clock: str, settle: bool, text: str,
+            added: list[Gate]) -> dict:
+    still = _phase_text(clock, not settle)
+    if added:
+        inv = added[0]
+        text += f" (the inverted clock from a {inv.part} {inv.op.upper()} unit)"
+    return {"how": how, "still_phase": still, "polarity": polarity,
+            "detail": (f"{text}: {signal} is asserted only while {still} (the second half of each "
+                       "asserted tick, when the counter is still), so a window of several ticks "
+                       "becomes one pulse per tick; sampled just before each counting edge it "
+                       "matches the spec tick by tick")}
+
+
+# ---------------------------------------------------------------- RC delay offers
+
+def rc_offers(design: Any, widths: dict[str, float] | None = None) -> list[dict]:
+    """RC delays between Schmitt stages for races and for glitches a logic fix cannot
+    remove without a new chip; offered with values, spread and wiring, never applied.
+
+    One race offer per signal to delay (the one of each coincident pair that
+    settles later, so the gap only grows); ``widths`` are the glitch widths
+    found before any fix (signal -> widest, ns)."""
+    plan = design.plan
+    period = _period_ns(design)
+    widths = dict(widths if widths is not None else _widest(plan.glitches))
+    offers = []
+    races: dict[str, list[dict]] = {}
+    for edge in plan.coincident_edges:
+        a, b = edge["signals"]
+        races.setdefault(b if edge.get("first") == a else a, []).append(edge)
+    for signal, edges in sorted(races.items()):
+        offers.append(_race_offer(design, signal, edges, period))
+    fixes = getattr(plan, "timing_fixes", None)
+    if fixes is None:
+        costly = set()          # the costs are known once --fix glitches has tried the remedies
+    else:
+        costly = {r["signal"] for r in fixes if r.get("glitches_after") or r["cost"].get("chips", 0) > 0}
+    for signal in sorted(costly):
+        offers.append(_glitch_offer(design, signal, widths.get(signal, 0.0), period))
+    return [o for o in offers if o is not None]
+
+
+def _period_ns(design: Any) -> float | None:
+    freq = getattr(getattr(design.spec, "clock", None), "frequency_hz", None)
+    if freq:
+        return 1e9 / freq
+    trace = getattr(design, "trace", None)
+    return getattr(trace, "period_ns", None)
+
+
+def _race_offer(design: Any, later: str, edges: list[dict], period: float | None) -> dict | None:
+    if period is None:
+        return None
+    others = sorted({n for e in edges for n in e["signals"] if n != later})
+    ticks = sorted({e["at_tick"] for e in edges})
+    offer = _rc_design(design, later, period / 4, period)
+    offer.update({"problem": "race", "signals": [later, *others], "at_ticks": ticks,
+                  "why": (f"{later} switches on the same clock edge as {', '.join(others)} (ticks "
+                          f"{', '.join(map(str, ticks))}); delayed by about a quarter tick its edges "
+                          "come clear of theirs and the level sampled at the end of each tick is unchanged")})
+    return offer
+
+
+def _glitch_offer(design: Any, signal: str, width_ns: float, period: float | None) -> dict | None:
+    if period is None:
+        return None
+    wanted_ns = max(4 * width_ns, 1000.0)
+    if wanted_ns > period / 4:
+        return {"problem": "glitch", "signal": signal, "delayed": signal, "applicable": False,
+                "applied": False, "why": f"a filter slower than the {width_ns:.0f} ns pulse would take more than a "
+                       f"quarter of the {period:.0f} ns tick"}
+    offer = _rc_design(design, signal, wanted_ns, period)
+    fixed = next((r for r in getattr(design.plan, "timing_fixes", None) or [] if r["signal"] == signal
+                  and r["applied"] and not r["glitches_after"]), None)
+    instead = (f"instead of the {fixed['remedy'].replace('_', ' ')} applied, which took "
+               f"{fixed['cost']['chips']} new chip(s): " if fixed else "")
+    offer.update({"problem": "glitch", "signal": signal,
+                  "why": (f"{instead}an RC low-pass between two Schmitt stages swallows a pulse shorter than its "
+                          f"delay: the {width_ns:.0f} ns (worst case) pulse never charges C to the "
+                          "threshold, while each real edge arrives one RC delay later")})
+    if offer.get("receiver") == "plain-input":
+        offer["why"] = offer["why"].replace("two Schmitt stages", "two inverting stages (the bin has no "
+                                            "Schmitt part; a Schmitt second stage is the better receiver)")
+    if offer.get("applicable") and min(offer["delay_ns"]["rising"][0], offer["delay_ns"]["falling"][0]) \
+            <= width_ns:
+        offer["applicable"] = False
+        offer["why"] += "; the shortest delay over the threshold spread is not longer than the pulse"
+    return offer
+
+
+def _rc_design(design: Any, signal: str, wanted_ns: float, period: float) -> dict:
+    from .analog import plain_input_thresholds, rc_delay_design, thresholds_at
+    from .units import format_si
+
+    plan, stock, catalog = design.plan, design.stock, design.catalog
+    try:
+        receiver, where = _schmitt_pair(plan, stock, catalog)
+    except NotApplicable as exc:
+        return {"delayed": signal, "wanted_ns": round(wanted_ns, 1), "applied": False,
+                "applicable": False, "why_not": str(exc)}
+    thresholds = (thresholds_at(catalog.parts[receiver].thresholds, plan.supply) if receiver
+                  else plain_input_thresholds(plan.supply))
+    base = {"delayed": signal, "wanted_ns": round(wanted_ns, 1), "receiver": receiver or "plain-input",
+            "stages": where, "applied": False}
+    try:
+        d = rc_delay_design(wanted_ns * 1e-9, supply=plan.supply, thresholds=thresholds,
+                            resistors=stock.resistors, capacitors=stock.capacitors)
+    except SynthError as exc:
+        return {**base, "applicable": False, "why_not": str(exc.args[0] if exc.args else exc)}
+    source = plan.signals.get(signal, {}).get("source")
+    src = f"{source[0]} pin {source[1]}" if source else signal
+    r, c = format_si(d.r, "Ω"), format_si(d.c, "F")
+    wiring = [f"{src} ({signal}) -> stage 1 input ({where[0]})",
+              f"stage 1 output -> R {r} -> delay node",
+              f"C {c} from the delay node to VSS, short leads",
+              f"delay node -> stage 2 input ({where[1]}); stage 2 output is the delayed {signal}, "
+              "same polarity (two inversions); move its loads there"]
+    spread = {"rising": [round(x * 1e9, 1) for x in (d.rising.min, d.rising.typ, d.rising.max)],
+              "falling": [round(x * 1e9, 1) for x in (d.falling.min, d.falling.typ, d.falling.max)]}
+    longest = max(d.rising.max, d.falling.max) * 1e9
+    fits = longest < period / 2
+    if not fits:
+        base["why_not"] = (f"the nearest values on hand ({r}, {c}) give up to {longest:.0f} ns, more than "
+                           f"half the {period:.0f} ns tick: the delayed level would be sampled late")
+    return {**base, "applicable": fits, "r_ohm": d.r, "c_farad": d.c, "r": r, "c": c,
+            "delay_ns": spread, "formula": d.formula, "wiring": wiring, "warnings": list(d.warnings),
+            "tick_ns": round(period, 1)}
+
+
+def _schmitt_pair(plan: Any, stock: Any, catalog: Any) -> tuple[str | None, list[str]]:
+    """A Schmitt inverting part for the two stages: spare units on the board, else a chip
+    from the bin, else a plain CMOS input (said so)."""
+    schmitt = [t for t in sorted(stock.parts) if catalog.parts[t].thresholds
+               and any(u.type in ("inverter", "gate") for u in catalog.parts[t].units)]
+    schmitt.sort(key=lambda t: catalog.parts[t].category != "inverter")
+    for part_type in schmitt:
+        part = catalog.parts[part_type]
+        units = [u for u in part.units if u.type in ("inverter", "gate")]
+        for chip in plan.chips:
+            if chip.part != part_type:
+                continue
+            free = [u for u in units if u.id not in chip.units_used]
+            if len(free) >= 2:
+                return part_type, [_unit_text(chip.ref, u) for u in free[:2]]
+        if stock.count(part_type) - plan.bom.get(part_type, 0) > 0:
+            return part_type, [_unit_text(f"a new {part_type}", u) for u in units[:2]]
+    for op in ("not", "nand", "nor"):
+        for part_type, _width, new_chip in _unit_options(plan, stock, catalog, op, 1):
+            part = catalog.parts[part_type]
+            units = [u for u in part.units if u.op == op]
+            chip = next((c for c in plan.chips if c.part == part_type and not new_chip
+                         and sum(u.id not in c.units_used for u in units) >= 2), None)
+            if chip is not None:
+                free = [u for u in units if u.id not in chip.units_used]
+                return None, [_unit_text(chip.ref, u, joined=True) for u in free[:2]]
+            if new_chip or stock.count(part_type) - plan.bom.get(part_type, 0) > 0:
+                return None, [_unit_text(f"a new {part_type}", u, joined=True) for u in units[:2]]
+    raise NotApplicable("no Schmitt part and no two spare inverting gates on the board or in the bin")
+
+
+def _unit_text(ref: str, unit: Any, joined: bool = False) -> str:
+    ins = unit.inputs
+    if len(ins) > 1 and joined:
+        tie = f", its other inputs joined to pin {ins[0]} (plain CMOS threshold, not Schmitt)"
+    elif len(ins) > 1:
+        tie = ", other inputs to VDD"
+    else:
+        tie = ""
+    return f"{ref} unit {unit.id}: in pin {ins[0]}, out pin {unit.output}{tie}"
