@@ -1298,6 +1298,83 @@ def _gate_lower_bound(problem: _Problem, kinds: Sequence[_SatKind]) -> float:
     return bound
 
 
+def _monotone_possible(sig: _Signal, nvars: int, low: bool) -> bool:
+    """Whether some completion of the delivered level is monotone increasing in the
+    counter bits (all a bin without any inverting unit can make from them)."""
+    on = sig.care - sig.on if low else sig.on
+    off = sig.care - on
+    covered = bytearray(1 << nvars)
+    for m in on:
+        covered[m] = 1
+    for i in range(nvars):
+        bit = 1 << i
+        for m in range(1 << nvars):
+            if m & bit and covered[m ^ bit]:
+                covered[m] = 1
+    return not any(covered[m] for m in off)
+
+
+def _part_profiles(cells: Sequence[Cell]) -> dict[str, tuple[int, float, bool, int]]:
+    """Per part type: (logic units per chip, widest fan-in, can invert, chips on hand)."""
+    profiles: dict[str, tuple[int, float, bool, int]] = {}
+    for c in cells:
+        if c.op in AND_FORM:
+            width: float = c.width
+        elif c.op in ("xor", "xnor"):
+            width = 2
+        elif c.op in ("not", "buf"):
+            width = 1
+        else:                      # wide muxes and decoders: no fan-in argument applies
+            width = float("inf")
+        inverts = c.op in ("not", "nand", "nor", "xor", "xnor", "mux", "decoder", "spdt") or c.output_inv
+        upc, w, inv, chips = profiles.get(c.part, (0, 0, False, c.chips))
+        profiles[c.part] = (max(upc, c.units_per_chip), max(w, width), inv or inverts, chips)
+    return profiles
+
+
+def _counting_bounds(problem: _Problem, cells: Sequence[Cell], max_chips: int = 6) -> tuple[float, float]:
+    """Lower bounds on (chips, gates) for any circuit of the bin, by counting.
+
+    A signal that depends on s counter bits needs a tree of gates joining
+    them (at least ceil((s-1)/(w-1)) gates of fan-in <= w), distinct signals
+    need distinct output gates, and a signal no monotone function delivers
+    needs an inverting unit.  The chip bound is the fewest chips of which some
+    choice from the bin passes all three tests.
+    """
+    profiles = _part_profiles(cells)
+    if not profiles:
+        return float("inf"), float("inf")
+    n = problem.nvars
+    distinct = len({(s.on, s.care) for s in problem.signals})
+    widest_support = max((len(_needed_support(s, n)) for s in problem.signals), default=0)
+    needs_inversion = any(
+        not any(_monotone_possible(s, n, low) for low in ((False, True) if s.polarity == "free"
+                                                          else (s.polarity == "low",)))
+        for s in problem.signals)
+
+    def gates_needed(width: float) -> float:
+        if widest_support <= 1:
+            return max(distinct, 1)
+        if width <= 1:
+            return float("inf")
+        tree = 1 if width == float("inf") else -(-(widest_support - 1) // int(width - 1))
+        return max(distinct, tree)
+
+    overall_gates = gates_needed(max(p[1] for p in profiles.values()))
+    types = sorted(profiles)
+    for count in range(1, max_chips + 1):
+        for combo in itertools.combinations_with_replacement(types, count):
+            if any(combo.count(t) > profiles[t][3] for t in set(combo)):
+                continue
+            units = sum(profiles[t][0] for t in combo)
+            width = max(profiles[t][1] for t in combo)
+            if needs_inversion and not any(profiles[t][2] for t in combo):
+                continue
+            if units >= gates_needed(width):
+                return count, overall_gates
+    return max_chips + 1, overall_gates
+
+
 class _ExactInstance:
     """Is there a circuit of exactly k gates (every gate used) for all signals?"""
 
@@ -1349,6 +1426,7 @@ class _ExactInstance:
                         cnf.add([-tc, self.sel[i][s][0]])
                 self._function(tc, kind, [u[s] for s in range(kind.width)], self.v[i], M)
                 self._symmetry(tc, kind, self.sel[i])
+        self._order_gates(base, W)
         users = [[self.sel[i2][s][base + i] for i2 in range(i + 1, k) for s in range(W)]
                  for i in range(k)]
         self.out: dict[str, list[int]] = {}
@@ -1364,6 +1442,22 @@ class _ExactInstance:
                 unit_lits.setdefault(kind.cell, []).append(self.t[i][c])
         self.costing = _add_costing(cnf, cells, unit_lits)
         self.unit_lits = unit_lits
+
+    def _order_gates(self, base: int, W: int) -> None:
+        """Symmetry break: a gate that does not read the gate just before it has a
+        first input no lower than that gate's.  Sound: list the gates greedily,
+        always the ready gate with the lowest first input; two neighbours where
+        the later does not read the earlier were both ready, so they obey it."""
+        cnf = self.cnf
+        for i in range(self.k - 1):
+            reads = cnf.new()
+            cnf.add([-reads] + [self.sel[i + 1][s][base + i] for s in range(W)])
+            for s in range(W):
+                cnf.add([reads, -self.sel[i + 1][s][base + i]])
+            first, following = self.sel[i][0], self.sel[i + 1][0]
+            for j, lit in enumerate(first):
+                for j2 in range(min(j, len(following))):
+                    cnf.add([-lit, -following[j2], reads])
 
     def _function(self, tc: int, kind: _SatKind, u: list[list[int]], v: list[int], M) -> None:
         add = self.cnf.add
@@ -1450,16 +1544,23 @@ class _ExactInstance:
         units = {ci: sum(1 for lit in lits if lit in truth) for ci, lits in self.unit_lits.items()}
         return sum(_chips_from_units(units, self.cells).values())
 
-    def solve(self, deadline: float):
+    def solve(self, deadline: float, floor: float = 1, ceiling: int | None = None):
+        """A k-gate circuit with the fewest chips: (model, finished, (chips, k)).
+
+        ``floor``: no k-gate circuit can take fewer chips; ``ceiling``: only
+        circuits of at most that many chips are of interest (the incumbent's).
+        """
         solver = _new_solver(self.cnf.clauses)
         try:
-            result = _solve(solver, [], deadline)
+            counters = self.costing.chip_count
+            cap = [-counters[ceiling]] if ceiling is not None and ceiling < len(counters) else []
+            result = _solve(solver, cap, deadline)
             if not result:
                 return None, result is False, None
             model = solver.get_model()
             chips = self.chips(model)
             done = True
-            while chips > 1:
+            while chips > max(1, floor):
                 answer = _solve(solver, [-self.costing.chip_count[chips - 1]], deadline)
                 if answer is None:
                     done = False
@@ -1537,7 +1638,7 @@ def _exact_search(problem: _Problem, cells: Sequence[Cell], deadline: float,
             floor = lb if bound is None else min(bound[0], lb)
             return best, False, floor
         instance = _ExactInstance(problem, cells, kinds, int(k))
-        model, done, cost = instance.solve(deadline)
+        model, done, cost = instance.solve(deadline, floor=lb, ceiling=bound[0] if bound else None)
         if model is None:
             if not done:
                 floor = lb if bound is None else min(bound[0], lb)
@@ -1811,10 +1912,62 @@ def _select(problem: _Problem, forms: dict[str, list[_Form]], lib: Library,
         return None, proven
     builder = _Builder(problem, cands, cells, table, chosen)
     signals = {sig.name: builder.signal(sig) for sig in problem.signals}
-    gates = builder.finish()
+    gates = _tidy(builder.finish(), signals)
     units = _units_of(gates, lib)
     cost = (sum(_chips_from_units(units, cells).values()), len(gates))
     return _Result(gates, signals, cost, False, "structure selection"), proven
+
+
+SYMMETRIC_OPS = ("and", "nand", "or", "nor", "xor", "xnor")
+
+
+def _inverted_net(gate: Gate) -> str | None:
+    """The net a gate merely inverts (NOT, NAND/NOR with joined or neutral-tied inputs)."""
+    if gate.op == "not":
+        return gate.inputs[0]
+    if gate.op in ("nand", "nor") and len(gate.outputs) == 1:
+        neutral = "VDD" if gate.op == "nand" else "VSS"
+        live = {n for n in gate.inputs if n != neutral}
+        if len(live) == 1 and live != {"VDD", "VSS"} and not live & {"VDD", "VSS"}:
+            return next(iter(live))
+    return None
+
+
+def _tidy(gates: list[Gate], signals: dict[str, SignalOut]) -> list[Gate]:
+    """Structural clean-up of a built network: one gate per distinct (part, op,
+    inputs), a double inversion read from its source, no gate nobody reads.
+    Each step keeps every net's logic value, so the verification still holds."""
+    gates = list(gates)
+    while True:
+        rename: dict[str, str] = {}
+        seen: dict[tuple, str] = {}
+        driver = {g.outputs[0]: g for g in gates if len(g.outputs) == 1 and g.outputs[0]}
+        for g in gates:
+            if len(g.outputs) != 1 or not g.outputs[0]:
+                continue
+            key = (g.part, g.op, tuple(sorted(g.inputs)) if g.op in SYMMETRIC_OPS else g.inputs)
+            if key in seen:
+                rename[g.outputs[0]] = seen[key]
+                continue
+            seen[key] = g.outputs[0]
+            source = _inverted_net(g)
+            inner = driver.get(source) if source else None
+            if inner is not None and _inverted_net(inner) is not None:
+                rename[g.outputs[0]] = _inverted_net(inner)
+        if rename:
+            def final(net: str) -> str:
+                while net in rename:
+                    net = rename[net]
+                return net
+            gates = [replace(g, inputs=tuple(final(n) for n in g.inputs)) for g in gates
+                     if not (len(g.outputs) == 1 and g.outputs[0] in rename)]
+            for name, out in list(signals.items()):
+                signals[name] = SignalOut(final(out.net), out.polarity)
+        read = {n for g in gates for n in g.inputs} | {s.net for s in signals.values()}
+        alive = [g for g in gates if any(n and n in read for n in g.outputs)]
+        if not rename and len(alive) == len(gates):
+            return gates
+        gates = alive
 
 
 SELECTION_MAX_TREES = 6000   # tree variables beyond which only the local search runs
@@ -1885,7 +2038,28 @@ def _covers(problem: _Problem, functions, cover, nvars: int, exact: str) -> list
             others.append(Function(name, sig.care - sig.on, frozenset(f.dc)))
     second = minimize(others, nvars, exact=mode)
     flipped = {n for n in names if first.phases.get(n) != "complement"}
-    return [first, _Flipped(second, flipped)]
+    covers = [first, _Flipped(second, flipped)]
+    if 1 < len(names) <= SOLO_COVERS_MAX:
+        covers += _solo_covers(problem, by_name, nvars, mode)
+    return covers
+
+
+SOLO_COVERS_MAX = 8     # signals up to which each is also minimized alone, in both phases
+
+
+def _solo_covers(problem: _Problem, by_name, nvars: int, mode: str) -> list:
+    """Each signal minimized on its own, both phases: a shared multi-output cover
+    can give one signal terms that only pay off for others (``(Q0+Q1+Q2+Q3)'``
+    is one OR, not five shared terms)."""
+    from .minimize import Function, minimize
+
+    covers = []
+    for sig in problem.signals:
+        dc = frozenset(by_name[sig.name].dc)
+        covers.append(minimize([Function(sig.name, sig.on, dc)], nvars, exact=mode))
+        complement = minimize([Function(sig.name, sig.care - sig.on, dc)], nvars, exact=mode)
+        covers.append(_Flipped(complement, frozenset({sig.name})))
+    return covers
 
 
 @dataclass(frozen=True)
@@ -1974,7 +2148,13 @@ def map_design(functions, nvars: int, var_nets: Sequence[str], library: Library,
     signals.update(result.signals)
     gates = _name_signal_nets(result.gates, signals, set(var_nets))
     chips = chips_of(gates, lib)
-    lb = result.cost[0] if result.proven else max(1, min(int(lower), result.cost[0]))
+    chip_floor, gate_floor = _counting_bounds(problem, lib.cells)
+    if not result.proven and result.cost[0] <= chip_floor and result.cost[1] <= gate_floor:
+        result.proven = True
+        notes.append("counting bound: no circuit of the bin has fewer chips or gates "
+                     "(fan-in, distinct outputs, inversion)")
+    lb = result.cost[0] if result.proven else max(1, min(max(int(lower), int(min(chip_floor, 10 ** 6))),
+                                                          result.cost[0]))
     method = ("exact synthesis" if result.method == "exact synthesis" else "structure selection") + \
         (": proven minimal" if result.proven else ": best found")
     network = Network(gates, signals, tuple(var_nets), chips, result.proven, lb, method, notes)
