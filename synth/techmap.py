@@ -425,11 +425,18 @@ class _TreeTable:
         self.top = s
 
 
+_TREE_TABLES: dict[tuple, _TreeTable] = {}
+
+
 def _tree_table(library_cells: Sequence[Cell], cache: dict) -> _TreeTable:
-    key = ("trees", tuple(library_cells))
-    if key not in cache:
-        cache[key] = _TreeTable(len(library_cells), _and_kinds(library_cells), _inv_kinds(library_cells))
-    return cache[key]
+    """One table per list of cell kinds (how many chips the bin holds does not matter)."""
+    key = ("trees", tuple(replace(c, chips=0) for c in library_cells))
+    if key not in _TREE_TABLES:
+        if len(_TREE_TABLES) > 32:
+            _TREE_TABLES.clear()
+        _TREE_TABLES[key] = _TreeTable(len(library_cells), _and_kinds(library_cells),
+                                       _inv_kinds(library_cells))
+    return _TREE_TABLES[key]
 
 
 # ---------------------------------------------------------------- the problem
@@ -713,13 +720,28 @@ def _literal_net(cube: tuple[int, int], nvars: int) -> tuple[tuple, int]:
     return ("v", i), 0 if cube[1] >> i & 1 else 1
 
 
+NODE_FANIN_MAX = 8        # wider AND nodes are split into nodes of at most this many fan-ins
+
+
+def _and_node(cands: _Candidates, key: tuple, fanins: tuple, invert: int) -> tuple:
+    """An AND node; past NODE_FANIN_MAX fan-ins, an AND of AND nodes over balanced
+    slices (the tree table then never grows past that width: a 38-term sum
+    would take seconds to tabulate and gains nothing from one flat tree)."""
+    if len(fanins) > NODE_FANIN_MAX:
+        parts = -(-len(fanins) // NODE_FANIN_MAX)
+        size = -(-len(fanins) // parts)
+        slices = [fanins[i:i + size] for i in range(0, len(fanins), size)]
+        fanins = tuple((_and_node(cands, ("a", piece), piece, 0), 0) for piece in slices)
+    return cands.node(key, fanins, invert)
+
+
 def _term(cands: _Candidates, cube: tuple[int, int], nvars: int) -> tuple[tuple, int]:
     """The net (and complement flag) carrying one product term."""
     vars_ = _cube_vars(cube, nvars)
     if len(vars_) == 1:
         return _literal_net(cube, nvars)
     fanins = tuple((("v", i), 0 if cube[1] >> i & 1 else 1) for i in vars_)
-    return cands.node(("t", cube), fanins, 0), 0
+    return _and_node(cands, ("t", cube), fanins, 0), 0
 
 
 def _sum(cands: _Candidates, terms: Sequence[tuple[tuple, int]]) -> tuple[tuple, int]:
@@ -727,7 +749,7 @@ def _sum(cands: _Candidates, terms: Sequence[tuple[tuple, int]]) -> tuple[tuple,
     if len(terms) == 1:
         return terms[0]
     fanins = tuple(sorted((net, c ^ 1) for net, c in terms))
-    return cands.node(("s", fanins), fanins, 1), 0
+    return _and_node(cands, ("s", fanins), fanins, 1), 0
 
 
 @dataclass(frozen=True)
@@ -1666,6 +1688,7 @@ class _Eval:
     nodes: list[int]
     z: dict[int, tuple[int, ...]]
     inverters: dict[tuple, int]
+    units: tuple[int, ...] = ()
 
 
 def _tree_menu(trees: Sequence[_Tree], ncells: int) -> list[_Tree]:
@@ -1677,6 +1700,12 @@ def _tree_menu(trees: Sequence[_Tree], ncells: int) -> list[_Tree]:
             spare = sorted((t for t in trees if t.b == b), key=lambda t: (t.units[c], t.gates, t.depth))[:2]
             menu += [t for t in spare if t not in menu]
     return menu
+
+
+def _part_way(deadline: float, share: float) -> float:
+    """A deadline ``share`` of the way from now to ``deadline``."""
+    now = time.monotonic()
+    return now + max(0.0, deadline - now) * share
 
 
 class _LocalSearch:
@@ -1782,7 +1811,7 @@ class _LocalSearch:
         overflow = sum(max(0, u - c.capacity) for u, c in zip(units, cells))
         chips = sum(_chips_from_units(dict(enumerate(units)), cells).values())
         gates = sum(units)
-        return _Eval((overflow, chips, gates, depth), (chips, gates), order, z, inverters)
+        return _Eval((overflow, chips, gates, depth), (chips, gates), order, z, inverters, tuple(units))
 
     def _place_inverters(self, units: list[int], nets: list[tuple]) -> dict[tuple, int] | None:
         """Spare units of chips already opened first, then the cell that opens fewest chips."""
@@ -1824,7 +1853,9 @@ class _LocalSearch:
         best = self._initial()
         if best is None:
             return None, 0
-        best = self._climb(best, lambda e: e.key[1:], deadline)
+        if best.key[0]:            # over the bin from the start: repair first, then refine
+            best = self._climb(best, lambda e: e.key, _part_way(deadline, 0.5))
+        best = self._climb(best, lambda e: e.key[1:], _part_way(deadline, 0.5))
         if best.key[0]:
             best = self._climb(best, lambda e: e.key, deadline)
         return self._chosen(best), best.key[0]
@@ -1881,6 +1912,39 @@ class _LocalSearch:
                 self.opt[sig.name] = next((i for i, o in enumerate(options)
                                            if o.kind != "mux" or o.polarity == sig.polarity), 0)
         best = self.evaluate(self.opt, self.phi, self.tree)
+        if best is not None and best.key[0]:
+            best = self._relieve(best)
+        return best
+
+    def _relieve(self, best: _Eval) -> _Eval:
+        """Greedy repair of a design over the bin: node by node, the tree that most
+        lowers the summed overflow at the running unit counts, then one evaluation
+        (one move per evaluation is too slow when a design overflows by hundreds)."""
+        caps = [c.capacity for c in self.cells]
+        for _ in range(3):
+            if not best.key[0]:
+                break
+            units = list(best.units)
+
+            def overflow_with(old: tuple, new: tuple) -> int:
+                return sum(max(0, u - o + w - cap) - max(0, u - cap)
+                           for u, o, w, cap in zip(units, old, new, caps) if o != w)
+
+            trial = dict(self.tree)
+            for n in best.nodes:
+                menu = self.trees[n]
+                current = menu[trial[n]]
+                if not any(u > cap for u, w, cap in zip(units, current.units, caps) if w):
+                    continue
+                pick = min(range(len(menu)), key=lambda i: (
+                    overflow_with(current.units, menu[i].units), menu[i].b != current.b, menu[i].gates))
+                if overflow_with(current.units, menu[pick].units) < 0:
+                    units = [u - o + w for u, o, w in zip(units, current.units, menu[pick].units)]
+                    trial[n] = pick
+            result = self.evaluate(self.opt, self.phi, trial)
+            if result is None or result.key >= best.key:
+                break
+            self.tree, best = trial, result
         return best
 
     def _chosen(self, best: _Eval) -> _Chosen:
