@@ -720,11 +720,11 @@ def _literal_net(cube: tuple[int, int], nvars: int) -> tuple[tuple, int]:
     return ("v", i), 0 if cube[1] >> i & 1 else 1
 
 
-NODE_FANIN_MAX = 8        # wider AND nodes are split into nodes of at most this many fan-ins
+NODE_FANIN_MAX = 16       # wider AND nodes are split into nodes of at most this many fan-ins
 
 
 def _and_node(cands: _Candidates, key: tuple, fanins: tuple, invert: int) -> tuple:
-    """An AND node; past NODE_FANIN_MAX fan-ins, an AND of AND nodes over balanced
+    """An AND node; past NODE_FANIN_MAX (16) fan-ins, an AND of AND nodes over balanced
     slices (the tree table then never grows past that width: a 38-term sum
     would take seconds to tabulate and gains nothing from one flat tree)."""
     if len(fanins) > NODE_FANIN_MAX:

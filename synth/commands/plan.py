@@ -122,6 +122,8 @@ def summary_text(design) -> str:
     parts = ", ".join(f"{n} {role}" for role, n in sorted(roles.items()))
     if plan.proven_minimal:
         proof = "proven minimal"
+    elif plan.lower_bound is not None and plan.lower_bound == roles.get("logic"):
+        proof = "proven minimal (the lower bound is met), gates best found"
     else:
         bound = f", lower bound {plan.lower_bound} chips" if plan.lower_bound is not None else ""
         proof = f"best found{bound}"
