@@ -272,7 +272,7 @@ def _rebuild(design: Any, *, counter_plan: Any = None, network: Network | None =
 
 def _decode_and_map(spec, stock, catalog, cp, exact: str):
     from .decode import derive
-    from .pipeline import _internal_polarity, reserved_chips, switch_polarity
+    from .pipeline import _async_reset_names, _internal_polarity, reserved_chips, switch_polarity
     from .techmap import build_library, map_design
 
     decode = derive(spec, cp, exact=exact)
@@ -281,7 +281,8 @@ def _decode_and_map(spec, stock, catalog, cp, exact: str):
     for function in decode.functions:
         polarity.setdefault(function.name, _internal_polarity(cp, function.name))
     network = map_design(decode.functions, len(cp.vars), [v.net for v in cp.vars], library,
-                         polarity=polarity, cover=decode.cover, exact=exact)
+                         polarity=polarity, cover=decode.cover, exact=exact,
+                         glitch_free=_async_reset_names(cp))
     return decode, network
 
 

@@ -136,8 +136,12 @@ def _evaluate_decoder(gate: Gate, ins: list[bool]) -> dict[str, bool]:
 
 
 def evaluate_network(network: Network, inputs: Mapping[str, bool]) -> dict[str, bool]:
-    """Every net's level for one input assignment (gates in any order, no loops)."""
-    values = dict(inputs)
+    """Every net's level for one input assignment (gates in any order, no loops).
+
+    The rails are included, so a signal tied to VDD or VSS reads like any other.
+    """
+    values = dict(RAILS)
+    values.update(inputs)
     pending = list(network.gates)
     while pending:
         progressed = []

@@ -34,6 +34,7 @@ class Design:
     network: Any
     trace: Any = None
     remedies: dict = field(default_factory=dict)
+    lacks: Any = None          # wishlist.BinLacks when make_plan(lacks=...) searched
 
 
 def switch_polarity(spec) -> dict[str, str]:
@@ -78,8 +79,13 @@ def _switch_chips(spec, stock, catalog) -> dict[str, int]:
 
 
 def make_plan(spec_path: str | Path, bin_path: str | Path, *, catalog=None, exact: str = "auto",
-              fix: Iterable[str] = ()) -> Design:
-    """Run every stage; raise SynthError subclasses for the user's problems."""
+              fix: Iterable[str] = (), lacks: float = 0.0) -> Design:
+    """Run every stage; raise SynthError subclasses for the user's problems.
+
+    ``lacks`` > 0: also find what the bin lacks (wishlist), searching for that
+    many seconds beside the plan's own mapping; the answer is ``design.lacks``
+    and the plan's ``bin_lacks``.
+    """
     from .counter import allocate
     from .decode import derive
     from .inventory import load_bin, load_catalog
@@ -96,14 +102,35 @@ def make_plan(spec_path: str | Path, bin_path: str | Path, *, catalog=None, exac
     polarity = switch_polarity(spec)
     for function in decode.functions:
         polarity.setdefault(function.name, _internal_polarity(counter_plan, function.name))
-    network = map_design(decode.functions, len(counter_plan.vars), [v.net for v in counter_plan.vars],
-                         library, polarity=polarity, cover=decode.cover, exact=exact)
-    plan = pack(network, counter_plan, spec, stock, catalog)
-    plan.warnings[:0] = list(stock.warnings) + list(getattr(counter_plan, "warnings", []))
-    _analog_parts(plan, spec, stock, catalog)
-    design = Design(plan, spec, stock, catalog, counter_plan, decode, network)
-    _timing_checks(design, set(fix))
-    return _timing_fixes(design, set(fix), exact)
+    search = _start_lacks(lacks, decode, counter_plan, library, polarity, stock, catalog)
+    try:
+        network = map_design(decode.functions, len(counter_plan.vars), [v.net for v in counter_plan.vars],
+                             library, polarity=polarity, cover=decode.cover, exact=exact,
+                             glitch_free=_async_reset_names(counter_plan))
+        plan = pack(network, counter_plan, spec, stock, catalog)
+        plan.warnings[:0] = list(stock.warnings) + list(getattr(counter_plan, "warnings", []))
+        _analog_parts(plan, spec, stock, catalog)
+        design = Design(plan, spec, stock, catalog, counter_plan, decode, network)
+        _timing_checks(design, set(fix))
+        design = _timing_fixes(design, set(fix), exact)
+    except BaseException:
+        if search is not None:
+            search.cancel()
+        raise
+    if search is not None:
+        design.lacks = search.finish(design)
+        design.plan.bin_lacks = design.lacks.to_json()
+    return design
+
+
+def _start_lacks(budget: float, decode, counter_plan, library, polarity, stock, catalog):
+    """The what-the-bin-lacks search, begun before the mapping so the two overlap."""
+    if budget <= 0:
+        return None
+    from .wishlist import start_search
+
+    return start_search(decode, counter_plan, library, polarity, stock, catalog,
+                        glitch_free=_async_reset_names(counter_plan), budget=budget)
 
 
 def _analog_parts(plan, spec, stock, catalog) -> None:
@@ -129,6 +156,14 @@ def _analog_parts(plan, spec, stock, catalog) -> None:
             plan.warnings += ladder.warnings
     refresh(plan, stock)
     check_nets(plan)
+
+
+def _async_reset_names(counter_plan) -> tuple[str, ...]:
+    """A decoded asynchronous reset must not pulse on a counter step (it would clear the count)."""
+    reset = getattr(counter_plan, "reset", None)
+    if reset is None or getattr(reset, "synchronous", False) or getattr(reset, "direct", False):
+        return ()
+    return (reset.name,)
 
 
 def _internal_polarity(counter_plan, name: str) -> str:

@@ -79,7 +79,7 @@ from typing import Iterable, Literal, Mapping, Sequence
 
 from .errors import InputError, InternalError, ShortError, UsageError
 from .inventory import Bin, Catalog, Part
-from .network import Gate, Network, SignalOut, evaluate_network
+from .network import Gate, Network, SignalOut, evaluate_gate, evaluate_network
 
 __all__ = ["Cell", "Library", "build_library", "map_design", "chips_of", "Target",
            "parse_target", "Construction", "substitute", "EXACT_MAX_VARS", "EXACT_MAX_GATES"]
@@ -425,11 +425,18 @@ class _TreeTable:
         self.top = s
 
 
+_TREE_TABLES: dict[tuple, _TreeTable] = {}
+
+
 def _tree_table(library_cells: Sequence[Cell], cache: dict) -> _TreeTable:
-    key = ("trees", tuple(library_cells))
-    if key not in cache:
-        cache[key] = _TreeTable(len(library_cells), _and_kinds(library_cells), _inv_kinds(library_cells))
-    return cache[key]
+    """One table per list of cell kinds (how many chips the bin holds does not matter)."""
+    key = ("trees", tuple(replace(c, chips=0) for c in library_cells))
+    if key not in _TREE_TABLES:
+        if len(_TREE_TABLES) > 32:
+            _TREE_TABLES.clear()
+        _TREE_TABLES[key] = _TreeTable(len(library_cells), _and_kinds(library_cells),
+                                       _inv_kinds(library_cells))
+    return _TREE_TABLES[key]
 
 
 # ---------------------------------------------------------------- the problem
@@ -713,13 +720,28 @@ def _literal_net(cube: tuple[int, int], nvars: int) -> tuple[tuple, int]:
     return ("v", i), 0 if cube[1] >> i & 1 else 1
 
 
+NODE_FANIN_MAX = 16       # wider AND nodes are split into nodes of at most this many fan-ins
+
+
+def _and_node(cands: _Candidates, key: tuple, fanins: tuple, invert: int) -> tuple:
+    """An AND node; past NODE_FANIN_MAX (16) fan-ins, an AND of AND nodes over balanced
+    slices (the tree table then never grows past that width: a 38-term sum
+    would take seconds to tabulate and gains nothing from one flat tree)."""
+    if len(fanins) > NODE_FANIN_MAX:
+        parts = -(-len(fanins) // NODE_FANIN_MAX)
+        size = -(-len(fanins) // parts)
+        slices = [fanins[i:i + size] for i in range(0, len(fanins), size)]
+        fanins = tuple((_and_node(cands, ("a", piece), piece, 0), 0) for piece in slices)
+    return cands.node(key, fanins, invert)
+
+
 def _term(cands: _Candidates, cube: tuple[int, int], nvars: int) -> tuple[tuple, int]:
     """The net (and complement flag) carrying one product term."""
     vars_ = _cube_vars(cube, nvars)
     if len(vars_) == 1:
         return _literal_net(cube, nvars)
     fanins = tuple((("v", i), 0 if cube[1] >> i & 1 else 1) for i in vars_)
-    return cands.node(("t", cube), fanins, 0), 0
+    return _and_node(cands, ("t", cube), fanins, 0), 0
 
 
 def _sum(cands: _Candidates, terms: Sequence[tuple[tuple, int]]) -> tuple[tuple, int]:
@@ -727,7 +749,7 @@ def _sum(cands: _Candidates, terms: Sequence[tuple[tuple, int]]) -> tuple[tuple,
     if len(terms) == 1:
         return terms[0]
     fanins = tuple(sorted((net, c ^ 1) for net, c in terms))
-    return cands.node(("s", fanins), fanins, 1), 0
+    return _and_node(cands, ("s", fanins), fanins, 1), 0
 
 
 @dataclass(frozen=True)
@@ -1298,6 +1320,83 @@ def _gate_lower_bound(problem: _Problem, kinds: Sequence[_SatKind]) -> float:
     return bound
 
 
+def _monotone_possible(sig: _Signal, nvars: int, low: bool) -> bool:
+    """Whether some completion of the delivered level is monotone increasing in the
+    counter bits (all a bin without any inverting unit can make from them)."""
+    on = sig.care - sig.on if low else sig.on
+    off = sig.care - on
+    covered = bytearray(1 << nvars)
+    for m in on:
+        covered[m] = 1
+    for i in range(nvars):
+        bit = 1 << i
+        for m in range(1 << nvars):
+            if m & bit and covered[m ^ bit]:
+                covered[m] = 1
+    return not any(covered[m] for m in off)
+
+
+def _part_profiles(cells: Sequence[Cell]) -> dict[str, tuple[int, float, bool, int]]:
+    """Per part type: (logic units per chip, widest fan-in, can invert, chips on hand)."""
+    profiles: dict[str, tuple[int, float, bool, int]] = {}
+    for c in cells:
+        if c.op in AND_FORM:
+            width: float = c.width
+        elif c.op in ("xor", "xnor"):
+            width = 2
+        elif c.op in ("not", "buf"):
+            width = 1
+        else:                      # wide muxes and decoders: no fan-in argument applies
+            width = float("inf")
+        inverts = c.op in ("not", "nand", "nor", "xor", "xnor", "mux", "decoder", "spdt") or c.output_inv
+        upc, w, inv, chips = profiles.get(c.part, (0, 0, False, c.chips))
+        profiles[c.part] = (max(upc, c.units_per_chip), max(w, width), inv or inverts, chips)
+    return profiles
+
+
+def _counting_bounds(problem: _Problem, cells: Sequence[Cell], max_chips: int = 6) -> tuple[float, float]:
+    """Lower bounds on (chips, gates) for any circuit of the bin, by counting.
+
+    A signal that depends on s counter bits needs a tree of gates joining
+    them (at least ceil((s-1)/(w-1)) gates of fan-in <= w), distinct signals
+    need distinct output gates, and a signal no monotone function delivers
+    needs an inverting unit.  The chip bound is the fewest chips of which some
+    choice from the bin passes all three tests.
+    """
+    profiles = _part_profiles(cells)
+    if not profiles:
+        return float("inf"), float("inf")
+    n = problem.nvars
+    distinct = len({(s.on, s.care) for s in problem.signals})
+    widest_support = max((len(_needed_support(s, n)) for s in problem.signals), default=0)
+    needs_inversion = any(
+        not any(_monotone_possible(s, n, low) for low in ((False, True) if s.polarity == "free"
+                                                          else (s.polarity == "low",)))
+        for s in problem.signals)
+
+    def gates_needed(width: float) -> float:
+        if widest_support <= 1:
+            return max(distinct, 1)
+        if width <= 1:
+            return float("inf")
+        tree = 1 if width == float("inf") else -(-(widest_support - 1) // int(width - 1))
+        return max(distinct, tree)
+
+    overall_gates = gates_needed(max(p[1] for p in profiles.values()))
+    types = sorted(profiles)
+    for count in range(1, max_chips + 1):
+        for combo in itertools.combinations_with_replacement(types, count):
+            if any(combo.count(t) > profiles[t][3] for t in set(combo)):
+                continue
+            units = sum(profiles[t][0] for t in combo)
+            width = max(profiles[t][1] for t in combo)
+            if needs_inversion and not any(profiles[t][2] for t in combo):
+                continue
+            if units >= gates_needed(width):
+                return count, overall_gates
+    return max_chips + 1, overall_gates
+
+
 class _ExactInstance:
     """Is there a circuit of exactly k gates (every gate used) for all signals?"""
 
@@ -1349,6 +1448,7 @@ class _ExactInstance:
                         cnf.add([-tc, self.sel[i][s][0]])
                 self._function(tc, kind, [u[s] for s in range(kind.width)], self.v[i], M)
                 self._symmetry(tc, kind, self.sel[i])
+        self._order_gates(base, W)
         users = [[self.sel[i2][s][base + i] for i2 in range(i + 1, k) for s in range(W)]
                  for i in range(k)]
         self.out: dict[str, list[int]] = {}
@@ -1364,6 +1464,22 @@ class _ExactInstance:
                 unit_lits.setdefault(kind.cell, []).append(self.t[i][c])
         self.costing = _add_costing(cnf, cells, unit_lits)
         self.unit_lits = unit_lits
+
+    def _order_gates(self, base: int, W: int) -> None:
+        """Symmetry break: a gate that does not read the gate just before it has a
+        first input no lower than that gate's.  Sound: list the gates greedily,
+        always the ready gate with the lowest first input; two neighbours where
+        the later does not read the earlier were both ready, so they obey it."""
+        cnf = self.cnf
+        for i in range(self.k - 1):
+            reads = cnf.new()
+            cnf.add([-reads] + [self.sel[i + 1][s][base + i] for s in range(W)])
+            for s in range(W):
+                cnf.add([reads, -self.sel[i + 1][s][base + i]])
+            first, following = self.sel[i][0], self.sel[i + 1][0]
+            for j, lit in enumerate(first):
+                for j2 in range(min(j, len(following))):
+                    cnf.add([-lit, -following[j2], reads])
 
     def _function(self, tc: int, kind: _SatKind, u: list[list[int]], v: list[int], M) -> None:
         add = self.cnf.add
@@ -1450,16 +1566,23 @@ class _ExactInstance:
         units = {ci: sum(1 for lit in lits if lit in truth) for ci, lits in self.unit_lits.items()}
         return sum(_chips_from_units(units, self.cells).values())
 
-    def solve(self, deadline: float):
+    def solve(self, deadline: float, floor: float = 1, ceiling: int | None = None):
+        """A k-gate circuit with the fewest chips: (model, finished, (chips, k)).
+
+        ``floor``: no k-gate circuit can take fewer chips; ``ceiling``: only
+        circuits of at most that many chips are of interest (the incumbent's).
+        """
         solver = _new_solver(self.cnf.clauses)
         try:
-            result = _solve(solver, [], deadline)
+            counters = self.costing.chip_count
+            cap = [-counters[ceiling]] if ceiling is not None and ceiling < len(counters) else []
+            result = _solve(solver, cap, deadline)
             if not result:
                 return None, result is False, None
             model = solver.get_model()
             chips = self.chips(model)
             done = True
-            while chips > 1:
+            while chips > max(1, floor):
                 answer = _solve(solver, [-self.costing.chip_count[chips - 1]], deadline)
                 if answer is None:
                     done = False
@@ -1537,7 +1660,7 @@ def _exact_search(problem: _Problem, cells: Sequence[Cell], deadline: float,
             floor = lb if bound is None else min(bound[0], lb)
             return best, False, floor
         instance = _ExactInstance(problem, cells, kinds, int(k))
-        model, done, cost = instance.solve(deadline)
+        model, done, cost = instance.solve(deadline, floor=lb, ceiling=bound[0] if bound else None)
         if model is None:
             if not done:
                 floor = lb if bound is None else min(bound[0], lb)
@@ -1565,6 +1688,7 @@ class _Eval:
     nodes: list[int]
     z: dict[int, tuple[int, ...]]
     inverters: dict[tuple, int]
+    units: tuple[int, ...] = ()
 
 
 def _tree_menu(trees: Sequence[_Tree], ncells: int) -> list[_Tree]:
@@ -1576,6 +1700,12 @@ def _tree_menu(trees: Sequence[_Tree], ncells: int) -> list[_Tree]:
             spare = sorted((t for t in trees if t.b == b), key=lambda t: (t.units[c], t.gates, t.depth))[:2]
             menu += [t for t in spare if t not in menu]
     return menu
+
+
+def _part_way(deadline: float, share: float) -> float:
+    """A deadline ``share`` of the way from now to ``deadline``."""
+    now = time.monotonic()
+    return now + max(0.0, deadline - now) * share
 
 
 class _LocalSearch:
@@ -1681,7 +1811,7 @@ class _LocalSearch:
         overflow = sum(max(0, u - c.capacity) for u, c in zip(units, cells))
         chips = sum(_chips_from_units(dict(enumerate(units)), cells).values())
         gates = sum(units)
-        return _Eval((overflow, chips, gates, depth), (chips, gates), order, z, inverters)
+        return _Eval((overflow, chips, gates, depth), (chips, gates), order, z, inverters, tuple(units))
 
     def _place_inverters(self, units: list[int], nets: list[tuple]) -> dict[tuple, int] | None:
         """Spare units of chips already opened first, then the cell that opens fewest chips."""
@@ -1715,12 +1845,17 @@ class _LocalSearch:
         """The best selection found, and how far it overflows the bin (0 = fits).
 
         First climbs as if the bin were unlimited (the structure), then with
-        the bin's limits first (the repair).
+        the bin's limits first (the repair).  A node no gate of the bin can
+        build (no AND-like gate at all) leaves only the options without it.
         """
+        if any(not menu for menu in self.trees.values()):
+            return None, 0
         best = self._initial()
         if best is None:
             return None, 0
-        best = self._climb(best, lambda e: e.key[1:], deadline)
+        if best.key[0]:            # over the bin from the start: repair first, then refine
+            best = self._climb(best, lambda e: e.key, _part_way(deadline, 0.5))
+        best = self._climb(best, lambda e: e.key[1:], _part_way(deadline, 0.5))
         if best.key[0]:
             best = self._climb(best, lambda e: e.key, deadline)
         return self._chosen(best), best.key[0]
@@ -1777,6 +1912,39 @@ class _LocalSearch:
                 self.opt[sig.name] = next((i for i, o in enumerate(options)
                                            if o.kind != "mux" or o.polarity == sig.polarity), 0)
         best = self.evaluate(self.opt, self.phi, self.tree)
+        if best is not None and best.key[0]:
+            best = self._relieve(best)
+        return best
+
+    def _relieve(self, best: _Eval) -> _Eval:
+        """Greedy repair of a design over the bin: node by node, the tree that most
+        lowers the summed overflow at the running unit counts, then one evaluation
+        (one move per evaluation is too slow when a design overflows by hundreds)."""
+        caps = [c.capacity for c in self.cells]
+        for _ in range(3):
+            if not best.key[0]:
+                break
+            units = list(best.units)
+
+            def overflow_with(old: tuple, new: tuple) -> int:
+                return sum(max(0, u - o + w - cap) - max(0, u - cap)
+                           for u, o, w, cap in zip(units, old, new, caps) if o != w)
+
+            trial = dict(self.tree)
+            for n in best.nodes:
+                menu = self.trees[n]
+                current = menu[trial[n]]
+                if not any(u > cap for u, w, cap in zip(units, current.units, caps) if w):
+                    continue
+                pick = min(range(len(menu)), key=lambda i: (
+                    overflow_with(current.units, menu[i].units), menu[i].b != current.b, menu[i].gates))
+                if overflow_with(current.units, menu[pick].units) < 0:
+                    units = [u - o + w for u, o, w in zip(units, current.units, menu[pick].units)]
+                    trial[n] = pick
+            result = self.evaluate(self.opt, self.phi, trial)
+            if result is None or result.key >= best.key:
+                break
+            self.tree, best = trial, result
         return best
 
     def _chosen(self, best: _Eval) -> _Chosen:
@@ -1808,10 +1976,62 @@ def _select(problem: _Problem, forms: dict[str, list[_Form]], lib: Library,
         return None, proven
     builder = _Builder(problem, cands, cells, table, chosen)
     signals = {sig.name: builder.signal(sig) for sig in problem.signals}
-    gates = builder.finish()
+    gates = _tidy(builder.finish(), signals)
     units = _units_of(gates, lib)
     cost = (sum(_chips_from_units(units, cells).values()), len(gates))
     return _Result(gates, signals, cost, False, "structure selection"), proven
+
+
+SYMMETRIC_OPS = ("and", "nand", "or", "nor", "xor", "xnor")
+
+
+def _inverted_net(gate: Gate) -> str | None:
+    """The net a gate merely inverts (NOT, NAND/NOR with joined or neutral-tied inputs)."""
+    if gate.op == "not":
+        return gate.inputs[0]
+    if gate.op in ("nand", "nor") and len(gate.outputs) == 1:
+        neutral = "VDD" if gate.op == "nand" else "VSS"
+        live = {n for n in gate.inputs if n != neutral}
+        if len(live) == 1 and live != {"VDD", "VSS"} and not live & {"VDD", "VSS"}:
+            return next(iter(live))
+    return None
+
+
+def _tidy(gates: list[Gate], signals: dict[str, SignalOut]) -> list[Gate]:
+    """Structural clean-up of a built network: one gate per distinct (part, op,
+    inputs), a double inversion read from its source, no gate nobody reads.
+    Each step keeps every net's logic value, so the verification still holds."""
+    gates = list(gates)
+    while True:
+        rename: dict[str, str] = {}
+        seen: dict[tuple, str] = {}
+        driver = {g.outputs[0]: g for g in gates if len(g.outputs) == 1 and g.outputs[0]}
+        for g in gates:
+            if len(g.outputs) != 1 or not g.outputs[0]:
+                continue
+            key = (g.part, g.op, tuple(sorted(g.inputs)) if g.op in SYMMETRIC_OPS else g.inputs)
+            if key in seen:
+                rename[g.outputs[0]] = seen[key]
+                continue
+            seen[key] = g.outputs[0]
+            source = _inverted_net(g)
+            inner = driver.get(source) if source else None
+            if inner is not None and _inverted_net(inner) is not None:
+                rename[g.outputs[0]] = _inverted_net(inner)
+        if rename:
+            def final(net: str) -> str:
+                while net in rename:
+                    net = rename[net]
+                return net
+            gates = [replace(g, inputs=tuple(final(n) for n in g.inputs)) for g in gates
+                     if not (len(g.outputs) == 1 and g.outputs[0] in rename)]
+            for name, out in list(signals.items()):
+                signals[name] = SignalOut(final(out.net), out.polarity)
+        read = {n for g in gates for n in g.inputs} | {s.net for s in signals.values()}
+        alive = [g for g in gates if any(n and n in read for n in g.outputs)]
+        if not rename and len(alive) == len(gates):
+            return gates
+        gates = alive
 
 
 SELECTION_MAX_TREES = 6000   # tree variables beyond which only the local search runs
@@ -1882,7 +2102,28 @@ def _covers(problem: _Problem, functions, cover, nvars: int, exact: str) -> list
             others.append(Function(name, sig.care - sig.on, frozenset(f.dc)))
     second = minimize(others, nvars, exact=mode)
     flipped = {n for n in names if first.phases.get(n) != "complement"}
-    return [first, _Flipped(second, flipped)]
+    covers = [first, _Flipped(second, flipped)]
+    if 1 < len(names) <= SOLO_COVERS_MAX:
+        covers += _solo_covers(problem, by_name, nvars, mode)
+    return covers
+
+
+SOLO_COVERS_MAX = 8     # signals up to which each is also minimized alone, in both phases
+
+
+def _solo_covers(problem: _Problem, by_name, nvars: int, mode: str) -> list:
+    """Each signal minimized on its own, both phases: a shared multi-output cover
+    can give one signal terms that only pay off for others (``(Q0+Q1+Q2+Q3)'``
+    is one OR, not five shared terms)."""
+    from .minimize import Function, minimize
+
+    covers = []
+    for sig in problem.signals:
+        dc = frozenset(by_name[sig.name].dc)
+        covers.append(minimize([Function(sig.name, sig.on, dc)], nvars, exact=mode))
+        complement = minimize([Function(sig.name, sig.care - sig.on, dc)], nvars, exact=mode)
+        covers.append(_Flipped(complement, frozenset({sig.name})))
+    return covers
 
 
 @dataclass(frozen=True)
@@ -1910,13 +2151,16 @@ class _Flipped:
 
 def map_design(functions, nvars: int, var_nets: Sequence[str], library: Library, *,
                polarity: Mapping[str, str], cover=None, exact: str = "auto",
-               time_limit: float = 10.0) -> Network:
+               time_limit: float = 10.0, glitch_free: Iterable[str] = ()) -> Network:
     """Cover the decode functions with the bin's gates: fewest chips, then gates, then depth.
 
     ``exact``: 'auto' runs exact synthesis on small designs, 'yes' on any
     design (within ``time_limit``), 'no' never.  Raises ``ShortError`` when
     the bin cannot realise a signal, naming what is short and one part that
-    would fix it.
+    would fix it.  ``glitch_free`` names signals (an asynchronous counter
+    reset) that must not pulse while a single counter bit changes: an exact
+    synthesis circuit with such a static hazard gives way to the structure
+    selection's two-level-derived one.
     """
     if exact not in ("auto", "yes", "no"):
         raise UsageError(f"expected exact to be auto, yes or no, got {exact!r}")
@@ -1941,6 +2185,13 @@ def map_design(functions, nvars: int, var_nets: Sequence[str], library: Library,
     if run_exact:
         incumbent = result.cost if result else None
         exact_result, proven, lower = _exact_search(problem, lib.cells, start + time_limit * 0.95, incumbent)
+        if exact_result is not None and glitch_free and _static_hazards(
+                exact_result.gates, exact_result.signals, glitch_free, every, var_nets):
+            if result is None:
+                raise _shortage(problem, forms, lib, start + time_limit)
+            notes.append("exact synthesis: its circuit could pulse " + ", ".join(sorted(glitch_free)) +
+                         " on a single counter step; the glitch-free structure is used")
+            exact_result, proven = None, False
         if exact_result is not None:
             result = exact_result
         if result is not None and proven and _exact_complete(lib.cells):
@@ -1961,12 +2212,70 @@ def map_design(functions, nvars: int, var_nets: Sequence[str], library: Library,
     signals.update(result.signals)
     gates = _name_signal_nets(result.gates, signals, set(var_nets))
     chips = chips_of(gates, lib)
-    lb = result.cost[0] if result.proven else max(1, min(int(lower), result.cost[0]))
+    chip_floor, gate_floor = _counting_bounds(problem, lib.cells)
+    if not result.proven and result.cost[0] <= chip_floor and result.cost[1] <= gate_floor:
+        result.proven = True
+        notes.append("counting bound: no circuit of the bin has fewer chips or gates "
+                     "(fan-in, distinct outputs, inversion)")
+    lb = result.cost[0] if result.proven else max(1, min(max(int(lower), int(min(chip_floor, 10 ** 6))),
+                                                          result.cost[0]))
     method = ("exact synthesis" if result.method == "exact synthesis" else "structure selection") + \
         (": proven minimal" if result.proven else ": best found")
     network = Network(gates, signals, tuple(var_nets), chips, result.proven, lb, method, notes)
     _verify(network, every, nvars, lib)
     return network
+
+
+def _ternary_levels(gates: Sequence[Gate], inputs: Mapping[str, bool | None]) -> dict[str, bool | None]:
+    """Every net's level with some inputs unknown (None): a gate whose output the
+    unknown inputs can move is unknown (Eichelberger's ternary simulation)."""
+    values: dict[str, bool | None] = {"VDD": True, "VSS": False, **inputs}
+    pending = list(gates)
+    while pending:
+        rest = []
+        for gate in pending:
+            if not all(n in values for n in gate.inputs):
+                rest.append(gate)
+                continue
+            unknown = sorted({n for n in gate.inputs if values[n] is None})
+            outcomes: dict[str, set] = {}
+            for bits in itertools.product((False, True), repeat=len(unknown)):
+                trial = {n: values[n] for n in gate.inputs}
+                trial.update(zip(unknown, bits))
+                for net, level in evaluate_gate(gate, trial).items():
+                    outcomes.setdefault(net, set()).add(level)
+            for net, levels in outcomes.items():
+                values[net] = levels.pop() if len(levels) == 1 else None
+        if len(rest) == len(pending):
+            raise InternalError("the mapped network has a loop")
+        pending = rest
+    return values
+
+
+def _static_hazards(gates: Sequence[Gate], signals: Mapping[str, SignalOut], names: Iterable[str],
+                    every: Sequence[_Signal], var_nets: Sequence[str]) -> list[str]:
+    """Signals that may pulse to their asserted level while one counter bit changes
+    between two cared-for states where they stay unasserted (a reset would fire)."""
+    by_name = {s.name: s for s in every}
+    found = []
+    for name in names:
+        sig, out = by_name.get(name), signals.get(name)
+        if sig is None or out is None or out.net in ("VDD", "VSS") or out.net in var_nets:
+            continue
+        quiet = sorted(sig.care - sig.on)
+        quiet_set = set(quiet)
+        for m in quiet:
+            for i in range(len(var_nets)):
+                other = m ^ (1 << i)
+                if other < m or other not in quiet_set:
+                    continue
+                inputs = {net: (None if j == i else bool(m >> j & 1)) for j, net in enumerate(var_nets)}
+                if _ternary_levels(gates, inputs).get(out.net, False) is None:
+                    found.append(name)
+                    break
+            if found and found[-1] == name:
+                break
+    return found
 
 
 def _exact_complete(cells: Sequence[Cell]) -> bool:
@@ -2051,7 +2360,8 @@ def _shortage(problem: _Problem, forms: dict[str, list[_Form]], lib: Library, de
             reason = "no part in the bin can invert a signal (no inverter, NAND, NOR, XOR or mux)"
         else:
             reason = "the bin's gate kinds cannot form these functions"
-        fix = _one_part_fix(problem, forms, lib, deadline, prefer_inverting=True)
+        has_gates = any(c.op in AND_FORM and c.width >= 2 for c in lib.cells)
+        fix = _one_part_fix(problem, forms, lib, deadline, prefer_inverting=has_gates)
     else:
         need = chips_of(plenty.gates, roomy)
         short = [f"{n} x {p} (the bin has {lib.available.get(p, 0)})"
@@ -2100,6 +2410,9 @@ def _fix_candidates(lib: Library, prefer_inverting: bool) -> list[str]:
         kind = 0 if "not" in ops and not any(c.schmitt for c in cells) else \
             1 if ops & {"nand", "nor"} else 2 if inverting else 3
         in_bin = part.type in lib.available
+        if not prefer_inverting and not any(c.op in AND_FORM and c.width >= 2 for c in lib.cells):
+            # no multi-input gate at all: a NAND/NOR chip both combines and inverts
+            return (0 if ops & {"nand", "nor"} else 1, not in_bin, part.type)
         if prefer_inverting:
             return (kind, not in_bin, part.type)
         return (not in_bin, kind, part.type)

@@ -1,7 +1,10 @@
 """What the bin lacks: the one extra chip type that would shrink a finished plan.
 
 Interface: ``Suggestion`` (one re-planned alternative), ``BinLacks`` (the
-answer and how far the search went) and ``bin_lacks(design, *, budget=...)``.
+answer and how far the search went), ``start_search(...) -> Search`` (begun
+before the plan's own mapping, on the machine's other core) with
+``Search.finish(design) -> BinLacks``, and ``bin_lacks(design, *, budget)``
+(the same search run in this process, after the fact).
 
 The answer is never guessed from part names: every candidate part type is
 added to the bin (one chip of it) and the plan's decode is mapped again by
@@ -14,18 +17,22 @@ itself and is outside this search.
 Candidates are the logic part types (gates, inverters, muxes, decoders) of
 the bin's own families that suit the supply, one per distinct set of units
 (a 4011 and a 74HC00 offer the same four NAND2 at 5 V), kinds the bin lacks
-first.  The search stops at ``budget`` seconds and says how many candidate
-types it tried; a candidate's mapping is a quick one (no exact search), so a
-reported saving is real but a missed one is possible.
+first; types the plan leaves chips of unused cannot help and are not judged.
+The search stops at ``budget`` seconds and says how many candidate types it
+re-planned; a candidate's mapping is a quick one (no exact search), so a
+reported saving is real but a missed one is possible.  Where the platform can
+fork, the search runs in a child process started before the plan's own
+mapping, so on two cores it costs little wall time.
 """
 
 from __future__ import annotations
 
 import time
 from dataclasses import dataclass, field
+from typing import Any
 
 LOGIC_CATEGORIES = ("gate", "inverter", "mux", "decoder")
-DEFAULT_BUDGET = 3.0     # seconds for the whole search (plan's default)
+DEFAULT_BUDGET = 1.0     # seconds from the search's start (plan's default)
 PER_TRY = 0.35           # seconds of structure search per candidate
 
 
@@ -82,11 +89,16 @@ class BinLacks:
     def text(self) -> str:
         if self.skipped:
             return f"what the bin lacks: {self.skipped}"
-        reach = ("every candidate part type" if self.complete
-                 else f"{self.tried} of {self.candidates} candidate part types (time budget)")
+        more = "; --lacks SECONDS searches longer"
+        if self.best is None and self.complete:
+            return ("what the bin lacks: no single extra chip type would shrink this plan "
+                    f"(all {self.candidates} candidate part types re-planned)")
         if self.best is None:
-            return f"what the bin lacks: no single extra chip type would shrink this plan ({reach} re-planned)"
-        return f"what the bin lacks: {self.best.sentence(self.total_chips)} ({reach} re-planned)"
+            return (f"what the bin lacks: no saving found in the time budget ({self.tried} of "
+                    f"{self.candidates} candidate part types re-planned{more})")
+        reach = (f"all {self.candidates} candidate part types re-planned" if self.complete
+                 else f"{self.tried} of {self.candidates} candidate part types re-planned{more}")
+        return f"what the bin lacks: {self.best.sentence(self.total_chips)} ({reach})"
 
     def to_json(self) -> dict:
         return {"best": self.best.to_json(self.total_chips) if self.best else None,
@@ -95,44 +107,155 @@ class BinLacks:
                 "skipped": self.skipped or None}
 
 
-def bin_lacks(design, *, budget: float = DEFAULT_BUDGET, per_try: float = PER_TRY) -> BinLacks:
-    """Re-map the plan's decode with each candidate part type added; keep the best saving."""
+@dataclass(frozen=True)
+class _Inputs:
+    """What the plan's mapper saw, so a candidate is mapped exactly as the plan was."""
+
+    functions: Any
+    nvars: int
+    var_nets: tuple
+    library: Any
+    polarity: dict
+    cover: Any
+    glitch_free: tuple
+    candidates: tuple
+
+
+def _remap(inputs: _Inputs, part: str, per_try: float) -> tuple[dict, int] | None:
+    """(logic chips by part, gates) with one more ``part`` chip; None if it cannot map."""
     from .errors import SynthError
     from .techmap import map_design
 
-    start = time.monotonic()
+    try:
+        network = map_design(inputs.functions, inputs.nvars, list(inputs.var_nets),
+                             inputs.library.with_extra(part), polarity=inputs.polarity,
+                             cover=inputs.cover, exact="no", time_limit=per_try,
+                             glitch_free=inputs.glitch_free)
+    except SynthError:
+        return None
+    return dict(network.chips), len(network.gates)
+
+
+def _child(conn, inputs: _Inputs, per_try: float) -> None:
+    """The forked worker: one message per candidate, then None."""
+    try:
+        for part in inputs.candidates:
+            conn.send((part, _remap(inputs, part, per_try)))
+    except Exception:          # the parent treats a dead worker as the end of the search
+        pass
+    finally:
+        try:
+            conn.send(None)
+        finally:
+            conn.close()
+
+
+class Search:
+    """A what-the-bin-lacks search under way (in a child process, or deferred)."""
+
+    def __init__(self, inputs: _Inputs, decode: Any, budget: float, per_try: float) -> None:
+        self.inputs, self.decode, self.budget, self.per_try = inputs, decode, budget, per_try
+        self.start = time.monotonic()
+        self.results: list[tuple[str, tuple[dict, int] | None]] = []
+        self.process = self.conn = None
+        try:
+            import multiprocessing
+
+            ctx = multiprocessing.get_context("fork")
+        except (ValueError, ImportError):
+            return                          # no fork here: run in finish()
+        receiver, sender = ctx.Pipe(duplex=False)
+        self.process = ctx.Process(target=_child, args=(sender, inputs, per_try), daemon=True)
+        self.process.start()
+        sender.close()
+        self.conn = receiver
+
+    def _collect(self) -> None:
+        deadline = self.start + self.budget
+        if self.process is None:
+            for part in self.inputs.candidates:
+                if time.monotonic() >= deadline:
+                    break
+                self.results.append((part, _remap(self.inputs, part, self.per_try)))
+            return
+        try:
+            while True:
+                left = deadline - time.monotonic()
+                if left <= 0 or not self.conn.poll(left):
+                    break
+                message = self.conn.recv()
+                if message is None:
+                    break
+                self.results.append(message)
+        except (EOFError, OSError):
+            pass
+        finally:
+            self.conn.close()
+            if self.process.is_alive():
+                self.process.terminate()
+            self.process.join(1.0)
+
+    def cancel(self) -> None:
+        """Stop the worker (the plan failed; nothing to judge)."""
+        if self.process is not None and self.process.is_alive():
+            self.process.terminate()
+            self.process.join(1.0)
+        if self.conn is not None:
+            self.conn.close()
+
+    def finish(self, design: Any) -> "BinLacks":
+        """Gather what the search found in its budget and judge it against the plan."""
+        self._collect()
+        seconds = time.monotonic() - self.start
+        total = len(design.plan.chips)
+        n = len(self.inputs.candidates)
+        if getattr(design.plan, "strobed", None) or design.decode is not self.decode:
+            # --fix glitches re-derived the decode or added gating gates: no like-for-like baseline
+            return BinLacks(None, 0, n, seconds, total, [],
+                            skipped="not searched: --fix glitches changed the design")
+        return _judge(design, self.inputs, self.results, seconds)
+
+
+def start_search(decode: Any, counter_plan: Any, library: Any, polarity: dict, stock: Any,
+                 catalog: Any, *, glitch_free: tuple = (), budget: float = DEFAULT_BUDGET,
+                 per_try: float = PER_TRY) -> Search:
+    """Begin re-mapping the decode with each candidate part added (see the module text)."""
+    inputs = _Inputs(decode.functions, len(counter_plan.vars), tuple(v.net for v in counter_plan.vars),
+                     library, dict(polarity), decode.cover, tuple(glitch_free),
+                     tuple(candidate_parts(stock, catalog, library)))
+    return Search(inputs, decode, budget, per_try)
+
+
+def bin_lacks(design, *, budget: float = DEFAULT_BUDGET, per_try: float = PER_TRY) -> BinLacks:
+    """The same search for a finished design, run here and now (tests, scripts)."""
+    from .pipeline import _async_reset_names
+
     library, polarity = _mapping_inputs(design)
+    search = start_search(design.decode, design.counter, library, polarity, design.stock,
+                          design.catalog, glitch_free=_async_reset_names(design.counter),
+                          budget=budget, per_try=per_try)
+    return search.finish(design)
+
+
+def _judge(design: Any, inputs: _Inputs, results, seconds: float) -> BinLacks:
+    """Savings of each re-mapped candidate over the plan's own logic chips, then gates."""
     now_chips = sum(design.network.chips.values())
     now_gates = len(design.network.gates)
-    total_chips = len(design.plan.chips)
-    candidates = candidate_parts(design, library)
-    found: list[Suggestion] = []
-    tried = 0
-    if getattr(design.plan, "strobed", None):
-        # clock gating added gates the decode alone does not have: no like-for-like baseline
-        return BinLacks(None, 0, len(candidates), time.monotonic() - start, total_chips, [],
-                        skipped="not searched: --fix glitches gated signals with the clock")
-    if design.network.gates:
-        for part in candidates:
-            if time.monotonic() - start >= budget:
-                break
-            tried += 1
-            try:
-                network = map_design(design.decode.functions, len(design.counter.vars),
-                                     [v.net for v in design.counter.vars], library.with_extra(part),
-                                     polarity=polarity, cover=design.decode.cover, exact="no",
-                                     time_limit=per_try)
-            except SynthError:
-                continue
-            with_chips, with_gates = sum(network.chips.values()), len(network.gates)
-            if (with_chips, with_gates) < (now_chips, now_gates) and part in network.chips:
-                found.append(Suggestion(part, design.catalog.parts[part].function, now_chips, with_chips,
-                                        now_gates, with_gates, dict(network.chips)))
-    else:
-        tried = len(candidates)
+    spare = _spare_part_types(design, inputs.library)
+    found = []
+    for part, outcome in results:
+        if outcome is None or part in spare or not design.network.gates:
+            continue
+        chips, gates = outcome
+        if (sum(chips.values()), gates) < (now_chips, now_gates) and part in chips:
+            found.append(Suggestion(part, design.catalog.parts[part].function, now_chips,
+                                    sum(chips.values()), now_gates, gates, chips))
     found.sort(key=lambda s: (-s.saving[0], -s.saving[1], s.part))
-    return BinLacks(found[0] if found else None, tried, len(candidates), time.monotonic() - start,
-                    total_chips, found[1:4])
+    judged = [p for p in inputs.candidates if p not in spare]
+    tried = len(judged) if not design.network.gates else \
+        len([p for p, _ in results if p not in spare])
+    return BinLacks(found[0] if found else None, tried, len(judged), seconds,
+                    len(design.plan.chips), found[1:4])
 
 
 def _mapping_inputs(design):
@@ -148,27 +271,23 @@ def _mapping_inputs(design):
     return library, polarity
 
 
-def candidate_parts(design, library) -> list[str]:
+def candidate_parts(stock, catalog, library) -> list[str]:
     """Logic part types worth adding: one per distinct unit set, kinds the bin lacks first."""
     from .techmap import cells_of_part
 
-    catalog, supply = design.catalog, design.stock.supply
-    families = {catalog.parts[p].family for p in design.stock.parts} or {"4000B"}
+    supply = stock.supply
+    families = {catalog.parts[p].family for p in stock.parts} or {"4000B"}
     have = {(c.op, c.width, c.schmitt) for c in library.cells}
-    spare = _spare_part_types(design, library)
     seen: dict[tuple, str] = {}
     for part in sorted(catalog.parts.values(), key=lambda p: (p.family not in families, p.type)):
         if part.family not in families or part.category not in LOGIC_CATEGORIES or not part.suits(supply):
-            continue
-        if part.type in spare:
             continue
         cells = cells_of_part(part, 1, supply)
         if not any(c.mapped for c in cells):
             continue
         signature = tuple(sorted((c.op, c.width, c.units_per_chip, c.schmitt, c.selects) for c in cells))
         seen.setdefault(signature, part.type)
-    order = sorted(seen.values(), key=lambda p: (_is_known_kind(p, catalog, supply, have), p))
-    return order
+    return sorted(seen.values(), key=lambda p: (_is_known_kind(p, catalog, supply, have), p))
 
 
 def _spare_part_types(design, library) -> set[str]:

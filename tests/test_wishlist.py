@@ -66,11 +66,11 @@ def test_the_4012_is_also_offered_with_its_own_cost(nand_only):
     assert offered["4012"].gates_with == 2 and offered["4012"].logic_chips_with == 1
 
 
-def test_candidates_are_one_per_unit_set_and_skip_spare_types(nand_only):
+def test_candidates_are_one_per_unit_set_kinds_the_bin_lacks_first(nand_only):
     from synth.wishlist import _mapping_inputs
 
     library, _ = _mapping_inputs(nand_only)
-    parts = candidate_parts(nand_only, library)
+    parts = candidate_parts(nand_only.stock, nand_only.catalog, library)
     assert len(parts) == len(set(parts))
     assert all(nand_only.catalog.parts[p].family == "4000B" for p in parts)
     # the 4011 is fully used, so one more of it is a candidate; kinds the bin lacks come first
@@ -82,7 +82,7 @@ def test_a_plan_with_nothing_to_gain_says_so(tmp_path):
     stock = write(tmp_path, "and4.yaml", "parts:\n  4520: 1\n  4082: 1\n")
     lacks = bin_lacks(make_plan(spec, stock), budget=60)
     assert lacks.best is None
-    assert "no single extra chip type" in lacks.text()
+    assert "no single extra chip type would shrink" in lacks.text()
 
 
 def test_plan_json_carries_the_answer(tmp_path, capsys):
@@ -92,6 +92,23 @@ def test_plan_json_carries_the_answer(tmp_path, capsys):
     data = json.loads(capsys.readouterr().out)
     assert data["bin_lacks"]["best"]["part"] == "4082"
     assert data["bin_lacks"]["best"]["chips_with"] == 2
+
+
+def test_the_search_beside_the_plan_finds_the_same_answer(tmp_path):
+    # the forked search started before the plan's own mapping, given time to finish
+    spec = write(tmp_path, "count15.yaml", SPEC)
+    stock = write(tmp_path, "nands.yaml", "parts:\n  4520: 1\n  4011: 2\n")
+    design = make_plan(spec, stock, lacks=60)
+    assert design.lacks.complete and design.lacks.best.part == "4082"
+    assert design.plan.bin_lacks["best"]["logic_chips_with"] == 1
+
+
+def test_a_spare_chip_type_is_never_the_answer(tmp_path):
+    # a third 4011 is left unused by the plan: one more 4011 cannot help and is not judged
+    spec = write(tmp_path, "count15.yaml", SPEC)
+    stock = write(tmp_path, "nands.yaml", "parts:\n  4520: 1\n  4011: 3\n")
+    lacks = bin_lacks(make_plan(spec, stock), budget=60)
+    assert all(s.part != "4011" for s in [lacks.best, *lacks.others] if s)
 
 
 def test_lacks_zero_skips_the_search(tmp_path, capsys):

@@ -40,9 +40,16 @@ TOUR = [
      "binsynth plan examples/stepper.yaml --bin inventory/bins/stepper.yaml",
      ["plan", "examples/stepper.yaml", "--bin", "inventory/bins/stepper.yaml"], 62,
      ("what the bin lacks", "warning:", "remedy:")),
-    ("Substitute: the cheapest ways to build a gate the bin lacks from the gates it has.",
-     "binsynth substitute nand4 --bin inventory/bins/stepper.yaml",
-     ["substitute", "nand4", "--bin", "inventory/bins/stepper.yaml"], 40, ()),
+    ("Substitute: the cheapest ways to build a gate the bin lacks from the gates it has, ranked by "
+     "chips, then gates, then depth; each way is drawn as a cascade from the output back to the "
+     "inputs with the chip pin on every arrow, then wired net by net. A target is a gate name "
+     "(`and2`..`and8`, `nand..`, `or..`, `nor..`, `xor..`, `xnor..`, `inv`) or an expression over "
+     "named inputs: `~a`, `!a` or `a'` (not), `&` (and), `^` (xor), `|` or `+` (or), parentheses, "
+     "`0`/`1`; NOT binds tightest, then AND, XOR, OR. `--either-polarity` accepts the complement, "
+     "`--json` is for scripts; a misspelt gate gets the closest valid name (exit 2), a bin that "
+     "cannot build it says what is short (exit 3).",
+     "binsynth substitute nand4 --bin inventory/bins/stepper.yaml --limit 2",
+     ["substitute", "nand4", "--bin", "inventory/bins/stepper.yaml", "--limit", "2"], 40, ()),
     ("Delay: size an RC delay between two stages from the passives on hand.",
      "binsynth delay 50us --bin inventory/bins/sample_hold.yaml",
      ["delay", "50us", "--bin", "inventory/bins/sample_hold.yaml"], None, ()),

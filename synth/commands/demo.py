@@ -20,14 +20,13 @@ def run(args: argparse.Namespace) -> int:
     from ..inventory import data_path, example_path
     from ..pipeline import make_plan
     from ..render import Text, show
-    from .plan import find_what_bin_lacks, plan_blocks, write_outputs
+    from .plan import plan_blocks, write_outputs
 
     spec = example_path(f"{EXAMPLE}.yaml")
     stock = data_path("bins", f"{EXAMPLE}.yaml")
     out = Path(args.out)
     out.mkdir(parents=True, exist_ok=True)
-    design = make_plan(spec, stock)
-    find_what_bin_lacks(design, 2.0)
+    design = make_plan(spec, stock, lacks=1.0)
     files = argparse.Namespace(json=str(out / "plan.json"), wiring=str(out / "wiring.md"),
                                verilog=str(out / "plan.v"), vcd=str(out / "plan.vcd"),
                                svg=str(out / "timing.svg"), take=False)

@@ -36,9 +36,9 @@ def add_output_arguments(parser: argparse.ArgumentParser) -> None:
                         help="apply remedies: 'glitches' tries another decode choice, a synchronous "
                              "counter, then gating with the clock's still half (the signal is then "
                              "asserted only in the second half of each tick), and says what it did")
-    parser.add_argument("--lacks", type=seconds, default=2.0, metavar="SECONDS",
+    parser.add_argument("--lacks", type=seconds, default=1.0, metavar="SECONDS",
                         help="time for re-planning with one extra chip type to find what the bin "
-                             "lacks (default 2; 0 skips it)")
+                             "lacks, beside the plan's own search (default 1; 0 skips it)")
     parser.add_argument("--exact", choices=["auto", "yes", "no"], default="auto",
                         help="exact (proven) search where sizes allow (auto), always, or never")
 
@@ -47,8 +47,7 @@ def run(args: argparse.Namespace) -> int:
     from ..pipeline import make_plan
     from ..render import show
 
-    design = make_plan(args.spec, args.bin, exact=args.exact, fix=args.fix)
-    find_what_bin_lacks(design, args.lacks)
+    design = make_plan(args.spec, args.bin, exact=args.exact, fix=args.fix, lacks=args.lacks)
     to_stdout = args.json == "-"
     if not to_stdout:
         show(plan_blocks(design))
@@ -62,16 +61,6 @@ def seconds(text: str) -> float:
     if value < 0 or value != value:
         raise ValueError(text)
     return value
-
-
-def find_what_bin_lacks(design, budget: float) -> None:
-    """Re-plan with one extra chip type (wishlist) and keep the answer on the plan."""
-    if budget <= 0:
-        return
-    from ..wishlist import bin_lacks
-
-    design.lacks = bin_lacks(design, budget=budget)
-    design.plan.bin_lacks = design.lacks.to_json()
 
 
 def write_outputs(design, args) -> list[str]:
@@ -122,6 +111,8 @@ def summary_text(design) -> str:
     parts = ", ".join(f"{n} {role}" for role, n in sorted(roles.items()))
     if plan.proven_minimal:
         proof = "proven minimal"
+    elif plan.lower_bound is not None and plan.lower_bound == roles.get("logic"):
+        proof = "proven minimal (the lower bound is met), gates best found"
     else:
         bound = f", lower bound {plan.lower_bound} chips" if plan.lower_bound is not None else ""
         proof = f"best found{bound}"

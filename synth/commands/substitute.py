@@ -1,0 +1,82 @@
+"""``binsynth substitute TARGET --bin BIN``: build a gate the bin lacks from what it has.
+
+Interface: ``NAME``, ``HELP``, ``add_arguments(parser)``, ``run(args) -> int``;
+``substitute_blocks(target, ways, bin_path)`` (what a person sees) and
+``substitute_json(target, ways)`` (what a script reads).  The logic lives in
+``synth.substitute``.
+"""
+
+from __future__ import annotations
+
+import argparse
+
+NAME = "substitute"
+HELP = ("the cheapest ways to build a gate the bin lacks (nand4, and8, xor2, nor3, inv) or a "
+        "boolean expression ('a & ~b | c') from the bin's gates, with pin-level wiring")
+
+
+def add_arguments(parser: argparse.ArgumentParser) -> None:
+    parser.add_argument("target", help="a gate name (and2..and8, nand.., or.., nor.., xor.., xnor.., inv) "
+                                       "or an expression: ~ ! ' not, & and, ^ xor, | + or, parentheses")
+    parser.add_argument("--bin", required=True, metavar="BIN", help="the bin file (YAML)")
+    parser.add_argument("--supply", default="5", help="supply voltage, e.g. 5 or '10 V' (default 5)")
+    parser.add_argument("--either-polarity", action="store_true",
+                        help="accept the complement of the target (e.g. NAND4 where AND4 was asked)")
+    parser.add_argument("--limit", type=int, default=3, help="how many ways to show (default 3)")
+    parser.add_argument("--json", action="store_true", help="print JSON for scripts")
+
+
+def run(args: argparse.Namespace) -> int:
+    from ..errors import UsageError
+    from ..inventory import load_bin, load_catalog
+    from ..render import print_json, show
+    from ..substitute import parse_target, substitute
+    from ..techmap import build_library
+    from ..units import parse_quantity
+
+    target = parse_target(args.target)
+    try:
+        supply = parse_quantity(args.supply, "V")
+    except ValueError as exc:
+        raise UsageError(f"--supply: {exc}") from None
+    if supply <= 0:
+        raise UsageError(f"--supply: expected a positive voltage, got {args.supply!r}")
+    if args.limit < 1:
+        raise UsageError(f"--limit: expected at least 1, got {args.limit}")
+    catalog = load_catalog()
+    stock = load_bin(args.bin, catalog, supply)
+    library = build_library(stock, catalog)
+    ways = substitute(target, library, stock, either_polarity=args.either_polarity, limit=args.limit)
+    if args.json:
+        print_json(substitute_json(target, ways))
+    else:
+        show(substitute_blocks(target, ways, args.bin))
+    return 0
+
+
+def substitute_blocks(target, ways, bin_path: str) -> list:
+    from ..render import Table, Text
+    from ..substitute import draw_way, wiring_rows
+
+    inputs = ", ".join(f"{name} = bit {i}" for i, name in enumerate(target.inputs))
+    blocks: list = [Text(f"{target.text} from {bin_path}: {len(ways)} way(s), cheapest first "
+                         f"(chips, then gates, then depth); inputs {inputs}")]
+    for rank, way in enumerate(ways, start=1):
+        parts = ", ".join(f"{n} x {p}" for p, n in sorted(way.network.chips.items())) or "none"
+        proof = "proven minimal (chips, then gates)" if way.proven else \
+            f"best found with {', '.join(way.parts_offered)}"
+        blocks.append(Text(f"way {rank}: {way.chip_count} chip(s) ({parts}), {way.gates} gate(s), "
+                           f"depth {way.depth}; {proof}\n\n" + draw_way(way, target)))
+        blocks.append(Table(f"way {rank} wiring (every pin on a net; unused inputs tied)", ("net", "pins"),
+                            [list(row) for row in wiring_rows(way)]))
+    blocks.append(Text("caution: CMOS inputs must never float (every unused input above is tied); "
+                       "handle CMOS chips with ESD care; decouple each chip with 100 nF; stay inside "
+                       "the supply limits."))
+    return blocks
+
+
+def substitute_json(target, ways) -> dict:
+    from ..substitute import way_json
+
+    return {"format": "binsynth-substitute/1", "target": target.text, "inputs": list(target.inputs),
+            "ways": [way_json(way, target, rank) for rank, way in enumerate(ways, start=1)]}
