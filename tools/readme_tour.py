@@ -22,7 +22,10 @@ sys.path.insert(0, str(ROOT))
 
 BAD_BIN = "# a bin with a typo in a marking\nparts:\n  CD4999BE: 1\n  4040: 1\n"
 
-# (prose, shown command, argv after 'binsynth', head lines kept or None, tail prefixes kept)
+GLITCH_PROSE = ("Glitches: a ripple counter's outputs change one after another, so a decode can spike for a moment on a tick entry.  `plan` lists every such entry with its width, its cause and the analyses that found it (`found by`: the event simulation with transport delays at typical and worst-case catalog delays, with inertial delays, and the enumeration of the states the count passes through).  `--fix glitches` applies the remedies in order (another decode choice where a passed-through state is a don't-care, a synchronous counter from the bin, gating with the clock's still half; never for a switch select, which gating would throw over twice a tick), re-checks the plan tick by tick, re-analyses it, and says per signal what it did and what it cost; what no remedy removes gets a note.  RC delays between two stages are offered, never applied (shortened here):")
+
+# (prose, shown command, argv after 'binsynth', head lines kept or None (or the titles of
+# the output blocks to keep), tail prefixes kept)
 TOUR = [
     ("Look a part up: the package drawing, every pin and the datasheet facts with their sources.",
      "binsynth parts 4040", ["parts", "4040"], 34, ()),
@@ -40,6 +43,10 @@ TOUR = [
      "binsynth plan examples/stepper.yaml --bin inventory/bins/stepper.yaml",
      ["plan", "examples/stepper.yaml", "--bin", "inventory/bins/stepper.yaml"], 62,
      ("what the bin lacks", "warning:", "remedy:")),
+    (GLITCH_PROSE,
+     "binsynth plan examples/sample_hold.yaml --bin inventory/bins/sample_hold.yaml --fix glitches",
+     ["plan", "examples/sample_hold.yaml", "--bin", "inventory/bins/sample_hold.yaml", "--fix", "glitches"],
+     ("signals", "glitches", "glitch fixes", "offer"), ()),
     ("Substitute: the cheapest ways to build a gate the bin lacks from the gates it has, ranked by "
      "chips, then gates, then depth; each way is drawn as a cascade from the output back to the "
      "inputs with the chip pin on every arrow, then wired net by net. A target is a gate name "
@@ -64,7 +71,21 @@ def run(argv: list[str], cwd: Path) -> tuple[str, int]:
     return (done.stdout + done.stderr).rstrip("\n"), done.returncode
 
 
-def shorten(text: str, head: int | None, tail_prefixes: tuple[str, ...]) -> str:
+def keep_blocks(text: str, titles: tuple[str, ...], lines_per_block: int = 6, width: int = 120) -> str:
+    """Only the output blocks (blank-line separated) whose first line starts with a title."""
+    kept = []
+    for block in text.split("\n\n"):
+        lines = block.splitlines()
+        if not lines or not lines[0].startswith(titles):
+            continue
+        short = [line if len(line) <= width else line[: width - 4] + " ..." for line in lines]
+        kept.append("\n".join(short[:lines_per_block] + (["..."] if len(short) > lines_per_block else [])))
+    return "\n\n".join(kept)
+
+
+def shorten(text: str, head, tail_prefixes: tuple[str, ...]) -> str:
+    if isinstance(head, tuple):
+        return keep_blocks(text, head)
     lines = text.splitlines()
     if head is None or len(lines) <= head:
         return text
