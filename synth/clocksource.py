@@ -23,7 +23,9 @@ Where the oscillator goes, in order (each costs less than the next):
 The frequency is set with ``analog.schmitt_oscillator_design`` (thresholds
 from the catalog at the spec supply) or ``analog.counter_oscillator_design``
 (the part's ``oscillator_k``).  A pair that misses the wanted frequency by
-more than the tolerance is short (exit 3), as is a bin without any site.
+more than a tolerance the spec sets is short (exit 3), as is a bin without
+any site; without ``clock.tolerance`` the closest pair is built with a
+warning that names the value that would hit it.
 """
 
 from __future__ import annotations
@@ -189,6 +191,23 @@ def _short_values(design, wanted: float, tolerance: float, bin, given: bool) -> 
              f"{format_si(needed_r, 'Ω')} resistor (with {format_si(c, 'F')}) to the bin's lists")
 
 
+def _check_error(design, wanted: float, tolerance: float, bin, given: bool, warnings: list[str]) -> None:
+    """Off by more than the tolerance: exit 3 when the spec set it, else plan and warn.
+
+    With no ``clock.tolerance`` the 10 % is our assumption, not the user's
+    limit: the closest pair on hand is built and the warning names the value
+    that would hit the frequency (tick counts are unchanged, only time scales).
+    """
+    if abs(design.error) <= tolerance:
+        return
+    short = _short_values(design, wanted, tolerance, bin, given)
+    if given:
+        raise short
+    warnings.append(f"{short.message}; built with the closest pair anyway (every time in the spec "
+                    f"scales by the same factor); for the wanted frequency {short.hint}; set "
+                    "clock.tolerance to make this an error")
+
+
 def _schmitt_values(site: Site, part, spec, bin, tolerance: float, given: bool):
     thresholds = thresholds_at(part.thresholds, spec.supply)
     try:
@@ -316,8 +335,7 @@ def add_oscillator(plan, spec, bin, catalog) -> OscillatorPlan:
     warnings: list[str] = []
     if site.kind == "counter-stage":
         design = _counter_values(part, spec, bin)
-        if abs(design.error) > tolerance:
-            raise _short_values(design, wanted, tolerance, bin, given)
+        _check_error(design, wanted, tolerance, bin, given, warnings)
         ref, opened, pins = _wire_counter_stage(plan, site, part, design)
         r, c, rs, f_nom, thresholds = design.rt, design.ct, design.rs, design.freq_hz, None
         corners = []
@@ -334,8 +352,7 @@ def add_oscillator(plan, spec, bin, catalog) -> OscillatorPlan:
                             "(a square wave from VSS to VDD, from memory: check on the bench)")
     else:
         design, thresholds = _schmitt_values(site, part, spec, bin, tolerance, given)
-        if abs(design.error) > tolerance:
-            raise _short_values(design, wanted, tolerance, bin, given)
+        _check_error(design, wanted, tolerance, bin, given, warnings)
         ref, opened, pins = _wire_schmitt(plan, site, part, bin, design)
         r, c, rs = design.r, design.c, None
         f_nom, f_min, f_max = design.freq_typ, design.freq_min, design.freq_max

@@ -14,6 +14,7 @@ from __future__ import annotations
 
 import math
 import shutil
+import json
 import textwrap
 
 import pytest
@@ -185,6 +186,24 @@ def test_no_rc_pair_in_reach_is_short_and_names_the_value(tmp_path, capsys):
     err = capsys.readouterr().err
     # Needed C with 10k: 1 / (3 kHz * 0.812322 * 10k) = 41.0 nF
     assert "within 10% of 3 kHz" in err and "add a 41 nF capacitor (with 10 kΩ)" in err
+
+
+def test_without_a_tolerance_the_closest_pair_is_built_with_a_warning(tmp_path, capsys):
+    # the same bin as above, but the spec sets no clock.tolerance: the 10 % is our assumption,
+    # so the plan is built with 10k and 10n (12.31 kHz, hand calculation above) and says so
+    spec = _write(tmp_path, "spec.yaml", SPEC)
+    spec.write_text(textwrap.dedent(SPEC).replace("12 kHz", "3 kHz").replace(", tolerance: 10 %", ""),
+                    encoding="utf-8")
+    stock = _write(tmp_path, "bin.yaml", """\
+        parts: {CD4040BE: 1, CD40106BE: 1, CD4011BE: 1}
+        resistors: [10k]
+        capacitors: [10n]
+        """)
+    assert main(["plan", str(spec), "--bin", str(stock), "--json", "-", "--lacks", "0"]) == 0
+    data = json.loads(capsys.readouterr().out)
+    osc = data["oscillator"]
+    assert osc["f_nom"] == pytest.approx(1 / (10e3 * 10e-9 * 0.812322), rel=1e-4)
+    assert any("built with the closest pair anyway" in w and "41 nF" in w for w in osc["warnings"])
 
 
 def test_plan_take_removes_the_newly_opened_oscillator_chip(tmp_path):
