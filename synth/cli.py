@@ -67,6 +67,10 @@ def main(argv: list[str] | None = None) -> int:
     except KeyboardInterrupt:
         sys.stderr.write("binsynth: interrupted\n")
         return 130
+    except (FileNotFoundError, PermissionError, IsADirectoryError, NotADirectoryError) as exc:
+        where = f"{exc.filename}: " if getattr(exc, "filename", None) else ""
+        sys.stderr.write(f"binsynth: {where}{exc.strerror or exc} (check the path and its permissions)\n")
+        return 2
     except BrokenPipeError:
         return 0
 

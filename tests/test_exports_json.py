@@ -150,3 +150,22 @@ def test_wiring_lists_parts_chips_in_order_and_nets(plan):
 def test_write_wiring(plan, tmp_path):
     path = write_wiring(plan, tmp_path / "wiring.md")
     assert path.read_text() == wiring_markdown(plan)
+
+
+def test_an_output_file_in_a_missing_folder_is_bad_input_not_a_traceback(tmp_path, capsys):
+    from synth.cli import main
+    from synth.inventory import data_path, example_path
+
+    target = tmp_path / "no" / "such" / "plan.json"
+    code = main(["plan", str(example_path("stepper.yaml")), "--bin", str(data_path("bins", "stepper.yaml")),
+                 "--json", str(target), "--lacks", "0"])
+    err = capsys.readouterr().err
+    assert code == 2 and "cannot write" in err and "Traceback" not in err
+    assert not target.exists()
+
+
+def test_an_output_path_that_is_a_folder_is_refused(tmp_path):
+    from synth.errors import UsageError
+
+    with pytest.raises(UsageError, match="it is a folder"):
+        atomic_write_text(tmp_path, "x")

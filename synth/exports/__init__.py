@@ -24,9 +24,17 @@ def _umask() -> int:
 
 def atomic_write_text(path: str | Path, text: str, encoding: str = "utf-8") -> Path:
     """Write ``text`` to ``path`` all at once; the old file stays until the new one is whole."""
+    from ..errors import UsageError
+
     target = Path(path)
     folder = target.parent if str(target.parent) else Path(".")
-    fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=folder)
+    if target.is_dir():
+        raise UsageError(f"cannot write {target}: it is a folder", hint="give a file name")
+    try:
+        fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=folder)
+    except OSError as exc:
+        raise UsageError(f"cannot write {target}: {exc.strerror or exc}",
+                         hint=f"check that the folder {folder} exists and is writable") from None
     try:
         with os.fdopen(fd, "w", encoding=encoding, newline="\n") as handle:
             handle.write(text)
