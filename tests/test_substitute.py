@@ -28,29 +28,12 @@ import pytest
 from synth.cli import main
 from synth.errors import UsageError
 from synth.substitute import parse_target
+from test_techmap import NAND, brute_force_sizes
 
 
 def brute_nand_size(on: set[int], nvars: int, depth: int) -> int | None:
-    """Fewest NAND2 computing the function, by breadth-first search over circuits."""
-    full = (1 << (1 << nvars)) - 1
-    target = sum(1 << m for m in on)
-    start = frozenset(sum(1 << m for m in range(1 << nvars) if m >> i & 1) for i in range(nvars))
-    if target in start:
-        return 0
-    level = {start}
-    for k in range(1, depth + 1):
-        following = set()
-        for nodes in level:
-            ordered = sorted(nodes)
-            for i, a in enumerate(ordered):
-                for b in ordered[i:]:
-                    f = ~(a & b) & full
-                    if f == target:
-                        return k
-                    if f not in nodes and k < depth:
-                        following.add(nodes | {f})
-        level = following
-    return None
+    """Fewest NAND2 computing the function (test_techmap's breadth-first search)."""
+    return brute_force_sizes(nvars, NAND, depth).get(sum(1 << m for m in on))
 
 
 def test_brute_force_nand4_takes_five_nand2():
