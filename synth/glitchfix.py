@@ -272,18 +272,11 @@ def _rebuild(design: Any, *, counter_plan: Any = None, network: Network | None =
 
 def _decode_and_map(spec, stock, catalog, cp, exact: str):
     from .decode import derive
-    from .pipeline import _async_reset_names, _internal_polarity, reserved_chips, switch_polarity
-    from .techmap import build_library, map_design
+    from .pipeline import map_decode, mapping_inputs
 
     decode = derive(spec, cp, exact=exact)
-    library = build_library(stock, catalog, reserved=reserved_chips(cp, spec, stock, catalog))
-    polarity = switch_polarity(spec)
-    for function in decode.functions:
-        polarity.setdefault(function.name, _internal_polarity(cp, function.name))
-    network = map_design(decode.functions, len(cp.vars), [v.net for v in cp.vars], library,
-                         polarity=polarity, cover=decode.cover, exact=exact,
-                         glitch_free=_async_reset_names(cp))
-    return decode, network
+    library, polarity = mapping_inputs(spec, stock, catalog, cp, decode)
+    return decode, map_decode(decode, cp, library, polarity, exact)
 
 
 # ---------------------------------------------------------------- (a) another decode choice

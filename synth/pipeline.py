@@ -91,22 +91,16 @@ def make_plan(spec_path: str | Path, bin_path: str | Path, *, catalog=None, exac
     from .inventory import load_bin, load_catalog
     from .packing import pack
     from .spec import load_spec
-    from .techmap import build_library, map_design
 
     catalog = catalog or load_catalog()
     spec = load_spec(spec_path)
     stock = load_bin(bin_path, catalog, spec.supply)
     counter_plan = allocate(spec, stock, catalog)
     decode = derive(spec, counter_plan, exact=exact)
-    library = build_library(stock, catalog, reserved=reserved_chips(counter_plan, spec, stock, catalog))
-    polarity = switch_polarity(spec)
-    for function in decode.functions:
-        polarity.setdefault(function.name, _internal_polarity(counter_plan, function.name))
+    library, polarity = mapping_inputs(spec, stock, catalog, counter_plan, decode)
     search = _start_lacks(lacks, decode, counter_plan, library, polarity, stock, catalog)
     try:
-        network = map_design(decode.functions, len(counter_plan.vars), [v.net for v in counter_plan.vars],
-                             library, polarity=polarity, cover=decode.cover, exact=exact,
-                             glitch_free=_async_reset_names(counter_plan))
+        network = map_decode(decode, counter_plan, library, polarity, exact)
         plan = pack(network, counter_plan, spec, stock, catalog)
         plan.warnings[:0] = list(stock.warnings) + list(getattr(counter_plan, "warnings", []))
         _analog_parts(plan, spec, stock, catalog)
@@ -121,6 +115,26 @@ def make_plan(spec_path: str | Path, bin_path: str | Path, *, catalog=None, exac
         design.lacks = search.finish(design)
         design.plan.bin_lacks = design.lacks.to_json()
     return design
+
+
+def mapping_inputs(spec, stock, catalog, counter_plan, decode):
+    """The library (counter and switch chips reserved) and polarities the mapper sees."""
+    from .techmap import build_library
+
+    library = build_library(stock, catalog, reserved=reserved_chips(counter_plan, spec, stock, catalog))
+    polarity = switch_polarity(spec)
+    for function in decode.functions:
+        polarity.setdefault(function.name, _internal_polarity(counter_plan, function.name))
+    return library, polarity
+
+
+def map_decode(decode, counter_plan, library, polarity, exact: str):
+    """The decode mapped onto the library; an async reset decode must be hazard-free."""
+    from .techmap import map_design
+
+    return map_design(decode.functions, len(counter_plan.vars), [v.net for v in counter_plan.vars],
+                      library, polarity=polarity, cover=decode.cover, exact=exact,
+                      glitch_free=_async_reset_names(counter_plan))
 
 
 def _start_lacks(budget: float, decode, counter_plan, library, polarity, stock, catalog):
