@@ -71,18 +71,17 @@ Library rules (the mapper's choices):
 from __future__ import annotations
 
 import itertools
-import re
 import threading
 import time
 from dataclasses import dataclass, field, replace
 from typing import Iterable, Literal, Mapping, Sequence
 
-from .errors import InputError, InternalError, ShortError, UsageError
+from .errors import InternalError, ShortError, UsageError
 from .inventory import Bin, Catalog, Part
 from .network import Gate, Network, SignalOut, evaluate_gate, evaluate_network
 
-__all__ = ["Cell", "Library", "build_library", "map_design", "chips_of", "Target",
-           "parse_target", "Construction", "substitute", "EXACT_MAX_VARS", "EXACT_MAX_GATES"]
+__all__ = ["Cell", "Library", "build_library", "map_design", "chips_of", "EXACT_MAX_VARS",
+           "EXACT_MAX_GATES"]
 
 Polarity = Literal["high", "low", "free"]
 
@@ -1597,8 +1596,6 @@ class _ExactInstance:
 
     def build(self, model: set[int]) -> tuple[list[Gate], dict[str, SignalOut]]:
         em = _Emitter(self.cells, self.problem.var_nets)
-        n = self.problem.nvars
-        base = 2 + n
         names: list[str] = ["VSS", "VDD"] + list(self.problem.var_nets)
         for i in range(self.k):
             c = next(c for c, lit in enumerate(self.t[i]) if lit in model)

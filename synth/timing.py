@@ -924,7 +924,7 @@ def _explain(trace: Trace, net: str, index: int, k: int, name: str, t1: float) -
     counts = list(dict.fromkeys(trace.count_value(t) for t, _, _ in inside))
     steps = [f"{n} {'rises' if v else 'falls'}" for _, n, v in inside]
     end = after[0]
-    ending = (f"until the reset clears it" if _reset_between(trace, t_src, end[0])
+    ending = ("until the reset clears it" if _reset_between(trace, t_src, end[0])
               else f"then {end[1]} {'rises' if end[2] else 'falls'}")
     cause = (f"count {frm}->{to} passes through {' and '.join(map(str, counts))} "
              f"({', '.join(steps)}, {ending})")

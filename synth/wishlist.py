@@ -260,15 +260,9 @@ def _judge(design: Any, inputs: _Inputs, results, seconds: float) -> BinLacks:
 
 def _mapping_inputs(design):
     """The library and polarities the plan's mapper saw (same reservations)."""
-    from .pipeline import _internal_polarity, reserved_chips, switch_polarity
-    from .techmap import build_library
+    from .pipeline import mapping_inputs
 
-    reserved = reserved_chips(design.counter, design.spec, design.stock, design.catalog)
-    library = build_library(design.stock, design.catalog, reserved=reserved)
-    polarity = switch_polarity(design.spec)
-    for function in design.decode.functions:
-        polarity.setdefault(function.name, _internal_polarity(design.counter, function.name))
-    return library, polarity
+    return mapping_inputs(design.spec, design.stock, design.catalog, design.counter, design.decode)
 
 
 def candidate_parts(stock, catalog, library) -> list[str]:
@@ -278,7 +272,7 @@ def candidate_parts(stock, catalog, library) -> list[str]:
     supply = stock.supply
     families = {catalog.parts[p].family for p in stock.parts} or {"4000B"}
     have = {(c.op, c.width, c.schmitt) for c in library.cells}
-    seen: dict[tuple, str] = {}
+    seen: dict[tuple, tuple[bool, str]] = {}
     for part in sorted(catalog.parts.values(), key=lambda p: (p.family not in families, p.type)):
         if part.family not in families or part.category not in LOGIC_CATEGORIES or not part.suits(supply):
             continue
@@ -286,19 +280,12 @@ def candidate_parts(stock, catalog, library) -> list[str]:
         if not any(c.mapped for c in cells):
             continue
         signature = tuple(sorted((c.op, c.width, c.units_per_chip, c.schmitt, c.selects) for c in cells))
-        seen.setdefault(signature, part.type)
-    return sorted(seen.values(), key=lambda p: (_is_known_kind(p, catalog, supply, have), p))
+        known = {(c.op, c.width, c.schmitt) for c in cells} <= have   # every kind already on hand
+        seen.setdefault(signature, (known, part.type))
+    return [part_type for _, part_type in sorted(seen.values())]
 
 
 def _spare_part_types(design, library) -> set[str]:
     """Types of which the bin still holds unused chips: one more of them cannot help."""
     used = design.network.chips
     return {p for p, n in library.available.items() if n > used.get(p, 0)}
-
-
-def _is_known_kind(part_type: str, catalog, supply: float, have: set) -> bool:
-    """True when every unit kind of the part is already in the bin (less likely to help)."""
-    from .techmap import cells_of_part
-
-    kinds = {(c.op, c.width, c.schmitt) for c in cells_of_part(catalog.parts[part_type], 1, supply)}
-    return kinds <= have

@@ -12,7 +12,6 @@ HEF4060B / Motorola MC14541B one (see synth/analog.py).
 
 from __future__ import annotations
 
-import math
 import shutil
 import json
 import textwrap

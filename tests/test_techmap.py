@@ -21,7 +21,6 @@ from __future__ import annotations
 import json
 import subprocess
 import sys
-from functools import lru_cache
 from pathlib import Path
 
 import pytest

@@ -25,6 +25,8 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 
 
 def add_output_arguments(parser: argparse.ArgumentParser) -> None:
+    from ..wishlist import DEFAULT_BUDGET
+
     parser.add_argument("--json", metavar="FILE", help="write the plan as JSON ('-' for standard output)")
     parser.add_argument("--wiring", metavar="FILE", help="write the wiring list as Markdown with checkboxes")
     parser.add_argument("--verilog", metavar="FILE", help="write a structural Verilog model")
@@ -36,7 +38,7 @@ def add_output_arguments(parser: argparse.ArgumentParser) -> None:
                         help="apply remedies: 'glitches' tries another decode choice, a synchronous "
                              "counter, then gating with the clock's still half (the signal is then "
                              "asserted only in the second half of each tick), and says what it did")
-    parser.add_argument("--lacks", type=seconds, default=1.0, metavar="SECONDS",
+    parser.add_argument("--lacks", type=seconds, default=DEFAULT_BUDGET, metavar="SECONDS",
                         help="time for re-planning with one extra chip type to find what the bin "
                              "lacks, beside the plan's own search (default 1; 0 skips it)")
     parser.add_argument("--exact", choices=["auto", "yes", "no"], default="auto",
