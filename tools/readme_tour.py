@@ -22,7 +22,17 @@ sys.path.insert(0, str(ROOT))
 
 BAD_BIN = "# a bin with a typo in a marking\nparts:\n  CD4999BE: 1\n  4040: 1\n"
 
-GLITCH_PROSE = ("Glitches: a ripple counter's outputs change one after another, so a decode can spike for a moment on a tick entry.  `plan` lists every such entry with its width, its cause and the analyses that found it (`found by`: the event simulation with transport delays at typical and worst-case catalog delays, with inertial delays, and the enumeration of the states the count passes through).  `--fix glitches` applies the remedies in order (another decode choice where a passed-through state is a don't-care, a synchronous counter from the bin, gating with the clock's still half; never for a switch select, which gating would throw over twice a tick), re-checks the plan tick by tick, re-analyses it, and says per signal what it did and what it cost; what no remedy removes gets a note.  RC delays between two stages are offered, never applied (shortened here):")
+GLITCH_PROSE = (
+    "Glitches: a ripple counter's outputs change one after another, so a decode can spike for"
+    ' a moment on a tick entry.  `plan` lists every such entry with its width, its cause and '
+    'the analyses that found it (`found by`: the event simulation with transport delays at '
+    'typical and worst-case catalog delays, with inertial delays, and the enumeration of the '
+    'states the count passes through).  `--fix glitches` applies the remedies in order '
+    "(another decode choice where a passed-through state is a don't-care, a synchronous "
+    "counter from the bin, gating with the clock's still half; never for a switch select, "
+    'which gating would throw over twice a tick), re-checks the plan tick by tick, '
+    're-analyses it, and says per signal what it did and what it cost; what no remedy removes'
+    ' gets a note.  RC delays between two stages are offered, never applied (shortened here):')
 
 # (prose, shown command, argv after 'binsynth', head lines kept or None (or the titles of
 # the output blocks to keep), tail prefixes kept)
