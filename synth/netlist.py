@@ -27,7 +27,7 @@ from typing import Any, Literal, NamedTuple
 
 from .errors import InternalError
 from .inventory import Part
-from .network import Network, evaluate_network
+from .network import Network, evaluate_words
 
 RAIL_NETS = ("VDD", "VSS")
 Role = Literal["counter", "logic", "switch", "oscillator"]
@@ -337,20 +337,39 @@ def sampled_clock_levels(counter: Any) -> dict[str, bool]:
             if str(c.clock_net) not in var_nets}
 
 
-def simulate_nets(plan: Plan) -> list[dict[str, bool]]:
+class _TickLevels(Mapping):
+    """One tick's net levels, read from whole-cycle words (bit t = tick t)."""
+
+    __slots__ = ("_words", "_t")
+
+    def __init__(self, words: Mapping[str, int], t: int) -> None:
+        self._words, self._t = words, t
+
+    def __getitem__(self, net: str) -> bool:
+        return bool(self._words[net] >> self._t & 1)
+
+    def __iter__(self):
+        return iter(self._words)
+
+    def __len__(self) -> int:
+        return len(self._words)
+
+
+def simulate_nets(plan: Plan) -> list[Mapping[str, bool]]:
     """Every net's zero-delay level at each tick of one cycle (rails included), the
     clock at its level just before the next counting edge."""
-    rows = []
     clock = sampled_clock_levels(plan.counter)
-    for t in range(tick_count(plan.counter)):
-        try:
-            values = evaluate_network(plan.network, {**clock, **counter_levels(plan.counter, t)})
-        except (ValueError, KeyError) as exc:
-            raise InternalError(f"self-check could not evaluate plan {plan.name} at tick {t}: {exc}",
-                                hint="a bug in binsynth; no design was printed") from exc
-        values.update({"VDD": True, "VSS": False})
-        rows.append(values)
-    return rows
+    ticks = tick_count(plan.counter)
+    inputs: dict[str, int] = {}
+    try:
+        for t in range(ticks):
+            for net, level in {**clock, **counter_levels(plan.counter, t)}.items():
+                inputs[net] = inputs.get(net, 0) | (int(level) << t)
+        words = evaluate_words(plan.network, inputs, ticks)
+    except (ValueError, KeyError) as exc:
+        raise InternalError(f"self-check could not evaluate plan {plan.name}: {exc}",
+                            hint="a bug in binsynth; no design was printed") from exc
+    return [_TickLevels(words, t) for t in range(ticks)]
 
 
 def simulate_ticks(plan: Plan) -> dict[str, tuple[bool, ...]]:

@@ -51,7 +51,7 @@ Two engines, both over python-sat:
 Depth is only a tie-break (the tree enumeration keeps the shallower of two
 trees with equal units); it is reported, not proven.  Both engines are capped
 in time and size and fall back to "best found" with a lower bound.  The
-finished network is simulated (zero delay, ``evaluate_network``) on every
+finished network is simulated (zero delay, ``evaluate_words``) on every
 minterm each signal cares about; a mismatch raises ``InternalError``.
 
 Library rules (the mapper's choices):
@@ -78,7 +78,7 @@ from typing import Iterable, Literal, Mapping, Sequence
 
 from .errors import InternalError, ShortError, UsageError
 from .inventory import Bin, Catalog, Part
-from .network import Gate, Network, SignalOut, evaluate_gate, evaluate_network
+from .network import Gate, Network, SignalOut, evaluate_gate, evaluate_words
 
 __all__ = ["Cell", "Library", "build_library", "map_design", "chips_of", "EXACT_MAX_VARS",
            "EXACT_MAX_GATES"]
@@ -778,6 +778,49 @@ def _forms(problem: _Problem, covers: Sequence) -> dict[str, list[_Form]]:
     return forms
 
 
+FACTOR_MIN_CUBES = 3      # covers of at least this many cubes are also offered in factored form
+
+
+def _factored(cands: _Candidates, cubes: Sequence[tuple[int, int]], nvars: int) -> tuple[tuple, int]:
+    """A sum of products as a multi-level AND/OR form by literal factoring
+    (divide by the most frequent literal and its common cube, recurse on the
+    quotient and the remainder; Brayton's algebraic factoring).  A window of
+    counter states, whose two-level cover grows with the square of the bits,
+    becomes a comparator chain of about two gates per bit; identical
+    sub-forms of different signals are one node."""
+    terms: list[tuple[tuple, int]] = []
+    rest = list(cubes)
+    while True:
+        counts: dict[tuple[int, int], int] = {}
+        for m, v in rest:
+            for i in _cube_vars((m, v), nvars):
+                lit = (i, v >> i & 1)
+                counts[lit] = counts.get(lit, 0) + 1
+        if not counts or max(counts.values()) < 2:
+            break
+        (i, bit), _ = max(counts.items(), key=lambda kv: (kv[1], -kv[0][0], kv[0][1]))
+        having = [c for c in rest if c[0] >> i & 1 and (c[1] >> i & 1) == bit]
+        rest = [c for c in rest if c not in having]
+        common_mask = ~0
+        for m, v in having:
+            common_mask &= m
+        common_mask &= ~(having[0][1] ^ having[-1][1])
+        for m, v in having:
+            common_mask &= ~(v ^ having[0][1])
+        common = (common_mask, having[0][1] & common_mask)
+        quotient = sorted({(m & ~common_mask, v & ~common_mask) for m, v in having})
+        fanins = [(("v", j), 0 if common[1] >> j & 1 else 1) for j in _cube_vars(common, nvars)]
+        if all(m for m, _ in quotient):          # an empty quotient cube would absorb the rest
+            fanins.append(_factored(cands, quotient, nvars))
+        if len(fanins) == 1:
+            terms.append(fanins[0])
+        else:
+            key = ("fp", common, tuple(quotient))
+            terms.append((_and_node(cands, key, tuple(sorted(fanins)), 0), 0))
+    terms += [_term(cands, cube, nvars) for cube in rest]
+    return _sum(cands, terms)
+
+
 def _candidates(problem: _Problem, forms: dict[str, list[_Form]], cells: Sequence[Cell]) -> _Candidates:
     cands = _Candidates()
     n = problem.nvars
@@ -785,6 +828,9 @@ def _candidates(problem: _Problem, forms: dict[str, list[_Form]], cells: Sequenc
         for form in forms.get(sig.name, []):
             net, c = _sum(cands, [_term(cands, cube, n) for cube in form.cubes])
             cands.add_option(_Option(sig.name, "sop", net, c ^ form.k))
+            if len(form.cubes) >= FACTOR_MIN_CUBES:
+                net, c = _factored(cands, form.cubes, n)
+                cands.add_option(_Option(sig.name, "sop", net, c ^ form.k))
     for ci, cell in enumerate(cells):
         if cell.op == "mux" and cell.mapped:
             for sig in problem.signals:
@@ -1676,6 +1722,7 @@ def _exact_search(problem: _Problem, cells: Sequence[Cell], deadline: float,
 # ---------------------------------------------------------------- structure selection (local search)
 
 LOCAL_TREES = 12          # trees per node the local search tries
+MOVABLE_ALL_NODES = 150   # designs of more nodes climb only where inverters or loose chips are
 
 
 @dataclass
@@ -1697,6 +1744,12 @@ def _tree_menu(trees: Sequence[_Tree], ncells: int) -> list[_Tree]:
             spare = sorted((t for t in trees if t.b == b), key=lambda t: (t.units[c], t.gates, t.depth))[:2]
             menu += [t for t in spare if t not in menu]
     return menu
+
+
+def _trace(stage: str, key) -> None:
+    import os
+    if os.environ.get("BINSYNTH_TRACE"):
+        print(f"[local search] {stage}: {key} at {time.monotonic():.2f}", file=__import__("sys").stderr)
 
 
 def _part_way(deadline: float, share: float) -> float:
@@ -1850,17 +1903,24 @@ class _LocalSearch:
         best = self._initial()
         if best is None:
             return None, 0
+        _trace("initial", best.key)
         if best.key[0]:            # over the bin from the start: repair first, then refine
             best = self._climb(best, lambda e: e.key, _part_way(deadline, 0.5))
-        best = self._climb(best, lambda e: e.key[1:], _part_way(deadline, 0.5))
+            _trace("repair", best.key)
         if best.key[0]:
-            best = self._climb(best, lambda e: e.key, deadline)
+            best = self._climb(best, lambda e: e.key[1:], _part_way(deadline, 0.5))
+            _trace("structure", best.key)
+        best = self._climb(best, lambda e: e.key, deadline)
+        _trace("final", best.key)
         return self._chosen(best), best.key[0]
 
     def _climb(self, best: _Eval, score, deadline: float) -> _Eval:
         improved = True
+        large = len(best.nodes) > MOVABLE_ALL_NODES
         while improved and time.monotonic() < deadline:
             improved = False
+            _trace("pass", best.key)
+            start = best.key
             for sig in self.problem.signals:
                 for i in range(len(self.cands.options[sig.name])):
                     for p in ((0, 1) if sig.name in self.phi else (None,)):
@@ -1869,23 +1929,46 @@ class _LocalSearch:
                         result = self.evaluate(trial_opt, trial_phi, self.tree)
                         if result and score(result) < score(best):
                             self.opt, self.phi, best, improved = trial_opt, trial_phi, result, True
-            for n in list(best.nodes):
+            for n in self._movable(best):
                 if time.monotonic() >= deadline:
                     break
                 for ti in range(len(self.trees[n])):
                     if ti == self.tree[n]:
                         continue
-                    for trial_tree in self._tree_moves(n, ti):
-                        result = self.evaluate(self.opt, self.phi, trial_tree)
+                    for trial_tree, result in self._tree_moves(n, ti):
                         if result and score(result) < score(best):
                             self.tree, best, improved = trial_tree, result, True
+            if large and improved and best.key[:2] == start[:2] and \
+                    start[2] - best.key[2] < max(1, start[2] // 100):
+                break       # a large design's pass that saved under 1 % of its gates: settled
         return best
 
-    def _tree_moves(self, n: int, ti: int) -> list[dict[int, int]]:
-        """The node on another tree, alone and with its fan-in nodes re-phased to suit it."""
+    def _movable(self, best: _Eval) -> list[int]:
+        """The nodes whose tree the climb tries to change.  On a large design that
+        fits the bin, only nodes next to a complemented net (an inverter in the
+        way) and nodes of cells that open a chip for a few gates: elsewhere the
+        phase-fitted start already holds the fewest gates per node."""
+        if len(best.nodes) <= MOVABLE_ALL_NODES or best.key[0]:
+            return list(best.nodes)
+        complemented = {net[1] for net in best.inverters if net[0] == "n"}
+        cells = self.cells
+        loose = {c for c, u in enumerate(best.units)
+                 if 0 < u % cells[c].units_per_chip <= cells[c].units_per_chip // 2}
+        movable = []
+        for n in best.nodes:
+            fanins = self.cands.nodes[n].fanins
+            tree = self.trees[n][self.tree[n]]
+            if n in complemented or any(net in best.inverters for net, _ in fanins) or \
+                    any(tree.units[c] for c in loose):
+                movable.append(n)
+        return movable
+
+    def _tree_moves(self, n: int, ti: int) -> list[tuple[dict[int, int], _Eval | None]]:
+        """The node on another tree, alone and with its fan-in nodes re-phased to
+        suit it, each with its evaluation."""
         plain = {**self.tree, n: ti}
         result = self.evaluate(self.opt, self.phi, plain)
-        moves = [plain]
+        moves = [(plain, result)]
         if result is None or n not in result.z:
             return moves
         fitted = dict(plain)
@@ -1898,7 +1981,7 @@ class _LocalSearch:
                 if fits:
                     fitted[m] = fits[0]
         if fitted != plain:
-            moves.append(fitted)
+            moves.append((fitted, self.evaluate(self.opt, self.phi, fitted)))
         return moves
 
     def _initial(self) -> _Eval | None:
@@ -1909,8 +1992,82 @@ class _LocalSearch:
                 self.opt[sig.name] = next((i for i, o in enumerate(options)
                                            if o.kind != "mux" or o.polarity == sig.polarity), 0)
         best = self.evaluate(self.opt, self.phi, self.tree)
+        if best is not None:
+            best = self._cheapest_options(best)
+            fitted = self._phase_fitted_trees()
+            trial = self.evaluate(self.opt, self.phi, fitted)
+            if trial is not None and trial.key < best.key:
+                self.tree, best = fitted, trial
+            _trace("phase-fitted trees", trial.key if trial else None)
         if best is not None and best.key[0]:
             best = self._relieve(best)
+        return best
+
+    def _phase_fitted_trees(self) -> dict[int, int]:
+        """Trees chosen top-down, parents before fan-ins: each node takes the tree
+        whose output phase suits what its users ask for and whose complemented
+        leaves fall on complemented literals (free) or on fan-in nodes (which
+        then pick their own phase), so few inverters are needed.  A starting
+        point for the climb, where one tree move at a time cannot flip a chain
+        of phases."""
+        nodes = self.cands.nodes
+        demand: dict[int, list[int]] = {}
+        inverted_vars: set[int] = set()
+
+        def ask(net: tuple, q: int) -> None:
+            if net[0] == "n":
+                demand.setdefault(net[1], [0, 0])[q] += 1
+            elif net[0] == "v" and q:
+                inverted_vars.add(net[1])
+
+        for sig in self.problem.signals:
+            option = self.cands.options[sig.name][self.opt[sig.name]]
+            if option.kind == "mux":
+                for net, q in option.needs:
+                    ask(net, q)
+                continue
+            low = self.phi.get(sig.name, 0) if sig.polarity == "free" else int(sig.polarity == "low")
+            ask(option.net, option.e ^ low)
+        tree = dict(self.tree)
+        for n in range(len(nodes) - 1, -1, -1):      # a node's fan-ins come before it
+            if n not in demand:
+                continue
+            wants = demand[n]
+            fanins = nodes[n].fanins
+            best_key, best_pick = None, None
+            for ti, t in enumerate(self.trees[n]):
+                natural = t.b ^ nodes[n].invert
+                cost = t.gates + (1 if wants[1 - natural] else 0)
+                free = [j for j, (net, c) in enumerate(fanins) if net[0] == "v" and c]
+                neutral = [j for j, (net, c) in enumerate(fanins) if net[0] != "v"]
+                costly = [j for j, (net, c) in enumerate(fanins) if net[0] == "v" and not c]
+                flipped = set((free + neutral + costly)[:t.n1])
+                for j, (net, c) in enumerate(fanins):
+                    if net[0] == "v" and (c ^ (j in flipped)) and net[1] not in inverted_vars:
+                        cost += 1
+                key = (cost, t.depth)
+                if best_key is None or key < best_key:
+                    best_key, best_pick = key, (ti, flipped)
+            ti, flipped = best_pick
+            tree[n] = ti
+            for j, (net, c) in enumerate(fanins):
+                ask(net, c ^ (j in flipped))
+        return tree
+
+    def _cheapest_options(self, best: _Eval) -> _Eval:
+        """One greedy pass, signal by signal: the option (and phase) that gives the
+        whole design the fewest gates, overflow first.  A start from the first
+        option of every signal can be the flat two-level one, several times the
+        gates of a factored one, and the repair cannot climb out of that."""
+        for sig in self.problem.signals:
+            for i in range(len(self.cands.options[sig.name])):
+                for p in ((0, 1) if sig.name in self.phi else (None,)):
+                    trial_opt = {**self.opt, sig.name: i}
+                    trial_phi = {**self.phi, **({sig.name: p} if p is not None else {})}
+                    result = self.evaluate(trial_opt, trial_phi, self.tree)
+                    if result and (result.key[0], result.key[2], result.key[1]) < \
+                            (best.key[0], best.key[2], best.key[1]):
+                        self.opt, self.phi, best = trial_opt, trial_phi, result
         return best
 
     def _relieve(self, best: _Eval) -> _Eval:
@@ -2315,23 +2472,29 @@ def _verify(network: Network, signals: Sequence[_Signal], nvars: int, lib: Libra
         if chips > lib.available.get(part, 0):
             raise InternalError(f"the network takes {chips} x {part}, the bin offers "
                                 f"{lib.available.get(part, 0)}")
-    minterms = sorted(set().union(*(s.care for s in signals))) if signals else []
+    width = 1 << nvars
+    full = (1 << width) - 1
+    inputs = {net: sum(1 << m for m in range(width) if m >> i & 1) for i, net in enumerate(network.inputs)}
+    try:
+        values = evaluate_words(network, inputs, width)
+    except ValueError as exc:
+        raise InternalError(f"the mapped network does not simulate: {exc}") from exc
+    for sig in signals:
+        out = network.signals[sig.name]
+        asserted = values[out.net] if out.polarity == "high" else values[out.net] ^ full
+        wrong = (asserted ^ _word(sig.on)) & _word(sig.care)
+        if wrong:
+            m = (wrong & -wrong).bit_length() - 1
+            raise InternalError(f"mapped signal {sig.name} is wrong at minterm {m}: "
+                                f"expected {'asserted' if m in sig.on else 'not asserted'}")
+
+
+def _word(minterms: Iterable[int]) -> int:
+    """A set of minterms as one integer, bit m set for minterm m."""
+    word = 0
     for m in minterms:
-        inputs = {net: bool(m >> i & 1) for i, net in enumerate(network.inputs)}
-        try:
-            values = evaluate_network(network, inputs)
-        except ValueError as exc:
-            raise InternalError(f"the mapped network does not simulate: {exc}") from exc
-        values.update({"VDD": True, "VSS": False})
-        for sig in signals:
-            if m not in sig.care:
-                continue
-            out = network.signals[sig.name]
-            level = values[out.net]
-            asserted = level if out.polarity == "high" else not level
-            if asserted != (m in sig.on):
-                raise InternalError(f"mapped signal {sig.name} is wrong at minterm {m}: "
-                                    f"expected {'asserted' if m in sig.on else 'not asserted'}")
+        word |= 1 << m
+    return word
 
 
 # ---------------------------------------------------------------- when the bin is short

@@ -448,14 +448,10 @@ def _depth(gates: Sequence[GateModel]) -> int:
     return max((level(n) for n in by_out), default=0)
 
 
-@dataclass(order=True)
-class _Event:
-    time: int
-    seq: int
-    net: str = field(compare=False)
-    level: bool = field(compare=False)
-    cause: tuple[str, int] | None = field(compare=False)
-    kind: str = field(compare=False)      # 'clock', 'counter', 'gate'
+# An event is the tuple (time, seq, net, level, cause, kind): the heap orders by
+# time, then by seq (unique, so nothing after it is compared); kind is 'clock',
+# 'counter' or 'gate'.  Tuples, not objects: a long cycle queues a million events.
+_Event = tuple
 
 
 class _Engine:
@@ -467,7 +463,8 @@ class _Engine:
         self.gates = gates
         self.inertial = inertial
         self.clock_net = clock_net
-        self.levels = dict(initial)
+        self.levels = {**initial, **RAILS}
+        self.compiled = [_compiled(g) for g in gates]
         self.changes: dict[str, list[tuple[int, bool]]] = {n: [] for n in initial}
         self.causes: dict[tuple[str, int], tuple[str, int] | None] = {}
         self.queue: list[_Event] = []
@@ -491,7 +488,7 @@ class _Engine:
     def schedule(self, time: int, net: str, level: bool, cause: tuple[str, int] | None,
                  kind: str) -> int:
         self.seq += 1
-        heapq.heappush(self.queue, _Event(time, self.seq, net, level, cause, kind))
+        heapq.heappush(self.queue, (time, self.seq, net, level, cause, kind))
         return self.seq
 
     def last_change(self, net: str) -> tuple[str, int] | None:
@@ -501,23 +498,25 @@ class _Engine:
     def run(self, end: int, period: int) -> None:
         limit = 200_000 + 400 * len(self.gates) * (end // max(period, 1) + 1)
         steps = 0
-        while self.queue and self.queue[0].time <= end:
-            t = self.queue[0].time
+        queue, levels, changes, causes = self.queue, self.levels, self.changes, self.causes
+        cancelled, pending = self.cancelled, self.pending
+        while queue and queue[0][0] <= end:
+            t = queue[0][0]
             changed: dict[str, bool] = {}
-            while self.queue and self.queue[0].time == t:
-                ev = heapq.heappop(self.queue)
+            while queue and queue[0][0] == t:
+                _, seq, net, level, cause, _kind = heapq.heappop(queue)
                 steps += 1
-                if ev.seq in self.cancelled:
-                    self.cancelled.discard(ev.seq)
+                if seq in cancelled:
+                    cancelled.discard(seq)
                     continue
-                if self.pending.get(ev.net) == ev.seq:
-                    del self.pending[ev.net]
-                if self.levels[ev.net] != ev.level:
-                    before = changed.get(ev.net, self.levels[ev.net])
-                    self.levels[ev.net] = ev.level
-                    self.changes[ev.net].append((t, ev.level))
-                    self.causes[(ev.net, len(self.changes[ev.net]) - 1)] = ev.cause
-                    changed.setdefault(ev.net, before)
+                if pending.get(net) == seq:
+                    del pending[net]
+                if levels[net] != level:
+                    before = changed.get(net, levels[net])
+                    levels[net] = level
+                    changes[net].append((t, level))
+                    causes[(net, len(changes[net]) - 1)] = cause
+                    changed.setdefault(net, before)
             if steps > limit:
                 raise InternalError("timing simulation did not settle (an oscillating loop?)",
                                     hint="a bug in binsynth or a feedback loop in the plan")
@@ -573,10 +572,10 @@ class _Engine:
 
     def _evaluate(self, gi: int, t: int, changed: dict[str, bool]) -> None:
         g = self.gates[gi]
-        out = g.evaluate(self.levels)
+        out = self.compiled[gi](self.levels)
         trigger = next((n for n in g.gate.inputs if n in changed), None)
         cause = self.last_change(trigger) if trigger else None
-        for net, value in out.items():
+        for net, value in out:
             if self.computed[(gi, net)] == value:
                 continue
             self.computed[(gi, net)] = value
@@ -588,6 +587,24 @@ class _Engine:
                     self.pending[net] = self.schedule(t + g.delay_ps, net, value, cause, "gate")
             else:
                 self.schedule(t + g.delay_ps, net, value, cause, "gate")
+
+
+def _compiled(model: GateModel):
+    """A gate's evaluation as a closure over its input nets: the simulator's inner
+    loop runs it a million times on a long cycle; other ops take ``evaluate``."""
+    gate = model.gate
+    ins, out = tuple(gate.inputs), gate.outputs[0] if gate.outputs else ""
+    simple = not model.also_op and out and len([n for n in gate.outputs if n]) == 1
+    if simple and gate.op in ("and", "nand"):
+        flip = gate.op == "nand"
+        return lambda v: ((out, all(v[n] for n in ins) ^ flip),)
+    if simple and gate.op in ("or", "nor"):
+        flip = gate.op == "nor"
+        return lambda v: ((out, any(v[n] for n in ins) ^ flip),)
+    if simple and gate.op in ("not", "buf"):
+        only, flip = ins[0], gate.op == "not"
+        return lambda v: ((out, v[only] ^ flip),)
+    return lambda v: tuple(model.evaluate(v).items())
 
 
 def _settled_levels(counters: list[CounterModel], gates: list[GateModel], clock_net: str,
@@ -1058,18 +1075,21 @@ def _natural_next(a: int, roles: list[_VarRole]) -> int | None:
 
 def _function_values(counter_plan: Any, functions_or_network: Any) -> Callable[[str, int], bool]:
     if isinstance(functions_or_network, Network):
-        from .network import evaluate_network
+        from .network import evaluate_words
 
         net = functions_or_network
         driven = {n for g in net.gates for n in g.outputs}
         free = {n for g in net.gates for n in g.inputs if n not in RAILS and n not in driven}
         clock_level = getattr(counter_plan, "edge", "rising") == "rising"
+        width = 1 << max((v.index + 1 for v in counter_plan.vars), default=0)
+        full = (1 << width) - 1
+        inputs = {n: full if clock_level else 0 for n in free}
+        inputs.update({str(v.net): sum(1 << m for m in range(width) if m >> v.index & 1)
+                       for v in counter_plan.vars})
+        words = evaluate_words(net, inputs, width)      # every minterm at once
 
         def value(name: str, minterm: int) -> bool:
-            inputs = {n: clock_level for n in free}
-            inputs.update({str(v.net): bool(minterm >> v.index & 1) for v in counter_plan.vars})
-            return evaluate_network(net, inputs)[net.signals[name].net] if net.gates or \
-                net.signals[name].net in inputs else RAILS.get(net.signals[name].net, False)
+            return bool(words.get(net.signals[name].net, 0) >> minterm & 1)
         return value
 
     def value_of(name: str, minterm: int) -> bool:
