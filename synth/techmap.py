@@ -695,7 +695,9 @@ class _Candidates:
     nodes: list[_Node] = field(default_factory=list)
     index: dict = field(default_factory=dict)
     options: dict[str, list[_Option]] = field(default_factory=dict)
-    decoders: list[tuple[int, tuple[int, ...]]] = field(default_factory=list)
+    decoders: list[tuple[int, tuple[int, ...]]] = field(default_factory=list)   # (cell, select vars)
+    decoder_enables: list[tuple] = field(default_factory=list)   # per enable pin: a var or None
+    decoder_index: dict = field(default_factory=dict)
 
     def node(self, key: tuple, fanins: tuple, invert: int) -> tuple:
         if key not in self.index:
@@ -821,6 +823,44 @@ def _factored(cands: _Candidates, cubes: Sequence[tuple[int, int]], nvars: int) 
     return _sum(cands, terms)
 
 
+EXTRACT_MAX_CUBES = 400   # distinct cubes up to which common pairs are extracted across signals
+
+
+def _extracted_terms(cands: _Candidates, cubes: Sequence[tuple[int, int]], nvars: int
+                     ) -> dict[tuple[int, int], tuple[tuple, int]]:
+    """Each cube as a net after common-cube extraction across every signal's
+    terms: while some pair of fan-ins (literals or extracted pairs) occurs in
+    two or more terms, it becomes one AND node used by all of them (greedy
+    algebraic cube extraction, most frequent pair first).  ``x3' x2 x1`` and
+    ``x3 x2 x1`` then share the gate for ``x2 x1``."""
+    rows = {cube: [(("v", i), 0 if cube[1] >> i & 1 else 1) for i in _cube_vars(cube, nvars)]
+            for cube in cubes}
+    while True:
+        counts: dict[tuple, int] = {}
+        for items in rows.values():
+            if len(items) < 3:
+                continue                  # a pair that is the whole term gains nothing
+            for a, b in itertools.combinations(sorted(items), 2):
+                counts[(a, b)] = counts.get((a, b), 0) + 1
+        if not counts:
+            break
+        pair, count = max(counts.items(), key=lambda kv: (kv[1], kv[0]))
+        if count < 2:
+            break
+        divisor = (_and_node(cands, ("x", pair), pair, 0), 0)
+        for cube, items in rows.items():
+            if len(items) >= 3 and pair[0] in items and pair[1] in items:
+                rows[cube] = [it for it in items if it not in pair] + [divisor]
+    out = {}
+    for cube, items in rows.items():
+        if len(items) == 1:
+            out[cube] = items[0]
+        else:
+            fanins = tuple(sorted(items))
+            out[cube] = (_and_node(cands, ("xt", fanins), fanins, 0), 0)
+    return out
+
+
 def _candidates(problem: _Problem, forms: dict[str, list[_Form]], cells: Sequence[Cell]) -> _Candidates:
     cands = _Candidates()
     n = problem.nvars
@@ -830,6 +870,16 @@ def _candidates(problem: _Problem, forms: dict[str, list[_Form]], cells: Sequenc
             cands.add_option(_Option(sig.name, "sop", net, c ^ form.k))
             if len(form.cubes) >= FACTOR_MIN_CUBES:
                 net, c = _factored(cands, form.cubes, n)
+                cands.add_option(_Option(sig.name, "sop", net, c ^ form.k))
+    every_cube = sorted({cube for fs in forms.values() for f in fs for cube in f.cubes})
+    small = problem.nvars <= EXACT_MAX_VARS and len(problem.signals) <= EXACT_MAX_OUTPUTS
+    if len(problem.signals) > 1 and not small and len(every_cube) <= EXTRACT_MAX_CUBES:
+        # small designs get exact synthesis, which shares sub-terms by itself; the
+        # extra options would only slow their structure selection down
+        terms = _extracted_terms(cands, every_cube, n)
+        for sig in problem.signals:
+            for form in forms.get(sig.name, []):
+                net, c = _sum(cands, [terms[cube] for cube in form.cubes])
                 cands.add_option(_Option(sig.name, "sop", net, c ^ form.k))
     for ci, cell in enumerate(cells):
         if cell.op == "mux" and cell.mapped:
@@ -878,25 +928,72 @@ def _mux_options(sig: _Signal, forms: Sequence[_Form], ci: int, cell: Cell, nvar
 
 def _decoder_options(cands: _Candidates, problem: _Problem, forms: dict[str, list[_Form]],
                      ci: int, cell: Cell) -> None:
-    """Decoder outputs as minterms, OR-ed by gates; one decoder per set of select variables."""
+    """Decoder outputs as minterms, OR-ed by gates; one decoder per set of select
+    variables and enable wiring.  A cover whose terms share literals may put them
+    on the enables (a 74HC138's G1 takes a true literal, G2A/G2B complemented
+    ones): its outputs are then minterms of the selects ANDed with that cube."""
     n = problem.nvars
     keys = sorted({tuple(f.support(n)) for fs in forms.values() for f in fs
                    if len(f.support(n)) <= cell.width}, key=lambda k: (-len(k), k))[:6]
+    plain = (None,) * len(cell.enables)
     for sig in problem.signals:
         for form in forms.get(sig.name, []):
             supp = set(form.support(n))
             for key in keys:
-                if not supp <= set(key):
-                    continue
-                on = [code for code in range(1 << len(key))
-                      if form.value(sum(1 << v for b, v in enumerate(key) if code >> b & 1))]
-                if not on or any(code >= cell.codes for code in on):
-                    continue
-                if (ci, key) not in cands.decoders:
-                    cands.decoders.append((ci, key))
-                d = cands.decoders.index((ci, key))
-                net, c = _sum(cands, [(("d", d, code), 0) for code in on])
-                cands.add_option(_Option(sig.name, "dec", net, c ^ form.k))
+                if supp <= set(key):
+                    _add_decoder_option(cands, sig, form, ci, cell, key, plain, n)
+            wired = _enable_wiring(form, cell, n)
+            if wired is not None:
+                key, enables = wired
+                _add_decoder_option(cands, sig, form, ci, cell, key, enables, n)
+
+
+def _enable_wiring(form: _Form, cell: Cell, nvars: int) -> tuple[tuple[int, ...], tuple] | None:
+    """The cover's common cube on the decoder's enable pins and the rest of its
+    support on the selects, or None when the pins cannot take it."""
+    if not cell.enables:
+        return None
+    mask, value = ~0, form.cubes[0][1]
+    for m, v in form.cubes:
+        mask &= m & ~(v ^ value)
+    common = [(i, value >> i & 1) for i in range(nvars) if mask >> i & 1]
+    if not common:
+        return None
+    pins: list[int | None] = [None] * len(cell.enables)
+    for var, bit in common:
+        wanted = "high" if bit else "low"
+        free = [j for j, active in enumerate(cell.enables) if active == wanted and pins[j] is None]
+        if not free:
+            return None
+        pins[free[0]] = var
+    key = tuple(v for v in form.support(nvars) if not mask >> v & 1)
+    if not key or len(key) > cell.width:
+        return None
+    return key, tuple(pins)
+
+
+def _add_decoder_option(cands: _Candidates, sig: _Signal, form: _Form, ci: int, cell: Cell,
+                        key: tuple[int, ...], enables: tuple, nvars: int) -> None:
+    fixed = sum(1 << v for v in enables if v is not None)       # enable literals, asserted
+    fixed_value = sum(1 << v for j, v in enumerate(enables) if v is not None
+                      and cell.enables[j] == "high")
+    on = [code for code in range(1 << len(key))
+          if form.value(fixed_value | sum(1 << v for b, v in enumerate(key) if code >> b & 1))]
+    if not on or any(code >= cell.codes for code in on):
+        return
+    if fixed:
+        # the outputs are low-or-inactive wherever an enable is off: the form must be too
+        for m in range(1 << nvars):
+            if (m & fixed) != fixed_value and form.value(m):
+                return
+    index = (ci, key, enables)
+    if index not in cands.decoder_index:
+        cands.decoder_index[index] = len(cands.decoders)
+        cands.decoders.append((ci, key))
+        cands.decoder_enables.append(enables)
+    d = cands.decoder_index[index]
+    net, c = _sum(cands, [(("d", d, code), 0) for code in on])
+    cands.add_option(_Option(sig.name, "dec", net, c ^ form.k))
 
 
 # ---------------------------------------------------------------- structure selection (SAT)
@@ -1205,10 +1302,14 @@ class _Emitter:
             return self.gate(kind.cell, cell.op, (net, tie) + ("VSS",) * (cell.width - 2))
         return self.mux(kind.cell, ("VDD", "VSS"), (net,))
 
-    def decoder(self, cell_index: int, selects: Sequence[str], outputs: Sequence[str]) -> None:
+    def decoder(self, cell_index: int, selects: Sequence[str], outputs: Sequence[str],
+                enable_nets: Sequence[str | None] = ()) -> None:
+        """A decoder unit; enable pins without a net are tied to their active rail."""
         cell = self.cells[cell_index]
         selects = tuple(selects) + ("VSS",) * (cell.width - len(selects))
-        enables = tuple("VDD" if a == "high" else "VSS" for a in cell.enables)
+        nets = list(enable_nets) + [None] * (len(cell.enables) - len(enable_nets))
+        enables = tuple(net if net is not None else "VDD" if a == "high" else "VSS"
+                        for net, a in zip(nets, cell.enables))
         self.count += 1
         self.gates.insert(0, Gate(f"g{self.count}", cell.part, "decoder", selects + enables,
                                   tuple(outputs), active=cell.active, enables_active=cell.enables))
@@ -1298,7 +1399,8 @@ class _Builder:
         for d, outs in self.dec_out.items():
             ci, key = self.cands.decoders[d]
             outputs = [outs.get(code, "") for code in range(self.cells[ci].codes)]
-            self.em.decoder(ci, [self.problem.var_nets[v] for v in key], outputs)
+            enables = [None if v is None else self.problem.var_nets[v] for v in self.cands.decoder_enables[d]]
+            self.em.decoder(ci, [self.problem.var_nets[v] for v in key], outputs, enables)
         return self.em.gates
 
 
@@ -1678,45 +1780,69 @@ class _Result:
     lower_bound: int | None = None
 
 
+LADDER_SLICE = 0.25     # of the time left, the most one circuit size gets before the next is tried
+
+
 def _exact_search(problem: _Problem, cells: Sequence[Cell], deadline: float,
                   incumbent: tuple[int, int] | None, max_gates: int = EXACT_MAX_GATES
                   ) -> tuple[_Result | None, bool, float]:
     """Exact synthesis for k = lower bound, ... until no better (chips, gates) can exist.
 
-    Returns (best result or None, proven, chip lower bound).  Proven with no
-    result means no circuit of the bin's gate types fits the bin at all.
+    Proving that no k-gate circuit exists gets hard just below the optimum,
+    so each size first gets a slice of the time; a size left open is passed
+    over (the next may have a circuit, found in a fraction of the time) and
+    taken up again with the time that remains.  Proven only when every size
+    that could beat the result was settled.  Returns (best result or None,
+    proven, chip lower bound); proven with no result means no circuit of the
+    bin's gate types fits the bin at all.
     """
     kinds = _sat_kinds(cells)
     if not kinds:
         return None, True, float("inf")
     capacities = _chip_capacities([cells[k.cell] for k in kinds])
-    k = _gate_lower_bound(problem, kinds)
-    best: _Result | None = None
-    bound = incumbent
-    while True:
-        lb = _chips_lower_bound(k, capacities) if k != float("inf") else float("inf")
-        if lb == float("inf"):
-            return best, True, min(best.cost[0] if best else lb, lb)
-        if bound is not None and not (lb < bound[0] or (lb == bound[0] and k < bound[1])):
-            return best, True, min(bound[0], lb)
-        if k > max_gates or time.monotonic() >= deadline:
-            floor = lb if bound is None else min(bound[0], lb)
-            return best, False, floor
-        instance = _ExactInstance(problem, cells, kinds, int(k))
-        model, done, cost = instance.solve(deadline, floor=lb, ceiling=bound[0] if bound else None)
-        if model is None:
-            if not done:
-                floor = lb if bound is None else min(bound[0], lb)
-                return best, False, floor
-            k += 1
-            continue
-        if bound is None or cost < bound:
+    k0 = _gate_lower_bound(problem, kinds)
+    if k0 == float("inf"):
+        return None, True, float("inf")
+    state = {"best": None, "bound": incumbent}
+
+    def could_beat(k: int) -> bool:
+        lb, bound = _chips_lower_bound(k, capacities), state["bound"]
+        return bound is None or lb < bound[0] or (lb == bound[0] and k < bound[1])
+
+    def settle(k: int, until: float) -> bool:
+        instance = _ExactInstance(problem, cells, kinds, k)
+        bound = state["bound"]
+        model, done, cost = instance.solve(until, floor=_chips_lower_bound(k, capacities),
+                                           ceiling=bound[0] if bound else None)
+        if model is not None and (bound is None or cost < bound):
             gates, signals = instance.build(model)
-            best = _Result(gates, signals, cost, False, "exact synthesis")
-            bound = cost
-        if not done:
-            return best, False, min(bound[0], lb)
+            state["best"], state["bound"] = _Result(gates, signals, cost, False, "exact synthesis"), cost
+        return bool(done)
+
+    open_sizes: list[int] = []
+    k, complete = int(k0), True
+    while _chips_lower_bound(k, capacities) != float("inf") and could_beat(k):
+        if k > max_gates or time.monotonic() >= deadline:
+            open_sizes.append(k)
+            complete = False
+            break
+        until = min(deadline, time.monotonic() + max(0.5, (deadline - time.monotonic()) * LADDER_SLICE))
+        if not settle(k, until):
+            open_sizes.append(k)
         k += 1
+    for size in list(open_sizes if complete else open_sizes[:-1]):
+        if not could_beat(size):
+            open_sizes.remove(size)
+        elif time.monotonic() < deadline and settle(size, deadline):
+            open_sizes.remove(size)
+    open_sizes = [size for size in open_sizes if could_beat(size)]
+    best, bound = state["best"], state["bound"]
+    floors = [_chips_lower_bound(size, capacities) for size in open_sizes]
+    if not open_sizes:
+        last = _chips_lower_bound(k, capacities)
+        return best, True, last if bound is None else min(bound[0], last)
+    floor = min(floors) if bound is None else min(bound[0], min(floors))
+    return best, False, floor
 
 
 # ---------------------------------------------------------------- structure selection (local search)
@@ -2371,8 +2497,8 @@ def map_design(functions, nvars: int, var_nets: Sequence[str], library: Library,
         result.proven = True
         notes.append("counting bound: no circuit of the bin has fewer chips or gates "
                      "(fan-in, distinct outputs, inversion)")
-    lb = result.cost[0] if result.proven else max(1, min(max(int(lower), int(min(chip_floor, 10 ** 6))),
-                                                          result.cost[0]))
+    # an exact search that found nothing among plain gates may bound at infinity
+    lb = result.cost[0] if result.proven else max(1, int(min(max(lower, chip_floor), result.cost[0])))
     method = ("exact synthesis" if result.method == "exact synthesis" else "structure selection") + \
         (": proven minimal" if result.proven else ": best found")
     network = Network(gates, signals, tuple(var_nets), chips, result.proven, lb, method, notes)

@@ -156,6 +156,57 @@ def test_every_three_input_function_is_mapped_in_the_fewest_gates(part, brute_ta
     assert not wrong, f"(truth table, mapper gates, brute-force gates): {wrong}"
 
 
+# ---------------------------------------------------------------- windows of a long count
+
+def network_as_sympy(network):
+    """The mapped gates read into sympy.logic (written here from the gate ops'
+    textbook meanings; mux: data[code of the selects])."""
+    import sympy
+
+    values = {net: sympy.Symbol(net) for net in network.inputs}
+    values.update({"VDD": sympy.true, "VSS": sympy.false})
+    ops = {"and": sympy.And, "or": sympy.Or, "xor": sympy.Xor}
+    pending = list(network.gates)
+    while pending:
+        gate = next(g for g in pending if all(n in values for n in g.inputs))
+        pending.remove(gate)
+        ins = [values[n] for n in gate.inputs]
+        base = gate.op.removeprefix("n").replace("xnor", "xor") if gate.op != "not" else "not"
+        if gate.op in ("not", "buf"):
+            out = sympy.Not(ins[0]) if gate.op == "not" else ins[0]
+        elif gate.op == "xnor":
+            out = sympy.Not(sympy.Xor(*ins))
+        else:
+            out = ops[base](*ins)
+            out = sympy.Not(out) if gate.op in ("nand", "nor") else out
+        values[gate.outputs[0]] = out
+    return values
+
+
+@pytest.mark.parametrize("lo, hi", [(341, 682), (1, 1023), (300, 301), (512, 640)])
+def test_a_ten_bit_window_maps_as_comparator_chains(lo, hi):
+    """A window lo <= x < hi of a 10-bit count needs two comparisons with
+    constants, each a chain of at most one 2-input gate per bit (common
+    practice: x >= a is x_i AND (x >= a below i) where a_i = 1, x_i OR (...)
+    where a_i = 0).  The flat two-level cover of (341, 682) has 18 terms and
+    about 90 gates; the mapper must find a multi-level form within 3 gates per
+    bit, and the circuit must equal the window (checked in sympy.logic)."""
+    import sympy
+
+    nvars = 10
+    on = frozenset(range(lo, hi))
+    network = map_design([Function("w", on)], nvars, [f"x{i}" for i in range(nvars)],
+                         library({"74HC00": 20, "74HC02": 20, "74HC04": 10}), polarity={"w": "high"})
+    assert len(network.gates) <= 3 * nvars
+    expr = network_as_sympy(network)[network.signals["w"].net]
+    symbols = [sympy.Symbol(f"x{i}") for i in range(nvars)]
+    truth = sympy.lambdify(symbols, expr, modules="math")
+    for m in range(1 << nvars):
+        level = bool(truth(*[bool(m >> i & 1) for i in range(nvars)]))
+        asserted = level if network.signals["w"].polarity == "high" else not level
+        assert asserted == (lo <= m < hi), m
+
+
 # ---------------------------------------------------------------- plans simulated from their JSON
 
 CATALOG_DOCS = {}
@@ -208,6 +259,9 @@ def simulate_plan(plan: dict, cycle: int) -> dict[str, set[int]]:
                 if doc["category"] == "counter":
                     continue
                 for unit in doc["units"]:
+                    if unit["type"] == "decoder":
+                        changed |= decoder_step(ref, unit, net_of, values)
+                        continue
                     out = net_of.get((ref, unit["output"]))
                     ins = [net_of.get((ref, p)) for p in unit_inputs(unit)]
                     if out is None or any(n is None for n in ins):
@@ -232,6 +286,47 @@ def simulate_plan(plan: dict, cycle: int) -> dict[str, set[int]]:
             if level == (sig["polarity"] == "high"):
                 asserted[name].add(count)
     return asserted
+
+
+def decoder_step(ref: str, unit: dict, net_of: dict, values: dict) -> bool:
+    """A decoder unit per the Philips 74HC/HCT138 function table (outputs HIGH
+    unless every enable is at its active level; then the output numbered by the
+    selects, A0 the lsb, goes to its active level)."""
+    sel = [net_of.get((ref, p)) for p in unit["selects"]]
+    ens = [(net_of.get((ref, e["pin"])), e["active"]) for e in unit.get("enables", [])]
+    if not all(n in values for n in sel + [n for n, _ in ens]):
+        return False
+    enabled = all(values[n] == (active == "high") for n, active in ens)
+    code = sum(1 << i for i, n in enumerate(sel) if values[n])
+    changed = False
+    for k, pin in enumerate(unit["outputs"]):
+        net = net_of.get((ref, pin))
+        if net is None:
+            continue
+        level = (enabled and k == code) == (unit.get("active", "high") == "high")
+        if values.get(net) != level:
+            assert net not in values, f"net {net} driven twice"
+            values[net] = level
+            changed = True
+    return changed
+
+
+def test_decoder_enables_take_the_common_literals(tmp_path, capsys):
+    """f = Q4 Q3' (Q0 xor Q1 xor Q2) from a 74HC138 and a 74HC20: Q4 on the
+    active-high enable, Q3 on an active-low one, the four odd-parity outputs
+    into one NAND4 (active-low outputs OR-ed by a NAND, De Morgan).  2 chips;
+    the plan is simulated from its wires with the datasheet function table."""
+    ticks = [t for t in range(32) if t >> 4 & 1 and not t >> 3 & 1 and bin(t & 7).count("1") % 2]
+    spec = {"name": "dec", "cycle": 32, "signals": {"f": {"high": ticks, "polarity": "high"}}}
+    parts = {"74HC4040": 1, "74HC138": 1, "74HC20": 1}
+    out = tmp_path / "plan.json"
+    code = main(["plan", str(write(tmp_path, "spec.yaml", spec)), "--bin",
+                 str(write(tmp_path, "bin.yaml", {"parts": parts})), "--json", str(out), "--lacks", "0"])
+    assert code == 0, capsys.readouterr().err
+    plan = json.loads(out.read_text())
+    check_plan_against_bin(plan, parts)
+    assert {row["part"]: row["count"] for row in plan["bom"]} == parts
+    assert simulate_plan(plan, 32)["f"] == set(ticks)
 
 
 def check_plan_against_bin(plan: dict, bin_parts: dict[str, int]) -> None:
