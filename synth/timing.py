@@ -573,11 +573,13 @@ class _Engine:
     def _evaluate(self, gi: int, t: int, changed: dict[str, bool]) -> None:
         g = self.gates[gi]
         out = self.compiled[gi](self.levels)
-        trigger = next((n for n in g.gate.inputs if n in changed), None)
-        cause = self.last_change(trigger) if trigger else None
+        cause: tuple[str, int] | None = None
         for net, value in out:
             if self.computed[(gi, net)] == value:
                 continue
+            if cause is None:        # only a changing output needs to know which input moved it
+                trigger = next((n for n in g.gate.inputs if n in changed), None)
+                cause = self.last_change(trigger) if trigger else None
             self.computed[(gi, net)] = value
             if self.inertial:
                 pending = self.pending.pop(net, None)

@@ -207,6 +207,30 @@ def test_a_ten_bit_window_maps_as_comparator_chains(lo, hi):
         assert asserted == (lo <= m < hi), m
 
 
+def test_signals_sharing_a_sub_product_build_it_once():
+    """Five 7-bit decodes x6 x5 x4 * (one code of x2 x1 x0): each alone is a
+    six-input AND (5 AND2 each, 25 in all, plus 3 inverters); with the common
+    sub-product x6 x5 x4 built once (common practice: share common terms) at
+    most 2 + 5 * 3 AND2 and 3 inverters remain.  Each output is checked
+    against the decode in sympy.logic."""
+    import sympy
+
+    nvars = 7
+    codes = [0, 1, 2, 5, 7]
+    funcs = [Function(f"s{i}", frozenset(m for m in range(128) if m >> 4 == 7 and m & 7 == code))
+             for i, code in enumerate(codes)]
+    network = map_design(funcs, nvars, [f"x{i}" for i in range(nvars)],
+                         library({"74HC08": 10, "74HC04": 3}), polarity={f.name: "high" for f in funcs})
+    assert len(network.gates) <= 2 + 5 * 3 + 3
+    values = network_as_sympy(network)
+    symbols = [sympy.Symbol(f"x{i}") for i in range(nvars)]
+    for f in funcs:
+        truth = sympy.lambdify(symbols, values[network.signals[f.name].net], modules="math")
+        for m in range(1 << nvars):
+            level = bool(truth(*[bool(m >> i & 1) for i in range(nvars)]))
+            assert (level if network.signals[f.name].polarity == "high" else not level) == (m in f.on)
+
+
 # ---------------------------------------------------------------- plans simulated from their JSON
 
 CATALOG_DOCS = {}
