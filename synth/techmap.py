@@ -56,6 +56,13 @@ Two engines, both over python-sat:
    (chips, then gates) over all circuits of the bin's gates, inverters and
    2:1 muxes"; wider muxes and decoders are outside that claim.
 
+Time: ``time_limit`` is read as solver work for the SAT engines (conflicts at
+``CONFLICTS_PER_SECOND``, the ``_WorkClock``), so the same spec and bin give
+the same plan on an idle or a loaded machine; a wall-clock cap at
+``WALL_SLACK`` times the limit stops a machine far slower than the
+calibration.  The local search, which runs no solver, keeps the wall clock;
+it settles by itself on designs small enough for exact synthesis.
+
 Depth is only a tie-break (the tree enumeration keeps the shallower of two
 trees with equal units); it is reported, not proven.  The local search (for
 designs too large for the SAT selection) starts from the cheapest option per
@@ -572,18 +579,49 @@ class _Cnf:
         return out
 
 
+CONFLICTS_PER_SECOND = 40_000   # the solver work one second of ``time_limit`` buys (about one
+                                # second of Glucose on these instances, measured on a 2-core machine)
+WALL_SLACK = 3.0                # a very slow or loaded machine is still stopped at 3x the time
+
+
+class _WorkClock:
+    """Solver time: the mapping's start plus the conflicts spent so far, in
+    seconds at ``CONFLICTS_PER_SECOND``.  The SAT engines' deadlines are read
+    on this clock, so a plan depends on its inputs only, not on how busy the
+    machine was; the local search, which runs no solver, keeps the wall clock."""
+
+    def __init__(self) -> None:
+        self.origin = time.monotonic()
+        self.conflicts = 0
+
+    def now(self) -> float:
+        return self.origin + self.conflicts / CONFLICTS_PER_SECOND
+
+
+_WORK = _WorkClock()
+
+
+def _work_now() -> float:
+    return _WORK.now()
+
+
 def _solve(solver, assumptions: Sequence[int], deadline: float) -> bool | None:
-    """Solve with a wall-clock deadline; None when time ran out."""
-    remaining = deadline - time.monotonic()
+    """Solve within the work clock's deadline (a conflict budget); None when it
+    ran out.  A wall-clock timer at ``WALL_SLACK`` times the budget is the
+    safety net on a machine far slower than the calibration."""
+    remaining = deadline - _WORK.now()
     if remaining <= 0:
         return None
-    timer = threading.Timer(remaining, solver.interrupt)
+    solver.conf_budget(int(remaining * CONFLICTS_PER_SECOND) + 1)
+    before = solver.accum_stats().get("conflicts", 0)
+    timer = threading.Timer(remaining * WALL_SLACK + 0.5, solver.interrupt)
     timer.start()
     try:
         result = solver.solve_limited(assumptions=list(assumptions), expect_interrupt=True)
     finally:
         timer.cancel()
         solver.clear_interrupt()
+        _WORK.conflicts += solver.accum_stats().get("conflicts", 0) - before
     return result
 
 
@@ -1832,18 +1870,18 @@ def _exact_search(problem: _Problem, cells: Sequence[Cell], deadline: float,
     open_sizes: list[int] = []
     k, complete = int(k0), True
     while _chips_lower_bound(k, capacities) != float("inf") and could_beat(k):
-        if k > max_gates or time.monotonic() >= deadline:
+        if k > max_gates or _work_now() >= deadline:
             open_sizes.append(k)
             complete = False
             break
-        until = min(deadline, time.monotonic() + max(0.5, (deadline - time.monotonic()) * LADDER_SLICE))
+        until = min(deadline, _work_now() + max(0.5, (deadline - _work_now()) * LADDER_SLICE))
         if not settle(k, until):
             open_sizes.append(k)
         k += 1
     for size in list(open_sizes if complete else open_sizes[:-1]):
         if not could_beat(size):
             open_sizes.remove(size)
-        elif time.monotonic() < deadline and settle(size, deadline):
+        elif _work_now() < deadline and settle(size, deadline):
             open_sizes.remove(size)
     open_sizes = [size for size in open_sizes if could_beat(size)]
     best, bound = state["best"], state["bound"]
@@ -2256,7 +2294,7 @@ def _select(problem: _Problem, forms: dict[str, list[_Form]], lib: Library,
     local, overflow = _LocalSearch(problem, cands, cells, table).run(deadline)
     chosen = local if local is not None and not overflow else None
     proven = False
-    if _selection_is_small(cands, table) and time.monotonic() < deadline:
+    if _selection_is_small(cands, table) and _work_now() < deadline:
         selection = _Selection(problem, cands, cells, table)
         exact_choice, proven = selection.solve(deadline, chosen)
         if exact_choice is not None:
@@ -2453,7 +2491,9 @@ def map_design(functions, nvars: int, var_nets: Sequence[str], library: Library,
     """
     if exact not in ("auto", "yes", "no"):
         raise UsageError(f"expected exact to be auto, yes or no, got {exact!r}")
-    start = time.monotonic()
+    global _WORK
+    _WORK = _WorkClock()
+    start = _WORK.origin
     lib = library.mapped()
     problem, direct, every = _problem(functions, nvars, var_nets, polarity)
     if not problem.signals:
