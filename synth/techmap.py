@@ -56,12 +56,12 @@ Two engines, both over python-sat:
    (chips, then gates) over all circuits of the bin's gates, inverters and
    2:1 muxes"; wider muxes and decoders are outside that claim.
 
-Time: ``time_limit`` is read as solver work for the SAT engines (conflicts at
-``CONFLICTS_PER_SECOND``, the ``_WorkClock``), so the same spec and bin give
-the same plan on an idle or a loaded machine; a wall-clock cap at
-``WALL_SLACK`` times the limit stops a machine far slower than the
-calibration.  The local search, which runs no solver, keeps the wall clock;
-it settles by itself on designs small enough for exact synthesis.
+Time: exact synthesis reads ``time_limit`` as solver work (conflicts at
+``CONFLICTS_PER_SECOND``, the ``_WorkClock``), so what it finds does not
+depend on how busy the machine is; a wall-clock cap at ``WALL_SLACK`` times
+the limit stops a machine far slower than the calibration.  Structure
+selection and the local search keep the wall clock; on designs small enough
+for exact synthesis they finish well inside their share.
 
 Depth is only a tie-break (the tree enumeration keeps the shallower of two
 trees with equal units); it is reported, not proven.  The local search (for
@@ -585,10 +585,13 @@ WALL_SLACK = 3.0                # a very slow or loaded machine is still stopped
 
 
 class _WorkClock:
-    """Solver time: the mapping's start plus the conflicts spent so far, in
-    seconds at ``CONFLICTS_PER_SECOND``.  The SAT engines' deadlines are read
-    on this clock, so a plan depends on its inputs only, not on how busy the
-    machine was; the local search, which runs no solver, keeps the wall clock."""
+    """Solver time: the mapping's start plus the conflicts exact synthesis has
+    spent so far, in seconds at ``CONFLICTS_PER_SECOND``.  Exact synthesis
+    reads its deadlines on this clock, so what it finds for a small design
+    depends on the design only, not on how busy the machine was.  Structure
+    selection and the local search keep the wall clock (their instances vary
+    too much in conflicts per second for one rate; on small designs they
+    finish well inside their time)."""
 
     def __init__(self) -> None:
         self.origin = time.monotonic()
@@ -605,16 +608,18 @@ def _work_now() -> float:
     return _WORK.now()
 
 
-def _solve(solver, assumptions: Sequence[int], deadline: float) -> bool | None:
-    """Solve within the work clock's deadline (a conflict budget); None when it
-    ran out.  A wall-clock timer at ``WALL_SLACK`` times the budget is the
-    safety net on a machine far slower than the calibration."""
-    remaining = deadline - _WORK.now()
+def _solve(solver, assumptions: Sequence[int], deadline: float, work: bool = False) -> bool | None:
+    """Solve by a wall-clock deadline, or with ``work`` by the work clock's (a
+    conflict budget, with a wall-clock timer at ``WALL_SLACK`` times it as the
+    safety net on a machine far slower than the calibration); None when the
+    time ran out."""
+    remaining = deadline - (_WORK.now() if work else time.monotonic())
     if remaining <= 0:
         return None
-    solver.conf_budget(int(remaining * CONFLICTS_PER_SECOND) + 1)
+    if work:
+        solver.conf_budget(int(remaining * CONFLICTS_PER_SECOND) + 1)
     before = solver.accum_stats().get("conflicts", 0)
-    timer = threading.Timer(remaining * WALL_SLACK + 0.5, solver.interrupt)
+    timer = threading.Timer(remaining * WALL_SLACK + 0.5 if work else remaining, solver.interrupt)
     timer.start()
     try:
         result = solver.solve_limited(assumptions=list(assumptions), expect_interrupt=True)
@@ -920,10 +925,9 @@ def _candidates(problem: _Problem, forms: dict[str, list[_Form]], cells: Sequenc
                 net, c = _factored(cands, form.cubes, n)
                 cands.add_option(_Option(sig.name, "sop", net, c ^ form.k))
     every_cube = sorted({cube for fs in forms.values() for f in fs for cube in f.cubes})
-    small = problem.nvars <= EXACT_MAX_VARS and len(problem.signals) <= EXACT_MAX_OUTPUTS
-    if len(problem.signals) > 1 and not small and len(every_cube) <= EXTRACT_MAX_CUBES:
-        # small designs get exact synthesis, which shares sub-terms by itself; the
-        # extra options would only slow their structure selection down
+    if len(problem.signals) > 1 and problem.nvars > EXACT_MAX_VARS and len(every_cube) <= EXTRACT_MAX_CUBES:
+        # over few variables exact synthesis shares sub-terms by itself, and the
+        # extra options make the structure selection's proof many times slower
         terms = _extracted_terms(cands, every_cube, n)
         for sig in problem.signals:
             for form in forms.get(sig.name, []):
@@ -1771,14 +1775,14 @@ class _ExactInstance:
         try:
             counters = self.costing.chip_count
             cap = [-counters[ceiling]] if ceiling is not None and ceiling < len(counters) else []
-            result = _solve(solver, cap, deadline)
+            result = _solve(solver, cap, deadline, work=True)
             if not result:
                 return None, result is False, None
             model = solver.get_model()
             chips = self.chips(model)
             done = True
             while chips > max(1, floor):
-                answer = _solve(solver, [-self.costing.chip_count[chips - 1]], deadline)
+                answer = _solve(solver, [-self.costing.chip_count[chips - 1]], deadline, work=True)
                 if answer is None:
                     done = False
                     break
@@ -2294,7 +2298,7 @@ def _select(problem: _Problem, forms: dict[str, list[_Form]], lib: Library,
     local, overflow = _LocalSearch(problem, cands, cells, table).run(deadline)
     chosen = local if local is not None and not overflow else None
     proven = False
-    if _selection_is_small(cands, table) and _work_now() < deadline:
+    if _selection_is_small(cands, table) and time.monotonic() < deadline:
         selection = _Selection(problem, cands, cells, table)
         exact_choice, proven = selection.solve(deadline, chosen)
         if exact_choice is not None:
