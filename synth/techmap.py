@@ -1972,13 +1972,23 @@ class _LocalSearch:
         order: list[int] = []
         decs: set[int] = set()
         nodes = self.cands.nodes
-        chosen = {n: self.trees[n][tree[n]] for n in self.trees}
-        nat = {n: chosen[n].b ^ nodes[n].invert for n in chosen}
+        menus = self.trees
         natural_dec = self.natural_dec
+        chosen: dict[int, _Tree] = {}         # filled for the nodes the design reaches
+
+        def tree_of(n: int) -> _Tree:
+            t = chosen.get(n)
+            if t is None:
+                t = chosen[n] = menus[n][tree[n]]
+            return t
 
         def natural(net: tuple) -> int:
             kind = net[0]
-            return 0 if kind == "v" else nat[net[1]] if kind == "n" else natural_dec[net[1]]
+            if kind == "v":
+                return 0
+            if kind == "n":
+                return tree_of(net[1]).b ^ nodes[net[1]].invert
+            return natural_dec[net[1]]
 
         def require(net: tuple, q: int) -> int:
             d = 0
@@ -1997,7 +2007,7 @@ class _LocalSearch:
             if n in depth_of:
                 return depth_of[n]
             depth_of[n] = 0
-            t = chosen[n]
+            t = tree_of(n)
             for c, u in enumerate(t.units):
                 if u:
                     units[c] += u
