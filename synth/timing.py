@@ -303,10 +303,48 @@ def gate_models(network: Network, catalog: Any, supply: float, corner: str = "ty
         part = catalog.parts.get(gate.part)
         delay = _delay(part, "tpd", supply, corner)
         if delay is None:
+            delay, _ = stand_in_delay(catalog, gate, supply, corner)
+        if delay is None:
             raise InternalError(f"gate {gate.id}: the catalog gives no delay for part {gate.part}")
         name = (gate_names or {}).get(gate.id, gate.id)
         models.append(GateModel(gate, name, ps(delay), _also_op(part, gate)))
     return models
+
+
+def stand_in_delay(catalog: Any, gate: Gate, supply: float, corner: str) -> tuple[float | None, str | None]:
+    """For a part the catalog has no delay figures for: the slowest delay of the
+    family's parts with a unit of the same function (a 4030 XOR takes the
+    4070's), and the warning that says so.  Slowest, so a timing margin found
+    with it is not an optimistic guess."""
+    part = catalog.parts.get(gate.part)
+    family = getattr(part, "family", None)
+    best, source = None, None
+    for other in catalog.parts.values():
+        if other is part or getattr(other, "family", None) != family:
+            continue
+        if not any(u.type == "gate" and u.op == gate.op for u in other.units) and \
+                not any(u.type in ("inverter", "buffer") and gate.op in ("not", "buf") for u in other.units):
+            continue
+        d = _delay(other, "tpd", supply, corner)
+        if d is not None and (best is None or d > best):
+            best, source = d, other.type
+    if best is None:
+        return None, None
+    return best, (f"the catalog has no delay figures for the {gate.part}; the timing checks use the "
+                  f"{source}'s ({best:.0f} ns {corner} at {supply:g} V, the slowest {gate.op} of its "
+                  "family), an assumption: check the part's datasheet")
+
+
+def stand_in_warnings(network: Network, catalog: Any, supply: float) -> list[str]:
+    """One warning per part whose delays were borrowed by ``stand_in_delay``."""
+    notes = {}
+    for gate in network.gates:
+        part = catalog.parts.get(gate.part)
+        if gate.part not in notes and _delay(part, "tpd", supply, "typ") is None:
+            _, note = stand_in_delay(catalog, gate, supply, "typ")
+            if note:
+                notes[gate.part] = note
+    return list(notes.values())
 
 
 # ---------------------------------------------------------------- the trace
@@ -655,6 +693,7 @@ def simulate(counter_plan: Any, network: Network, catalog: Any, supply: float, *
                 if n not in driven and n not in RAILS and n != clock_net]
     initial = _settled_levels(counters, gates, clock_net, after_edge, undriven)
     engine = _Engine(counters, gates, clock_net, inertial, initial)
+    engine.warnings += stand_in_warnings(network, catalog, supply)
     ticks = cycles * cycle
     end = (ticks + 1) * period
     for k in range(ticks + 1):

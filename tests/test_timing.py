@@ -443,3 +443,17 @@ def test_state_analysis_and_event_simulation_agree(catalog):
     pulses = timing.glitches(trace)
     assert hazards and hazards <= {(g.signal, g.at_tick) for g in pulses}
     assert {(g.signal, g.at_tick) for g in pulses if g.transient_state is not None} <= hazards
+
+
+def test_a_part_without_delay_figures_borrows_its_family_slowest(catalog):
+    """The catalog enters no delay for the 4030 (its datasheet source gives only a
+    15 pF figure, see the catalog entry); the timing check then uses the slowest
+    4000B XOR with figures, the 4070 (Philips HEF4070B: 85 ns typ at 5 V), and
+    says so instead of stopping."""
+    gate = Gate("g1", "4030", "xor", ("a", "b"), ("y",))
+    assert catalog.parts["4030"].delay_ns("tpd", 5.0, "typ") is None
+    delay, note = timing.stand_in_delay(catalog, gate, 5.0, "typ")
+    assert delay == catalog.parts["4070"].delay_ns("tpd", 5.0, "typ") == 85
+    assert "4030" in note and "4070" in note
+    network = Network([gate], {"y": SignalOut("y", "high")}, ("a", "b"))
+    assert timing.stand_in_warnings(network, catalog, 5.0) == [note]
