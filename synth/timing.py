@@ -10,7 +10,8 @@ Interface:
 - ``counter_models(counter_plan, network, catalog, supply, corner)`` and
   ``gate_models(network, catalog, supply, corner, gate_names)``: the delay
   model the simulator and the Verilog export share (``CounterModel``,
-  ``CounterOutput``, ``GateModel``).
+  ``CounterOutput``, ``GateModel``); ``stand_in_delay`` and
+  ``stand_in_warnings`` for a part the catalog has no delay figures for.
 - ``gate_names_of(plan)`` (gate id -> ``U2_A``), ``reset_net_of(counter_plan, network)``.
 - ``glitches(trace, expected_levels=None) -> list[Glitch]``: every tick entry
   where a signal takes a wrong level for a moment, with cause, path, width;
