@@ -172,12 +172,26 @@ def evaluate_network(network: Network, inputs: Mapping[str, bool]) -> dict[str, 
     """
     values = dict(RAILS)
     values.update(inputs)
+    for gate in _driven_order(network, values):
+        values.update(evaluate_gate(gate, values))
+    return values
+
+
+def _driven_order(network: Network, values: Mapping):
+    """The gates in ``gate_order``, each checked to have every input net known by
+    the time it comes (``values`` grows as the caller evaluates)."""
     for gate in gate_order(network.gates):
         missing = [n for n in gate.inputs if n not in values]
         if missing:
             raise ValueError(f"expected a loop-free network, got undriven nets {sorted(set(missing))}")
-        values.update(evaluate_gate(gate, values))
-    return values
+        yield gate
+
+
+def counting_words(nvars: int) -> list[int]:
+    """Variable i's word over all 2**nvars assignments (bit m set where bit i of m
+    is): the inputs that make ``evaluate_words`` evaluate every minterm at once."""
+    width = 1 << nvars
+    return [sum(1 << m for m in range(width) if m >> i & 1) for i in range(nvars)]
 
 
 def evaluate_words(network: Network, inputs: Mapping[str, int], width: int) -> dict[str, int]:
@@ -186,10 +200,7 @@ def evaluate_words(network: Network, inputs: Mapping[str, int], width: int) -> d
     Python integer operation per gate instead of one call per gate and tick)."""
     full = (1 << width) - 1
     values = {"VDD": full, "VSS": 0, **inputs}
-    for gate in gate_order(network.gates):
-        missing = [n for n in gate.inputs if n not in values]
-        if missing:
-            raise ValueError(f"expected a loop-free network, got undriven nets {sorted(set(missing))}")
+    for gate in _driven_order(network, values):
         values.update(_gate_words(gate, [values[n] for n in gate.inputs], full))
     return values
 

@@ -88,6 +88,8 @@ Library rules (the mapper's choices):
 from __future__ import annotations
 
 import itertools
+import os
+import sys
 import threading
 import time
 from dataclasses import dataclass, field, replace
@@ -95,7 +97,7 @@ from typing import Iterable, Literal, Mapping, Sequence
 
 from .errors import InternalError, ShortError, UsageError
 from .inventory import Bin, Catalog, Part
-from .network import Gate, Network, SignalOut, evaluate_gate, evaluate_words
+from .network import Gate, Network, SignalOut, counting_words, evaluate_gate, evaluate_words
 
 __all__ = ["Cell", "Library", "build_library", "map_design", "chips_of", "EXACT_MAX_VARS",
            "EXACT_MAX_GATES"]
@@ -833,6 +835,14 @@ def _forms(problem: _Problem, covers: Sequence) -> dict[str, list[_Form]]:
     return forms
 
 
+def _common_cube(cubes: Sequence[tuple[int, int]]) -> tuple[int, int]:
+    """The literals every cube has, as a cube (mask, value)."""
+    mask, value = ~0, cubes[0][1]
+    for m, v in cubes:
+        mask &= m & ~(v ^ value)
+    return mask, value & mask
+
+
 FACTOR_MIN_CUBES = 3      # covers of at least this many cubes are also offered in factored form
 
 
@@ -856,13 +866,8 @@ def _factored(cands: _Candidates, cubes: Sequence[tuple[int, int]], nvars: int) 
         (i, bit), _ = max(counts.items(), key=lambda kv: (kv[1], -kv[0][0], kv[0][1]))
         having = [c for c in rest if c[0] >> i & 1 and (c[1] >> i & 1) == bit]
         rest = [c for c in rest if c not in having]
-        common_mask = ~0
-        for m, v in having:
-            common_mask &= m
-        common_mask &= ~(having[0][1] ^ having[-1][1])
-        for m, v in having:
-            common_mask &= ~(v ^ having[0][1])
-        common = (common_mask, having[0][1] & common_mask)
+        common = _common_cube(having)
+        common_mask = common[0]
         quotient = sorted({(m & ~common_mask, v & ~common_mask) for m, v in having})
         fanins = [(("v", j), 0 if common[1] >> j & 1 else 1) for j in _cube_vars(common, nvars)]
         if all(m for m, _ in quotient):          # an empty quotient cube would absorb the rest
@@ -993,11 +998,11 @@ def _decoder_options(cands: _Candidates, problem: _Problem, forms: dict[str, lis
             supp = set(form.support(n))
             for key in keys:
                 if supp <= set(key):
-                    _add_decoder_option(cands, sig, form, ci, cell, key, plain, n)
+                    _add_decoder_option(cands, sig, form, ci, cell, key, plain)
             wired = _enable_wiring(form, cell, n)
             if wired is not None:
                 key, enables = wired
-                _add_decoder_option(cands, sig, form, ci, cell, key, enables, n)
+                _add_decoder_option(cands, sig, form, ci, cell, key, enables)
 
 
 def _enable_wiring(form: _Form, cell: Cell, nvars: int) -> tuple[tuple[int, ...], tuple] | None:
@@ -1005,9 +1010,7 @@ def _enable_wiring(form: _Form, cell: Cell, nvars: int) -> tuple[tuple[int, ...]
     support on the selects, or None when the pins cannot take it."""
     if not cell.enables:
         return None
-    mask, value = ~0, form.cubes[0][1]
-    for m, v in form.cubes:
-        mask &= m & ~(v ^ value)
+    mask, value = _common_cube(form.cubes)
     common = [(i, value >> i & 1) for i in range(nvars) if mask >> i & 1]
     if not common:
         return None
@@ -1025,19 +1028,16 @@ def _enable_wiring(form: _Form, cell: Cell, nvars: int) -> tuple[tuple[int, ...]
 
 
 def _add_decoder_option(cands: _Candidates, sig: _Signal, form: _Form, ci: int, cell: Cell,
-                        key: tuple[int, ...], enables: tuple, nvars: int) -> None:
-    fixed = sum(1 << v for v in enables if v is not None)       # enable literals, asserted
+                        key: tuple[int, ...], enables: tuple) -> None:
+    """One option: the form's codes over ``key`` read off the decoder's outputs.
+    Enable literals are the form's common cube (``_enable_wiring``), so the form
+    is false wherever an enable is off, as the outputs are."""
     fixed_value = sum(1 << v for j, v in enumerate(enables) if v is not None
-                      and cell.enables[j] == "high")
+                      and cell.enables[j] == "high")       # the enable literals, asserted
     on = [code for code in range(1 << len(key))
           if form.value(fixed_value | sum(1 << v for b, v in enumerate(key) if code >> b & 1))]
     if not on or any(code >= cell.codes for code in on):
         return
-    if fixed:
-        # the outputs are low-or-inactive wherever an enable is off: the form must be too
-        for m in range(1 << nvars):
-            if (m & fixed) != fixed_value and form.value(m):
-                return
     index = (ci, key, enables)
     if index not in cands.decoder_index:
         cands.decoder_index[index] = len(cands.decoders)
@@ -1882,19 +1882,16 @@ def _exact_search(problem: _Problem, cells: Sequence[Cell], deadline: float,
         if not settle(k, until):
             open_sizes.append(k)
         k += 1
-    for size in list(open_sizes if complete else open_sizes[:-1]):
-        if not could_beat(size):
-            open_sizes.remove(size)
-        elif _work_now() < deadline and settle(size, deadline):
-            open_sizes.remove(size)
-    open_sizes = [size for size in open_sizes if could_beat(size)]
+    retry = open_sizes if complete else open_sizes[:-1]     # the last one was never tried
+    settled = {size for size in retry
+               if could_beat(size) and _work_now() < deadline and settle(size, deadline)}
+    open_sizes = [size for size in open_sizes if size not in settled and could_beat(size)]
     best, bound = state["best"], state["bound"]
-    floors = [_chips_lower_bound(size, capacities) for size in open_sizes]
     if not open_sizes:
         last = _chips_lower_bound(k, capacities)
         return best, True, last if bound is None else min(bound[0], last)
-    floor = min(floors) if bound is None else min(bound[0], min(floors))
-    return best, False, floor
+    floor = min(_chips_lower_bound(size, capacities) for size in open_sizes)
+    return best, False, floor if bound is None else min(bound[0], floor)
 
 
 # ---------------------------------------------------------------- structure selection (local search)
@@ -1925,9 +1922,9 @@ def _tree_menu(trees: Sequence[_Tree], ncells: int) -> list[_Tree]:
 
 
 def _trace(stage: str, key) -> None:
-    import os
+    """The local search's progress on stderr when BINSYNTH_TRACE is set (DEVELOPERS.md)."""
     if os.environ.get("BINSYNTH_TRACE"):
-        print(f"[local search] {stage}: {key} at {time.monotonic():.2f}", file=__import__("sys").stderr)
+        print(f"[local search] {stage}: {key} at {time.monotonic():.2f}", file=sys.stderr)
 
 
 def _part_way(deadline: float, share: float) -> float:
@@ -2109,14 +2106,7 @@ class _LocalSearch:
             improved = False
             _trace("pass", best.key)
             start = best.key
-            for sig in self.problem.signals:
-                for i in range(len(self.cands.options[sig.name])):
-                    for p in ((0, 1) if sig.name in self.phi else (None,)):
-                        trial_opt = {**self.opt, sig.name: i}
-                        trial_phi = {**self.phi, **({sig.name: p} if p is not None else {})}
-                        result = self.evaluate(trial_opt, trial_phi, self.tree)
-                        if result and score(result) < score(best):
-                            self.opt, self.phi, best, improved = trial_opt, trial_phi, result, True
+            best, improved = self._option_pass(best, score)
             for n in self._movable(best):
                 if time.monotonic() >= deadline:
                     break
@@ -2221,14 +2211,17 @@ class _LocalSearch:
                 continue
             wants = demand[n]
             fanins = nodes[n].fanins
+            # leaves to complement, best first: complemented literals (free), fan-in
+            # nodes (they pick their phase), true literals (an inverter each)
+            free = [j for j, (net, c) in enumerate(fanins) if net[0] == "v" and c]
+            neutral = [j for j, (net, c) in enumerate(fanins) if net[0] != "v"]
+            costly = [j for j, (net, c) in enumerate(fanins) if net[0] == "v" and not c]
+            preference = free + neutral + costly
             best_key, best_pick = None, None
             for ti, t in enumerate(self.trees[n]):
                 natural = t.b ^ nodes[n].invert
                 cost = t.gates + (1 if wants[1 - natural] else 0)
-                free = [j for j, (net, c) in enumerate(fanins) if net[0] == "v" and c]
-                neutral = [j for j, (net, c) in enumerate(fanins) if net[0] != "v"]
-                costly = [j for j, (net, c) in enumerate(fanins) if net[0] == "v" and not c]
-                flipped = set((free + neutral + costly)[:t.n1])
+                flipped = set(preference[:t.n1])
                 for j, (net, c) in enumerate(fanins):
                     if net[0] == "v" and (c ^ (j in flipped)) and net[1] not in inverted_vars:
                         cost += 1
@@ -2246,16 +2239,22 @@ class _LocalSearch:
         whole design the fewest gates, overflow first.  A start from the first
         option of every signal can be the flat two-level one, several times the
         gates of a factored one, and the repair cannot climb out of that."""
+        best, _ = self._option_pass(best, lambda e: (e.key[0], e.key[2], e.key[1]))
+        return best
+
+    def _option_pass(self, best: _Eval, score) -> tuple[_Eval, bool]:
+        """Each signal on each of its options (and phases), kept where ``score`` drops;
+        (the best evaluation, whether any move was kept)."""
+        improved = False
         for sig in self.problem.signals:
             for i in range(len(self.cands.options[sig.name])):
                 for p in ((0, 1) if sig.name in self.phi else (None,)):
                     trial_opt = {**self.opt, sig.name: i}
                     trial_phi = {**self.phi, **({sig.name: p} if p is not None else {})}
                     result = self.evaluate(trial_opt, trial_phi, self.tree)
-                    if result and (result.key[0], result.key[2], result.key[1]) < \
-                            (best.key[0], best.key[2], best.key[1]):
-                        self.opt, self.phi, best = trial_opt, trial_phi, result
-        return best
+                    if result and score(result) < score(best):
+                        self.opt, self.phi, best, improved = trial_opt, trial_phi, result, True
+        return best, improved
 
     def _relieve(self, best: _Eval) -> _Eval:
         """Greedy repair of a design over the bin: node by node, the tree that most
@@ -2663,7 +2662,7 @@ def _verify(network: Network, signals: Sequence[_Signal], nvars: int, lib: Libra
                                 f"{lib.available.get(part, 0)}")
     width = 1 << nvars
     full = (1 << width) - 1
-    inputs = {net: sum(1 << m for m in range(width) if m >> i & 1) for i, net in enumerate(network.inputs)}
+    inputs = dict(zip(network.inputs, counting_words(nvars)))
     try:
         values = evaluate_words(network, inputs, width)
     except ValueError as exc:

@@ -164,6 +164,7 @@ class GateModel:
     name: str
     delay_ps: int
     also_op: str | None = None     # second output of the same inputs (4068 AND, 4078 OR)
+    borrowed: str | None = None    # the warning when the delay is a stand-in (``stand_in_delay``)
 
     def evaluate(self, values: Mapping[str, bool]) -> dict[str, bool]:
         out = evaluate_gate(self.gate, values)
@@ -302,13 +303,14 @@ def gate_models(network: Network, catalog: Any, supply: float, corner: str = "ty
     models = []
     for gate in network.gates:
         part = catalog.parts.get(gate.part)
-        delay = _delay(part, "tpd", supply, corner)
+        delay, borrowed = _delay(part, "tpd", supply, corner), None
         if delay is None:
-            delay, _ = stand_in_delay(catalog, gate, supply, corner)
+            delay, borrowed = stand_in_delay(catalog, gate, supply, corner)
+            borrowed = borrowed if corner == "typ" else None     # said once, at the typical corner
         if delay is None:
             raise InternalError(f"gate {gate.id}: the catalog gives no delay for part {gate.part}")
         name = (gate_names or {}).get(gate.id, gate.id)
-        models.append(GateModel(gate, name, ps(delay), _also_op(part, gate)))
+        models.append(GateModel(gate, name, ps(delay), _also_op(part, gate), borrowed))
     return models
 
 
@@ -338,14 +340,11 @@ def stand_in_delay(catalog: Any, gate: Gate, supply: float, corner: str) -> tupl
 
 def stand_in_warnings(network: Network, catalog: Any, supply: float) -> list[str]:
     """One warning per part whose delays were borrowed by ``stand_in_delay``."""
-    notes = {}
-    for gate in network.gates:
-        part = catalog.parts.get(gate.part)
-        if gate.part not in notes and _delay(part, "tpd", supply, "typ") is None:
-            _, note = stand_in_delay(catalog, gate, supply, "typ")
-            if note:
-                notes[gate.part] = note
-    return list(notes.values())
+    return _borrowed_notes(gate_models(network, catalog, supply, "typ"))
+
+
+def _borrowed_notes(models: Sequence[GateModel]) -> list[str]:
+    return list(dict.fromkeys(m.borrowed for m in models if m.borrowed))
 
 
 # ---------------------------------------------------------------- the trace
@@ -694,7 +693,7 @@ def simulate(counter_plan: Any, network: Network, catalog: Any, supply: float, *
                 if n not in driven and n not in RAILS and n != clock_net]
     initial = _settled_levels(counters, gates, clock_net, after_edge, undriven)
     engine = _Engine(counters, gates, clock_net, inertial, initial)
-    engine.warnings += stand_in_warnings(network, catalog, supply)
+    engine.warnings += _borrowed_notes(gates)
     ticks = cycles * cycle
     end = (ticks + 1) * period
     for k in range(ticks + 1):
@@ -1117,17 +1116,18 @@ def _natural_next(a: int, roles: list[_VarRole]) -> int | None:
 
 def _function_values(counter_plan: Any, functions_or_network: Any) -> Callable[[str, int], bool]:
     if isinstance(functions_or_network, Network):
-        from .network import evaluate_words
+        from .network import counting_words, evaluate_words
 
         net = functions_or_network
         driven = {n for g in net.gates for n in g.outputs}
         free = {n for g in net.gates for n in g.inputs if n not in RAILS and n not in driven}
         clock_level = getattr(counter_plan, "edge", "rising") == "rising"
-        width = 1 << max((v.index + 1 for v in counter_plan.vars), default=0)
+        nvars = max((v.index + 1 for v in counter_plan.vars), default=0)
+        width = 1 << nvars
         full = (1 << width) - 1
         inputs = {n: full if clock_level else 0 for n in free}
-        inputs.update({str(v.net): sum(1 << m for m in range(width) if m >> v.index & 1)
-                       for v in counter_plan.vars})
+        words = counting_words(nvars)
+        inputs.update({str(v.net): words[v.index] for v in counter_plan.vars})
         words = evaluate_words(net, inputs, width)      # every minterm at once
 
         def value(name: str, minterm: int) -> bool:
