@@ -6,7 +6,8 @@ contract, plus ``proven_minimal``, ``lower_bound``, ``method``, ``supply``,
 notes, ``passives`` (every resistor and capacitor: ref, value, the net at
 each end; their ends appear in ``wires`` as pins 1 and 2 of refs R1, C1 ...),
 ``oscillator`` (null unless ``clock.source: oscillator``) and ``levels`` (one
-entry per staircase)); ``plan_to_text(plan) -> str``; ``write_json(plan, path)`` (atomic).
+entry per staircase), ``breadboard`` (where each chip, part, jumper and outside lead goes on
+a solderless board, ``synth.breadboard``)); ``plan_to_text(plan) -> str``; ``write_json(plan, path)`` (atomic).
 """
 
 from __future__ import annotations
@@ -16,6 +17,7 @@ import json
 from pathlib import Path
 from typing import Any
 
+from ..breadboard import plan_breadboard
 from ..netlist import Plan, ref_key, verilog_module_name
 from . import atomic_write_text
 
@@ -128,6 +130,7 @@ def plan_to_json(plan: Plan) -> dict:
                       "purpose": p.purpose} for p in plan.passives],
         "oscillator": plan.oscillator.as_json() if plan.oscillator is not None else None,
         "levels": {name: ladder.as_json() for name, ladder in plan.ladders.items()},
+        "breadboard": plan_breadboard(plan),
     }
 
 
