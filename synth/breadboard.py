@@ -279,6 +279,7 @@ class _Layout:
     order: tuple[str, ...]          # chips and non-decoupling parts along the board
     gaps: tuple[int, ...]           # spare rows before each item
     flipped: frozenset[str] = frozenset()
+    chip_gap: int = 0               # spare rows a chip (other than the first) always keeps before it
 
 
 def _size(item: BoardChip | BoardPart) -> int:
@@ -334,7 +335,10 @@ def _start_layout(board: BoardInput, spare: int) -> _Layout:
         if part.ref not in placed:
             order.append(part.ref)
             gaps.append(0)
-    return _Layout(tuple(order), tuple(gaps))
+    chip_refs = {c.ref for c in board.chips}
+    chip_gaps = [g for ref, g in zip(order[1:], gaps[1:]) if ref in chip_refs]
+    chip_gap = 1 if chip_gaps and all(chip_gaps) else 0
+    return _Layout(tuple(order), tuple(gaps), frozenset(), chip_gap)
 
 
 # ---------------------------------------------------------------- routing
@@ -628,12 +632,19 @@ def _evaluate(board: BoardInput, layout: _Layout, dims):
 
 
 def _moves(board: BoardInput, layout: _Layout):
-    """Every candidate neighbour of a layout, in a fixed order."""
-    order, gaps = list(layout.order), list(layout.gaps)
+    """Every candidate neighbour of a layout, in a fixed order (chips keep their spare row)."""
     chips = {c.ref: c for c in board.chips}
+    for candidate in _all_moves(board, layout, chips):
+        if all(gap >= layout.chip_gap for ref, gap in zip(candidate.order[1:], candidate.gaps[1:])
+               if ref in chips):
+            yield candidate
+
+
+def _all_moves(board: BoardInput, layout: _Layout, chips: dict):
+    order, gaps = list(layout.order), list(layout.gaps)
     parts = [r for r in order if r not in chips]
     for ref in parts:
-        yield _Layout(layout.order, layout.gaps, layout.flipped ^ {ref})
+        yield _Layout(layout.order, layout.gaps, layout.flipped ^ {ref}, layout.chip_gap)
     for ref in parts:
         i = order.index(ref)
         rest_order = order[:i] + order[i + 1:]
@@ -646,7 +657,7 @@ def _moves(board: BoardInput, layout: _Layout):
             if j == i:
                 continue
             yield _Layout(tuple(rest_order[:j] + [ref] + rest_order[j:]),
-                          tuple(rest_gaps[:j] + [0] + rest_gaps[j:]), layout.flipped)
+                          tuple(rest_gaps[:j] + [0] + rest_gaps[j:]), layout.flipped, layout.chip_gap)
     for i in range(len(order)):
         if not gaps[i]:
             continue
@@ -655,13 +666,13 @@ def _moves(board: BoardInput, layout: _Layout):
                 moved = list(gaps)
                 moved[i] -= 1
                 moved[j] += 1
-                yield _Layout(layout.order, tuple(moved), layout.flipped)
+                yield _Layout(layout.order, tuple(moved), layout.flipped, layout.chip_gap)
     for i in range(len(order) - 1):
         a, b = order[i], order[i + 1]
         if a in chips and b in chips and chips[a].role == chips[b].role == "logic":
             swapped = list(order)
             swapped[i], swapped[i + 1] = b, a
-            yield _Layout(tuple(swapped), layout.gaps, layout.flipped)
+            yield _Layout(tuple(swapped), layout.gaps, layout.flipped, layout.chip_gap)
 
 
 def _spare_rows(board: BoardInput, dims) -> int:
@@ -675,13 +686,15 @@ def place(board: BoardInput, budget: int = MOVE_BUDGET) -> Placement:
     """Place and route ``board``, routing at most ``budget`` candidate layouts (deterministic)."""
     items = list(board.chips) + [p for p in board.parts if not p.decoupling]
     dims = _board_choice(items)
-    layout = _start_layout(board, _spare_rows(board, dims))
-    result, cost = _evaluate(board, layout, dims)
-    if result is None:
-        layout = _Layout(layout.order, tuple(0 for _ in layout.gaps))
+    result = None
+    while result is None:       # a rail can run out of holes before the rows do: one more board
+        layout = _start_layout(board, _spare_rows(board, dims))
         result, cost = _evaluate(board, layout, dims)
-    if result is None:
-        raise ValueError("the parts do not fit on the boards chosen")
+        if result is None:
+            layout = _Layout(layout.order, tuple(0 for _ in layout.gaps))
+            result, cost = _evaluate(board, layout, dims)
+        if result is None:
+            dims = ("830-point", dims[1] + (dims[0] == "830-point"), *BOARDS["830-point"])
     start = (result[1], result[2])
     tried = kept = 0
     improved = True
