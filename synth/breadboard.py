@@ -157,7 +157,7 @@ def rail_x(position: int, rail_holes: int) -> float:
     board = (position - 1) // rail_holes
     start = 2 if rail_holes == 50 else 1
     rows = BOARDS["830-point"][0] if rail_holes == 50 else BOARDS["400-point"][0]
-    return board * (rows + BOARD_GAP) + start + (index // 5) * 6 + index % 5
+    return float(board * (rows + BOARD_GAP) + start + (index // 5) * 6 + index % 5)
 
 
 @functools.lru_cache(maxsize=8)

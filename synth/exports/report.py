@@ -36,7 +36,7 @@ from . import atomic_write_text
 __all__ = ["report_html", "write_report", "plan_hash"]
 
 P = 20.0                  # pixels per hole pitch in the board drawing
-MARGIN_X, MARGIN_TOP, MARGIN_BOTTOM = 34.0, 40.0, 40.0
+MARGIN_X, MARGIN_TOP, MARGIN_BOTTOM = 34.0, 64.0, 64.0
 # Our own palette for signal wires: hues and lightness far apart, so that
 # neighbours differ for colour-blind readers too; every wire also carries its name.
 PALETTE = ("#1d5fa6", "#d4750b", "#178a6b", "#8a46c2", "#b0307a", "#5b7e14", "#0a8fb5", "#8c5a2b")
@@ -319,7 +319,8 @@ def _jumper_svg(board: _Board, index: int, jumper: dict, steps: dict[str, str], 
 def _external_svg(board: _Board, index: int, ext: dict, steps: dict[str, str]) -> str:
     x, y = board.xy(ext["hole"])
     net = ext["net"]
-    out_y = y + (1.8 * P if ext["hole"][0] in "abcdeB" else -1.8 * P)
+    reach = (1.8 + 0.8 * (index % 3)) * P      # staggered, so neighbouring names stay apart
+    out_y = y + (reach if ext["hole"][0] in "abcdeB" else -reach)
     if ext["hole"][:2] in RAILS:
         out_y = y + (2.4 * P if ext["hole"][0] == "B" else -2.4 * P)
     colour = board.net_colour(net)
