@@ -32,6 +32,9 @@ def add_output_arguments(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--verilog", metavar="FILE", help="write a structural Verilog model")
     parser.add_argument("--vcd", metavar="FILE", help="write the simulated cycle as a VCD file")
     parser.add_argument("--svg", metavar="FILE", help="write a timing diagram (SVG)")
+    parser.add_argument("--spice", metavar="FILE",
+                        help="write the analog parts (oscillator, staircases, RC delays) as a plain "
+                             "SPICE deck")
     parser.add_argument("--take", action="store_true",
                         help="write the bin back with the parts this plan uses removed (keeps a .bak)")
     parser.add_argument("--fix", action="append", choices=["glitches"], default=[],
@@ -93,6 +96,11 @@ def write_outputs(design, args) -> list[str]:
         from ..exports.svg import write_svg
 
         written.append(str(write_svg(design.trace, plan, args.svg)))
+    if getattr(args, "spice", None):
+        from ..exports.spice import write_spice
+
+        tick_ns = getattr(design.trace, "period_ns", None)
+        written.append(str(write_spice(plan, design.catalog, args.spice, tick_ns=tick_ns)))
     if args.take:
         from ..bintake import take_from_bin
 
