@@ -34,6 +34,8 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
+from .. import __version__
+from ..analog import thresholds_at
 from ..units import format_si
 from . import atomic_write_text
 
@@ -217,8 +219,6 @@ def _ladder(plan: Any, name: str, lad: Any, tick: float, driven: set[str]) -> _S
 # ---------------------------------------------------------------- the RC delays offered
 
 def _receiver_thresholds(catalog: Any, receiver: str, supply: float) -> tuple[float, float]:
-    from ..analog import thresholds_at
-
     part = catalog.parts.get(receiver) if receiver and receiver != "plain-input" else None
     if part is None or not part.thresholds:
         gap = PLAIN_HYSTERESIS * supply
@@ -290,8 +290,6 @@ def measure_lines(checks: list[SpiceCheck]) -> list[str]:
 
 def plan_to_spice(plan: Any, catalog: Any, *, tick_ns: float | None = None) -> str:
     """The deck as text; a plan without analog parts gives a deck that says so."""
-    from .. import __version__
-
     sections = _sections(plan, catalog, tick_ns)
     lines = [f"* binsynth {__version__}: analog parts of plan {plan.name} at {plan.supply:g} V",
              "* elements: R, C, V (DC, PULSE), S with SW models (VT, VH, RON, ROFF): the SPICE3 "
