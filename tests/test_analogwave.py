@@ -14,6 +14,8 @@ row per analog quantity.
 from __future__ import annotations
 
 import io
+import shutil
+import subprocess
 import xml.etree.ElementTree as ET
 
 import pytest
@@ -21,6 +23,7 @@ import pytest
 from synth.analogwave import analog_waves
 from synth.exports.svg import trace_to_svg
 from synth.exports.vcd import trace_to_vcd, write_vcd
+from synth.exports.verilog import spec_signals, write_verilog
 from synth.inventory import data_path, example_path, load_catalog
 from synth.netlist import verilog_module_name
 from synth.pipeline import make_plan
@@ -98,3 +101,50 @@ def test_svg_draws_a_row_per_analog_quantity(example):
     rows = {g.get("data-net"): g.get("data-kind") for g in main.iter(f"{SVG}g")
             if "analog" in (g.get("class") or "") or "switch" in (g.get("class") or "")}
     assert rows == {"ramp": "staircase", "adc_in_on": "switch", "adc_in": "common"}
+
+
+needs_iverilog = pytest.mark.skipif(
+    shutil.which("iverilog") is None or shutil.which("vvp") is None,
+    reason="Icarus Verilog is not installed (Debian package iverilog; .ci/run installs it)")
+
+
+@needs_iverilog
+def test_verilog_reals_give_the_levels_in_icarus(example, tmp_path):
+    """Icarus Verilog samples the model's staircase and switch reals just before each
+    counting edge: every tick shows that tick's ladder level (the spec's code) and the
+    switch joins the staircase exactly on the ticks its select is asserted."""
+    plan, trace, spec = example.plan, example.trace, example.spec
+    design = write_verilog(plan, load_catalog(), tmp_path / "design.v")
+    outs = spec_signals(plan)
+    period = trace.period_ns
+    start = "1" if trace.edge == "rising" else "0"
+    other = "0" if start == "1" else "1"
+    bench = tmp_path / "bench.v"
+    bench.write_text("\n".join([
+        "`timescale 1ns/1ps",
+        "module tb;",
+        "  reg clk;",
+        f"  wire {', '.join(outs)};",
+        f"  {verilog_module_name(plan.name)} dut (.clk(clk), {', '.join(f'.{o}({o})' for o in outs)});",
+        f"  initial begin clk = 1'b{start}; forever begin #({period / 2:.3f}) clk = 1'b{other}; "
+        f"#({period / 2:.3f}) clk = 1'b{start}; end end",
+        "  initial begin",
+        f"    #({period - 1:.3f});",
+        f'    repeat ({trace.cycle}) begin $display("A %f %b %f", dut.ramp, dut.adc_in_on, dut.adc_in); '
+        f"#({period:.3f}); end",
+        "    $finish;",
+        "  end",
+        "endmodule", ""]))
+    compiled = tmp_path / "x.vvp"
+    subprocess.run(["iverilog", "-g2001", "-o", str(compiled), str(design), str(bench)],
+                   check=True, capture_output=True, text=True)
+    out = subprocess.run(["vvp", "-n", str(compiled)], check=True, capture_output=True, text=True).stdout
+    rows = [line.split()[1:] for line in out.splitlines() if line.startswith("A ")]
+    assert len(rows) == trace.cycle
+    ladder = plan.ladders["ramp"]
+    for tick, (ramp, on, common) in enumerate(rows):
+        level = ladder.levels[_code(ladder, tick)]
+        asserted = tick in spec.signals["sweep"].high
+        assert float(ramp) == pytest.approx(level, abs=1e-6), tick
+        assert on == ("1" if asserted else "0"), tick
+        assert float(common) == pytest.approx(level if asserted else 0.0, abs=1e-6), tick
