@@ -7,7 +7,8 @@ simulator should measure on the deck and what binsynth computed for it);
 ``measure_lines(checks) -> list[str]``; record ``SpiceCheck``.
 
 What goes in: the clock oscillator (a Schmitt inverter with its R and C, or a
-4060's three-pin stage with Rt, Ct and Rs), every staircase ladder exactly as
+4060's three-pin stage with Rt, Ct and Rs), the power-on reset (its R, C and
+Schmitt gate on a supply that ramps up at time 0), every staircase ladder exactly as
 wired (the plan's own resistors, each counter output as a source behind the
 catalog's output resistance, any load), and every RC delay the plan offers
 (a step into R, C and a Schmitt receiver).  Digital logic is left out: the
@@ -98,12 +99,13 @@ def _schmitt_models(name: str, vt_plus: float, vt_minus: float) -> list[str]:
             f".model {name}_hi SW(VT={_num(-vt)} VH={_num(vh)} RON={_num(RON)} ROFF={_num(ROFF)})"]
 
 
-def _inverter(tag: str, model: str, node_in: str, node_out: str, input_high: bool = False) -> list[str]:
-    """An inverter as two switches (output to VSS / to VDD), controlled by the input;
+def _inverter(tag: str, model: str, node_in: str, node_out: str, input_high: bool = False,
+              supply: str = "vdd") -> list[str]:
+    """An inverter as two switches (output to VSS / to ``supply``), controlled by the input;
     ``input_high`` sets the switches' starting state to match the input at time 0."""
     low, high = ("ON", "OFF") if input_high else ("OFF", "ON")
     return [f"S{tag}L {node_out} 0 {node_in} 0 {model}_lo {low}",
-            f"S{tag}H vdd {node_out} 0 {node_in} {model}_hi {high}"]
+            f"S{tag}H {supply} {node_out} 0 {node_in} {model}_hi {high}"]
 
 
 def _passive_line(p, nodes: dict[str, str] | None = None) -> str:
@@ -261,6 +263,37 @@ def _delay(plan: Any, catalog: Any, index: int, offer: dict) -> _Section:
     return _Section(lines, checks, start + width + 6 * rc, rc / 1000)
 
 
+# ---------------------------------------------------------------- the power-on reset
+
+def _power_on(plan: Any) -> _Section | None:
+    """The POR's R, C and Schmitt gate on a supply of their own that ramps up at time 0."""
+    por = getattr(plan, "power_on_reset", None)
+    if por is None:
+        return None
+    supply, ramp = plan.supply, 1e-6
+    vtp, vtm = por.thresholds["vt_plus"]["typ"], por.thresholds["vt_minus"]["typ"]
+    nodes = {"VDD": "por_vdd"}
+    node_in, node_out = _node("POR_RC"), _node("POR")
+    low, typ, high = por.width_s
+    lines = [f"* power-on reset: Schmitt {por.part} unit {por.unit} on {por.ref} holds the counter reset "
+             f"{por.active}; its own supply rises from 0 to {supply:g} V in {_num(ramp)} s at time 0",
+             f"* binsynth: {por.formula}",
+             f"VPOR por_vdd 0 PULSE(0 {_num(supply)} 0 {_num(ramp)} {_num(ramp)} 1e3 2e3)"]
+    lines += [_passive_line(plan.passive(ref), nodes) for ref in por.passives]
+    lines += _inverter("POR", "por_schmitt", node_in, node_out, supply="por_vdd")
+    lines += _schmitt_models("por_schmitt", vtp, vtm)
+    half, skip = _num(supply / 2), _num(10 * ramp)
+    release = "FALL=1" if por.active == "high" else "RISE=1"
+    rc = por.r * por.c
+    check = SpiceCheck(
+        "por_width", f"TRIG v(por_vdd) VAL={half} RISE=1 TARG v({node_out}) VAL={half} TD={skip} {release}",
+        typ, "s", typ * 0.005 + ramp,
+        "the RC time constant law at the typical threshold (common practice); the release is placed "
+        "to within one time step (R C / 1000) and the supply's 1 us ramp shifts the start: "
+        "0.5 % + 1 us allowed")
+    return _Section(lines, [check], 1.5 * high + 2 * ramp, rc / 1000)
+
+
 # ---------------------------------------------------------------- the deck
 
 def _sections(plan: Any, catalog: Any, tick_ns: float | None) -> list[_Section]:
@@ -268,6 +301,9 @@ def _sections(plan: Any, catalog: Any, tick_ns: float | None) -> list[_Section]:
     osc = _oscillator(plan)
     if osc is not None:
         sections.append(osc)
+    por = _power_on(plan)
+    if por is not None:
+        sections.append(por)
     tick = _tick_s(plan, tick_ns)
     driven: set[str] = set()
     for name, lad in sorted(getattr(plan, "ladders", {}).items()):
@@ -297,7 +333,7 @@ def plan_to_spice(plan: Any, catalog: Any, *, tick_ns: float | None = None) -> s
              "* to look: ngspice FILE, then 'plot v(clk)' (or any node named below)",
              f"VDD vdd 0 DC {_num(plan.supply)}"]
     if not sections:
-        lines += ["* this plan has no oscillator, staircase or RC delay",
+        lines += ["* this plan has no oscillator, power-on reset, staircase or RC delay",
                   "RIDLE vdd 0 1e6", ".tran 1e-6 1e-5", ".end"]
         return "\n".join(lines) + "\n"
     for section in sections:

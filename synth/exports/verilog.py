@@ -343,6 +343,11 @@ def plan_to_verilog(plan: Any, catalog: Any) -> str:
         # and the signals).
         head.append(f"// clk is made on the board by an RC oscillator ({osc.site.part} {osc.ref}, "
                     f"nominal {osc.f_nom:.6g} Hz); it stays an input here: drive it from the testbench.")
+    por = getattr(plan, "power_on_reset", None)
+    if por is not None:
+        head.append(f"// A power-on reset ({por.part} {por.ref}, R {por.r:g} ohm, C {por.c:g} F) holds the "
+                    f"counter reset for about {por.width_s[1]:.3g} s after power-up; the model simply "
+                    "starts from zero.")
     head += [
         "`timescale 1ns/1ps",
         f"module {module} ({', '.join(['clk', *ports.values()])});",
