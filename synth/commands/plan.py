@@ -33,7 +33,7 @@ def add_output_arguments(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--vcd", metavar="FILE", help="write the simulated cycle as a VCD file")
     parser.add_argument("--svg", metavar="FILE", help="write a timing diagram (SVG)")
     parser.add_argument("--spice", metavar="FILE",
-                        help="write the analog parts (oscillator, staircases, RC delays) as a plain "
+                        help="write the analog parts (oscillator, power-on reset, staircases, RC delays) as a plain "
                              "SPICE deck")
     parser.add_argument("--take", action="store_true",
                         help="write the bin back with the parts this plan uses removed (keeps a .bak)")
