@@ -33,8 +33,9 @@ Method: ordered placement, then a deterministic local search.
    rails carrying the same supply are joined where both are used.
 3. Cost: total jumper length in pitches plus ``CROSSING_WEIGHT`` per pair of
    crossing jumpers.  Local search moves a part to another free row, turns a
-   part end for end, moves a spare row between gaps, and swaps neighbouring
-   logic chips; each move is kept only if it lowers the cost; moves are
+   part end for end, moves a spare row between gaps, and swaps two logic
+   chips (any two of one length, else neighbours); the first move that
+   lowers the cost is kept and the pass starts again; moves are
    tried in a fixed order until a whole pass keeps none or ``MOVE_BUDGET``
    candidate layouts have been routed.  Work is counted, never timed.
 """
@@ -667,11 +668,13 @@ def _all_moves(board: BoardInput, layout: _Layout, chips: dict):
                 moved[i] -= 1
                 moved[j] += 1
                 yield _Layout(layout.order, tuple(moved), layout.flipped, layout.chip_gap)
-    for i in range(len(order) - 1):
-        a, b = order[i], order[i + 1]
-        if a in chips and b in chips and chips[a].role == chips[b].role == "logic":
+    logic = [i for i, ref in enumerate(order) if ref in chips and chips[ref].role == "logic"]
+    for n, i in enumerate(logic):
+        for j in logic[n + 1:]:
+            if chips[order[i]].pin_count != chips[order[j]].pin_count and j != logic[n + 1]:
+                continue        # chips of one length trade places anywhere; others only with a neighbour
             swapped = list(order)
-            swapped[i], swapped[i + 1] = b, a
+            swapped[i], swapped[j] = order[j], order[i]
             yield _Layout(tuple(swapped), layout.gaps, layout.flipped, layout.chip_gap)
 
 
@@ -727,7 +730,7 @@ def _placement(board: BoardInput, result, start, tried: int, kept: int) -> Place
 def method_text() -> str:
     return ("ordered placement (chips in signal-flow order, counter first; parts in free rows beside "
             "the chip they share most nets with), then a deterministic local search (move a part, turn "
-            "it end for end, move a spare row, swap neighbouring logic chips; a move is kept when it "
+            "it end for end, move a spare row, swap two logic chips; a move is kept when it "
             f"lowers jumper length + {CROSSING_WEIGHT:g} pitches per crossing; at most {MOVE_BUDGET} "
             "layouts routed); nets joined by a minimum spanning tree of their strips")
 

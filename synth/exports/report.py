@@ -704,7 +704,7 @@ def report_html(design) -> str:
     fig = bb["figures"]
     sites = _gate_sites(plan)
     key = plan_hash(data)
-    cautions = list(dict.fromkeys(list(plan.cautions) + list(CAUTIONS)))
+    cautions = list(plan.cautions) or list(CAUTIONS)
     title = f"binsynth build page: {plan.name}"
     chips = sorted(plan.chips, key=lambda c: ref_key(c.ref))
     body = [
@@ -849,7 +849,9 @@ footer { margin-top: 2em; color: #666; font-size: 0.9em; }
   .board-wrap { overflow: visible; border: 0; }
   svg.board { min-width: 0; width: 100%; }
   section { break-inside: auto; }
-  #board { break-after: page; }
+  #board { break-after: page; page: wide; }
+  @page wide { size: landscape; margin: 8mm; }
+  .bb-chip.next .chip-body, .bb-part.next rect, .bb-external.next line { stroke: none; }
   li.step { break-inside: avoid; }
   li.step.next { outline: 0; background: none; }
   .bb-jumper.next .casing { stroke: #fff; stroke-width: 5.5; }
