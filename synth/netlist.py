@@ -30,6 +30,7 @@ from .inventory import Part
 from .network import Network, evaluate_words
 
 RAIL_NETS = ("VDD", "VSS")
+CLOCK_NET = "CLK"          # the board's clock input (formats.md: the clock input is the net CLK)
 Role = Literal["counter", "logic", "switch", "oscillator"]
 Direction = Literal["in", "out", "analog", "power", "nc", "other"]
 
@@ -333,8 +334,11 @@ def sampled_clock_levels(counter: Any) -> dict[str, bool]:
     sampled: a decode gated with the clock's still half reads its tick's level there."""
     var_nets = {str(v.net) for v in getattr(counter, "vars", ())}
     level = str(getattr(counter, "edge", "rising")) == "falling"
-    return {str(c.clock_net): level for c in getattr(counter, "chips", ())
-            if str(c.clock_net) not in var_nets}
+    levels = {str(c.clock_net): level for c in getattr(counter, "chips", ())
+              if str(c.clock_net) not in var_nets}
+    if CLOCK_NET not in var_nets:        # the board clock, also where the counters take an inverted copy
+        levels.setdefault(CLOCK_NET, level)
+    return levels
 
 
 class _TickLevels(Mapping):

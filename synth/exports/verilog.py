@@ -219,7 +219,49 @@ def _gate_lines(g: GateModel, names: dict[str, str], taken: set[str]) -> list[st
         return [comment] + _mux_lines(gate, ins, names, delay)
     if gate.op == "decoder":
         return [comment] + _decoder_lines(gate, ins, names, delay)
+    if gate.op == "flipflop":
+        return _flipflop_lines(g, names, label, delay)
     raise ValueError(f"expected a gate op Verilog can model, got {gate.op!r}")
+
+
+def _flipflop_lines(g: GateModel, names: dict[str, str], label: str, delay: str) -> list[str]:
+    """A D flip-flop as the catalog describes it: on its clocking edge D (as it was just
+    before the edge) reaches Q, and its complement Q-bar, after the clock-to-output
+    delay; set and reset are tied inactive.  Only a clean 0->1 (or 1->0) change clocks,
+    as for the counters.  Its output starts at the level the plan gives tick 0."""
+    gate = g.gate
+    d, clock = _ref(names, gate.inputs[0]), _ref(names, gate.inputs[1])
+    was = f"{label}_clk_was"
+    now = "1'b1" if g.edge == "rising" else "1'b0"
+    before = "1'b0" if g.edge == "rising" else "1'b1"
+    outs = [(names[n], invert) for n, invert in zip(gate.outputs, (False, True)) if n]
+    lines = [f"  // {g.name}: {gate.part} D flip-flop, {g.edge} edge of {gate.inputs[1]}, clock to output "
+             f"{delay} ns (gate {gate.id}); set and reset held inactive",
+             f"  reg {was};",
+             f"  always @({clock}) begin",
+             f"    if ({was} === {before} && {clock} === {now}) begin"]
+    lines += [f"      {q} <= #({delay}) {'!' if invert else ''}{d};" for q, invert in outs]
+    lines += ["    end", f"    {was} = {clock};", "  end"]
+    return lines
+
+
+def _flipflop_start(plan: Any, gates: list[GateModel], names: dict[str, str]) -> list[str]:
+    """The flip-flop outputs' levels at time 0 (tick 0), as the simulator starts them."""
+    from ..timing import register_start_levels
+
+    if not any(g.clocked for g in gates):
+        return []
+    clock_level = getattr(plan.counter, "edge", "rising") == "falling"
+    levels = register_start_levels(plan.counter, plan.network, clock_level)
+    lines = ["  initial begin"]
+    for g in gates:
+        if not g.clocked:
+            continue
+        for net, invert in zip(g.gate.outputs, (False, True)):
+            if net:
+                level = levels[g.gate.outputs[0]] if g.gate.outputs[0] else not levels[net]
+                lines.append(f"    {names[net]} = 1'b{int(level != invert)};")
+    return lines + ["  end"]
 
 
 def _select_code(sel: list[str]) -> str:
@@ -295,8 +337,10 @@ def plan_to_verilog(plan: Any, catalog: Any) -> str:
     ]
     head += [f"  output {ports[n]};" for n in signals]
     counter_nets = list(dict.fromkeys(names[o.net] for c in counters for o in c.outputs))
+    counter_nets += [names[n] for g in gates if g.clocked for n in g.gate.outputs
+                     if n and names[n] not in counter_nets]
     port_idents = set(ports.values())
-    wires = list(dict.fromkeys(names[n] for g in gates for n in g.gate.outputs
+    wires = list(dict.fromkeys(names[n] for g in gates if not g.clocked for n in g.gate.outputs
                                if n and names[n] not in port_idents))
     body = []
     if counter_nets:
@@ -309,6 +353,7 @@ def plan_to_verilog(plan: Any, catalog: Any) -> str:
     if gates:
         body.append("")
         body.append("  // decode logic: one primitive per physical gate, named chip_unit")
+    body += _flipflop_start(plan, gates, names)
     for g in gates:
         body += _gate_lines(g, names, taken)
     body.append("")
