@@ -351,7 +351,7 @@ def _rebuild(design: Any, *, counter_plan: Any = None, network: Network | None =
 def _register(design: Any, signals, exact: str) -> Any:
     """The design with ``signals`` decoded one tick early and clocked into D flip-flops
     (``synth.registers``); packed, self-checked and re-analysed like the others."""
-    from .registers import registered_design_parts
+    from .registers import prepare_registering, with_flipflops
 
     if getattr(design.plan, "strobed", None):
         raise NotApplicable("the plan already gates signals with the clock")
@@ -359,12 +359,13 @@ def _register(design: Any, signals, exact: str) -> Any:
     if not names:
         raise NotApplicable("already registered")
     try:
-        reg = registered_design_parts(design, names, exact=exact)
+        reg = prepare_registering(design, names)
     except ShortError as exc:
         raise NotApplicable(exc.args[0] if exc.args else str(exc)) from None
     try:
-        new = _rebuild(design, counter_plan=reg.counter, network=reg.network, decode=reg.decode,
-                       exact=exact)
+        decode, network = _decode_and_map(reg.spec, design.stock, design.catalog, reg.counter, exact)
+        network = with_flipflops(network, reg, design.catalog)
+        new = _rebuild(design, counter_plan=reg.counter, network=network, decode=decode, exact=exact)
     except ShortError as exc:
         raise NotApplicable(f"no room on the board or in the bin ({exc.args[0]})") from None
     new.plan.registered = {**(getattr(design.plan, "registered", None) or {}),

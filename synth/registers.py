@@ -2,10 +2,12 @@
 
 Interface: ``flipflop_options(stock, catalog) -> list[FlipFlopOption]`` (the bin's
 D flip-flop parts, best first), ``pulse_per_tick_ok(spec, name)`` (whether a
-pulse per tick may stand for the signal's level), and
-``registered_design_parts(design, signals, *, exact='auto') -> Registering``:
-the early spec, counter plan, decode and network of a design whose ``signals``
-come from flip-flops (``glitchfix`` packs and checks it like any other remedy).
+pulse per tick may stand for the signal's level),
+``prepare_registering(design, signals) -> Registering`` (the early spec and the
+counter plan to derive and map the decode from, the flip-flop part, the clock
+inverter) and ``with_flipflops(network, registering, catalog) -> Network`` (the
+mapped early decode with the flip-flops and the inverter added); ``glitchfix``
+maps, packs and checks the result like any other remedy.
 
 Why it works: the flip-flop's output at tick t is its D input sampled at the
 counting edge that starts tick t, so a D decoded one tick early (its asserted
@@ -32,7 +34,7 @@ from .netlist import CLOCK_NET
 from .network import RAILS, Gate, Network, SignalOut
 
 __all__ = ["FlipFlopOption", "Registering", "flipflop_options", "pulse_per_tick_ok",
-           "registered_design_parts", "COUNTER_CLOCK_NET"]
+           "prepare_registering", "with_flipflops", "COUNTER_CLOCK_NET"]
 
 COUNTER_CLOCK_NET = "CLK_n"
 """The inverted clock the counters take when the flip-flops count on CLK's other edge."""
@@ -53,14 +55,12 @@ class FlipFlopOption:
 class Registering:
     """What registering changes: the spec the decode is derived from (registered
     signals one tick early), the counter plan (its clock inverted, or as it was),
-    the decode, the network with the flip-flops, and how the clock is wired."""
+    the flip-flop part, and the part that inverts the counters' clock ('' if none)."""
 
     spec: Any
     counter: Any
-    decode: Any
-    network: Network
-    part: str
-    clock_inverter: str        # '' or the part that inverts CLK for the counters
+    option: FlipFlopOption
+    clock_inverter: tuple[str, str, int] | None     # (part, op, inputs)
     signals: tuple[str, ...]
 
 
@@ -207,13 +207,10 @@ def _with_flipflops(network: Network, signals: tuple[str, ...], option: FlipFlop
     return dataclasses.replace(network, gates=gates, signals=outs)
 
 
-def registered_design_parts(design: Any, signals, *, exact: str = "auto") -> Registering:
-    """Spec, counter plan, decode and network with ``signals`` registered (see the module text).
-
-    Raises ``ShortError`` when the bin lacks the flip-flops or the clock inverter."""
-    from .decode import derive
+def prepare_registering(design: Any, signals) -> Registering:
+    """The early spec and the counter plan for registering ``signals`` (see the module
+    text).  Raises ``ShortError`` when the bin lacks the flip-flops or the clock inverter."""
     from .netlist import delivered_sets
-    from .pipeline import map_decode, mapping_inputs
 
     plan, spec, stock, catalog = design.plan, design.spec, design.stock, design.catalog
     names = tuple(sorted(s for s in signals if plan.signals[s]["net"] not in RAILS))
@@ -226,19 +223,23 @@ def registered_design_parts(design: Any, signals, *, exact: str = "auto") -> Reg
                          hint="add a 74HC74 (or 74HC174, 4013, 40174)")
     counter = design.counter
     option = _choose(options, len(names), _counter_edge(counter))
-    inverter = ""
+    inverter = None
     if option.edge != _counter_edge(counter):
-        inverter, op, width = _inverter_part(stock, catalog, plan.supply)
+        inverter = _inverter_part(stock, catalog, plan.supply)
         counter = _invert_counter_clock(counter, option.edge)
     polarity = {n: s["polarity"] for n, s in plan.signals.items()}
     early = _early_spec(spec, delivered_sets(plan), polarity, names)
-    decode = derive(early, counter, exact=exact)
-    library, wanted = mapping_inputs(early, stock, catalog, counter, decode)
-    network = map_decode(decode, counter, library, wanted, exact)
-    network = _with_flipflops(network, names, option, CLOCK_NET)
-    if inverter:
-        ids = {g.id for g in network.gates}
-        network = dataclasses.replace(network, gates=list(network.gates) + [
-            Gate(_fresh("counter_clock_inv", ids), inverter, op, (CLOCK_NET,) * width,  # type: ignore[arg-type]
-                 (COUNTER_CLOCK_NET,), schmitt=bool(catalog.parts[inverter].thresholds))])
-    return Registering(early, counter, decode, network, option.part, inverter, names)
+    return Registering(early, counter, option, inverter, names)
+
+
+def with_flipflops(network: Network, reg: Registering, catalog: Any) -> Network:
+    """The mapped early decode with each registered signal moved onto a flip-flop's Q
+    (D on the early decode, clocked by CLK) and, where needed, the counters' clock inverter."""
+    network = _with_flipflops(network, reg.signals, reg.option, CLOCK_NET)
+    if reg.clock_inverter is None:
+        return network
+    part, op, width = reg.clock_inverter
+    ids = {g.id for g in network.gates}
+    return dataclasses.replace(network, gates=list(network.gates) + [
+        Gate(_fresh("counter_clock_inv", ids), part, op, (CLOCK_NET,) * width,  # type: ignore[arg-type]
+             (COUNTER_CLOCK_NET,), schmitt=bool(catalog.parts[part].thresholds))])

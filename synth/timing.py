@@ -1313,16 +1313,21 @@ def _edges(ticks: frozenset[int], cycle: int) -> list[int]:
 
 
 def coincident_edges(delivered: Mapping[str, frozenset[int]], cycle: int) -> list[dict]:
-    """Every pair of signals with an edge on the same boundary (between tick b-1 and b).
+    """Every pair of signals with an edge on the same boundary (between tick b-1 and b);
+    complementary pairs (one asserted exactly when the other is not) are no race and left out.
 
     >>> coincident_edges({"a": frozenset({0, 1}), "b": frozenset({2}), "c": frozenset({1})}, 4)
     [{'signals': ['a', 'b'], 'at_tick': 2}, {'signals': ['a', 'c'], 'at_tick': 2}, {'signals': ['b', 'c'], 'at_tick': 2}]
+    >>> coincident_edges({"a": frozenset({0}), "b": frozenset({1, 2, 3})}, 4)
+    []
     """
     edges = {name: set(_edges(frozenset(t), cycle)) for name, t in delivered.items()}
     names = sorted(edges)
     out = []
     for i, a in enumerate(names):
         for b in names[i + 1:]:
+            if frozenset(delivered[a]) == frozenset(range(cycle)) - frozenset(delivered[b]):
+                continue            # complementary signals: one edge, two views of it, no race
             out += [{"signals": [a, b], "at_tick": tick} for tick in sorted(edges[a] & edges[b])]
     return out
 
