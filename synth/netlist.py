@@ -144,7 +144,7 @@ def ref_key(ref: str) -> tuple[str, int, str]:
 
 # ---------------------------------------------------------------- pin directions
 
-_IN_HEADS = {"inputs", "input", "clock", "enable", "enables", "reset", "selects", "data",
+_IN_HEADS = {"inputs", "input", "clock", "enable", "enables", "reset", "selects", "data", "count_enable",
              "d", "set", "control", "tie", "load", "clear"}
 _OUT_HEADS = {"output", "also", "outputs", "stages", "decoded", "carry", "carry_out",
               "q", "qn", "output_inv"}

@@ -179,10 +179,20 @@ def _place_counters(board: _Board, counter_plan: Any, network: Network) -> None:
             else:
                 chip.set_pin(int(cc.reset_pin), reset_net.get(net, net), "counter reset")
         enable_pin, enable_net = getattr(cc, "enable_pin", None), getattr(cc, "enable_net", None)
+        carried = tuple(getattr(cc, "count_enable_pins", ()) or ())
         if enable_pin is not None and enable_net:
             note = ("enable held active for plain counting" if enable_net in RAIL_NETS
                     else "counts on this input")
+            if _counts_on_carry(part, cc):
+                note = "count enable from the unit below's carry (TC): a synchronous cascade"
             chip.set_pin(int(enable_pin), str(enable_net), note)
+            for pin in carried:
+                chip.set_pin(int(pin), str(enable_net), note)
+        carry_net = getattr(cc, "carry_net", None)
+        if carry_net:
+            unit = next(u for u in part.units if str(u.id) == str(cc.unit))
+            chip.set_pin(int(unit.fields["carry_out"]), str(carry_net),
+                         "carry out (TC) to the next unit's count enables")
         for pin, level in (getattr(cc, "ties", None) or {}).items():
             chip.set_pin(int(pin), str(level), f"held at {level} for plain counting")
     for var in counter_plan.vars:
@@ -196,6 +206,13 @@ def _place_counters(board: _Board, counter_plan: Any, network: Network) -> None:
     if direct is not None:
         chip = by_ref[direct[0]]
         chip.set_pin(int(direct[1]), reset_net.get(reset.net, reset.net), "drives the counter reset")
+
+
+def _counts_on_carry(part: Part, cc: Any) -> bool:
+    """Whether a counter unit's enable pin is one of its count enables on a carry net."""
+    unit = next((u for u in part.units if str(u.id) == str(cc.unit)), None)
+    pins = (unit.fields.get("count_enable") or ()) if unit is not None else ()
+    return getattr(cc, "enable_pin", None) in pins and str(cc.enable_net) not in RAIL_NETS
 
 
 def _chip_ref(counter_plan: Any, chip: Any) -> str:
@@ -561,6 +578,8 @@ def _finish_chip(chip: _Chip) -> None:
     for unit in part.units:
         used = unit.id in chip.units_used
         for pin, level in (unit.fields.get("ties") or {}).items():
+            if chip.role == "counter" and int(pin) in chip.pins:
+                continue        # the counter plan wired it (a count enable on a carry net)
             chip.set_pin(int(pin), str(level), f"held at {level} for plain use (datasheet)")
         for pin, role in unit.pins():
             if pin in chip.pins:

@@ -138,6 +138,7 @@ class CounterModel:
     reset_ps: int
     outputs: list[CounterOutput]
     notes: list[str] = field(default_factory=list)
+    enable_net: str | None = None   # a count enable on a carry net: counts only while it is high
 
     def level(self, output: CounterOutput, state: int) -> bool:
         """The output's level in a counter state."""
@@ -250,6 +251,12 @@ def counter_models(counter_plan: Any, network: Network, catalog: Any, supply: fl
             ref, pin = reset.direct_pin
             if ref == cc.ref and (int(pin) in stages or int(pin) in decoded):
                 pins.setdefault(int(pin), str(board_reset))
+        if getattr(cc, "carry_net", None) and f.get("carry_out") is not None:
+            pins[int(f["carry_out"])] = str(cc.carry_net)
+        carry_in = None
+        if getattr(cc, "enable_pin", None) in (f.get("count_enable") or ()) and \
+                str(getattr(cc, "enable_net", "") or "VDD") not in RAILS:
+            carry_in = str(cc.enable_net)
         outputs = []
         synchronous = bool(f.get("synchronous", False))
         for pin, net in sorted(pins.items()):
@@ -280,7 +287,7 @@ def counter_models(counter_plan: Any, network: Network, catalog: Any, supply: fl
             synchronous=synchronous or f.get("mode") == "johnson",
             clock_net=str(cc.clock_net), edge=edge, reset_net=net, reset_high=reset_high,
             reset_sync=bool(reset_field.get("synchronous", False)), reset_ps=ps(t_reset),
-            outputs=outputs, notes=notes))
+            outputs=outputs, notes=notes, enable_net=carry_in))
     return models
 
 
@@ -639,6 +646,9 @@ class _Engine:
                                  "reset was still held; the count was lost")
             return
         old = self.state[i]
+        if c.enable_net is not None and not self.levels[c.enable_net] and \
+                not (c.reset_sync and self._reset_active(c)):
+            return          # a carry-enabled unit holds its count while the unit below is not at 15
         new = c.next_state(old, self._reset_active(c))
         cause = self.last_change(c.clock_net)
         for out in c.outputs:

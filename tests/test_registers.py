@@ -11,22 +11,17 @@ checked against.
 
 from __future__ import annotations
 
-import shutil
-import subprocess
 from pathlib import Path
 
 import pytest
 
 from synth import timing
-from synth.exports.verilog import spec_signals, verilog_names, write_verilog
+from synth.exports.verilog import verilog_names
 from synth.inventory import load_catalog
-from synth.netlist import verilog_module_name
 from synth.network import Gate, Network, SignalOut, evaluate_words
 from synth.pipeline import make_plan
 
-needs_iverilog = pytest.mark.skipif(
-    shutil.which("iverilog") is None or shutil.which("vvp") is None,
-    reason="Icarus Verilog is not installed (Debian package iverilog; .ci/run installs it)")
+from tests.cosim import needs_iverilog, run_plan
 
 ARM_SPEC = """\
 name: arm-bench
@@ -113,39 +108,6 @@ def test_arm_plans_without_a_glitch(key, catalog, tmp_path):
     assert chip.pins[10] == "VDD" and chip.pins[13] == "VDD"     # the spare unit's too
 
 
-def _bench(plan, period_ps: int, ticks: int, vcd: Path) -> str:
-    outs = spec_signals(plan)
-    half = period_ps // 2
-    start = "1" if plan.clock_edge == "rising" else "0"
-    other = "0" if start == "1" else "1"
-    ns = lambda p: f"{p / 1000:.3f}"  # noqa: E731
-    return "\n".join([
-        "`timescale 1ns/1ps", "module tb;", "  reg clk;", f"  wire {', '.join(outs)};",
-        f"  {verilog_module_name(plan.name)} dut (.clk(clk), {', '.join(f'.{o}({o})' for o in outs)});",
-        f"  initial begin clk = 1'b{start}; forever begin #({ns(half)}) clk = 1'b{other}; "
-        f"#({ns(half)}) clk = 1'b{start}; end end",
-        "  initial begin", f'    $dumpfile("{vcd}"); $dumpvars(0, tb);', f"    #({ns(period_ps - 1)});",
-        f'    repeat ({ticks}) begin $display("S {" ".join("%b" for _ in outs)}", {", ".join(outs)}); '
-        f"#({ns(period_ps)}); end", "    $finish;", "  end", "endmodule", ""])
-
-
-def _icarus(plan, catalog, period_ps: int, ticks: int, folder: Path):
-    from vcdvcd import VCDVCD
-
-    design = write_verilog(plan, catalog, folder / "design.v")
-    bench = folder / "bench.v"
-    bench.write_text(_bench(plan, period_ps, ticks, folder / "w.vcd"))
-    subprocess.run(["iverilog", "-g2001", "-o", str(folder / "x.vvp"), str(design), str(bench)],
-                   check=True, capture_output=True, text=True)
-    out = subprocess.run(["vvp", "-n", str(folder / "x.vvp")], check=True, capture_output=True, text=True).stdout
-    rows = [line.split()[1:] for line in out.splitlines() if line.startswith("S ")]
-    samples = {o: [r[i] == "1" for r in rows] for i, o in enumerate(spec_signals(plan))}
-    dump = VCDVCD(str(folder / "w.vcd"))
-    waves = {n[len("tb.dut."):]: [(int(t), v) for t, v in dump[n].tv]
-             for n in dump.signals if n.startswith("tb.dut.")}
-    return samples, waves
-
-
 @needs_iverilog
 @pytest.mark.parametrize("bin_text, supply, part", [(BIN_74HC, "", "74HC74"), (BIN_4000B, "10 V", "4013")])
 def test_registered_output_is_steady_in_icarus(bin_text, supply, part, catalog, tmp_path):
@@ -159,7 +121,7 @@ def test_registered_output_is_steady_in_icarus(bin_text, supply, part, catalog, 
     trace = timing.simulate(plan.counter, plan.network, catalog, plan.supply, cycles=2,
                             clock_period_ns=1000.0, gate_names=timing.gate_names_of(plan))
     period = timing.ps(trace.period_ns)
-    samples, waves = _icarus(plan, catalog, period, 32, tmp_path)
+    samples, waves = run_plan(plan, catalog, period, 32, tmp_path)
     wanted = [t % 16 in (0, 1) for t in range(32)]           # the spec: asserted ticks 0-1
     assert samples["arm"] == wanted
     names = verilog_names(plan, catalog)

@@ -107,6 +107,7 @@ def _identifiers(plan: Any, counters: list[CounterModel], gates: list[GateModel]
     nets = [o.net for c in counters for o in c.outputs]
     nets += [n for g in gates for n in (*g.gate.inputs, *g.gate.outputs) if n]
     nets += [c.reset_net for c in counters if c.reset_net]
+    nets += [c.enable_net for c in counters if c.enable_net]
     nets += [plan.signals[n]["net"] for n in spec_signals(plan)]
     for net in dict.fromkeys(nets):
         if net in names or net in RAILS:
@@ -135,6 +136,8 @@ def _counter_comment(plan: Any, c: CounterModel, catalog: Any) -> list[str]:
     for o in c.outputs:
         lines.append(f"  //   {o.pin_name or o.kind} (pin {o.pin}) -> {o.net}: {delay_text(o.delay_ps)} ns "
                      "after the counting edge")
+    if c.enable_net:
+        lines.append(f"  //   counts only while {c.enable_net} is high (count enables on the carry of the unit below)")
     if c.reset_net:
         kind = "synchronous" if c.reset_sync else "asynchronous"
         lines.append(f"  //   reset from {c.reset_net}, active {'high' if c.reset_high else 'low'}, {kind}"
@@ -176,6 +179,11 @@ def _counter_block(plan: Any, c: CounterModel, names: dict[str, str], catalog: A
     condition = f"{was} === {before} && {clock} === {now}"
     if c.reset_net and not c.reset_sync:
         condition += f" && {names[c.reset_net]} !== {active}"
+    if c.enable_net:        # a synchronous cascade: count only while the unit below's TC is high
+        enabled = f"{names[c.enable_net]} === 1'b1"
+        if c.reset_net and c.reset_sync:
+            enabled = f"({enabled} || {names[c.reset_net]} === {active})"
+        condition += f" && {enabled}"
     lines.append(f"  always @({clock}) begin")
     lines.append(f"    if ({condition}) begin")
     step = f"({count} == {c.modulus - 1}) ? {width}'d0 : {count} + {width}'d1"
