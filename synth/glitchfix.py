@@ -748,6 +748,8 @@ def rc_offers(design: Any, widths: dict[str, float] | None = None) -> list[dict]
     offers = []
     races: dict[str, list[dict]] = {}
     for edge in plan.coincident_edges:
+        if not edge.get("race", True):
+            continue            # complementary or independent outputs: no race to delay
         a, b = edge["signals"]
         races.setdefault(b if edge.get("first") == a else a, []).append(edge)
     for signal, edges in sorted(races.items()):

@@ -71,7 +71,7 @@ __all__ = [
     "settle_mismatches", "merge_glitches", "ripple_hazards", "RippleHazard", "coincident_edges",
     "edge_skews", "remedies", "spare_input", "analyse", "default_period_ns", "nice_period_ns",
     "ps", "expected_from_delivered", "registered_signals", "register_start_levels",
-    "flipflop_requirement_ns", "register_checks", "pulse_width_checks",
+    "flipflop_requirement_ns", "register_checks", "pulse_width_checks", "pulse_warning_lines", "mark_races",
 ]
 
 CORNERS = ("typ", "max")
@@ -1323,22 +1323,43 @@ def _edges(ticks: frozenset[int], cycle: int) -> list[int]:
 
 
 def coincident_edges(delivered: Mapping[str, frozenset[int]], cycle: int) -> list[dict]:
-    """Every pair of signals with an edge on the same boundary (between tick b-1 and b);
-    complementary pairs (one asserted exactly when the other is not) are no race and left out.
+    """Every pair of signals with an edge on the same boundary (between tick b-1 and b).
 
     >>> coincident_edges({"a": frozenset({0, 1}), "b": frozenset({2}), "c": frozenset({1})}, 4)
     [{'signals': ['a', 'b'], 'at_tick': 2}, {'signals': ['a', 'c'], 'at_tick': 2}, {'signals': ['b', 'c'], 'at_tick': 2}]
-    >>> coincident_edges({"a": frozenset({0}), "b": frozenset({1, 2, 3})}, 4)
-    []
     """
     edges = {name: set(_edges(frozenset(t), cycle)) for name, t in delivered.items()}
     names = sorted(edges)
     out = []
     for i, a in enumerate(names):
         for b in names[i + 1:]:
-            if frozenset(delivered[a]) == frozenset(range(cycle)) - frozenset(delivered[b]):
-                continue            # complementary signals: one edge, two views of it, no race
             out += [{"signals": [a, b], "at_tick": tick} for tick in sorted(edges[a] & edges[b])]
+    return out
+
+
+def mark_races(records: list[dict], delivered: Mapping[str, frozenset[int]], plan: Any,
+               cycle: int) -> list[dict]:
+    """Each coincident pair with ``relation`` and ``race``: a race only where one signal
+    gates what the other drives on the board (it selects a switch that routes the
+    other); complementary signals (one asserted exactly when the other is not) are
+    two views of one edge; other pairs are independent outputs, listed, not raced."""
+    routes: dict[str, set[str]] = {}
+    nets = {name: info.get("net") for name, info in (getattr(plan, "signals", {}) or {}).items()}
+    for sw in (getattr(plan, "switches", {}) or {}).values():
+        routed = {sw.get("on"), sw.get("off"), sw.get("on_net"), sw.get("off_net")}
+        routes.setdefault(sw.get("select"), set()).update(
+            n for n, net in nets.items() if n in routed or net in routed)
+    everything = frozenset(range(cycle))
+    out = []
+    for rec in records:
+        a, b = rec["signals"]
+        if frozenset(delivered.get(a, ())) == everything - frozenset(delivered.get(b, ())):
+            relation = "complementary"
+        elif b in routes.get(a, ()) or a in routes.get(b, ()):
+            relation = "gates"
+        else:
+            relation = "independent"
+        out.append({**rec, "relation": relation, "race": relation == "gates"})
     return out
 
 
@@ -1433,7 +1454,9 @@ def remedies(glitch: Glitch, plan: Any, *, catalog: Any = None, stock: Any = Non
                 out.append(f"a synchronous counter: the bin has {', '.join(parts)}, whose outputs change "
                            "together on the clock edge, so the count never shows "
                            f"{shown} on the way")
-    out += _clock_gating_remedy(glitch, plan)
+    out += _register_remedy(glitch, plan, catalog, stock)
+    if spec is None or _pulse_per_tick_ok(spec, glitch.signal):
+        out += _clock_gating_remedy(glitch, plan)
     switch = [n for n, s in (getattr(plan, "switches", {}) or {}).items() if s.get("select") == glitch.signal]
     if switch:
         out.append(f"note: {glitch.signal} drives switch {', '.join(switch)}: for {glitch.width_ns:.0f} ns "
@@ -1444,6 +1467,30 @@ def remedies(glitch: Glitch, plan: Any, *, catalog: Any = None, stock: Any = Non
                    "or motor driver, an RC-filtered input) will not see it; an edge-triggered input "
                    "(a counter clock, a flip-flop, an interrupt pin) will")
     return out
+
+
+def _pulse_per_tick_ok(spec: Any, name: str) -> bool:
+    """As ``registers.pulse_per_tick_ok`` (steady: false, or unset with one-tick windows)."""
+    sig = getattr(spec, "signals", {}).get(name)
+    if sig is None:
+        return True
+    steady = getattr(sig, "steady", None)
+    if steady is not None:
+        return not steady
+    return all(b - a == 1 for a, b in getattr(sig, "windows", ()))
+
+
+def _register_remedy(glitch: Glitch, plan: Any, catalog: Any, stock: Any) -> list[str]:
+    """Registering: the bin's D flip-flops, the signal decoded one tick early."""
+    if glitch.signal in (getattr(plan, "registered", None) or {}) or catalog is None or stock is None:
+        return []
+    parts = [t for t in sorted(getattr(stock, "parts", {}) or {})
+             if catalog.parts.get(t) is not None and catalog.parts[t].units_of("flipflop")]
+    if not parts:
+        return []
+    return [f"register it: the bin has {', '.join(parts)}; decoded one tick early and clocked into a "
+            f"D flip-flop on the counting edge, {glitch.signal} changes once per edge and holds its "
+            "level through every tick (steady: true in the spec, or --fix glitches)"]
 
 
 def _decode_choice_remedy(glitch: Glitch, counter: Any, spec: Any) -> list[str]:
@@ -1525,7 +1572,8 @@ def analyse(design: Any, fix: Sequence[str] | set[str] = ()) -> None:
     found = merge_glitches(plan, expected, typ, run)
     plan.glitches = [g.as_json() for g in found]
     delivered = {n: t for n, t in delivered_sets(plan, levels).items() if n in typ.signals}
-    plan.coincident_edges = edge_skews(typ, coincident_edges(delivered, typ.cycle))
+    plan.coincident_edges = mark_races(edge_skews(typ, coincident_edges(delivered, typ.cycle)),
+                                       delivered, plan, typ.cycle)
     plan.register_checks = register_checks(plan, [typ, worst], catalog)
     for rec in plan.register_checks:
         if not rec["setup_ok"]:
@@ -1538,7 +1586,7 @@ def analyse(design: Any, fix: Sequence[str] | set[str] = ()) -> None:
                                  f"{rec['hold_needed_ns']:g} ns hold time")
     plan.pulse_widths = pulse_width_checks(plan, typ, catalog)
     for rec in plan.pulse_widths:
-        plan.warnings += _pulse_warning(rec)
+        plan.warnings += pulse_warning_lines(rec)
     plan.warnings += [w for w in dict.fromkeys(typ.warnings + worst.warnings) if w not in plan.warnings]
     design.trace = typ
     stock = getattr(design, "stock", None)
@@ -1553,7 +1601,7 @@ def analyse(design: Any, fix: Sequence[str] | set[str] = ()) -> None:
     design.remedies = {"text": text, "by_glitch": by_glitch, "glitches": found}
 
 
-def _pulse_warning(rec: dict) -> list[str]:
+def pulse_warning_lines(rec: dict) -> list[str]:
     """A runt clock or reset pulse, said once, with the remedy; a reset pulse the
     catalog has no figure for is said to be unchecked."""
     if rec["what"] == "reset" and rec["ok"] is None:

@@ -182,10 +182,15 @@ def plan_blocks(design) -> list:
                             ("signal", "ticks", "widest ns", "found by", "cause (first entry)"),
                             glitch_rows(plan)))
     blocks += _fix_blocks(plan)
-    if plan.coincident_edges:
-        blocks.append(Table("coincident edges (two signals switch on the same clock edge)",
-                            ("signals", "tick"),
-                            [(" & ".join(e["signals"]), e["at_tick"]) for e in map(_as_dict, plan.coincident_edges)]))
+    races = [e for e in map(_as_dict, plan.coincident_edges) if e.get("race", True)]
+    if races:
+        blocks.append(Table("races (one signal gates what the other drives, and both switch on one clock edge)",
+                            ("signals", "tick"), [(" & ".join(e["signals"]), e["at_tick"]) for e in races]))
+    others = len(plan.coincident_edges) - len(races)
+    if others:
+        blocks.append(Text(f"{others} pair(s) of outputs switch on the same clock edge without one gating "
+                           "the other (complementary or independent): no race on this board; see "
+                           "coincident_edges in the plan JSON"))
     for remedy in remedy_lines(design):
         blocks.append(Text(f"remedy: {remedy}"))
     lacks = getattr(design, "lacks", None)
