@@ -261,7 +261,7 @@ def _finish_records(records: dict, fixed_by: dict, start: Any, final: Any) -> No
             if remedy == "clock_gating" and signal in strobed:
                 chips += strobed[signal]["cost"]["chips"]
                 gates += strobed[signal]["cost"]["gates"]
-                details.append(strobed[signal]["detail"])
+                details.append(strobed[signal]["detail"] + _pulse_reason(final.spec, signal))
             elif remedy == "registered" and signal in registered:
                 chips += _chips(new) - _chips(old)
                 gates += _gates(new) - _gates(old)
@@ -278,6 +278,14 @@ def _finish_records(records: dict, fixed_by: dict, start: Any, final: Any) -> No
         if rec["glitches_after"] and steps:
             rec["note"] = _note_text(final, signal)
     final.plan.timing_fixes = [records[s] for s in sorted(records)]
+
+
+def _pulse_reason(spec: Any, signal: str) -> str:
+    """Why a pulse per tick is acceptable for a gated signal (said with the remedy)."""
+    sig = spec.signals.get(signal) if spec is not None else None
+    if sig is not None and sig.steady is False:
+        return "; a pulse per tick is acceptable here: the spec says steady: false"
+    return "; a pulse per tick is acceptable here: each of its windows is one tick long"
 
 
 def _note_text(design: Any, signal: str) -> str:

@@ -142,6 +142,10 @@ def signal_rows(design) -> list[tuple]:
         gated = (getattr(plan, "strobed", None) or {}).get(name)
         if gated:
             expression = f"({expression}) and {gated['still_phase']} (gated with the clock)"
+        registered = (getattr(plan, "registered", None) or {}).get(name)
+        if registered:
+            expression = (f"registered in {registered['flipflop']} ({registered['part']}): its D is "
+                          f"{expression}, one tick early")
         rows.append((name, info.get("polarity"), where, expression))
     return rows
 
