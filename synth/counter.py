@@ -820,6 +820,11 @@ def _unchainable(kinds: list[_Kind], n: int) -> str:
     """Why the bin's short binary counters cannot follow one another ('' if they can)."""
     short = [k for k in kinds if k.mode == "binary" and k.width < n]
     stuck = [k.part.type for k in short if k.clocking("falling") is None and not _carries(k)]
+    carry = sorted({k.part.type for k in short if k.clocking("falling") is None and _carries(k)})
+    if carry and len(stuck) + len(carry) == len(short):
+        return (f"the {_or_list(carry)} counts only on a rising clock edge; a synchronous carry "
+                f"cascade of two units gives {2 * min(k.width for k in short if _carries(k))} stages, "
+                "and longer cascades are not built")
     if not stuck or len(stuck) < len(short):
         return ""
     names = _or_list(sorted(set(stuck)))
