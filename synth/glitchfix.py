@@ -756,8 +756,8 @@ def rc_offers(design: Any, widths: dict[str, float] | None = None) -> list[dict]
     offers = []
     races: dict[str, list[dict]] = {}
     for edge in plan.coincident_edges:
-        if not edge.get("race", True):
-            continue            # complementary or independent outputs: no race to delay
+        if edge.get("relation") == "complementary":
+            continue            # one edge seen twice: nothing to delay
         a, b = edge["signals"]
         races.setdefault(b if edge.get("first") == a else a, []).append(edge)
     for signal, edges in sorted(races.items()):
@@ -786,10 +786,14 @@ def _race_offer(design: Any, later: str, edges: list[dict], period: float | None
     others = sorted({n for e in edges for n in e["signals"] if n != later})
     ticks = sorted({e["at_tick"] for e in edges})
     offer = _rc_design(design, later, period / 4, period)
-    offer.update({"problem": "race", "signals": [later, *others], "at_ticks": ticks,
+    race = any(e.get("race", True) for e in edges)
+    condition = "" if race else (" (needed only if your circuit clocks, resets or gates one of them "
+                                 "with the other: on this board neither reads the other)")
+    offer.update({"problem": "race" if race else "coincident", "signals": [later, *others], "at_ticks": ticks,
                   "why": (f"{later} switches on the same clock edge as {', '.join(others)} (ticks "
                           f"{', '.join(map(str, ticks))}); delayed by about a quarter tick its edges "
-                          "come clear of theirs and the level sampled at the end of each tick is unchanged")})
+                          "come clear of theirs and the level sampled at the end of each tick is "
+                          f"unchanged{condition}")})
     return offer
 
 

@@ -265,7 +265,7 @@ def _fix_blocks(plan) -> list:
                                              if not r["applied"] else ""))
                              for r in fixes]))
     offers = getattr(plan, "rc_offers", None) or []
-    races = [o for o in offers if o["problem"] == "race" and o.get("applicable")]
+    races = [o for o in offers if o["problem"] in ("race", "coincident") and o.get("applicable")]
     if races:
         blocks.append(Text(_race_offers_text(races)))
     refused: dict[str, list[str]] = {}
@@ -288,10 +288,12 @@ def _race_offers_text(races: list[dict]) -> str:
     first = races[0]
     rise, fall = first["delay_ns"]["rising"], first["delay_ns"]["falling"]
     names = ", ".join(o["delayed"] for o in races)
+    only_if = "" if any(o["problem"] == "race" for o in races) else (
+        "; needed only if your circuit clocks, resets or gates one of these with the other")
     return "\n".join([
         f"offer (not applied): an RC delay of about a quarter tick on {names}, each of which switches "
-        "on the same clock edge as another signal (see coincident edges): its edges then come clear "
-        "of the other's and the level sampled at the end of each tick is unchanged",
+        "on the same clock edge as another signal: its edges then come clear "
+        f"of the other's and the level sampled at the end of each tick is unchanged{only_if}",
         f"  R {first['r']}, C {first['c']} into {_receiver(first)}: {first['formula']}; delay min / typ / "
         f"max rising {rise[0]:g} / {rise[1]:g} / {rise[2]:g} ns, falling {fall[0]:g} / {fall[1]:g} / "
         f"{fall[2]:g} ns",
