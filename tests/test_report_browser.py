@@ -105,6 +105,13 @@ def test_report_in_chromium(browser, page):
     assert count("li.step input[type=checkbox]:checked") == 1
     assert count('svg.board [data-step="%s"].next' % second_step) == 1
 
+    browser.find_element("css selector", "#focus").click()
+    faded = browser.execute_script(
+        "return Array.prototype.filter.call(document.querySelectorAll('svg.board g.bb-jumper'),"
+        " function (g) { return getComputedStyle(g).opacity < 0.5; }).length")
+    assert faded == len(board["jumpers"]) - count("svg.board g.bb-jumper.next")
+    browser.find_element("css selector", "#focus").click()
+
     ARTIFACTS.mkdir(parents=True, exist_ok=True)
     browser.execute_script("document.getElementById('board').scrollIntoView()")
     shot = ARTIFACTS / f"report-{name}.png"

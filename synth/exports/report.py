@@ -720,7 +720,8 @@ def report_html(design) -> str:
         + "".join(f"<li>{escape(c)}</li>" for c in cautions) + "</ul></section></header>",
         '<section id="board"><h2>Breadboard</h2>',
         '<div class="next noprint" id="next-box"><strong>Next:</strong> <span id="next-text"></span> '
-        '<button type="button" id="next-done">done</button> <span id="progress"></span></div>',
+        '<button type="button" id="next-done">done</button> <span id="progress"></span> '
+        '<label><input type="checkbox" id="focus"> show only what is built and the next step</label></div>',
         '<p class="legend">Drawn to scale (one square = one hole, 2.54 mm apart). Rows are numbered and columns '
         'lettered as printed on the board; a-e of one row are joined, so are f-j; each rail runs the board\'s '
         'length (<span class="plus-key">+ rail = VDD</span>, <span class="minus-key">\u2212 rail = VSS</span>, '
@@ -803,6 +804,9 @@ svg.board { width: 100%; min-width: 1300px; height: auto; display: block; }
 .bb-jumper.hl .casing { stroke: var(--mark); stroke-width: 9; }
 .bb-jumper.next .casing, .bb-chip.next .chip-body, .bb-part.next rect, .bb-external.next line { stroke: #00a3ff; stroke-width: 10; }
 .bb-chip.next .chip-body { stroke-width: 4; }
+body.focus .bb-jumper:not(.built):not(.next), body.focus .bb-part:not(.built):not(.next),
+body.focus .bb-external:not(.built):not(.next) { opacity: 0.1; }
+body.focus .bb-chip:not(.built):not(.next) { opacity: 0.35; }
 .bb-external .flying { stroke-width: 3; stroke-dasharray: 2 2; }
 .ext-label { font: bold 9px sans-serif; paint-order: stroke; stroke: #fff; stroke-width: 3px; }
 .bb-external.hl .flying { stroke-width: 6; }
@@ -878,6 +882,7 @@ JS = r"""
     boxes.forEach(function (b) {
       b.closest('li').classList.toggle('done', b.checked);
       mark(b.value, 'next', false);
+      mark(b.value, 'built', b.checked);
       if (b.checked) { count += 1; } else if (next === null) { next = b; }
     });
     var text = document.getElementById('next-text');
@@ -897,6 +902,9 @@ JS = r"""
   document.getElementById('next-done').addEventListener('click', function () {
     var next = boxes.filter(function (b) { return !b.checked; })[0];
     if (next) { next.checked = true; save(); refresh(); }
+  });
+  document.getElementById('focus').addEventListener('change', function (ev) {
+    document.body.classList.toggle('focus', ev.target.checked);
   });
   document.getElementById('clear-ticks').addEventListener('click', function () {
     boxes.forEach(function (b) { b.checked = false; }); save(); refresh();
