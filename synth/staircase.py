@@ -213,11 +213,11 @@ def _wire_binary(plan, name: str, nets: list[str], legs: list[float]) -> list[st
 def _check_names(plan, spec, level, routed: list[str]) -> None:
     taken = set(plan.nets)
     if level.name in taken and not routed:
-        raise SpecError(f"levels.{level.name}: the name is already a net of the plan", file=spec.path,
+        raise SpecError(f"{level.section}.{level.name}: the name is already a net of the plan", file=spec.path,
                         line=level.line, hint="name the staircase e.g. ramp_out")
     clash = [n for n in taken if n.startswith(f"{level.name}_")]
     if clash:
-        raise SpecError(f"levels.{level.name}: the ladder's node names clash with net {clash[0]}",
+        raise SpecError(f"{level.section}.{level.name}: the ladder's node names clash with net {clash[0]}",
                         file=spec.path, line=level.line, hint="rename the staircase")
 
 
@@ -231,7 +231,7 @@ def _driver_nets(plan, spec, level) -> list[str]:
             hint = (f"the counter's pins carry tick bits {have}" if have else
                     "this counter brings out no binary tick bits (a decoded or BCD count); a binary "
                     "counter such as a 4040 does")
-            raise SpecError(f"levels.{level.name}.bits: tick bit {bit} is not brought out by the "
+            raise SpecError(f"{level.section}.{level.name}.bits: tick bit {bit} is not brought out by the "
                             f"counter ({parts})", file=spec.path, line=line, hint=hint)
         nets.append(available[bit])
     return nets
@@ -265,7 +265,7 @@ def _plan_one(plan, spec, bin, catalog, level) -> LadderPlan:
         try:
             choice = choose_ladder_resistors(bin.resistors, n, r_out_driver=r_typ, supply=supply)
         except ShortError as exc:
-            raise ShortError(f"levels.{level.name}: {exc.message}", file=bin.path, hint=exc.hint) from exc
+            raise ShortError(f"{level.section}.{level.name}: {exc.message}", file=bin.path, hint=exc.hint) from exc
         r, r2 = choice.r, choice.r2
         ladder = r2r_ladder(n, r, r2, supply, r_out_driver=r_typ, r_load=level.load_ohms)
         ideal = r2r_ladder(n, r, r2, supply)

@@ -32,9 +32,11 @@ def run(args: argparse.Namespace) -> int:
     from ..inventory import load_bin, load_catalog
     from ..render import print_json, show
     from ..spec import load_spec
+    from .plan import show_spec_notes
 
     catalog = load_catalog()
     spec = load_spec(args.spec)
+    show_spec_notes(spec)
     stock = load_bin(args.bin, catalog, spec.supply)
     plan = allocate(spec, stock, catalog)
     decode = derive(spec, plan, exact=args.exact)

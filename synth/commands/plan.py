@@ -50,11 +50,20 @@ def run(args: argparse.Namespace) -> int:
     from ..render import show
 
     design = make_plan(args.spec, args.bin, exact=args.exact, fix=args.fix, lacks=args.lacks)
+    show_spec_notes(design.spec)
     to_stdout = args.json == "-"
     if not to_stdout:
         show(plan_blocks(design))
     write_outputs(design, args)
     return 0
+
+
+def show_spec_notes(spec) -> None:
+    """How the spec was read (an earlier key name, ...), one line each on stderr."""
+    import sys
+
+    for note in spec.notes:
+        sys.stderr.write(f"binsynth: {note}\n")
 
 
 def seconds(text: str) -> float:

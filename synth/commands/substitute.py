@@ -20,8 +20,11 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
                                        "or an expression: ~ ! ' not, & and, ^ xor, | + or, parentheses")
     parser.add_argument("--bin", required=True, metavar="BIN", help="the bin file (YAML)")
     parser.add_argument("--supply", default="5", help="supply voltage, e.g. 5 or '10 V' (default 5)")
-    parser.add_argument("--either-polarity", action="store_true",
-                        help="accept the complement of the target (e.g. NAND4 where AND4 was asked)")
+    parser.add_argument("--free-polarity", dest="either_polarity", action="store_true",
+                        help="polarity free, as in the spec: accept the complement of the target "
+                             "(e.g. NAND4 where AND4 was asked)")
+    parser.add_argument("--either-polarity", dest="either_polarity", action="store_true",
+                        help=argparse.SUPPRESS)   # the earlier name, still read
     parser.add_argument("--limit", type=int, default=3, help="how many ways to show (default 3)")
     parser.add_argument("--json", action="store_true", help="print JSON for scripts")
 

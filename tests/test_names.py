@@ -1,0 +1,202 @@
+"""Names a practitioner reads: spec keys, their earlier names, and retired output labels.
+
+Sources: formats.md v2 section 2 (the project's contract: ``asserted:`` replaces
+``high:``, the old name still read with a one-line note, both given is an error;
+a bare integer k is the window [k, k+1], also on its own); the project's
+originality rule (output labels in plain words of our own, never the name of
+an existing minimizer program).
+"""
+
+from __future__ import annotations
+
+import contextlib
+import io
+import json
+import textwrap
+
+import pytest
+
+from synth.cli import main
+from synth.errors import SpecError
+from synth.inventory import data_path, example_path
+from synth.spec import OLD_KEYS, load_spec
+
+EXAMPLES = ("sample_hold", "stepper", "led_scanner", "ultrasonic_burst", "adc_staircase")
+
+
+def load(text: str, path: str = "bench.yaml"):
+    return load_spec(path, text=textwrap.dedent(text))
+
+
+# ---------------------------------------------------------------- asserted / high
+
+def test_asserted_and_the_earlier_high_read_the_same():
+    new = load("cycle: 16\nsignals:\n  s: {asserted: [[2, 5]], polarity: low}\n")
+    old = load("cycle: 16\nsignals:\n  s: {high: [[2, 5]], polarity: low}\n")
+    assert new.signals["s"].high == old.signals["s"].high == frozenset({2, 3, 4})
+    assert new.notes == ()
+    assert old.notes == ("bench.yaml:3: note: 'high:' is the earlier name of 'asserted:' and reads "
+                         "the same; write asserted: from now on",)
+
+
+def test_the_note_is_given_once_per_line_not_per_signal_set():
+    spec = load("""\
+        cycle: 16
+        signals:
+          a: {high: [0]}
+          b: {high: [1]}
+        """)
+    assert [n.split(": note")[0] for n in spec.notes] == ["bench.yaml:3", "bench.yaml:4"]
+
+
+def test_asserted_and_high_together_are_refused_on_the_line():
+    with pytest.raises(SpecError) as caught:
+        load("cycle: 16\nsignals:\n  s:\n    asserted: [0]\n    high: [1]\n")
+    error = caught.value
+    assert error.line == 5 and error.exit_code == 2
+    assert "signals.s: both 'high' and 'asserted' are given" in error.message
+    assert "keep only asserted:" in error.hint
+
+
+def test_messages_name_the_key_as_the_file_spells_it():
+    with pytest.raises(SpecError) as caught:
+        load("cycle: 8\nsignals:\n  a: {high: [[0, 9]]}\n")
+    assert caught.value.message.startswith("signals.a.high: window [0, 9] goes past")
+    with pytest.raises(SpecError) as caught:
+        load("cycle: 8\nsignals:\n  a: {asserted: [[0, 9]]}\n")
+    assert caught.value.message.startswith("signals.a.asserted: window [0, 9] goes past")
+
+
+@pytest.mark.parametrize("written, ticks", [
+    ("9", {9}),                       # formats.md: `asserted: 9` is `asserted: [9]`
+    ("[9]", {9}),
+    ("[[9, 10]]", {9}),
+    ("[3, [9, 11]]", {3, 9, 10}),
+    ("0", {0}),
+])
+def test_a_bare_integer_is_one_tick(written, ticks):
+    spec = load(f"cycle: 16\nsignals:\n  s: {{asserted: {written}}}\n")
+    assert spec.signals["s"].high == frozenset(ticks)
+
+
+def test_a_bare_integer_repeats_with_every_and_stays_inside_the_period():
+    spec = load("cycle: 32\nsignals:\n  s: {asserted: 3, every: 8}\n")
+    assert spec.signals["s"].high == frozenset({3, 11, 19, 27})
+    with pytest.raises(SpecError) as caught:
+        load("cycle: 32\nsignals:\n  s: {asserted: 8, every: 8}\n")
+    assert "goes past every: 8" in caught.value.message and caught.value.line == 3
+
+
+def test_a_bare_integer_dont_care_is_one_tick():
+    spec = load("cycle: 16\nsignals:\n  s: {asserted: [[0, 4]], dont_care: 3}\n")
+    assert spec.signals["s"].dont_care == frozenset({3})
+    assert spec.signals["s"].high == frozenset({0, 1, 2})
+
+
+# ---------------------------------------------------------------- staircases / levels
+
+LADDER = """\
+cycle: 16
+signals:
+  s: {asserted: [0]}
+%s:
+  ramp: {bits: [0, 1], colour: red}
+"""
+
+
+def test_staircases_is_the_key_and_levels_still_reads():
+    good = LADDER.replace(", colour: red", "")
+    new = load(good % "staircases")
+    old = load(good % "levels")
+    assert set(new.levels) == set(old.levels) == {"ramp"}
+    assert new.levels["ramp"].bits == old.levels["ramp"].bits == (0, 1)
+    assert (new.levels["ramp"].section, old.levels["ramp"].section) == ("staircases", "levels")
+    assert new.notes == ()
+    assert old.notes == ("bench.yaml:4: note: 'levels:' is the earlier name of 'staircases:' and "
+                         "reads the same; write staircases: from now on",)
+
+
+@pytest.mark.parametrize("key", ["staircases", "levels"])
+def test_staircase_messages_name_the_key_as_written(key):
+    with pytest.raises(SpecError) as caught:
+        load(LADDER % key)
+    assert caught.value.message == f"{key}.ramp: unknown key 'colour'"
+
+
+def test_every_earlier_name_maps_to_a_current_key():
+    from synth.spec import SIGNAL_KEYS, TOP_KEYS
+
+    assert OLD_KEYS == {"high": "asserted", "levels": "staircases"}
+    assert OLD_KEYS["high"] in SIGNAL_KEYS and OLD_KEYS["levels"] in TOP_KEYS
+    assert not set(OLD_KEYS) & (set(SIGNAL_KEYS) | set(TOP_KEYS))
+
+
+def test_the_cli_prints_the_note_once_on_stderr(tmp_path, capsys):
+    spec = tmp_path / "old.yaml"
+    spec.write_text("cycle: 8\nsignals:\n  s: {high: [[0, 4]]}\n")
+    assert main(["decode", str(spec), "--bin", str(data_path("bins", "sample_hold.yaml"))]) == 0
+    err = capsys.readouterr().err
+    assert err == (f"binsynth: {spec}:3: note: 'high:' is the earlier name of 'asserted:' and "
+                   "reads the same; write asserted: from now on\n")
+
+
+def test_shipped_examples_use_the_current_names():
+    for name in EXAMPLES:
+        text = example_path(f"{name}.yaml").read_text()
+        for old in OLD_KEYS:
+            assert f"{old}:" not in text.replace("polarity: high", ""), (name, old)
+        assert load_spec(example_path(f"{name}.yaml")).notes == ()
+
+
+# ---------------------------------------------------------------- retired labels in output
+
+RETIRED = {
+    "espresso": "the name of an existing minimizer program (the method is named in docs only)",
+    "pyeda": "a library name, not a label",
+    "either-polarity": "the spec's word is 'free' (--free-polarity)",
+}
+
+
+@pytest.fixture(scope="module")
+def shipped_outputs(tmp_path_factory) -> dict[str, str]:
+    """Every shipped example through plan (text and JSON) and decode, and the other commands."""
+    out = tmp_path_factory.mktemp("outputs")
+    texts: dict[str, str] = {}
+
+    def run(key: str, argv: list[str], codes=(0,)) -> None:
+        stdout, stderr = io.StringIO(), io.StringIO()
+        with contextlib.redirect_stdout(stdout), contextlib.redirect_stderr(stderr):
+            code = main(argv)
+        assert code in codes, (argv, stderr.getvalue())
+        texts[key] = stdout.getvalue() + stderr.getvalue()
+
+    for name in EXAMPLES:
+        spec, stock = str(example_path(f"{name}.yaml")), str(data_path("bins", f"{name}.yaml"))
+        plan_json = out / f"{name}.json"
+        run(f"plan {name}", ["plan", spec, "--bin", stock, "--lacks", "0", "--json", str(plan_json)],
+            codes=(0, 3, 4))     # a bin that is short still prints what it says
+        if plan_json.exists():
+            texts[f"plan {name} json"] = plan_json.read_text()
+        run(f"decode {name}", ["decode", spec, "--bin", stock])
+        run(f"decode {name} json", ["decode", spec, "--bin", stock, "--json"])
+        run(f"bin {name}", ["bin", stock])
+    sample = str(data_path("bins", "stepper.yaml"))
+    run("substitute", ["substitute", "nand4", "--bin", sample, "--limit", "1"])
+    run("substitute json", ["substitute", "a & ~b", "--bin", sample, "--free-polarity", "--json"])
+    run("delay", ["delay", "50us", "--bin", str(data_path("bins", "sample_hold.yaml"))])
+    run("parts", ["parts", "4040"])
+    run("parts list", ["parts"])
+    return texts
+
+
+@pytest.mark.parametrize("label", sorted(RETIRED))
+def test_no_output_carries_a_retired_label(shipped_outputs, label):
+    found = [key for key, text in shipped_outputs.items() if label in text.lower()]
+    assert not found, f"{label!r} ({RETIRED[label]}) printed by: {', '.join(found)}"
+
+
+def test_cover_method_is_in_plain_words(shipped_outputs):
+    methods = {json.loads(shipped_outputs[f"decode {name} json"])["cover"]["method"]
+               for name in EXAMPLES}
+    assert methods <= {"exact cover, proven minimal", "heuristic cover"}
+    assert "(exact cover, proven minimal;" in shipped_outputs["decode sample_hold"]
