@@ -200,3 +200,43 @@ def test_cover_method_is_in_plain_words(shipped_outputs):
                for name in EXAMPLES}
     assert methods <= {"exact cover, proven minimal", "heuristic cover"}
     assert "(exact cover, proven minimal;" in shipped_outputs["decode sample_hold"]
+
+
+# ---------------------------------------------------------------- one expression notation
+
+@pytest.mark.parametrize("example", ["sample_hold", "stepper"])
+def test_substitute_reads_back_every_decode_decode_prints(example):
+    """Each printed decode, parsed by substitute, is the cover's own function at every count."""
+    from synth.commands.decode import decode_blocks
+    from synth.counter import allocate
+    from synth.decode import derive
+    from synth.inventory import load_bin, load_catalog
+    from synth.render import to_plain
+    from synth.substitute import parse_target
+
+    catalog = load_catalog()
+    spec = load_spec(example_path(f"{example}.yaml"))
+    stock = load_bin(data_path("bins", f"{example}.yaml"), catalog, spec.supply)
+    decode = derive(spec, allocate(spec, stock, catalog))
+    cover = decode.cover
+    shown = to_plain(decode_blocks(spec, stock, decode))
+    index = {name: i for i, name in enumerate(cover.var_names)}
+    for name, signal in decode.signals.items():
+        printed = signal.expression if signal.phase == "true" else f"({signal.expression})'"
+        assert printed in shown
+        target = parse_target(printed)
+        for count in range(1 << cover.nvars):
+            code = sum((count >> index[var] & 1) << i for i, var in enumerate(target.inputs))
+            assert (code in target.on) == cover.signal_value(name, count), (name, printed, count)
+
+
+@pytest.mark.parametrize("text, same", [
+    ("a·b + c'", "a & b | ~c"),
+    ("1Q3'·1Q2", "x & ~y"),        # inputs in name order: 1Q2 then 1Q3
+    ("(a·b)'", "~(a & b)"),
+    ("a * b", "a & b"),
+])
+def test_printed_and_typed_notations_mean_the_same(text, same):
+    from synth.substitute import parse_target
+
+    assert parse_target(text).on == parse_target(same).on
