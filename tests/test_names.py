@@ -240,3 +240,34 @@ def test_printed_and_typed_notations_mean_the_same(text, same):
     from synth.substitute import parse_target
 
     assert parse_target(text).on == parse_target(same).on
+
+
+# ---------------------------------------------------------------- bin --diff sign
+
+def test_bin_diff_plus_means_added_to_the_bin(tmp_path, capsys):
+    older = tmp_path / "older.yaml"
+    older.write_text("parts:\n  4011: 1\nresistors: [10k]\n")
+    now = tmp_path / "now.yaml"
+    now.write_text("parts:\n  4011: 3\n  4069: 1\nresistors: [10k, 22k]\n")
+    assert main(["bin", str(now), "--diff", str(older)]) == 0
+    out = capsys.readouterr().out
+    assert out.splitlines()[0] == f"changes in {now} since {older} (+ added to the bin, - taken out)"
+    assert "4011  1       3    +2" in out and "4069  0       1    +1" in out
+    assert "resistors  22 kΩ  -" in out
+
+
+# ---------------------------------------------------------------- delay needs units
+
+@pytest.mark.parametrize("bare", ["50", "0.5", "1e-5"])
+def test_delay_refuses_a_bare_number_and_asks_for_units(bare, capsys):
+    stock = str(data_path("bins", "sample_hold.yaml"))
+    assert main(["delay", bare, "--bin", stock]) == 2
+    err = capsys.readouterr().err
+    assert err == (f"binsynth: delay: expected a time with its unit, got the bare number {bare!r} "
+                   f"(write the unit: {bare}us, {bare}ms or '{bare} s')\n")
+
+
+def test_delay_with_units_still_plans():
+    stock = str(data_path("bins", "sample_hold.yaml"))
+    assert main(["delay", "50us", "--bin", stock]) == 0
+    assert main(["delay", "0.05 ms", "--bin", stock]) == 0

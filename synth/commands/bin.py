@@ -14,7 +14,8 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--supply", default="5 V", help="supply voltage the circuit will run at (default 5 V)")
     parser.add_argument("--json", action="store_true", help="print JSON for scripts")
     parser.add_argument("--diff", metavar="OTHER",
-                        help="show how the bin file OTHER differs from BIN (e.g. BIN.bak after a take)")
+                        help="show what changed in BIN since the bin file OTHER (e.g. BIN.bak after "
+                             "a take): '+' was added to BIN, '-' taken out")
 
 
 def run(args: argparse.Namespace) -> int:
@@ -40,11 +41,11 @@ def run(args: argparse.Namespace) -> int:
 
 
 def run_diff(stock, other, as_json: bool) -> int:
-    """``--diff OTHER``: the part counts and passives that differ, BIN -> OTHER."""
+    """``--diff OTHER``: what changed in BIN since OTHER; '+' is added to the bin."""
     from ..bintake import diff_bins
     from ..render import print_json, show
 
-    diff = diff_bins(stock, other)
+    diff = diff_bins(other, stock)
     if as_json:
         print_json({"bin": stock.path, "other": other.path, **diff.as_dict()})
     else:
@@ -58,9 +59,9 @@ def diff_blocks(stock, other, diff) -> list:
 
     if not diff.changed:
         return [Text(f"{stock.path} and {other.path} hold the same parts and passives")]
-    blocks = [Text(f"changes from {stock.path} to {other.path}")]
+    blocks = [Text(f"changes in {stock.path} since {other.path} (+ added to the bin, - taken out)")]
     if diff.parts:
-        blocks.append(Table("parts", ("part", "before", "after", "change"),
+        blocks.append(Table("parts", ("part", "before", "now", "change"),
                             [(p, a, b, f"{b - a:+d}") for p, a, b in diff.parts]))
     passives = [(kind, ", ".join(format_si(v, unit) for v in added) or "-",
                  ", ".join(format_si(v, unit) for v in removed) or "-")
@@ -69,7 +70,7 @@ def diff_blocks(stock, other, diff) -> list:
                     ("capacitors", "F", diff.capacitors_added, diff.capacitors_removed))
                 if added or removed]
     if passives:
-        blocks.append(Table("passives", ("kind", "added", "removed"), passives))
+        blocks.append(Table("passives", ("kind", "added", "taken out"), passives))
     return blocks
 
 

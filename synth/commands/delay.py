@@ -39,7 +39,7 @@ def run(args: argparse.Namespace) -> int:
     from ..inventory import load_bin, load_catalog
     from ..render import print_json, show
 
-    wanted = _quantity(args.delay, "s", "delay")
+    wanted = _time(args.delay)
     supply = _quantity(args.supply, "V", "--supply")
     fixed_r = _quantity(args.r, "ohm", "--r") if args.r else None
     fixed_c = _quantity(args.c, "F", "--c") if args.c else None
@@ -56,6 +56,18 @@ def run(args: argparse.Namespace) -> int:
     else:
         show(delay_blocks(design, part_type, thresholds, wiring_hint(design, part), warnings))
     return 0
+
+
+def _time(text: str) -> float:
+    """The wanted delay; a bare number is refused, since 50 could mean 50 s or 50 us."""
+    import re
+
+    from ..errors import UsageError
+
+    if re.fullmatch(r"\s*[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?\s*", text):
+        raise UsageError(f"delay: expected a time with its unit, got the bare number {text.strip()!r}",
+                         hint=f"write the unit: {text.strip()}us, {text.strip()}ms or '{text.strip()} s'")
+    return _quantity(text, "s", "delay")
 
 
 def _quantity(text: str, unit: str, what: str) -> float:
