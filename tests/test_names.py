@@ -271,3 +271,32 @@ def test_delay_with_units_still_plans():
     stock = str(data_path("bins", "sample_hold.yaml"))
     assert main(["delay", "50us", "--bin", stock]) == 0
     assert main(["delay", "0.05 ms", "--bin", stock]) == 0
+
+
+# ---------------------------------------------------------------- part titles and pin names
+
+def test_part_titles_follow_one_style_of_our_own():
+    """'quad 2-input NAND': count word, what it is, gate names in capitals, no vendor phrasing."""
+    from synth.inventory import load_catalog
+
+    catalog = load_catalog()
+    for part_type, part in catalog.parts.items():
+        title = part.function
+        assert title == title.strip() and title[0].islower() or title[0].isdigit() or \
+            title.startswith("BCD"), (part_type, title)
+        for vendor_phrase in ("demultiplexer", ";", "trigger", "EXCLUSIVE", "bilateral", "converter", "up-counter"):
+            assert vendor_phrase not in title, (part_type, title)
+    assert catalog.parts["4011"].function == catalog.parts["74HC00"].function == "quad 2-input NAND"
+    assert catalog.parts["4093"].function == catalog.parts["74HC132"].function == \
+        "quad 2-input Schmitt NAND"
+    assert catalog.parts["4040"].function == catalog.parts["74HC4040"].function == \
+        "12-stage binary ripple counter"
+
+
+def test_74hc393_pins_are_named_as_the_datasheet_prints_them():
+    """NXP 74HC393 pin description: 1CP 1, 1MR 2, 1Q0-1Q3 3-6, GND 7 (datasheet, from memory)."""
+    from synth.inventory import load_catalog
+
+    part = load_catalog().parts["74HC393"]
+    names = dict(part.pins)
+    assert [names[n] for n in range(1, 8)] == ["1CP", "1MR", "1Q0", "1Q1", "1Q2", "1Q3", "GND"]
