@@ -300,3 +300,22 @@ def test_74hc393_pins_are_named_as_the_datasheet_prints_them():
     part = load_catalog().parts["74HC393"]
     names = dict(part.pins)
     assert [names[n] for n in range(1, 8)] == ["1CP", "1MR", "1Q0", "1Q1", "1Q2", "1Q3", "GND"]
+
+
+# ---------------------------------------------------------------- wiring list direction
+
+def test_every_wire_runs_from_the_driver_to_a_load():
+    from synth.exports.wiring import driver_first, wiring_markdown
+    from synth.netlist import pin_direction, wire_list
+    from synth.pipeline import make_plan
+
+    plan = make_plan(example_path("stepper.yaml"), data_path("bins", "stepper.yaml")).plan
+    wires = driver_first(wire_list(plan))
+    pin_wires = [w for w in wires if isinstance(w.to, tuple)]
+    assert pin_wires
+    for wire in pin_wires:
+        drivers = [p for p in plan.nets[wire.net] if pin_direction(plan, *p) == "out"]
+        if drivers:
+            assert wire.frm == drivers[0] and pin_direction(plan, *wire.to) != "out", wire
+    text = wiring_markdown(plan)
+    assert "- [ ] U1 pin 3 (1Q0) -> " in text     # the counter output starts its wires

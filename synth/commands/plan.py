@@ -163,6 +163,7 @@ def _asserted_expression(signal) -> str:
 
 
 def plan_blocks(design) -> list:
+    from ..exports.wiring import driver_first
     from ..netlist import pin_table, wire_list
     from ..render import Table, Text
 
@@ -183,8 +184,8 @@ def plan_blocks(design) -> list:
     if plan.decoupling:
         blocks.append(Table("decoupling (add one per chip, close to its supply pins)", ("chip", "capacitor"),
                             list(plan.decoupling)))
-    wires = wire_list(plan)
-    blocks.append(Table(f"wiring list by net ({len(wires)} wires)", ("net", "from", "to"),
+    wires = driver_first(wire_list(plan))
+    blocks.append(Table(f"wiring list, driver to load ({len(wires)} wires)", ("net", "from", "to"),
                         [(w.net, _end(plan, w.frm), _end(plan, w.to)) for w in wires]))
     if plan.glitches:
         blocks.append(Table("glitches (a signal briefly wrong on a tick entry)",
