@@ -4,18 +4,22 @@ from __future__ import annotations
 
 import argparse
 from collections import defaultdict
+from pathlib import Path
 
 NAME = "bin"
 HELP = "validate a bin file and show the gates, counters, switches and passives it provides"
 
 
 def add_arguments(parser: argparse.ArgumentParser) -> None:
-    parser.add_argument("bin", help="the bin file (YAML)")
+    parser.add_argument("bin", help="the bin file (YAML); with --from-csv, the bin file to write")
     parser.add_argument("--supply", default="5 V", help="supply voltage the circuit will run at (default 5 V)")
     parser.add_argument("--json", action="store_true", help="print JSON for scripts")
     parser.add_argument("--diff", metavar="OTHER",
                         help="show what changed in BIN since the bin file OTHER (e.g. BIN.bak after "
                              "a take): '+' was added to BIN, '-' taken out")
+    parser.add_argument("--from-csv", metavar="FILE",
+                        help="write BIN from a spreadsheet saved as CSV with the columns part and "
+                             "count (markings as printed), then check it; BIN must not exist yet")
 
 
 def run(args: argparse.Namespace) -> int:
@@ -29,6 +33,8 @@ def run(args: argparse.Namespace) -> int:
     except ValueError as exc:
         raise UsageError(f"--supply: {exc}") from None
     catalog = load_catalog()
+    if args.from_csv:
+        return run_from_csv(args, catalog, supply)
     stock = load_bin(args.bin, catalog, supply)
     if args.diff:
         return run_diff(stock, load_bin(args.diff, catalog, supply), args.json)
@@ -37,6 +43,35 @@ def run(args: argparse.Namespace) -> int:
         print_json(summary)
     else:
         show(summary_blocks(stock, summary))
+    return 0
+
+
+def run_from_csv(args: argparse.Namespace, catalog, supply: float) -> int:
+    """``--from-csv FILE``: the bin file written from the spreadsheet, then shown as checked."""
+    from ..bincsv import bin_text_from_csv
+    from ..errors import UsageError
+    from ..exports import atomic_write_text
+    from ..inventory import bin_from_yaml
+    from ..render import Text, print_json, show
+    from ..yamlsrc import parse_yaml
+
+    target = Path(args.bin)
+    if target.exists() or target.resolve() == Path(args.from_csv).resolve():
+        raise UsageError(f"{args.bin}: the file exists; --from-csv writes a new bin and never "
+                         "replaces a file", hint="name a new file, or move the old one away first")
+    made = bin_text_from_csv(args.from_csv, catalog)
+    stock = bin_from_yaml(parse_yaml(made.text, args.bin), catalog, supply, args.bin)
+    atomic_write_text(target, made.text)
+    summary = provides(stock, catalog)
+    if args.json:
+        print_json({"written": args.bin, "from_csv": args.from_csv, "rows": made.rows,
+                    "ignored_columns": list(made.ignored), **summary})
+        return 0
+    head = (f"wrote {args.bin} from {args.from_csv}: {made.rows} row{'s' if made.rows != 1 else ''}, "
+            f"{len(made.counts)} marking{'s' if len(made.counts) != 1 else ''}")
+    if made.ignored:
+        head += f" (columns read past: {', '.join(made.ignored)})"
+    show([Text(head)] + summary_blocks(stock, summary))
     return 0
 
 

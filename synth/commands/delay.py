@@ -13,6 +13,7 @@ weaker choice (the design says why).
 from __future__ import annotations
 
 import argparse
+import re
 from dataclasses import asdict
 
 NAME = "delay"
@@ -60,8 +61,6 @@ def run(args: argparse.Namespace) -> int:
 
 def _time(text: str) -> float:
     """The wanted delay; a bare number is refused, since 50 could mean 50 s or 50 us."""
-    import re
-
     from ..errors import UsageError
 
     if re.fullmatch(r"\s*[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?\s*", text):

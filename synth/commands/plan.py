@@ -8,6 +8,7 @@ args)`` (the files asked for), shared with ``binsynth demo``.
 from __future__ import annotations
 
 import argparse
+import sys
 
 NAME = "plan"
 HELP = "plan the circuit for a spec from the chips in a bin: chips, pins, wiring list and checks"
@@ -60,8 +61,6 @@ def run(args: argparse.Namespace) -> int:
 
 def show_spec_notes(spec) -> None:
     """How the spec was read (an earlier key name, ...), one line each on stderr."""
-    import sys
-
     for note in spec.notes:
         sys.stderr.write(f"binsynth: {note}\n")
 
