@@ -40,6 +40,7 @@ from pathlib import Path
 
 ROOT = Path(__file__).resolve().parent.parent
 DOCS = ROOT / "docs"
+HELP_WIDTH = 100
 
 _RUN = re.compile(r"<!-- run: (?P<spec>.*?) -->\n(?P<body>.*?)<!-- /run -->\n", re.S)
 _SHOW = re.compile(r"<!-- show: (?P<spec>.*?) -->\n(?P<body>.*?)<!-- /show -->\n", re.S)
@@ -56,8 +57,15 @@ class Run:
 
     @property
     def shown(self) -> str:
-        return "binsynth " + " ".join(shlex.quote(a).replace("'{out}", "'out").replace("{out}", "out")
-                                      for a in self.args)
+        return "binsynth " + " ".join(_quoted(a.replace("{out}", "out")) for a in self.args)
+
+
+def _quoted(word: str) -> str:
+    """A shell word as a person types it: double quotes around a word with a prime in it."""
+    plain = shlex.quote(word)
+    if plain == word or "'" not in word or any(c in word for c in '"$`\\!'):
+        return plain
+    return f'"{word}"'
 
 
 def parse_run(spec: str) -> Run:
@@ -79,20 +87,35 @@ def parse_run(spec: str) -> Run:
 
 
 def run_command(run: Run) -> str:
-    """The command's output as the page shows it (before cutting)."""
+    """The command's output as the page shows it (before cutting); one run per command."""
+    key = (run.args, run.file)
+    if key not in _OUTPUTS:
+        _OUTPUTS[key] = _run_fresh(run)
+    return _OUTPUTS[key]
+
+
+_OUTPUTS: dict[tuple, str] = {}
+
+
+def _run_fresh(run: Run) -> str:
     sys.path.insert(0, str(ROOT))
     from synth.cli import main
 
     with tempfile.TemporaryDirectory(prefix="binsynth-docs-") as out:
         argv = [a.replace("{out}", out) for a in run.args]
         stdout, stderr = io.StringIO(), io.StringIO()
-        here = os.getcwd()
+        here, columns = os.getcwd(), os.environ.get("COLUMNS")
         os.chdir(ROOT)
+        os.environ["COLUMNS"] = str(HELP_WIDTH)      # argparse wraps --help to this width
         try:
             with contextlib.redirect_stdout(stdout), contextlib.redirect_stderr(stderr):
                 code = main(argv)
         finally:
             os.chdir(here)
+            if columns is None:
+                os.environ.pop("COLUMNS", None)
+            else:
+                os.environ["COLUMNS"] = columns
         if run.file:
             text = Path(out, run.file).read_text(encoding="utf-8")
         else:

@@ -29,7 +29,12 @@ def driver_first(wires: list[Wire]) -> list[Wire]:
     reads driver -> load.  Rail ties and wires leaving the board keep their ends.
     """
     turned = [Wire(w.net, w.to, w.frm) if isinstance(w.to, tuple) else w for w in wires]
-    return sorted(turned, key=lambda w: (ref_key(w.frm[0]), w.frm[1], str(w.to)))
+    return sorted(turned, key=lambda w: (ref_key(w.frm[0]), w.frm[1], _end_key(w.to)))
+
+
+def _end_key(end: tuple[str, int] | str) -> tuple:
+    """Loads in chip and pin order (U4 pin 2 before U4 pin 12), outside ends last."""
+    return (0, ref_key(end[0]), end[1], "") if isinstance(end, tuple) else (1, (), 0, end)
 
 
 def _end_text(plan: Plan, end: tuple[str, int] | str) -> str:
