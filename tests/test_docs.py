@@ -19,6 +19,7 @@ from pathlib import Path
 import pytest
 
 from synth import spec as spec_module
+from synth.cli import build_parser
 from synth.commands import COMMANDS
 from synth.inventory import BIN_KEYS
 
@@ -78,6 +79,13 @@ def test_every_command_and_option_is_on_the_commands_page(name):
     assert f"\n## {name}\n" in text, name
     missing = sorted(o for o in _options(name) if o not in section("commands.md", name))
     assert not missing, f"commands.md section {name!r} lacks {missing}"
+
+
+def test_the_options_of_every_command_are_on_the_commands_page():
+    text = section("commands.md", "Options for every command")
+    help_text = build_parser().format_help()
+    options = set(re.findall(r"(?<![\w-])(--[a-z][a-z-]*)", help_text)) - {"--help"}
+    assert options and all(option in text for option in options), options
 
 
 def test_the_guide_is_linked_from_the_readme():
