@@ -319,3 +319,45 @@ def test_every_wire_runs_from_the_driver_to_a_load():
             assert wire.frm == drivers[0] and pin_direction(plan, *wire.to) != "out", wire
     text = wiring_markdown(plan)
     assert "- [ ] U1 pin 3 (1Q0) -> " in text     # the counter output starts its wires
+
+
+# ---------------------------------------------------------------- progress line
+
+class _Terminal(io.StringIO):
+    def isatty(self) -> bool:
+        return True
+
+
+def test_progress_shows_nothing_when_piped_and_nothing_for_quick_work():
+    from synth.render import progress
+
+    piped = io.StringIO()
+    with progress("planning", stream=piped, after=0.0):
+        pass
+    assert piped.getvalue() == ""
+    quick = _Terminal()
+    with progress("planning", stream=quick, after=60.0):
+        pass
+    assert quick.getvalue() == ""
+
+
+def test_progress_shows_a_line_on_a_terminal_for_long_work():
+    import threading
+
+    from synth.render import progress
+
+    terminal = _Terminal()
+    shown = threading.Event()
+    with progress("planning sh-bench", stream=terminal, after=0.0):
+        for _ in range(200):
+            if "planning sh-bench" in terminal.getvalue():
+                shown.set()
+                break
+            threading.Event().wait(0.01)
+    assert shown.is_set()
+
+
+def test_commands_print_no_progress_text_when_stderr_is_piped(capsys):
+    stock = str(data_path("bins", "sample_hold.yaml"))
+    assert main(["decode", str(example_path("sample_hold.yaml")), "--bin", stock]) == 0
+    assert capsys.readouterr().err == ""

@@ -9,6 +9,7 @@ and ``runs_text``.
 from __future__ import annotations
 
 import argparse
+from pathlib import Path
 
 NAME = "decode"
 HELP = ("show the counter chips and stages chosen for a spec, and each signal's minimized decode "
@@ -30,7 +31,7 @@ def run(args: argparse.Namespace) -> int:
     from ..counter import allocate
     from ..decode import derive
     from ..inventory import load_bin, load_catalog
-    from ..render import print_json, show
+    from ..render import print_json, progress, show
     from ..spec import load_spec
     from .plan import show_spec_notes
 
@@ -39,7 +40,8 @@ def run(args: argparse.Namespace) -> int:
     show_spec_notes(spec)
     stock = load_bin(args.bin, catalog, spec.supply)
     plan = allocate(spec, stock, catalog)
-    decode = derive(spec, plan, exact=args.exact)
+    with progress(f"minimizing the decode of {Path(args.spec).name}"):
+        decode = derive(spec, plan, exact=args.exact)
     if args.json:
         print_json(decode_json(spec, stock, decode))
     else:

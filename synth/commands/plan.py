@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import argparse
 import sys
+from pathlib import Path
 
 NAME = "plan"
 HELP = "plan the circuit for a spec from the chips in a bin: chips, pins, wiring list and checks"
@@ -48,9 +49,10 @@ def add_output_arguments(parser: argparse.ArgumentParser) -> None:
 
 def run(args: argparse.Namespace) -> int:
     from ..pipeline import make_plan
-    from ..render import show
+    from ..render import progress, show
 
-    design = make_plan(args.spec, args.bin, exact=args.exact, fix=args.fix, lacks=args.lacks)
+    with progress(f"planning {Path(args.spec).name}"):
+        design = make_plan(args.spec, args.bin, exact=args.exact, fix=args.fix, lacks=args.lacks)
     show_spec_notes(design.spec)
     to_stdout = args.json == "-"
     if not to_stdout:

@@ -32,7 +32,7 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 def run(args: argparse.Namespace) -> int:
     from ..errors import UsageError
     from ..inventory import load_bin, load_catalog
-    from ..render import print_json, show
+    from ..render import print_json, progress, show
     from ..substitute import parse_target, substitute
     from ..techmap import build_library
     from ..units import parse_quantity
@@ -49,7 +49,8 @@ def run(args: argparse.Namespace) -> int:
     catalog = load_catalog()
     stock = load_bin(args.bin, catalog, supply)
     library = build_library(stock, catalog)
-    ways = substitute(target, library, stock, either_polarity=args.either_polarity, limit=args.limit)
+    with progress(f"searching ways to build {target.text}"):
+        ways = substitute(target, library, stock, either_polarity=args.either_polarity, limit=args.limit)
     if args.json:
         print_json(substitute_json(target, ways))
     else:
