@@ -276,6 +276,8 @@ def _plan_one(plan, spec, bin, catalog, level) -> LadderPlan:
             warnings.append(f"staircase {level.name}: each {made}; the tolerance analysis treats "
                             "each such pair as one resistor of the marked tolerance (the worst case "
                             "is the same, the Monte Carlo a little pessimistic)")
+    _refuse_driver_dominated(level, ladder, r, r_typ, n, supply, bin.path,
+                             ", ".join(part.type for part in parts))
     worst = worst_case_linearity(ladder, level.tolerance)
     monte = monte_carlo(ladder, level.tolerance, MONTE_CARLO_TRIALS, MONTE_CARLO_SEED)
     if not routed:
@@ -292,8 +294,8 @@ def _plan_one(plan, spec, bin, catalog, level) -> LadderPlan:
         warnings.append(f"staircase {level.name}: no tolerance given, 5 % resistors assumed")
     if not worst.monotonic:
         warnings.append(f"staircase {level.name}: with {level.tolerance:.0%} resistors the staircase "
-                        "may step backwards at a code change (worst-case DNL below -1 LSB); use "
-                        "1 % resistors or fewer bits")
+                        "may step backwards at a code change (worst-case DNL below -1 LSB); "
+                        + _tolerance_remedy(level, ladder, r, r_typ, n, supply))
     return LadderPlan(
         name=level.name, kind=ladder.kind, bits=tuple(level.bits), drivers=drivers, r=r, r2=r2,
         construction=construction, why=why, tolerance=level.tolerance,
@@ -302,6 +304,70 @@ def _plan_one(plan, spec, bin, catalog, level) -> LadderPlan:
         levels=tuple(ladder.levels), ideal_output_resistance=ideal.ideal_output_resistance,
         output_resistance=ladder.output_resistance, worst=worst, monte=monte,
         nominal=ladder.nominal, passives=refs, routed_by=routed, warnings=warnings)
+
+
+DRIVER_ERROR_LIMIT_LSB = 0.5
+"""The most the drivers' own resistance may move a level (in LSB) before larger values are asked for."""
+
+_DECADE = (1.0, 1.2, 1.5, 1.8, 2.2, 2.7, 3.3, 3.9, 4.7, 5.6, 6.8, 8.2)   # E12 (IEC 60063)
+
+
+def _ladder_with(level, r: float, r_typ: float, bits: int, supply: float):
+    if level.kind == "binary":
+        return binary_weighted_ladder(bits, r, supply, r_out_driver=r_typ, r_load=level.load_ohms)
+    return r2r_ladder(bits, r, 2 * r, supply, r_out_driver=r_typ, r_load=level.load_ohms)
+
+
+def _driver_error_lsb(ladder) -> float:
+    lsb = ladder.ideal_levels[1] - ladder.ideal_levels[0]
+    return max(abs(a - b) for a, b in zip(ladder.levels, ladder.ideal_levels)) / lsb
+
+
+def smallest_r_for_drivers(level, r_typ: float, bits: int, supply: float) -> float | None:
+    """The smallest E12 value of R (1 kΩ .. 1 MΩ) whose ladder the drivers move by at most
+    ``DRIVER_ERROR_LIMIT_LSB`` and which stays monotonic with exact resistors; None if none."""
+    for decade in (1e3, 1e4, 1e5):
+        for step in _DECADE:
+            r = decade * step
+            ladder = _ladder_with(level, r, r_typ, bits, supply)
+            if ladder.nominal.monotonic and _driver_error_lsb(ladder) <= DRIVER_ERROR_LIMIT_LSB:
+                return r
+    return None
+
+
+def _larger_values_text(level, r_typ: float, bits: int, supply: float) -> str:
+    least = smallest_r_for_drivers(level, r_typ, bits, supply)
+    if least is None:
+        return "buffer each bit (a 4050 or 74HC244 between the counter and the ladder)"
+    pair = f"R of {format_si(least, 'Ω')} or more" + ("" if level.kind == "binary" else
+                                                    " with 2R twice that")
+    return f"use larger resistors, {pair}, or buffer each bit"
+
+
+def _refuse_driver_dominated(level, ladder, r: float, r_typ: float, bits: int, supply: float,
+                             bin_path: str, driver_parts: str) -> None:
+    """Exit 3 when the counter outputs' resistance, not the resistors, breaks the staircase.
+
+    With exact resistor values the ladder must still step up at every code;
+    if it does not, better tolerances cannot help: the remedy is larger values
+    (or a buffer per bit), and the bin is short of them.
+    """
+    if ladder.nominal.monotonic:
+        return
+    raise ShortError(
+        f"{level.section}.{level.name}: the counter outputs' own resistance "
+        f"({driver_parts}, {format_si(r_typ, 'Ω')} each) is too large against R = {format_si(r, 'Ω')}: "
+        f"even with exact resistors the staircase steps backwards (DNL {ladder.nominal.worst_dnl:+.2f} "
+        f"LSB, the drivers move a level by {_driver_error_lsb(ladder):.2f} LSB)",
+        file=bin_path, hint=_larger_values_text(level, r_typ, bits, supply))
+
+
+def _tolerance_remedy(level, ladder, r: float, r_typ: float, bits: int, supply: float) -> str:
+    """What helps a ladder that may step backwards with the resistors' tolerance."""
+    if _driver_error_lsb(ladder) > DRIVER_ERROR_LIMIT_LSB:
+        return ("the drivers' own resistance takes most of the margin: "
+                + _larger_values_text(level, r_typ, bits, supply))
+    return "use 1 % resistors or fewer bits"
 
 
 def add_ladders(plan, spec, bin, catalog) -> dict[str, LadderPlan]:
