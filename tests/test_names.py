@@ -361,3 +361,18 @@ def test_commands_print_no_progress_text_when_stderr_is_piped(capsys):
     stock = str(data_path("bins", "sample_hold.yaml"))
     assert main(["decode", str(example_path("sample_hold.yaml")), "--bin", stock]) == 0
     assert capsys.readouterr().err == ""
+
+
+# ---------------------------------------------------------------- dependencies
+
+def test_sympy_is_a_test_dependency_only():
+    """sympy is the tests' reference (sympy.logic); the package never imports it."""
+    import tomllib
+    from pathlib import Path
+
+    root = Path(__file__).resolve().parent.parent
+    project = tomllib.loads((root / "pyproject.toml").read_text())["project"]
+    assert not any(d.startswith("sympy") for d in project["dependencies"])
+    assert any(d.startswith("sympy") for d in project["optional-dependencies"]["test"])
+    for source in (root / "synth").rglob("*.py"):
+        assert "sympy" not in source.read_text(encoding="utf-8"), source
