@@ -13,13 +13,24 @@ import contextlib
 import io
 import json
 import textwrap
+import threading
+import tomllib
+from pathlib import Path
 
 import pytest
 
 from synth.cli import main
+from synth.commands.decode import decode_blocks
+from synth.counter import allocate
+from synth.decode import derive
 from synth.errors import SpecError
-from synth.inventory import data_path, example_path
-from synth.spec import OLD_KEYS, load_spec
+from synth.exports.wiring import driver_first, wiring_markdown
+from synth.inventory import data_path, example_path, load_bin, load_catalog
+from synth.netlist import pin_direction, wire_list
+from synth.pipeline import make_plan
+from synth.render import progress, to_plain
+from synth.spec import OLD_KEYS, SIGNAL_KEYS, TOP_KEYS, load_spec
+from synth.substitute import parse_target
 
 EXAMPLES = ("sample_hold", "stepper", "led_scanner", "ultrasonic_burst", "adc_staircase")
 
@@ -124,8 +135,6 @@ def test_staircase_messages_name_the_key_as_written(key):
 
 
 def test_every_earlier_name_maps_to_a_current_key():
-    from synth.spec import SIGNAL_KEYS, TOP_KEYS
-
     assert OLD_KEYS == {"high": "asserted", "levels": "staircases"}
     assert OLD_KEYS["high"] in SIGNAL_KEYS and OLD_KEYS["levels"] in TOP_KEYS
     assert not set(OLD_KEYS) & (set(SIGNAL_KEYS) | set(TOP_KEYS))
@@ -207,13 +216,6 @@ def test_cover_method_is_in_plain_words(shipped_outputs):
 @pytest.mark.parametrize("example", ["sample_hold", "stepper"])
 def test_substitute_reads_back_every_decode_decode_prints(example):
     """Each printed decode, parsed by substitute, is the cover's own function at every count."""
-    from synth.commands.decode import decode_blocks
-    from synth.counter import allocate
-    from synth.decode import derive
-    from synth.inventory import load_bin, load_catalog
-    from synth.render import to_plain
-    from synth.substitute import parse_target
-
     catalog = load_catalog()
     spec = load_spec(example_path(f"{example}.yaml"))
     stock = load_bin(data_path("bins", f"{example}.yaml"), catalog, spec.supply)
@@ -237,8 +239,6 @@ def test_substitute_reads_back_every_decode_decode_prints(example):
     ("a * b", "a & b"),
 ])
 def test_printed_and_typed_notations_mean_the_same(text, same):
-    from synth.substitute import parse_target
-
     assert parse_target(text).on == parse_target(same).on
 
 
@@ -277,8 +277,6 @@ def test_delay_with_units_still_plans():
 
 def test_part_titles_follow_one_style_of_our_own():
     """'quad 2-input NAND': count word, what it is, gate names in capitals, no vendor phrasing."""
-    from synth.inventory import load_catalog
-
     catalog = load_catalog()
     for part_type, part in catalog.parts.items():
         title = part.function
@@ -295,8 +293,6 @@ def test_part_titles_follow_one_style_of_our_own():
 
 def test_74hc393_pins_are_named_as_the_datasheet_prints_them():
     """NXP 74HC393 pin description: 1CP 1, 1MR 2, 1Q0-1Q3 3-6, GND 7 (datasheet, from memory)."""
-    from synth.inventory import load_catalog
-
     part = load_catalog().parts["74HC393"]
     names = dict(part.pins)
     assert [names[n] for n in range(1, 8)] == ["1CP", "1MR", "1Q0", "1Q1", "1Q2", "1Q3", "GND"]
@@ -305,10 +301,6 @@ def test_74hc393_pins_are_named_as_the_datasheet_prints_them():
 # ---------------------------------------------------------------- wiring list direction
 
 def test_every_wire_runs_from_the_driver_to_a_load():
-    from synth.exports.wiring import driver_first, wiring_markdown
-    from synth.netlist import pin_direction, wire_list
-    from synth.pipeline import make_plan
-
     plan = make_plan(example_path("stepper.yaml"), data_path("bins", "stepper.yaml")).plan
     wires = driver_first(wire_list(plan))
     pin_wires = [w for w in wires if isinstance(w.to, tuple)]
@@ -329,8 +321,6 @@ class _Terminal(io.StringIO):
 
 
 def test_progress_shows_nothing_when_piped_and_nothing_for_quick_work():
-    from synth.render import progress
-
     piped = io.StringIO()
     with progress("planning", stream=piped, after=0.0):
         pass
@@ -342,9 +332,7 @@ def test_progress_shows_nothing_when_piped_and_nothing_for_quick_work():
 
 
 def test_progress_shows_a_line_on_a_terminal_for_long_work():
-    import threading
 
-    from synth.render import progress
 
     terminal = _Terminal()
     shown = threading.Event()
@@ -367,9 +355,6 @@ def test_commands_print_no_progress_text_when_stderr_is_piped(capsys):
 
 def test_sympy_is_a_test_dependency_only():
     """sympy is the tests' reference (sympy.logic); the package never imports it."""
-    import tomllib
-    from pathlib import Path
-
     root = Path(__file__).resolve().parent.parent
     project = tomllib.loads((root / "pyproject.toml").read_text())["project"]
     assert not any(d.startswith("sympy") for d in project["dependencies"])
