@@ -332,8 +332,6 @@ def test_progress_shows_nothing_when_piped_and_nothing_for_quick_work():
 
 
 def test_progress_shows_a_line_on_a_terminal_for_long_work():
-
-
     terminal = _Terminal()
     shown = threading.Event()
     with progress("planning sh-bench", stream=terminal, after=0.0):
