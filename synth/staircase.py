@@ -187,7 +187,7 @@ def _element(plan, name: str, ohms: float, a: str, b: str, how: str, piece: floa
 
 def _wire_r2r(plan, name: str, nets: list[str], r: float, r2: float, construction: str) -> list[str]:
     n, refs = len(nets), []
-    node = [f"{name}_n{k}" if k < n - 1 else name for k in range(n)]
+    node = [f"{name}_tap{k}" if k < n - 1 else name for k in range(n)]
     two_r = ("series", r) if construction == "series" else ("one", r2)
     one_r = ("parallel", r2) if construction == "parallel" else ("one", r)
     _element(plan, name, r2, node[0], "VSS", two_r[0], two_r[1], refs, "2R termination", "t")

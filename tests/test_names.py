@@ -359,3 +359,10 @@ def test_sympy_is_a_test_dependency_only():
     assert any(d.startswith("sympy") for d in project["optional-dependencies"]["test"])
     for source in (root / "synth").rglob("*.py"):
         assert "sympy" not in source.read_text(encoding="utf-8"), source
+
+
+def test_ladder_nodes_carry_no_inverted_style_suffix():
+    """'_n' marks an inverted net (index_n); a ladder's inner nodes are taps, not inversions."""
+    plan = make_plan(example_path("adc_staircase.yaml"), data_path("bins", "adc_staircase.yaml")).plan
+    ladder_nets = {net for net in plan.nets if net.startswith("ramp")}
+    assert ladder_nets == {"ramp", "ramp_tap0", "ramp_tap1", "ramp_tap2"}
