@@ -23,7 +23,7 @@ choice open, this module decides as follows.
   ``cycle``.  Windows may be listed in any order; touching windows
   (``[0, 4], [4, 8]``) are fine and merge; overlapping ones are an error
   naming both, on the line of the one listed later.
-- An expression for ``high`` or ``dont_care`` is over t = 0 .. P-1: over the
+- An expression for ``asserted`` or ``dont_care`` is over t = 0 .. P-1: over the
   absolute tick when there is no ``every``, over the tick within one period
   when there is (the result repeats like windows do).
 - Time values (``"40 us"``) are accepted for ``cycle``, window bounds,
@@ -31,7 +31,7 @@ choice open, this module decides as follows.
   A time that is not a whole number of ticks (to one part in 10^9) is an
   error naming the two nearest tick counts.  A plain integer, or a string of
   digits, is ticks.
-- ``dont_care`` repeats with the same ``every`` as ``high`` and wins where
+- ``dont_care`` repeats with the same ``every`` as ``asserted`` and wins where
   both name a tick: ``SignalSpec.high`` and ``.dont_care`` are disjoint.
 - ``SignalSpec.windows`` are the asserted runs of ``high`` over one whole
   cycle, half-open, sorted; a run that wraps the cycle end is split into
@@ -70,7 +70,11 @@ choice open, this module decides as follows.
   ``clock.frequency``; ``clock.tolerance`` is how far the frequency may move
   over the datasheet threshold spread (the plan assumes 10 % and says so
   when it is not given).
-- ``levels``: analog staircases made from counter bits through a resistor
+- ``asserted`` (earlier name ``high``) and ``staircases`` (earlier name
+  ``levels``): the earlier names still read, each with a one-line note in
+  ``Spec.notes``; a mapping with both names is an error; messages name the
+  key as the file spells it.
+- ``staircases``: analog staircases made from counter bits through a resistor
   ladder.  Each entry is named by the net its output gets (an identifier,
   not a signal, switch or power net name; a switch's ``on``/``off`` may
   name it) and has ``bits`` (required: tick bits, least significant first,
@@ -81,6 +85,10 @@ choice open, this module decides as follows.
   resistance from the output to VSS, e.g. ``100k``).  Whether the counter
   brings those bits out is checked when the plan is made (also exit 2,
   naming the ``bits`` line).
+- ``power_on_reset``: ``true`` or a time (``5 ms``) asks for an RC into a
+  Schmitt input that holds the counter reset that long after power-up, so
+  the sequence starts at tick 0 (R and C from the bin; the counter's reset
+  pin must be free, not used by the decode).
 - ``cycle`` is at most ``MAX_CYCLE`` ticks: tick sets are built in memory.
 """
 
@@ -117,7 +125,11 @@ STRETCH_OPTION_LIMIT = 4096
 SEARCH_BUDGET = 200_000
 """Search steps ``clear_of_feasible`` may take before it answers 'unknown'."""
 
-TOP_KEYS = ("name", "supply", "clock", "cycle", "signals", "switches", "staircases")
+TOP_KEYS = ("name", "supply", "clock", "cycle", "signals", "switches", "staircases",
+            "power_on_reset")
+DEFAULT_POWER_ON_RESET_S = 10e-3
+"""``power_on_reset: true`` holds the counter reset this long after power-up (10 ms: longer
+than a bench supply's rise and an RC oscillator's start, common practice)."""
 CLOCK_KEYS = ("frequency", "source", "tolerance")
 LEVEL_KEYS = ("bits", "kind", "tolerance", "load")
 LEVEL_KINDS = ("r2r", "binary")
@@ -206,6 +218,7 @@ class Spec:
     switches: dict[str, SwitchSpec]
     levels: dict[str, LevelSpec]
     line_of_signal: dict[str, int]
+    power_on_reset: float | None = None    # seconds the counter is held reset after power-up
     notes: tuple[str, ...] = ()
     """One-line notes about how the file was read (an earlier key name, ...)."""
 
@@ -767,9 +780,27 @@ class _Reader:
         spec = Spec(name=name, path=self.path, supply=supply, clock=clock, cycle=cycle,
                     signals=signals, switches=switches, levels=levels,
                     line_of_signal={n: s.line for n, s in signals.items()},
-                    notes=tuple(self.notes))
+                    power_on_reset=self.power_on_reset(data), notes=tuple(self.notes))
         self.check_clear_of(spec, data)
         return spec
+
+    def power_on_reset(self, data: MarkedDict) -> float | None:
+        """``true`` (the default length), ``false`` / absent (none), or a time such as '5 ms'."""
+        if "power_on_reset" not in data or data["power_on_reset"] in (None, False):
+            return None
+        value, line = data["power_on_reset"], data.line_of("power_on_reset")
+        if value is True:
+            return DEFAULT_POWER_ON_RESET_S
+        expected = "power_on_reset: expected true or a time such as '10 ms'"
+        if not isinstance(value, str):
+            self.fail(f"{expected}, got {_kind(value)}", line)
+        try:
+            seconds = parse_quantity(value, "s")
+        except ValueError:
+            self.fail(f"{expected}, got {value!r}", line)
+        if not 1e-6 <= seconds <= 10.0:
+            self.fail(f"power_on_reset: expected between 1 us and 10 s, got {value!r}", line)
+        return seconds
 
     def name(self, data: MarkedDict) -> str:
         if "name" not in data:
