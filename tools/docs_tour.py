@@ -19,8 +19,8 @@ starts with A or B (in order, a ``...`` line between kept and dropped parts);
 ``head: N`` keeps the first N lines; ``file: NAME`` shows the file the command
 wrote as ``out/NAME`` instead of its standard output.  ``{out}`` in the
 arguments is a fresh folder, printed as ``out``.  Commands run in-process
-(``synth.cli.main``) from the repository root, standard error after standard
-output, and a non-zero exit code is shown as ``exit N``.
+(``synth.cli.main``) from the repository root, standard error before standard
+output (a note is printed before the tables), and a non-zero exit code is shown as ``exit N``.
 
 ``--check`` changes nothing and exits 1 when a page would change (the tests
 run the same comparison).
@@ -119,7 +119,7 @@ def _run_fresh(run: Run) -> str:
         if run.file:
             text = Path(out, run.file).read_text(encoding="utf-8")
         else:
-            text = stdout.getvalue() + stderr.getvalue()
+            text = stderr.getvalue() + stdout.getvalue()   # notes come before the tables
         if code:
             text += f"exit {code}\n"
         return text.replace(out, "out")
