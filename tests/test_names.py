@@ -366,3 +366,13 @@ def test_ladder_nodes_carry_no_inverted_style_suffix():
     plan = make_plan(example_path("adc_staircase.yaml"), data_path("bins", "adc_staircase.yaml")).plan
     ladder_nets = {net for net in plan.nets if net.startswith("ramp")}
     assert ladder_nets == {"ramp", "ramp_tap0", "ramp_tap1", "ramp_tap2"}
+
+
+def test_vt_plus_is_named_only_for_a_schmitt_input(capsys):
+    """VT+ and VT- are the Schmitt thresholds (74HC14 / 40106 datasheets); a plain input switches
+    near VDD/2 (common practice)."""
+    assert main(["delay", "50us", "--bin", str(data_path("bins", "sample_hold.yaml"))]) == 0
+    plain = capsys.readouterr().out
+    assert "rising  (0 → VDD/2):" in plain and "VT+" not in plain.split("warnings:")[0]
+    assert main(["delay", "50us", "--bin", str(data_path("bins", "adc_staircase.yaml"))]) == 0
+    assert "rising  (0 → VT+):" in capsys.readouterr().out
