@@ -5,6 +5,12 @@ from __future__ import annotations
 import argparse
 from collections import defaultdict
 
+from ..bintake import diff_bins
+from ..errors import UsageError
+from ..inventory import load_bin, load_catalog
+from ..render import print_json, show, Table, Text
+from ..units import format_si, parse_quantity
+
 NAME = "bin"
 HELP = "validate a bin file and show the gates, counters, switches and passives it provides"
 
@@ -18,10 +24,6 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
-    from ..errors import UsageError
-    from ..inventory import load_bin, load_catalog
-    from ..render import print_json, show
-    from ..units import parse_quantity
 
     try:
         supply = parse_quantity(args.supply, "V")
@@ -41,8 +43,6 @@ def run(args: argparse.Namespace) -> int:
 
 def run_diff(stock, other, as_json: bool) -> int:
     """``--diff OTHER``: the part counts and passives that differ, BIN -> OTHER."""
-    from ..bintake import diff_bins
-    from ..render import print_json, show
 
     diff = diff_bins(stock, other)
     if as_json:
@@ -53,8 +53,6 @@ def run_diff(stock, other, as_json: bool) -> int:
 
 
 def diff_blocks(stock, other, diff) -> list:
-    from ..render import Table, Text
-    from ..units import format_si
 
     if not diff.changed:
         return [Text(f"{stock.path} and {other.path} hold the same parts and passives")]
@@ -148,8 +146,6 @@ def _stage_text(stages: list[int]) -> str:
 
 
 def summary_blocks(stock, summary: dict) -> list:
-    from ..render import Table, Text
-    from ..units import format_si
 
     blocks = [Text(f"bin {stock.path}: {sum(stock.parts.values())} usable chips at {stock.supply:g} V")]
     blocks.append(Table("gates, inverters and buffers", ("kind", "units", "from"),

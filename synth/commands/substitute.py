@@ -10,6 +10,13 @@ from __future__ import annotations
 
 import argparse
 
+from ..errors import UsageError
+from ..inventory import load_bin, load_catalog
+from ..render import print_json, show, Table, Text
+from ..substitute import draw_way, parse_target, substitute, way_json, wiring_rows
+from ..techmap import build_library
+from ..units import parse_quantity
+
 NAME = "substitute"
 HELP = ("the cheapest ways to build a gate the bin lacks (nand4, and8, xor2, nor3, inv) or a "
         "boolean expression ('a & ~b | c') from the bin's gates, with pin-level wiring")
@@ -27,12 +34,6 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
-    from ..errors import UsageError
-    from ..inventory import load_bin, load_catalog
-    from ..render import print_json, show
-    from ..substitute import parse_target, substitute
-    from ..techmap import build_library
-    from ..units import parse_quantity
 
     target = parse_target(args.target)
     try:
@@ -55,8 +56,6 @@ def run(args: argparse.Namespace) -> int:
 
 
 def substitute_blocks(target, ways, bin_path: str) -> list:
-    from ..render import Table, Text
-    from ..substitute import draw_way, wiring_rows
 
     inputs = ", ".join(f"{name} = bit {i}" for i, name in enumerate(target.inputs))
     blocks: list = [Text(f"{target.text} from {bin_path}: {len(ways)} way(s), cheapest first "
@@ -76,7 +75,6 @@ def substitute_blocks(target, ways, bin_path: str) -> list:
 
 
 def substitute_json(target, ways) -> dict:
-    from ..substitute import way_json
 
     return {"format": "binsynth-substitute/1", "target": target.text, "inputs": list(target.inputs),
             "ways": [way_json(way, target, rank) for rank, way in enumerate(ways, start=1)]}
