@@ -46,21 +46,20 @@ def unit_logic_pins(unit: Unit) -> tuple[list[int], list[int], dict[int, str]]:
     """A logic unit's input pins and output pins in the order ``Gate`` lists
     its nets, and the pins that must be held (a mux enable at its active level).
     """
-    f = unit.fields
     held: dict[int, str] = {}
     if unit.type in ("inverter", "buffer"):
-        return [f["input"]], [f["output"]], held
+        return list(unit.inputs), [unit.output], held
     if unit.type == "gate":
-        outs = [f["output"]] + ([f["also"]["output"]] if f.get("also") else [])
-        return list(f["inputs"]), outs, held
+        outs = [unit.output] + ([unit.also.output] if unit.also else [])
+        return list(unit.inputs), outs, held
     if unit.type == "mux":
-        if f.get("enable"):
-            held[f["enable"]["pin"]] = _level(f["enable"].get("active", "high"))
-        outs = [f["output"]] + ([f["output_inv"]] if f.get("output_inv") else [])
-        return list(f["data"]) + list(f["selects"]), outs, held
+        if unit.enable:
+            held[unit.enable.pin] = _level(unit.enable.active)
+        outs = [unit.output] + ([unit.output_inv] if unit.output_inv else [])
+        return list(unit.data) + list(unit.selects), outs, held
     if unit.type == "decoder":
-        enables = [e["pin"] for e in f.get("enables") or ()]
-        return list(f["selects"]) + enables, list(f["outputs"]), held
+        enables = [e.pin for e in unit.enables]
+        return list(unit.selects) + enables, list(unit.outputs), held
     return [], [], held
 
 
@@ -335,17 +334,16 @@ def _route_spdt(board: _Board, name: str, sw: Any, select: Any) -> _Route | None
     high, low = _throw_nets(sw, select.polarity == "high")
 
     def assignment(unit: Unit) -> dict[int, str]:
-        throws = unit.fields["throws"]
-        return {unit.fields["control"]: select.net, unit.fields["common"]: name,
-                throws["high"]: board.net_for(high), throws["low"]: board.net_for(low)}
+        return {unit.control: select.net, unit.common: name,
+                unit.throws.high: board.net_for(high), unit.throws.low: board.net_for(low)}
 
     placed = _place_section(board, ("spdt",), name, assignment)
     if placed is None:
         return None
     unit = _unit(*placed)
-    _note(placed[0], {unit.fields["throws"]["high"]: f"switch {name}: joins the common while the control is high ({high})",
-                      unit.fields["throws"]["low"]: f"switch {name}: joins the common while the control is low ({low})",
-                      unit.fields["common"]: f"switch {name} common"})
+    _note(placed[0], {unit.throws.high: f"switch {name}: joins the common while the control is high ({high})",
+                      unit.throws.low: f"switch {name}: joins the common while the control is low ({low})",
+                      unit.common: f"switch {name} common"})
     paths = [{"control_net": select.net, "closed_when": True, "joins": high},
              {"control_net": select.net, "closed_when": False, "joins": low}]
     return _Route(name, sw, "spdt", [placed], select.net, name, high, paths)
@@ -360,23 +358,23 @@ def _route_spst_pair(board: _Board, network: Network, name: str, sw: Any,
     sections, paths = [], []
     for joins, closed_while_asserted in ((sw.on, True), (sw.off, False)):
         def assignment(unit: Unit, joins: str = joins, closed: bool = closed_while_asserted) -> dict[int, str]:
-            closes_high = unit.fields.get("on_when", "high") == "high"
+            closes_high = unit.on_when == "high"
             # The section must close exactly while (select asserted) == closed.
             follow_select = closes_high == (active_high == closed)
             control = select.net if follow_select else complement
-            first, second = unit.fields["terminals"]
-            return {unit.fields["control"]: control, first: name, second: board.net_for(joins)}
+            first, second = unit.terminals
+            return {unit.control: control, first: name, second: board.net_for(joins)}
 
         placed = _place_section(board, ("spst",), name, assignment)
         if placed is None:
             raise InternalError(f"switch {name}: counted two free SPST sections but found one")
         chip, unit_id = placed
         unit = _unit(*placed)
-        control = chip.pins[unit.fields["control"]]
-        _note(chip, {unit.fields["terminals"][1]: f"switch {name}: joins the common while "
-                                                  f"{'asserted' if closed_while_asserted else 'not asserted'} ({joins})",
-                     unit.fields["terminals"][0]: f"switch {name} common"})
-        paths.append({"control_net": control, "closed_when": unit.fields.get("on_when", "high") == "high",
+        control = chip.pins[unit.control]
+        _note(chip, {unit.terminals[1]: f"switch {name}: joins the common while "
+                                        f"{'asserted' if closed_while_asserted else 'not asserted'} ({joins})",
+                     unit.terminals[0]: f"switch {name} common"})
+        paths.append({"control_net": control, "closed_when": unit.on_when == "high",
                       "joins": joins})
         sections.append(placed)
     high, _ = _throw_nets(sw, active_high)
@@ -391,8 +389,8 @@ def _route_mux(board: _Board, name: str, sw: Any, select: Any) -> _Route | None:
     high, low = _throw_nets(sw, select.polarity == "high")
 
     def assignment(unit: Unit) -> dict[int, str]:
-        selects, channels = unit.fields["selects"], unit.fields["channels"]
-        pins = {selects[0]: select.net, unit.fields["common"]: name,
+        selects, channels = unit.selects, unit.channels
+        pins = {selects[0]: select.net, unit.common: name,
                 channels[0]: board.net_for(low), channels[1]: board.net_for(high)}
         pins.update({pin: "VSS" for pin in selects[1:]})
         pins.update({pin: "VSS" for pin in channels[2:]})
@@ -402,11 +400,11 @@ def _route_mux(board: _Board, name: str, sw: Any, select: Any) -> _Route | None:
     if placed is None:
         return None
     unit = _unit(*placed)
-    channels = unit.fields["channels"]
+    channels = unit.channels
     _note(placed[0], {channels[1]: f"switch {name}: joins the common while the select is high ({high})",
                       channels[0]: f"switch {name}: joins the common while the select is low ({low})",
-                      unit.fields["common"]: f"switch {name} common"})
-    _note(placed[0], {pin: "select held at VSS: only channels 0 and 1 are used" for pin in unit.fields["selects"][1:]})
+                      unit.common: f"switch {name} common"})
+    _note(placed[0], {pin: "select held at VSS: only channels 0 and 1 are used" for pin in unit.selects[1:]})
     paths = [{"control_net": select.net, "closed_when": True, "joins": high},
              {"control_net": select.net, "closed_when": False, "joins": low}]
     board.warnings.append(f"switch {name} uses channels 0 and 1 of an analog mux "
@@ -445,7 +443,7 @@ def _try_section(chip: _Chip, types: tuple[str, ...], purpose: str,
     for unit in chip.part.units_of(*types):
         if unit.id in chip.units_used:
             continue
-        if unit.type == "analog_mux" and len(unit.fields["channels"]) < 2:
+        if unit.type == "analog_mux" and len(unit.channels) < 2:
             continue
         assignment = assignment_of(unit)
         if chip.fits(assignment):
@@ -546,8 +544,8 @@ def _finish_chip(chip: _Chip) -> None:
     dirs = pin_directions(part)
     for unit in part.units:
         used = unit.id in chip.units_used
-        for pin, level in (unit.fields.get("ties") or {}).items():
-            chip.set_pin(int(pin), str(level), f"held at {level} for plain use (datasheet)")
+        for pin, level in unit.ties.items():
+            chip.set_pin(pin, level, f"held at {level} for plain use (datasheet)")
         for pin, role in unit.pins():
             if pin in chip.pins:
                 continue
@@ -693,8 +691,8 @@ def _signals(plan: Plan, network: Network, spec: Any) -> dict[str, dict]:
 def _switch_record(route: _Route, net_for: Any) -> dict:
     chip, unit_id = route.sections[0]
     unit = _unit(chip, unit_id)
-    common = unit.fields["common"] if "common" in unit.fields else unit.fields["terminals"][0]
-    control = unit.fields["control"] if "control" in unit.fields else unit.fields["selects"][0]
+    common = unit.common if unit.common is not None else unit.terminals[0]
+    control = unit.control if unit.control is not None else unit.selects[0]
     return {
         "ref": chip.ref, "unit": unit_id, "part": chip.part.type, "kind": route.kind,
         "when_control_high": route.when_control_high, "control_net": route.control_net,

@@ -93,7 +93,7 @@ def provides(stock, catalog) -> dict:
             if units:
                 programmable.append({"part": part_type, "chips": count, "kind": unit_type,
                                      "units": len(units) * count,
-                                     "width": len(units[0].fields.get("selects", []))})
+                                     "width": len(units[0].selects)})
         if part.units_of("flipflop"):
             flipflops.append({"part": part_type, "chips": count,
                               "units": len(part.units_of("flipflop")) * count})
@@ -123,14 +123,11 @@ def _kind_name(kind: tuple) -> str:
 
 
 def _counter_row(part, unit, count: int) -> dict:
-    fields = unit.fields
-    stages = sorted(int(k) for k in fields.get("stages", {}))
-    decoded = sorted(int(k) for k in fields.get("decoded", {}))
-    return {"part": part.type, "unit": unit.id, "chips": count, "mode": fields.get("mode"),
-            "modulus": fields.get("modulus"), "synchronous": bool(fields.get("synchronous")),
-            "edge": fields.get("clock", {}).get("edge"),
-            "stages_pinned": stages, "decoded_outputs": decoded,
-            "reset": fields.get("reset", {}).get("active")}
+    return {"part": part.type, "unit": unit.id, "chips": count, "mode": unit.mode,
+            "modulus": unit.modulus, "synchronous": unit.synchronous,
+            "edge": unit.clock.edge if unit.clock else None,
+            "stages_pinned": sorted(unit.stages), "decoded_outputs": sorted(unit.decoded),
+            "reset": unit.reset.active if unit.reset else None}
 
 
 def _stage_text(stages: list[int]) -> str:
