@@ -160,27 +160,27 @@ def _place_counters(board: _Board, counter_plan: Any, network: Network) -> None:
             chip = by_ref[cc.ref] = board.open(part, "counter", cc.ref)
         chip.units_used[str(cc.unit)] = "counter"
         chip.set_pin(int(cc.clock_pin), str(cc.clock_net), "counter clock input")
-        if getattr(cc, "reset_pin", None) is not None:
+        if cc.reset_pin is not None:
             net = str(cc.reset_net or "VSS")
             if net in RAIL_NETS:
                 chip.set_pin(int(cc.reset_pin), net, "reset held inactive (the count runs freely)")
             else:
                 chip.set_pin(int(cc.reset_pin), reset_net.get(net, net), "counter reset")
-        enable_pin, enable_net = getattr(cc, "enable_pin", None), getattr(cc, "enable_net", None)
+        enable_pin, enable_net = cc.enable_pin, cc.enable_net
         if enable_pin is not None and enable_net:
             note = ("enable held active for plain counting" if enable_net in RAIL_NETS
                     else "counts on this input")
             chip.set_pin(int(enable_pin), str(enable_net), note)
-        for pin, level in (getattr(cc, "ties", None) or {}).items():
+        for pin, level in cc.ties.items():
             chip.set_pin(int(pin), str(level), f"held at {level} for plain counting")
     for var in counter_plan.vars:
         chip = by_ref.get(_chip_ref(counter_plan, var.chip))
         if chip is None:
             raise InternalError(f"counter variable {var.net} names chip {var.chip}, "
                                 "which the counter plan does not list")
-        chip.set_pin(int(var.pin), str(var.net), f"counter output {getattr(var, 'pin_name', '')}".strip())
-    reset = getattr(counter_plan, "reset", None)
-    direct = getattr(reset, "direct_pin", None) if reset is not None and getattr(reset, "direct", False) else None
+        chip.set_pin(int(var.pin), str(var.net), f"counter output {var.pin_name}".strip())
+    reset = counter_plan.reset
+    direct = reset.direct_pin if reset is not None and reset.direct else None
     if direct is not None:
         chip = by_ref[direct[0]]
         chip.set_pin(int(direct[1]), reset_net.get(reset.net, reset.net), "drives the counter reset")
@@ -196,16 +196,16 @@ def _chip_ref(counter_plan: Any, chip: Any) -> str:
 def _reset_net(counter_plan: Any, network: Network) -> dict[str, str]:
     """The board net of the counter reset: the mapped reset decode's net, or the
     counter output that drives the reset pins directly."""
-    reset = getattr(counter_plan, "reset", None)
+    reset = counter_plan.reset
     if reset is None:
         return {}
-    if getattr(reset, "direct", False) and getattr(reset, "direct_pin", None):
+    if reset.direct and reset.direct_pin:
         ref, pin = reset.direct_pin
         for var in counter_plan.vars:
             if _chip_ref(counter_plan, var.chip) == ref and int(var.pin) == int(pin):
                 return {reset.net: var.net}
         return {}
-    decoded = network.signals.get(getattr(reset, "name", ""))
+    decoded = network.signals.get(reset.name)
     if decoded is None:
         return {}
     if decoded.polarity != reset.active:
@@ -743,7 +743,7 @@ def _cautions(plan: Plan, counter_plan: Any) -> list[str]:
     if any(c.role == "switch" for c in plan.chips):
         cautions.append("Analog switch signals must stay between VSS and VDD (VEE is tied to VSS "
                         "for a single supply).")
-    if all(getattr(c, "reset_net", "VSS") in RAIL_NETS for c in counter_plan.chips):
+    if all(c.reset_net in RAIL_NETS for c in counter_plan.chips):
         cautions.append("At power-up the counter starts at an arbitrary count: tick 0 is the "
                         "all-zero count, and the sequence repeats from wherever it starts.")
     return cautions
