@@ -28,7 +28,7 @@ BASELINE = {
     "function_imports": 103,    # imports inside functions, heavy optional libraries excepted
     "private_imports": 11,      # `from .other import _name`
     "modules_in_cycles": 3,     # glitchfix <-> pipeline <-> wishlist
-    "getattr_calls": 138,       # getattr / hasattr calls
+    "getattr_calls": 141,       # getattr / hasattr calls
 }
 
 
