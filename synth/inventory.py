@@ -135,6 +135,7 @@ class Unit:
     decoded: dict[int, int] = field(default_factory=dict)   # state n -> pin (johnson)
     carry: int | None = None
     carry_out: int | None = None
+    count_enable: tuple[int, ...] = ()        # pins that must all be high to count (CEP, CET)
     ties: dict[int, str] = field(default_factory=dict)      # pin -> VDD / VSS
     oscillator: OscillatorPins | None = None
     kind: str = ""                            # flip-flop kind ('d')
@@ -453,7 +454,8 @@ UNIT_KEYS: dict[str, tuple[tuple[str, ...], tuple[str, ...]]] = {
     "inverter": (("input", "output"), ("schmitt", "unbuffered")),
     "buffer": (("input", "output"), ()),
     "counter": (("mode", "modulus", "synchronous", "clock"),
-                ("enable", "reset", "stages", "decoded", "carry", "carry_out", "ties", "oscillator")),
+                ("enable", "reset", "stages", "decoded", "carry", "carry_out", "count_enable", "ties",
+                 "oscillator")),
     "flipflop": (("kind", "clock", "d", "q"), ("qn", "set", "reset")),
     "decoder": (("selects", "outputs", "active"), ("enables",)),
     "mux": (("selects", "data", "output"), ("output_inv", "enable")),
@@ -589,6 +591,7 @@ def _unit_from_entry(part: _Entry, index: int, raw: Any) -> Unit:
                          synchronous=unit.flag("synchronous"), enable=unit.control("enable"),
                          stages=unit.pin_map("stages"), decoded=unit.pin_map("decoded"),
                          carry=unit.pin("carry", required=False), carry_out=unit.pin("carry_out", required=False),
+                         count_enable=unit.pins("count_enable", required=False),
                          ties=_ties(unit), oscillator=OscillatorPins(
                              osc.pin("input"), osc.pin("output"), osc.pin("output_inv", required=False))
                          if osc else None)
