@@ -7,7 +7,7 @@ Run from the checkout: ``python3 bench/bench_techmap.py [--quick]``.
   tables), each over a bin of one or two gate types (4000B and 74HC parts,
   enough chips that the bin is never short).  Invented data, seeded.
 - ours: ``map_design(exact='auto')`` as ``binsynth plan`` runs it.
-- optimum: ``map_design(exact='yes', time_limit=30)``; a row counts only when
+- optimum: ``map_design(exact='yes', effort='thorough')``; a row counts only when
   the exact engine proved its result ("proven minimal" over every circuit of
   the bin's gates, inverters and 2:1 muxes), else it is marked '?'.
 - naive: each signal mapped alone from its own two-level cover (no sharing of
@@ -32,7 +32,7 @@ from pathlib import Path
 ROOT = Path(__file__).resolve().parent.parent
 sys.path.insert(0, str(ROOT))
 
-from synth.errors import ShortError  # noqa: E402
+from synth.errors import NotFoundError, ShortError  # noqa: E402
 from synth.inventory import Bin, load_catalog  # noqa: E402
 from synth.minimize import Function  # noqa: E402
 from synth.techmap import build_library, map_design  # noqa: E402
@@ -44,7 +44,7 @@ BINS = [("4011",), ("4001",), ("4011", "4069"), ("4081", "4069"), ("4071", "4069
         ("74HC27", "74HC02")]
 
 
-EXACT_SECONDS = 30.0
+EXACT_EFFORT = "thorough"
 
 
 def window_signal(rng: random.Random, nbits: int) -> frozenset[int]:
@@ -123,10 +123,10 @@ def main(argv: list[str]) -> int:
             ours = run_map(funcs, nbits, lib)
             t_ours = time.perf_counter() - t0
             t0 = time.perf_counter()
-            best = run_map(funcs, nbits, lib, exact="yes", time_limit=EXACT_SECONDS)
+            best = run_map(funcs, nbits, lib, exact="yes", effort=EXACT_EFFORT)
             t_opt = time.perf_counter() - t0
             base = naive(funcs, nbits, lib)
-        except ShortError as exc:
+        except (ShortError, NotFoundError) as exc:
             rows.append((name, nbits, len(funcs), "+".join(parts), "short", "", "", "", "", str(exc)[:40]))
             continue
         t_ours_total += t_ours

@@ -1,8 +1,11 @@
 """The main job, stage by stage: spec + bin -> a checked plan.
 
 Interface: ``Design`` (the plan and what led to it), ``make_plan(spec_path,
-bin_path, *, catalog=None, exact='auto', fix=()) -> Design``, and
-``switch_polarity(spec)`` (which signals may be delivered either way up).
+bin_path, *, catalog=None, exact='auto', fix=(), effort=None, lacks=False)
+-> Design``, ``switch_polarity(spec)`` (which signals may be delivered
+either way up) and ``async_reset_names(counter_plan)``.  No plan: the
+stages raise ``ShortError`` (exit 3, proven, with ``short``) or
+``NotFoundError`` (exit 4, the effort ran out).
 After packing, ``clocksource.add_oscillator`` (``clock.source: oscillator``)
 and ``staircase.add_ladders`` (``levels``) add their parts to the plan, and
 the net check runs again.
@@ -34,7 +37,7 @@ class Design:
     network: Any
     trace: Any = None
     remedies: dict = field(default_factory=dict)
-    lacks: Any = None          # wishlist.BinLacks when make_plan(lacks=...) searched
+    lacks: Any = None          # wishlist.BinLacks when make_plan(lacks=True) searched
 
 
 def switch_polarity(spec) -> dict[str, str]:
@@ -79,12 +82,13 @@ def _switch_chips(spec, stock, catalog) -> dict[str, int]:
 
 
 def make_plan(spec_path: str | Path, bin_path: str | Path, *, catalog=None, exact: str = "auto",
-              fix: Iterable[str] = (), lacks: float = 0.0) -> Design:
+              fix: Iterable[str] = (), effort=None, lacks: bool = False) -> Design:
     """Run every stage; raise SynthError subclasses for the user's problems.
 
-    ``lacks`` > 0: also find what the bin lacks (wishlist), searching for that
-    many seconds beside the plan's own mapping; the answer is ``design.lacks``
-    and the plan's ``bin_lacks``.
+    ``effort``: an ``effort.EFFORTS`` level name (work budgets, never
+    seconds).  ``lacks``: also find what the bin lacks (wishlist) beside the
+    plan's own mapping, at that effort (the quick level skips it); the answer
+    is ``design.lacks`` and the plan's ``bin_lacks``.
     """
     from .counter import allocate
     from .decode import derive
@@ -98,9 +102,9 @@ def make_plan(spec_path: str | Path, bin_path: str | Path, *, catalog=None, exac
     counter_plan = allocate(spec, stock, catalog)
     decode = derive(spec, counter_plan, exact=exact)
     library, polarity = mapping_inputs(spec, stock, catalog, counter_plan, decode)
-    search = _start_lacks(lacks, decode, counter_plan, library, polarity, stock, catalog)
+    search = _start_lacks(lacks, effort, decode, counter_plan, library, polarity, stock, catalog)
     try:
-        network = map_decode(decode, counter_plan, library, polarity, exact)
+        network = map_decode(decode, counter_plan, library, polarity, exact, effort)
         plan = pack(network, counter_plan, spec, stock, catalog)
         plan.warnings[:0] = list(stock.warnings) + list(getattr(counter_plan, "warnings", []))
         _analog_parts(plan, spec, stock, catalog)
@@ -128,23 +132,25 @@ def mapping_inputs(spec, stock, catalog, counter_plan, decode):
     return library, polarity
 
 
-def map_decode(decode, counter_plan, library, polarity, exact: str):
+def map_decode(decode, counter_plan, library, polarity, exact: str, effort=None):
     """The decode mapped onto the library; an async reset decode must be hazard-free."""
     from .techmap import map_design
 
     return map_design(decode.functions, len(counter_plan.vars), [v.net for v in counter_plan.vars],
-                      library, polarity=polarity, cover=decode.cover, exact=exact,
-                      glitch_free=_async_reset_names(counter_plan))
+                      library, polarity=polarity, cover=decode.cover, exact=exact, effort=effort,
+                      glitch_free=async_reset_names(counter_plan))
 
 
-def _start_lacks(budget: float, decode, counter_plan, library, polarity, stock, catalog):
+def _start_lacks(wanted: bool, effort, decode, counter_plan, library, polarity, stock, catalog):
     """The what-the-bin-lacks search, begun before the mapping so the two overlap."""
-    if budget <= 0:
+    from .effort import effort_named
+
+    if not wanted or not effort_named(effort).lacks_steps:
         return None
     from .wishlist import start_search
 
     return start_search(decode, counter_plan, library, polarity, stock, catalog,
-                        glitch_free=_async_reset_names(counter_plan), budget=budget)
+                        glitch_free=async_reset_names(counter_plan), effort=effort)
 
 
 def _analog_parts(plan, spec, stock, catalog) -> None:
@@ -172,7 +178,7 @@ def _analog_parts(plan, spec, stock, catalog) -> None:
     check_nets(plan)
 
 
-def _async_reset_names(counter_plan) -> tuple[str, ...]:
+def async_reset_names(counter_plan) -> tuple[str, ...]:
     """A decoded asynchronous reset must not pulse on a counter step (it would clear the count)."""
     reset = getattr(counter_plan, "reset", None)
     if reset is None or getattr(reset, "synchronous", False) or getattr(reset, "direct", False):
@@ -196,7 +202,8 @@ def _timing_checks(design: Design, fix: set[str]) -> None:
 
 
 def _timing_fixes(design: Design, fix: set[str], exact: str) -> Design:
-    """``--fix glitches`` and the RC-delay offers, from the glitch-fix module."""
+    """``--fix glitches`` and the RC-delay offers, from the glitch-fix module (its
+    re-mappings run at the default effort)."""
     from .glitchfix import apply_fixes
 
     return apply_fixes(design, fix, exact=exact)

@@ -8,7 +8,9 @@ Interface:
   catalog, *, reserved=None) -> Library``; ``Library.restricted(parts)``,
   ``Library.with_extra(part, chips=1)``.
 - ``map_design(functions, nvars, var_nets, library, *, polarity, cover=None,
-  exact='auto', time_limit=10.0) -> Network``.
+  exact='auto', effort=None, steps=None, glitch_free=()) -> Network``;
+  it raises ``ShortError`` (proven impossible, with a reason a person can
+  check) or ``NotFoundError`` (the effort ran out; what was proven).
 - ``chips_of(gates, library) -> dict[part, chips]``.
 - ``parse_target(text) -> Target``; ``Construction``; ``substitute(target,
   library, *, either_polarity=False, limit=5, time_limit=8.0) ->
@@ -49,25 +51,24 @@ Two engines, both over python-sat:
    as constants for XOR/mux pins, joined inputs, free output phases and
    don't cares, for k = lower bound, lower bound + 1, ...; each k is also
    minimized for chips.  A size that cannot be settled within its slice of
-   the time is passed over and taken up again at the end (the proof then
+   the work is passed over and taken up again at the end (the proof then
    waits on it), so a hard "no k-gate circuit" proof does not keep the
    search from the next size, which often has a circuit.  It finds multi-level optima such as XOR from four
    NANDs.  When it runs to its stopping rule the result is "proven minimal
    (chips, then gates) over all circuits of the bin's gates, inverters and
    2:1 muxes"; wider muxes and decoders are outside that claim.
 
-Time: exact synthesis reads ``time_limit`` as solver work (conflicts at
-``CONFLICTS_PER_SECOND``, the ``_WorkClock``), so what it finds does not
-depend on how busy the machine is; a wall-clock cap at ``WALL_SLACK`` times
-the limit stops a machine far slower than the calibration.  Structure
-selection and the local search keep the wall clock; on designs small enough
-for exact synthesis they finish well inside their share.
+Work, not time: every search here is bounded by steps on one ``effort.Meter``
+per mapping (SAT conflicts and propagations, local-search evaluations), so
+what it finds depends on the design and the effort level only, never on how
+busy the machine is; a wall-clock safety cap (exit 4, said plainly) stops a
+machine far slower than expected.
 
 Depth is only a tie-break (the tree enumeration keeps the shallower of two
 trees with equal units); it is reported, not proven.  The local search (for
 designs too large for the SAT selection) starts from the cheapest option per
 signal and trees fitted top-down to the phases their users ask for.  Both engines are capped
-in time and size and fall back to "best found" with a lower bound.  The
+in work and size and fall back to "best found" with a lower bound.  The
 finished network is simulated (zero delay, ``evaluate_words``) on every
 minterm each signal cares about; a mismatch raises ``InternalError``.
 
@@ -88,14 +89,12 @@ Library rules (the mapper's choices):
 from __future__ import annotations
 
 import itertools
-import os
-import sys
 import threading
-import time
 from dataclasses import dataclass, field, replace
 from typing import Iterable, Literal, Mapping, Sequence
 
-from .errors import InternalError, ShortError, UsageError
+from .effort import PROPAGATIONS_PER_STEP, Effort, Meter, effort_named
+from .errors import InternalError, NotFoundError, Shortage, ShortError, UsageError
 from .inventory import Bin, Catalog, Part
 from .network import Gate, Network, SignalOut, counting_words, evaluate_gate, evaluate_words
 
@@ -581,54 +580,36 @@ class _Cnf:
         return out
 
 
-CONFLICTS_PER_SECOND = 40_000   # the solver work one second of ``time_limit`` buys (about one
-                                # second of Glucose on these instances, measured on a 2-core machine)
-WALL_SLACK = 3.0                # a very slow or loaded machine is still stopped at 3x the time
+NODES_PER_STEP = 8   # a local-search evaluation is charged one step per this many nodes (and one more)
 
 
-class _WorkClock:
-    """Solver time: the mapping's start plus the conflicts exact synthesis has
-    spent so far, in seconds at ``CONFLICTS_PER_SECOND``.  Exact synthesis
-    reads its deadlines on this clock, so what it finds for a small design
-    depends on the design only, not on how busy the machine was.  Structure
-    selection and the local search keep the wall clock (their instances vary
-    too much in conflicts per second for one rate; on small designs they
-    finish well inside their time)."""
-
-    def __init__(self) -> None:
-        self.origin = time.monotonic()
-        self.conflicts = 0
-
-    def now(self) -> float:
-        return self.origin + self.conflicts / CONFLICTS_PER_SECOND
-
-
-_WORK = _WorkClock()
-
-
-def _work_now() -> float:
-    return _WORK.now()
-
-
-def _solve(solver, assumptions: Sequence[int], deadline: float, work: bool = False) -> bool | None:
-    """Solve by a wall-clock deadline, or with ``work`` by the work clock's (a
-    conflict budget, with a wall-clock timer at ``WALL_SLACK`` times it as the
-    safety net on a machine far slower than the calibration); None when the
-    time ran out."""
-    remaining = deadline - (_WORK.now() if work else time.monotonic())
+def _solve(solver, assumptions: Sequence[int], deadline: int, meter: Meter) -> bool | None:
+    """Solve within the work left before ``deadline`` (steps on ``meter``): a
+    conflict and a propagation budget, both counted, so the answer does not
+    depend on the machine's speed or load.  None when the work ran out.  The
+    wall-clock safety cap interrupts a solve that outlives it (exit 4)."""
+    remaining = deadline - meter.now()
     if remaining <= 0:
         return None
-    if work:
-        solver.conf_budget(int(remaining * CONFLICTS_PER_SECOND) + 1)
-    before = solver.accum_stats().get("conflicts", 0)
-    timer = threading.Timer(remaining * WALL_SLACK + 0.5 if work else remaining, solver.interrupt)
+    solver.conf_budget(remaining)
+    solver.prop_budget(remaining * PROPAGATIONS_PER_STEP)
+    stats = solver.accum_stats()
+    before = stats.get("conflicts", 0), stats.get("propagations", 0)
+    wall = meter.wall_left()
+    if wall <= 0:
+        raise meter.cap_error()
+    timer = threading.Timer(wall, solver.interrupt)
     timer.start()
     try:
         result = solver.solve_limited(assumptions=list(assumptions), expect_interrupt=True)
     finally:
         timer.cancel()
         solver.clear_interrupt()
-        _WORK.conflicts += solver.accum_stats().get("conflicts", 0) - before
+    stats = solver.accum_stats()
+    meter.charge(stats.get("conflicts", 0) - before[0]
+                 + (stats.get("propagations", 0) - before[1]) // PROPAGATIONS_PER_STEP)
+    if result is None:
+        meter.check_wall()
     return result
 
 
@@ -670,7 +651,7 @@ def _add_costing(cnf: _Cnf, cells: Sequence[Cell], unit_lits: dict[int, list[int
     return _Costing(unit_lits, cnf.counter(all_chips), cnf.counter(unary_units))
 
 
-def _minimise(solver, costing: _Costing, deadline: float, count_chips, count_gates,
+def _minimise(solver, costing: _Costing, deadline: int, meter: Meter, count_chips, count_gates,
               fixed: Sequence[int] = (), incumbent: tuple[int, int] | None = None
               ) -> tuple[list[int] | None, bool, tuple[int, int] | None]:
     """Chips first, then gates, by bound tightening.
@@ -681,7 +662,7 @@ def _minimise(solver, costing: _Costing, deadline: float, count_chips, count_gat
     model with proven=True means the incumbent is minimal.
     """
     if incumbent is None:
-        result = _solve(solver, fixed, deadline)
+        result = _solve(solver, fixed, deadline, meter)
         if not result:
             return None, result is False, None
         model = solver.get_model()
@@ -690,7 +671,7 @@ def _minimise(solver, costing: _Costing, deadline: float, count_chips, count_gat
         model, (chips, gates) = None, incumbent
     proven = True
     while 0 < chips <= len(costing.chip_count):
-        result = _solve(solver, list(fixed) + [-costing.chip_count[chips - 1]], deadline)
+        result = _solve(solver, list(fixed) + [-costing.chip_count[chips - 1]], deadline, meter)
         if result is None:
             return model, False, (chips, gates)
         if not result:
@@ -699,7 +680,7 @@ def _minimise(solver, costing: _Costing, deadline: float, count_chips, count_gat
         chips, gates = count_chips(model), count_gates(model)
     keep = list(fixed) + ([-costing.chip_count[chips]] if chips < len(costing.chip_count) else [])
     while 0 < gates <= len(costing.gate_count):
-        result = _solve(solver, keep + [-costing.gate_count[gates - 1]], deadline)
+        result = _solve(solver, keep + [-costing.gate_count[gates - 1]], deadline, meter)
         if result is None:
             proven = False
             break
@@ -1266,12 +1247,13 @@ class _Selection:
             lits += [lit if v == kind else -lit for lit, v in self.iota[net]]
         return lits
 
-    def solve(self, deadline: float, incumbent: _Chosen | None = None) -> tuple[_Chosen | None, bool]:
+    def solve(self, deadline: int, meter: Meter,
+              incumbent: _Chosen | None = None) -> tuple[_Chosen | None, bool]:
         solver = _new_solver(self.cnf.clauses)
         solver.set_phases(self.seed(incumbent) if incumbent else self.hints())
         try:
             model, proven, cost = _minimise(
-                solver, self.costing, deadline,
+                solver, self.costing, deadline, meter,
                 lambda m: self.chips_and_gates(m)[0], lambda m: self.chips_and_gates(m)[1],
                 incumbent=incumbent.cost if incumbent else None)
         finally:
@@ -1611,6 +1593,8 @@ class _ExactInstance:
         self.sel = [[[cnf.new() for _ in range(base + i)] for _ in range(W)] for i in range(k)]
         self.v = [[cnf.new() for _ in M] for _ in range(k)]
         allowed_consts = set(c for kind in kinds for c in kind.consts)
+        if any(kind.width < W for kind in kinds):
+            allowed_consts.add(0)      # a narrower gate's unused slots read VSS
 
         def node_value(j: int, mi: int):
             """A constant (True/False) for rails and counter variables, else a variable."""
@@ -1765,7 +1749,7 @@ class _ExactInstance:
         units = {ci: sum(1 for lit in lits if lit in truth) for ci, lits in self.unit_lits.items()}
         return sum(_chips_from_units(units, self.cells).values())
 
-    def solve(self, deadline: float, floor: float = 1, ceiling: int | None = None):
+    def solve(self, deadline: int, meter: Meter, floor: float = 1, ceiling: int | None = None):
         """A k-gate circuit with the fewest chips: (model, finished, (chips, k)).
 
         ``floor``: no k-gate circuit can take fewer chips; ``ceiling``: only
@@ -1775,14 +1759,14 @@ class _ExactInstance:
         try:
             counters = self.costing.chip_count
             cap = [-counters[ceiling]] if ceiling is not None and ceiling < len(counters) else []
-            result = _solve(solver, cap, deadline, work=True)
+            result = _solve(solver, cap, deadline, meter)
             if not result:
                 return None, result is False, None
             model = solver.get_model()
             chips = self.chips(model)
             done = True
             while chips > max(1, floor):
-                answer = _solve(solver, [-self.costing.chip_count[chips - 1]], deadline, work=True)
+                answer = _solve(solver, [-self.costing.chip_count[chips - 1]], deadline, meter)
                 if answer is None:
                     done = False
                     break
@@ -1832,10 +1816,11 @@ class _Result:
     lower_bound: int | None = None
 
 
-LADDER_SLICE = 0.25     # of the time left, the most one circuit size gets before the next is tried
+LADDER_SLICE = 0.25     # of the work left, the most one circuit size gets before the next is tried
+LADDER_MIN_SLICE = 20_000   # steps every circuit size gets at least (within the deadline)
 
 
-def _exact_search(problem: _Problem, cells: Sequence[Cell], deadline: float,
+def _exact_search(problem: _Problem, cells: Sequence[Cell], deadline: int, meter: Meter,
                   incumbent: tuple[int, int] | None, max_gates: int = EXACT_MAX_GATES
                   ) -> tuple[_Result | None, bool, float]:
     """Exact synthesis for k = lower bound, ... until no better (chips, gates) can exist.
@@ -1861,10 +1846,10 @@ def _exact_search(problem: _Problem, cells: Sequence[Cell], deadline: float,
         lb, bound = _chips_lower_bound(k, capacities), state["bound"]
         return bound is None or lb < bound[0] or (lb == bound[0] and k < bound[1])
 
-    def settle(k: int, until: float) -> bool:
+    def settle(k: int, until: int) -> bool:
         instance = _ExactInstance(problem, cells, kinds, k)
         bound = state["bound"]
-        model, done, cost = instance.solve(until, floor=_chips_lower_bound(k, capacities),
+        model, done, cost = instance.solve(until, meter, floor=_chips_lower_bound(k, capacities),
                                            ceiling=bound[0] if bound else None)
         if model is not None and (bound is None or cost < bound):
             gates, signals = instance.build(model)
@@ -1874,17 +1859,17 @@ def _exact_search(problem: _Problem, cells: Sequence[Cell], deadline: float,
     open_sizes: list[int] = []
     k, complete = int(k0), True
     while _chips_lower_bound(k, capacities) != float("inf") and could_beat(k):
-        if k > max_gates or _work_now() >= deadline:
+        if k > max_gates or meter.now() >= deadline:
             open_sizes.append(k)
             complete = False
             break
-        until = min(deadline, _work_now() + max(0.5, (deadline - _work_now()) * LADDER_SLICE))
+        until = min(deadline, meter.now() + max(LADDER_MIN_SLICE, int((deadline - meter.now()) * LADDER_SLICE)))
         if not settle(k, until):
             open_sizes.append(k)
         k += 1
     retry = open_sizes if complete else open_sizes[:-1]     # the last one was never tried
     settled = {size for size in retry
-               if could_beat(size) and _work_now() < deadline and settle(size, deadline)}
+               if could_beat(size) and meter.now() < deadline and settle(size, deadline)}
     open_sizes = [size for size in open_sizes if size not in settled and could_beat(size)]
     best, bound = state["best"], state["bound"]
     if not open_sizes:
@@ -1921,16 +1906,10 @@ def _tree_menu(trees: Sequence[_Tree], ncells: int) -> list[_Tree]:
     return menu
 
 
-def _trace(stage: str, key) -> None:
-    """The local search's progress on stderr when BINSYNTH_TRACE is set (DEVELOPERS.md)."""
-    if os.environ.get("BINSYNTH_TRACE"):
-        print(f"[local search] {stage}: {key} at {time.monotonic():.2f}", file=sys.stderr)
-
-
-def _part_way(deadline: float, share: float) -> float:
-    """A deadline ``share`` of the way from now to ``deadline``."""
-    now = time.monotonic()
-    return now + max(0.0, deadline - now) * share
+def _part_way(meter: Meter, deadline: int, share: float) -> int:
+    """A deadline ``share`` of the way from now to ``deadline`` (in steps)."""
+    now = meter.now()
+    return now + int(max(0, deadline - now) * share)
 
 
 class _LocalSearch:
@@ -1941,8 +1920,9 @@ class _LocalSearch:
     """
 
     def __init__(self, problem: _Problem, cands: _Candidates, cells: Sequence[Cell],
-                 table: _TreeTable) -> None:
+                 table: _TreeTable, meter: Meter) -> None:
         self.problem, self.cands, self.cells, self.table = problem, cands, cells, table
+        self.meter = meter
         self.trees = {n: _tree_menu(table.trees(len(node.fanins)), len(cells))
                       for n, node in enumerate(cands.nodes)}
         self.natural_dec = {d: 1 if cells[ci].active == "low" else 0
@@ -1961,6 +1941,8 @@ class _LocalSearch:
         return self.natural_dec[net[1]]
 
     def evaluate(self, opt, phi, tree) -> _Eval | None:
+        """The whole design's key with these choices (charged to the work meter)."""
+        self.meter.charge(1 + len(self.cands.nodes) // NODES_PER_STEP)
         cells = self.cells
         units = [0] * len(cells)
         complements: dict[tuple, int] = {}
@@ -2076,7 +2058,7 @@ class _LocalSearch:
                 units[c] += 1
         return placed
 
-    def run(self, deadline: float) -> tuple[_Chosen | None, int]:
+    def run(self, deadline: int) -> tuple[_Chosen | None, int]:
         """The best selection found, and how far it overflows the bin (0 = fits).
 
         First climbs as if the bin were unlimited (the structure), then with
@@ -2088,27 +2070,23 @@ class _LocalSearch:
         best = self._initial()
         if best is None:
             return None, 0
-        _trace("initial", best.key)
         if best.key[0]:            # over the bin from the start: repair first, then refine
-            best = self._climb(best, lambda e: e.key, _part_way(deadline, 0.5))
-            _trace("repair", best.key)
+            best = self._climb(best, lambda e: e.key, _part_way(self.meter, deadline, 0.5))
         if best.key[0]:
-            best = self._climb(best, lambda e: e.key[1:], _part_way(deadline, 0.5))
-            _trace("structure", best.key)
+            best = self._climb(best, lambda e: e.key[1:], _part_way(self.meter, deadline, 0.5))
         best = self._climb(best, lambda e: e.key, deadline)
-        _trace("final", best.key)
         return self._chosen(best), best.key[0]
 
-    def _climb(self, best: _Eval, score, deadline: float) -> _Eval:
+    def _climb(self, best: _Eval, score, deadline: int) -> _Eval:
         improved = True
         large = len(best.nodes) > MOVABLE_ALL_NODES
-        while improved and time.monotonic() < deadline:
+        while improved and self.meter.now() < deadline:
+            self.meter.check_wall()
             improved = False
-            _trace("pass", best.key)
             start = best.key
             best, improved = self._option_pass(best, score)
             for n in self._movable(best):
-                if time.monotonic() >= deadline:
+                if self.meter.now() >= deadline:
                     break
                 for ti in range(len(self.trees[n])):
                     if ti == self.tree[n]:
@@ -2175,7 +2153,6 @@ class _LocalSearch:
             trial = self.evaluate(self.opt, self.phi, fitted)
             if trial is not None and trial.key < best.key:
                 self.tree, best = fitted, trial
-            _trace("phase-fitted trees", trial.key if trial else None)
         if best is not None and best.key[0]:
             best = self._relieve(best)
         return best
@@ -2297,19 +2274,19 @@ class _LocalSearch:
 # ---------------------------------------------------------------- the mapper
 
 def _select(problem: _Problem, forms: dict[str, list[_Form]], lib: Library,
-            deadline: float) -> tuple[_Result | None, bool]:
+            deadline: int, meter: Meter) -> tuple[_Result | None, bool]:
     """Structure selection over the candidates; (result, search finished)."""
     cells = lib.cells
     table = _tree_table(cells, lib.cache)
     cands = _candidates(problem, forms, cells)
     if any(not cands.options.get(s.name) for s in problem.signals):
         return None, True
-    local, overflow = _LocalSearch(problem, cands, cells, table).run(deadline)
+    local, overflow = _LocalSearch(problem, cands, cells, table, meter).run(deadline)
     chosen = local if local is not None and not overflow else None
     proven = False
-    if _selection_is_small(cands, table) and time.monotonic() < deadline:
+    if _selection_is_small(cands, table) and meter.now() < deadline:
         selection = _Selection(problem, cands, cells, table)
-        exact_choice, proven = selection.solve(deadline, chosen)
+        exact_choice, proven = selection.solve(deadline, meter, chosen)
         if exact_choice is not None:
             chosen = exact_choice
     if chosen is None:
@@ -2491,22 +2468,27 @@ class _Flipped:
 
 def map_design(functions, nvars: int, var_nets: Sequence[str], library: Library, *,
                polarity: Mapping[str, str], cover=None, exact: str = "auto",
-               time_limit: float = 10.0, glitch_free: Iterable[str] = ()) -> Network:
+               effort: str | Effort | None = None, steps: int | None = None,
+               glitch_free: Iterable[str] = ()) -> Network:
     """Cover the decode functions with the bin's gates: fewest chips, then gates, then depth.
 
     ``exact``: 'auto' runs exact synthesis on small designs, 'yes' on any
-    design (within ``time_limit``), 'no' never.  Raises ``ShortError`` when
-    the bin cannot realise a signal, naming what is short and one part that
-    would fix it.  ``glitch_free`` names signals (an asynchronous counter
+    design (within the effort), 'no' never.  ``effort`` (a level name of
+    ``effort.EFFORTS``) or ``steps`` (its work budget, overriding the
+    level's) bound the search by work, never by seconds.  Raises
+    ``ShortError`` (exit 3) only with a reason a person can check, when the
+    bin cannot realise a signal, and ``NotFoundError`` (exit 4) when the
+    effort ran out without a design, saying what was proven and what to try
+    (a higher effort, one part that makes it easy).  ``glitch_free`` names signals (an asynchronous counter
     reset) that must not pulse while a single counter bit changes: an exact
     synthesis circuit with such a static hazard gives way to the structure
     selection's two-level-derived one.
     """
     if exact not in ("auto", "yes", "no"):
         raise UsageError(f"expected exact to be auto, yes or no, got {exact!r}")
-    global _WORK
-    _WORK = _WorkClock()
-    start = _WORK.origin
+    level = effort_named(effort)
+    budget = level.steps if steps is None else steps
+    meter = Meter(level.wall_cap, "the mapping search")
     lib = library.mapped()
     problem, direct, every = _problem(functions, nvars, var_nets, polarity)
     if not problem.signals:
@@ -2516,21 +2498,21 @@ def map_design(functions, nvars: int, var_nets: Sequence[str], library: Library,
         return network
     forms = _forms(problem, _covers(problem, functions, cover, nvars, exact))
     run_exact = _exact_wanted(problem, exact)
-    budget = time_limit * (0.45 if run_exact else 0.95)
-    result, finished = _select(problem, forms, lib, start + budget)
+    failure = _Failure(problem, forms, lib, meter, level, budget)
+    result, finished = _select(problem, forms, lib, int(budget * (0.45 if run_exact else 0.95)), meter)
     notes = []
     if result is not None:
         notes.append("structure selection: " + (
             "minimal chips, then gates, over the candidate structures considered" if finished
-            else "best found within the time limit"))
+            else f"best found within the search effort ({level.name})"))
     lower: float = 1
     if run_exact:
         incumbent = result.cost if result else None
-        exact_result, proven, lower = _exact_search(problem, lib.cells, start + time_limit * 0.95, incumbent)
+        exact_result, proven, lower = _exact_search(problem, lib.cells, int(budget * 0.95), meter, incumbent)
         if exact_result is not None and glitch_free and _static_hazards(
                 exact_result.gates, exact_result.signals, glitch_free, every, var_nets):
             if result is None:
-                raise _shortage(problem, forms, lib, start + time_limit)
+                raise failure.error(lower)
             notes.append("exact synthesis: its circuit could pulse " + ", ".join(sorted(glitch_free)) +
                          " on a single counter step; the glitch-free structure is used")
             exact_result, proven = None, False
@@ -2544,12 +2526,12 @@ def map_design(functions, nvars: int, var_nets: Sequence[str], library: Library,
             notes.append("exact synthesis: no circuit of the bin's gates, inverters and 2:1 muxes does "
                          "better; wider muxes and decoders are outside that proof")
         elif result is not None:
-            notes.append(f"exact synthesis stopped (time or size cap): best found, at least "
+            notes.append(f"exact synthesis stopped (effort or size cap): best found, at least "
                          f"{int(lower)} chip(s)")
         elif proven:
-            raise _shortage(problem, forms, lib, start + time_limit, proven_impossible=True)
+            raise failure.error(lower, searched_all=True)
     if result is None:
-        raise _shortage(problem, forms, lib, start + time_limit)
+        raise failure.error(lower)
     signals = dict(direct)
     signals.update(result.signals)
     gates = _name_signal_nets(result.gates, signals, set(var_nets))
@@ -2687,59 +2669,155 @@ def _word(minterms: Iterable[int]) -> int:
 
 # ---------------------------------------------------------------- when the bin is short
 
-FIX_TRIES = 10
+FIX_TRIES = 10            # candidate parts tried for "one more X would make it easy"
+FIX_SHARE = 0.02          # of the mapping's budget, the work each of them gets
+INVERTING_OPS = ("not", "nand", "nor", "xor", "xnor", "mux", "decoder", "spdt")
 
 
 def _can_invert(cells: Sequence[Cell]) -> bool:
     return bool(_inv_kinds(cells))
 
 
-def _shortage(problem: _Problem, forms: dict[str, list[_Form]], lib: Library, deadline: float,
-              proven_impossible: bool = False) -> ShortError:
-    """What the bin lacks for these signals, and one part that would fix it."""
-    names = ", ".join(s.name for s in problem.signals)
-    roomy = _roomy(lib)
-    plenty, _ = _select(problem, forms, roomy, min(deadline, time.monotonic() + 2.0)) \
-        if roomy.cells else (None, True)
-    if plenty is None:
+class _Failure:
+    """Why no design came out: proven impossible (exit 3, with a reason a person
+    can check) or not found within the effort (exit 4, what was proven and
+    what to try next)."""
+
+    def __init__(self, problem: _Problem, forms, lib: Library, meter: Meter, level: Effort,
+                 budget: int) -> None:
+        self.problem, self.forms, self.lib, self.meter = problem, forms, lib, meter
+        self.level, self.budget = level, budget
+
+    def error(self, exact_lower: float = 1, searched_all: bool = False) -> ShortError | NotFoundError:
+        names = ", ".join(s.name for s in self.problem.signals)
+        proof = self.impossible_reason(searched_all)
+        where = self.lib.source or None
+        if proof is not None:
+            reason, shortage = proof
+            return ShortError(f"the bin cannot realise {names}: {reason}", file=where,
+                              hint=f"add {shortage.fix}" if shortage.fix else None, short=(shortage,))
+        chips, gates = _counting_bounds(self.problem, self.lib.cells)
+        floor = max(1, int(min(max(chips, exact_lower), 10 ** 6))) if chips != float("inf") else 1
+        proven = f"proven: any design needs at least {floor} logic chip(s)"
+        if gates != float("inf"):
+            proven += f" and {int(gates)} gate(s)"
+        unused = self.spare_switch_note()
+        fix = self.one_part_fix()
+        steps = []
+        if self.level.name != "thorough":
+            steps.append("--effort thorough searches longer")
+        if fix:
+            steps.append(f"with one more {fix} ({self.lib.catalog.parts[fix].function}) a design "
+                         f"is found at once")
+        hint = "; ".join(steps) or "no single extra chip makes it easy; add gates of the kinds used"
+        return NotFoundError(f"no design for {names} found within the bin at effort "
+                             f"{self.level.name}; {proven}{unused}", file=where, hint=hint)
+
+    def impossible_reason(self, searched_all: bool) -> tuple[str, Shortage] | None:
+        """A counting argument or a finished exhaustive search, or None."""
+        lib, problem = self.lib, self.problem
+        if self.spare_switch_note():
+            return None            # spare switch sections are not searched: no proof
         if not lib.cells:
-            reason = "the bin holds no logic gates"
-        elif not _can_invert(lib.cells):
-            reason = "no part in the bin can invert a signal (no inverter, NAND, NOR, XOR or mux)"
-        else:
-            reason = "the bin's gate kinds cannot form these functions"
-        has_gates = any(c.op in AND_FORM and c.width >= 2 for c in lib.cells)
-        fix = _one_part_fix(problem, forms, lib, deadline, prefer_inverting=has_gates)
-    else:
-        need = chips_of(plenty.gates, roomy)
-        short = [f"{n} x {p} (the bin has {lib.available.get(p, 0)})"
-                 for p, n in need.items() if n > lib.available.get(p, 0)]
-        reason = "too few gates: it needs " + ", ".join(short) if short else \
-            "too few gates of the kinds it needs"
-        fix = _one_part_fix(problem, forms, lib, deadline, prefer_inverting=False)
-    hint = (f"one more {fix} ({lib.catalog.parts[fix].function}) would do it" if fix
-            else "no single extra chip would do it; add gates of the kinds named")
-    return ShortError(f"the bin cannot realise {names}: {reason}", file=lib.source or None, hint=hint)
+            return ("the bin holds no logic gates besides the counter and switch chips",
+                    Shortage("logic gate", None, 0, self.named_fix(prefer_inverting=True)))
+        profiles = _part_profiles(lib.cells)
+        if not any(p[2] for p in profiles.values()):
+            witness = _inversion_witness(problem)
+            if witness is not None:
+                return (witness + "; only an inverting gate can do that and no part in the bin "
+                        "inverts (no inverter, NAND, NOR, XOR or switch section)",
+                        Shortage("inverting gate", 1, 0, self.named_fix(prefer_inverting=True)))
+        if all(c.op in ("xor", "xnor", "not", "buf") for c in lib.cells):
+            odd = next((s.name for s in problem.signals if not _affine_possible(s, problem.nvars)), None)
+            if odd is not None:
+                return (f"the bin's gates are only XOR/XNOR and inverters, which together make "
+                        f"nothing but parity functions (an XOR of some counter outputs, maybe "
+                        f"inverted), and {odd} is not one",
+                        Shortage("AND/OR-type gate", 1, 0, self.named_fix(prefer_inverting=False)))
+        gates_floor = _counting_bounds(problem, lib.cells)[1]
+        units = sum(upc * chips for upc, _, _, chips in profiles.values())
+        if gates_floor != float("inf") and gates_floor > units:
+            return (f"any circuit needs at least {int(gates_floor)} gates (one per distinct signal, "
+                    f"and a tree joining every counter output a signal depends on) and the bin "
+                    f"has {units}", Shortage("gate", int(gates_floor), units,
+                                             self.named_fix(prefer_inverting=False)))
+        if gates_floor == float("inf"):
+            return ("a signal depends on several counter outputs and the bin has no gate with "
+                    "two or more inputs", Shortage("gate with two or more inputs", 1, 0,
+                                                  self.named_fix(prefer_inverting=False)))
+        if searched_all and _exact_complete(lib.cells):
+            return ("a search over every circuit the bin's gates, inverters and 2:1 switches allow "
+                    "(every size up to all units on hand) found none",
+                    Shortage("gate", None, units, self.named_fix(prefer_inverting=False)))
+        return None
+
+    def spare_switch_note(self) -> str:
+        """The reserved switch chips' other sections are not used as logic (yet): say so."""
+        catalog = self.lib.catalog
+        parts = sorted(p for p in self.lib.reserved
+                       if catalog.parts[p].units_of("spdt", "spst", "analog_mux"))
+        if not parts:
+            return ""
+        return (f"; spare sections of the {', '.join(parts)} kept for the spec's switches were "
+                f"not searched as logic")
+
+    def named_fix(self, prefer_inverting: bool) -> str:
+        candidates = _fix_candidates(self.lib, prefer_inverting)
+        if not candidates:
+            return ""
+        part = candidates[0]
+        return f"one {part} ({self.lib.catalog.parts[part].function})"
+
+    def one_part_fix(self) -> str | None:
+        """The first single extra chip (likeliest first) with which the signals map."""
+        has_gates = any(c.op in AND_FORM and c.width >= 2 for c in self.lib.cells)
+        share = max(1, int(self.budget * FIX_SHARE))
+        for part in _fix_candidates(self.lib, prefer_inverting=has_gates)[:FIX_TRIES]:
+            trial = self.lib.with_extra(part).mapped()
+            result, _ = _select(self.problem, self.forms, trial, self.meter.now() + share, self.meter)
+            if result is not None:
+                return part
+        return None
 
 
-def _roomy(lib: Library) -> Library:
-    """The same gate kinds with plenty of chips (to tell kinds from counts)."""
-    plenty = 64
-    cells = [replace(c, chips=plenty) for c in lib.cells]
-    return Library(cells, lib.supply, lib.catalog, {p: plenty for p in lib.available},
-                   dict(lib.reserved), [], lib.source)
+def _affine_possible(sig: _Signal, nvars: int) -> bool:
+    """Whether some XOR of counter bits (maybe inverted) matches the signal where it is
+    cared for: Gaussian elimination over GF(2), rows (1, bits of m | level at m)."""
+    pivots: dict[int, int] = {}        # leading bit -> row (bit nvars+1 is the level)
+    for m in sorted(sig.care):
+        row = ((m << 1) | 1) | ((1 << (nvars + 1)) if m in sig.on else 0)
+        while row:
+            lead = (row & ((1 << (nvars + 1)) - 1)).bit_length() - 1
+            if lead < 0:
+                return False          # 0 = 1: inconsistent
+            if lead not in pivots:
+                pivots[lead] = row
+                break
+            row ^= pivots[lead]
+    return True
 
 
-def _one_part_fix(problem: _Problem, forms, lib: Library, deadline: float,
-                  prefer_inverting: bool) -> str | None:
-    """The first single extra chip (likeliest first) with which the signals map."""
-    for part in _fix_candidates(lib, prefer_inverting)[:FIX_TRIES]:
-        if time.monotonic() >= deadline:
-            break
-        trial = lib.with_extra(part).mapped()
-        result, _ = _select(problem, forms, trial, min(deadline, time.monotonic() + 1.5))
-        if result is not None:
-            return part
+def _inversion_witness(problem: _Problem) -> str | None:
+    """A signal no monotone circuit delivers, in words: two counter states where it
+    must fall although no counter output falls (None: every signal is monotone)."""
+    n = problem.nvars
+    for sig in problem.signals:
+        lows = (False, True) if sig.polarity == "free" else (sig.polarity == "low",)
+        if any(_monotone_possible(sig, n, low) for low in lows):
+            continue
+        low = lows[0]
+        on = sig.care - sig.on if low else sig.on
+        off = sig.care - on
+        for a in sorted(on):
+            above = next((b for b in sorted(off) if b & a == a), None)
+            if above is not None:
+                sense = " (it is active low)" if low else ""
+                return (f"the output for {sig.name} must be high at counter state {a} and low at "
+                        f"state {above}{sense}, though every counter output high at {a} is also "
+                        f"high at {above}")
+        return (f"{sig.name} must fall where no counter output falls (it is not a monotone "
+                f"function of the counter outputs)")
     return None
 
 

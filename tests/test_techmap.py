@@ -412,6 +412,11 @@ def test_random_specs_plan_tick_by_tick(case, tmp_path, capsys):
     assert "Traceback" not in err
     if code == 3:
         assert "cannot" in err or "short" in err, err
+        assert json.loads(out.read_text())["verdict"] == "impossible"
+        return
+    if code == 4:                        # the effort ran out: no plan, nothing claimed
+        assert "no design" in err and "proven" in err, err
+        assert json.loads(out.read_text())["verdict"] == "not_found"
         return
     assert code == 0, err
     plan = json.loads(out.read_text())

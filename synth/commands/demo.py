@@ -19,7 +19,6 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 def run(args: argparse.Namespace) -> int:
     from ..inventory import data_path, example_path
     from ..pipeline import make_plan
-    from ..wishlist import DEFAULT_BUDGET
     from ..render import Text, show
     from .plan import plan_blocks, write_outputs
 
@@ -27,7 +26,7 @@ def run(args: argparse.Namespace) -> int:
     stock = data_path("bins", f"{EXAMPLE}.yaml")
     out = Path(args.out)
     out.mkdir(parents=True, exist_ok=True)
-    design = make_plan(spec, stock, lacks=DEFAULT_BUDGET)
+    design = make_plan(spec, stock, lacks=True)
     files = argparse.Namespace(json=str(out / "plan.json"), wiring=str(out / "wiring.md"),
                                verilog=str(out / "plan.v"), vcd=str(out / "plan.vcd"),
                                svg=str(out / "timing.svg"), take=False)

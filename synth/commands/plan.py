@@ -25,7 +25,7 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 
 
 def add_output_arguments(parser: argparse.ArgumentParser) -> None:
-    from ..wishlist import DEFAULT_BUDGET
+    from .substitute import add_effort_argument
 
     parser.add_argument("--json", metavar="FILE", help="write the plan as JSON ('-' for standard output)")
     parser.add_argument("--wiring", metavar="FILE", help="write the wiring list as Markdown with checkboxes")
@@ -38,23 +38,48 @@ def add_output_arguments(parser: argparse.ArgumentParser) -> None:
                         help="apply remedies: 'glitches' tries another decode choice, a synchronous "
                              "counter, then gating with the clock's still half (the signal is then "
                              "asserted only in the second half of each tick), and says what it did")
-    parser.add_argument("--lacks", type=seconds, default=DEFAULT_BUDGET, metavar="SECONDS",
-                        help="time for re-planning with one extra chip type to find what the bin "
-                             "lacks, beside the plan's own search (default 1; 0 skips it)")
+    add_effort_argument(parser)
+    # the former seconds option: 0 still skips what-the-bin-lacks, other values only warn
+    parser.add_argument("--lacks", type=seconds, default=None, metavar="SECONDS", help=argparse.SUPPRESS)
     parser.add_argument("--exact", choices=["auto", "yes", "no"], default="auto",
                         help="exact (proven) search where sizes allow (auto), always, or never")
 
 
+LACKS_NOTE = ("--lacks no longer takes seconds: what the bin lacks is searched by work, "
+              "at the --effort level (quick skips it, so does --lacks 0)")
+
+
 def run(args: argparse.Namespace) -> int:
+    from ..errors import NotFoundError, ShortError
     from ..pipeline import make_plan
     from ..render import show
 
-    design = make_plan(args.spec, args.bin, exact=args.exact, fix=args.fix, lacks=args.lacks)
+    try:
+        design = make_plan(args.spec, args.bin, exact=args.exact, fix=args.fix, effort=args.effort,
+                           lacks=args.lacks != 0)
+    except (ShortError, NotFoundError) as exc:
+        _write_verdict(exc, args.json)
+        raise
+    if args.lacks:
+        design.plan.warnings.append(LACKS_NOTE)
     to_stdout = args.json == "-"
     if not to_stdout:
         show(plan_blocks(design))
     write_outputs(design, args)
     return 0
+
+
+def _write_verdict(error, target: str | None) -> None:
+    """``--json`` when no plan was made: the verdict, the reason and everything short."""
+    if not target:
+        return
+    from ..exports.plan_json import failure_to_json, write_failure_json
+    from ..render import print_json
+
+    if target == "-":
+        print_json(failure_to_json(error))
+    else:
+        write_failure_json(error, target)
 
 
 def seconds(text: str) -> float:

@@ -24,6 +24,17 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
                         help="accept the complement of the target (e.g. NAND4 where AND4 was asked)")
     parser.add_argument("--limit", type=int, default=3, help="how many ways to show (default 3)")
     parser.add_argument("--json", action="store_true", help="print JSON for scripts")
+    add_effort_argument(parser)
+
+
+def add_effort_argument(parser: argparse.ArgumentParser) -> None:
+    """``--effort LEVEL``: how much search work (counted, never timed) the mapper may spend."""
+    from ..effort import DEFAULT_EFFORT, EFFORTS
+
+    levels = "; ".join(f"{e.name}: {e.summary}" for e in EFFORTS.values())
+    parser.add_argument("--effort", choices=list(EFFORTS), default=DEFAULT_EFFORT,
+                        help=f"how hard the search tries, counted in work so every run gives the same "
+                             f"answer ({levels}; default {DEFAULT_EFFORT})")
 
 
 def run(args: argparse.Namespace) -> int:
@@ -46,7 +57,8 @@ def run(args: argparse.Namespace) -> int:
     catalog = load_catalog()
     stock = load_bin(args.bin, catalog, supply)
     library = build_library(stock, catalog)
-    ways = substitute(target, library, stock, either_polarity=args.either_polarity, limit=args.limit)
+    ways = substitute(target, library, stock, either_polarity=args.either_polarity, limit=args.limit,
+                      effort=args.effort)
     if args.json:
         print_json(substitute_json(target, ways))
     else:

@@ -1,0 +1,108 @@
+"""The three verdicts (formats.md sections 3 and 5): planned, impossible (exit 3, with a
+reason a person can check), not_found (exit 4, what was proven and what to try).
+
+Outside checks: the monotonicity argument behind "no inverting gate" is checked by a
+brute force written here (AND and OR gates compose to monotone functions, a textbook
+fact: a function that falls where no input falls needs an inversion); exit codes and
+JSON keys are the ones formats.md names.
+"""
+
+from __future__ import annotations
+
+import json
+import re
+
+from synth.cli import main
+
+LOW_HALF = """\
+name: low-half
+cycle: 16
+signals:
+  early:
+    high: [[0, 8]]
+"""
+
+
+def write(tmp_path, name: str, text: str):
+    path = tmp_path / name
+    path.write_text(text)
+    return path
+
+
+def falls_where_no_input_falls(on: set[int], nbits: int) -> tuple[int, int] | None:
+    """Brute force: states a, b with every bit of a set in b, asserted at a and not at b."""
+    for a in range(1 << nbits):
+        for b in range(1 << nbits):
+            if a & b == a and a in on and b not in on:
+                return a, b
+    return None
+
+
+def test_a_bin_without_inverting_means_is_impossible_with_the_reason(tmp_path, capsys):
+    spec = write(tmp_path, "spec.yaml", LOW_HALF)
+    stock = write(tmp_path, "bin.yaml", "parts:\n  4040: 1\n  4081: 2\n  4071: 1\n")
+    out = tmp_path / "plan.json"
+    assert main(["plan", str(spec), "--bin", str(stock), "--json", str(out)]) == 3
+    err = capsys.readouterr().err
+    assert "Traceback" not in err and len(err.strip().splitlines()) == 1
+    assert "inverts" in err
+    doc = json.loads(out.read_text())
+    assert doc["format"] == "binsynth-plan/2" and doc["verdict"] == "impossible"
+    assert doc["short"] and doc["short"][0]["what"] == "inverting gate"
+    assert doc["short"][0]["have"] == 0 and doc["short"][0]["fix"]
+    # the two counter states the reason names really are a fall no monotone circuit makes
+    a, b = map(int, re.search(r"state (\d+) and low at state (\d+)", doc["reason"]).groups())
+    on = set(range(8))                       # asserted while t < 8 (4 counter bits)
+    assert a & b == a and a in on and b not in on
+    assert falls_where_no_input_falls(on, 4) is not None
+
+
+def test_when_the_effort_runs_out_the_verdict_is_not_found(tmp_path, capsys):
+    # a count of 15 needs an AND of four bits; with only 2-input NANDs and a tiny work
+    # budget nothing may be found, but nothing is proven impossible either: exit 4 or a plan
+    spec = write(tmp_path, "spec.yaml", "name: c15\ncycle: 16\nsignals:\n  s:\n    high: [15]\n")
+    stock = write(tmp_path, "bin.yaml", "parts:\n  4040: 1\n  4011: 2\n")
+    out = tmp_path / "plan.json"
+    code = main(["plan", str(spec), "--bin", str(stock), "--json", str(out), "--effort", "quick"])
+    doc = json.loads(out.read_text())
+    assert code in (0, 4)
+    assert doc["verdict"] == ("planned" if code == 0 else "not_found")
+
+
+def test_a_planned_json_says_what_is_known_about_the_minimum(tmp_path, capsys):
+    spec = write(tmp_path, "spec.yaml", "name: c15\ncycle: 16\nsignals:\n  s:\n    high: [15]\n")
+    stock = write(tmp_path, "bin.yaml", "parts:\n  4040: 1\n  4082: 1\n")
+    assert main(["plan", str(spec), "--bin", str(stock), "--json", "-", "--effort", "quick"]) == 0
+    doc = json.loads(capsys.readouterr().out)
+    assert doc["verdict"] == "planned" and doc["short"] == []
+    # one 4-input AND of one 4082 is the only gate needed: one chip, proven by counting
+    assert doc["reason"] == "proven minimum"
+
+
+def test_effort_names_are_checked(tmp_path, capsys):
+    spec = write(tmp_path, "spec.yaml", LOW_HALF)
+    stock = write(tmp_path, "bin.yaml", "parts:\n  4040: 1\n  4011: 1\n")
+    assert main(["plan", str(spec), "--bin", str(stock), "--effort", "forever"]) == 2
+    assert "--effort" in capsys.readouterr().err
+
+
+def parity_functions(nbits: int) -> set[frozenset[int]]:
+    """Brute force: every XOR of some bits, maybe inverted, as its set of true states."""
+    out = set()
+    for mask in range(1 << nbits):
+        for flip in (0, 1):
+            out.add(frozenset(m for m in range(1 << nbits) if (bin(m & mask).count("1") + flip) % 2))
+    return out
+
+
+def test_xor_and_inverters_alone_make_only_parity_functions(tmp_path, capsys):
+    # t < 15 over a 32-tick cycle is no XOR of counter bits (brute force below), and XOR
+    # and NOT gates compose to parity functions only (linear algebra over GF(2))
+    spec = write(tmp_path, "spec.yaml", "name: p\ncycle: 32\nsignals:\n  s0:\n    high: [[0, 15]]\n")
+    stock = write(tmp_path, "bin.yaml", "parts:\n  4040: 1\n  4070: 2\n  4069: 1\n")
+    assert frozenset(range(15)) not in parity_functions(5)
+    assert main(["plan", str(spec), "--bin", str(stock), "--json", "-"]) == 3
+    captured = capsys.readouterr()
+    doc = json.loads(captured.out)
+    assert doc["verdict"] == "impossible" and "parity" in doc["reason"]
+    assert "cannot" in captured.err
