@@ -99,7 +99,7 @@ def make_plan(spec_path: str | Path, bin_path: str | Path, *, catalog=None, exac
     catalog = catalog or load_catalog()
     spec = load_spec(spec_path)
     stock = load_bin(bin_path, catalog, spec.supply)
-    counter_plan = allocate(spec, stock, catalog)
+    counter_plan = _counted_first(spec, stock, catalog, allocate)
     decode = derive(spec, counter_plan, exact=exact)
     library, polarity = mapping_inputs(spec, stock, catalog, counter_plan, decode)
     search = _start_lacks(lacks, effort, decode, counter_plan, library, polarity, stock, catalog)
@@ -119,6 +119,68 @@ def make_plan(spec_path: str | Path, bin_path: str | Path, *, catalog=None, exac
         design.lacks = search.finish(design)
         design.plan.bin_lacks = design.lacks.to_json()
     return design
+
+
+def _counted_first(spec, stock, catalog, allocate):
+    """Every shortage that can be counted before mapping, reported at once.
+
+    Counter stages (the counter allocation), analog switch sections, resistors
+    for the staircases, and resistors and capacitors for the clock oscillator:
+    one ``ShortError`` naming each missing item and what fills it, so a user
+    does not fix one and meet the next.  Returns the counter plan.
+    """
+    from .errors import Shortage, ShortError
+
+    found: list[tuple[str, Shortage]] = []
+    counter_plan = None
+    try:
+        counter_plan = allocate(spec, stock, catalog)
+    except ShortError as exc:
+        if not _other_shortages(spec, stock, catalog):
+            raise
+        found.append((exc.message, Shortage("counter stages", None, None, exc.hint or "")))
+    found += _other_shortages(spec, stock, catalog)
+    if not found:
+        return counter_plan
+    message = "; ".join(text for text, _ in found)
+    fixes = "; ".join(item.fix for _, item in found if item.fix)
+    raise ShortError(f"the bin lacks {len(found)} thing(s) this spec needs: {message}" if len(found) > 1
+                     else message, file=stock.path, hint=fixes or None,
+                     short=tuple(item for _, item in found))
+
+
+def _other_shortages(spec, stock, catalog) -> list:
+    """Switch sections, ladder resistors, oscillator R and C: (text, Shortage) each."""
+    from .errors import Shortage
+
+    found = []
+    wanted = len(spec.switches)
+    if wanted:
+        have = _switch_sections(stock, catalog)
+        if have < wanted:
+            found.append((f"{wanted} switch(es) need {wanted} analog switch section(s) and the bin has "
+                          f"{have}", Shortage("analog switch section", wanted, have,
+                                              f"{-(-(wanted - have) // 3)} x 4053 (triple SPDT)")))
+    users = [f"the staircase(s) {', '.join(sorted(spec.levels))}"] if spec.levels else []
+    if getattr(spec.clock, "source", None) == "oscillator":
+        users.append("the clock oscillator")
+        if not stock.capacitors:
+            found.append(("the clock oscillator needs a capacitor and the bin lists none",
+                          Shortage("capacitor", 1, 0, "capacitors such as 'capacitors: [1n, 10n]'")))
+    if users and not stock.resistors:
+        found.append((f"{' and '.join(users)} need resistors and the bin lists none",
+                      Shortage("resistor", None, 0, "resistors such as 'resistors: [10k, 22k, 47k, 100k]'")))
+    return found
+
+
+def _switch_sections(stock, catalog) -> int:
+    """Spec switches the bin's analog switch chips can serve (SPDT, SPST pairs, muxes)."""
+    total = 0
+    for part_type, count in stock.parts.items():
+        part = catalog.parts[part_type]
+        total += count * (len(part.units_of("spdt")) + len(part.units_of("spst")) // 2
+                          + len(part.units_of("analog_mux")))
+    return total
 
 
 def mapping_inputs(spec, stock, catalog, counter_plan, decode):

@@ -106,3 +106,35 @@ def test_xor_and_inverters_alone_make_only_parity_functions(tmp_path, capsys):
     doc = json.loads(captured.out)
     assert doc["verdict"] == "impossible" and "parity" in doc["reason"]
     assert "cannot" in captured.err
+
+
+def test_every_countable_shortage_comes_at_once_before_mapping(tmp_path, capsys):
+    # counted from the catalog: a 4520 holds two 4-stage binary counters (8 stages, a
+    # 4096-tick cycle needs 12); two switches need two analog switch sections (none on
+    # hand); a ladder and an RC oscillator need resistors, the oscillator a capacitor
+    spec = write(tmp_path, "spec.yaml", """\
+name: short-everything
+clock: {frequency: 20 kHz, source: oscillator}
+cycle: 4096
+signals:
+  strobe:
+    high: "t % 16 == 15"
+levels:
+  stair:
+    bits: [4, 5, 6, 7]
+    kind: r2r
+switches:
+  a_in: {select: strobe, on: stair, off: GND}
+  b_in: {select: strobe, on: stair, off: GND}
+""")
+    stock = write(tmp_path, "bin.yaml", "parts:\n  4520: 1\n  4011: 2\n  40106: 1\n")
+    assert main(["plan", str(spec), "--bin", str(stock), "--json", "-"]) == 3
+    captured = capsys.readouterr()
+    doc = json.loads(captured.out)
+    assert doc["verdict"] == "impossible"
+    assert sorted(item["what"] for item in doc["short"]) == [
+        "analog switch section", "capacitor", "counter stages", "resistor"]
+    assert all(item["fix"] for item in doc["short"])
+    switch = next(item for item in doc["short"] if item["what"] == "analog switch section")
+    assert (switch["need"], switch["have"]) == (2, 0)
+    assert len(captured.err.strip().splitlines()) == 1

@@ -136,15 +136,14 @@ def summary_text(design) -> str:
     for chip in plan.chips:
         roles[chip.role] = roles.get(chip.role, 0) + 1
     parts = ", ".join(f"{n} {role}" for role, n in sorted(roles.items()))
-    if plan.proven_minimal:
-        proof = "proven minimal"
-    elif plan.lower_bound is not None and plan.lower_bound == roles.get("logic"):
-        proof = "proven minimal (the lower bound is met), gates best found"
+    from ..exports.plan_json import verdict_reason
+
+    if not plan.proven_minimal and plan.lower_bound is not None and plan.lower_bound == roles.get("logic"):
+        proof = "proven minimum (the lower bound is met), gates best found"
     else:
-        bound = f", lower bound {plan.lower_bound} chips" if plan.lower_bound is not None else ""
-        proof = f"best found{bound}"
+        proof = verdict_reason(plan)
     return (f"plan {plan.name}: {len(plan.chips)} chips ({parts}), {_gate_count(plan)} gates, "
-            f"logic chips {proof} [{plan.method}]; supply {plan.supply:g} V, "
+            f"logic chips: {proof} [{plan.method}]; supply {plan.supply:g} V, "
             f"counting on the {plan.clock_edge} edge of CLK")
 
 
