@@ -13,7 +13,7 @@ Interface:
   check) or ``NotFoundError`` (the effort ran out; what was proven).
 - ``chips_of(gates, library) -> dict[part, chips]``.
 - ``parse_target(text) -> Target``; ``Construction``; ``substitute(target,
-  library, *, either_polarity=False, limit=5, time_limit=8.0) ->
+  library, *, either_polarity=False, limit=5, effort=None) ->
   list[Construction]`` (ranked by chips, then gates, then depth).
 
 Objective everywhere: chips taken from the bin, then gates, then logic depth,

@@ -32,6 +32,9 @@ def add_output_arguments(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--verilog", metavar="FILE", help="write a structural Verilog model")
     parser.add_argument("--vcd", metavar="FILE", help="write the simulated cycle as a VCD file")
     parser.add_argument("--svg", metavar="FILE", help="write a timing diagram (SVG)")
+    parser.add_argument("--spice", metavar="FILE",
+                        help="write the analog parts (oscillator, power-on reset, staircases, RC delays) as a plain "
+                             "SPICE deck")
     parser.add_argument("--take", action="store_true",
                         help="write the bin back with the parts this plan uses removed (keeps a .bak)")
     parser.add_argument("--fix", action="append", choices=["glitches"], default=[],
@@ -118,6 +121,11 @@ def write_outputs(design, args) -> list[str]:
         from ..exports.svg import write_svg
 
         written.append(str(write_svg(design.trace, plan, args.svg)))
+    if getattr(args, "spice", None):
+        from ..exports.spice import write_spice
+
+        tick_ns = getattr(design.trace, "period_ns", None)
+        written.append(str(write_spice(plan, design.catalog, args.spice, tick_ns=tick_ns)))
     if args.take:
         from ..bintake import take_from_bin
 
@@ -189,7 +197,7 @@ def plan_blocks(design) -> list:
     for name, sw in plan.switches.items():
         blocks.append(Text(f"switch {name}: {sw.get('ref')} section {sw.get('unit', '?')}; common joins "
                            f"{sw.get('when_control_high')} while its control is high"))
-    blocks += oscillator_blocks(plan) + ladder_blocks(plan) + passive_blocks(plan)
+    blocks += oscillator_blocks(plan) + power_on_blocks(plan) + ladder_blocks(plan) + passive_blocks(plan)
     for chip in plan.chips:
         part = plan.part_of(chip.ref)
         rows = [(r.pin, r.function, r.net or "(open)", ", ".join(r.goes_to)) for r in pin_table(plan, chip.ref)]
@@ -325,6 +333,23 @@ def oscillator_blocks(plan) -> list:
                         f"range {hz(osc.f_min)} .. {hz(osc.f_max)}, tolerance {tol}{fmax}",
                         ("thresholds", "VT+ V", "VT- V", "frequency"), rows))
     return blocks
+
+
+def power_on_blocks(plan) -> list:
+    """The power-on reset: where, R and C, and the pulse over the threshold spread."""
+    from ..render import Text
+    from ..units import format_si
+
+    por = getattr(plan, "power_on_reset", None)
+    if por is None:
+        return []
+    where = "a new chip from the bin" if por.opened else "a spare unit of a chip already in the plan"
+    resets = ", ".join(f"{r} pin {p}" for r, p in por.resets)
+    low, typ, high = (format_si(t, "s") for t in por.width_s)
+    return [Text(f"power-on reset: Schmitt {por.part} unit {por.unit} on {por.ref} ({where}); "
+                 f"{', '.join(f'{ref} = {plan.passive(ref).label()}' for ref in por.passives)}; holds "
+                 f"{resets} {por.active} for {typ} after power-up ({low} .. {high} over the threshold "
+                 f"spread; wanted {format_si(por.wanted_s, 's')}): {por.formula}")]
 
 
 def ladder_blocks(plan) -> list:
