@@ -138,3 +138,69 @@ switches:
     switch = next(item for item in doc["short"] if item["what"] == "analog switch section")
     assert (switch["need"], switch["have"]) == (2, 0)
     assert len(captured.err.strip().splitlines()) == 1
+
+
+TIGHT_SPEC = """\
+name: tight-drawer
+supply: 5 V
+clock: {frequency: 20 kHz}
+cycle: 256
+signals:
+  strobe:
+    high: "t % 16 == 15"
+  reset:
+    high: "17 <= t % 64 < 49"
+levels:
+  stair:
+    bits: [4, 5, 6, 7]
+    kind: r2r
+switches:
+  dut_in:
+    select: strobe
+    on: stair
+    off: GND
+"""
+TIGHT_BIN = """\
+parts:
+  4040: 1
+  4073: 1
+  4011: 2
+  40106: 1
+  4053: 1
+resistors: [1k, 1k2, 1k5, 1k8, 2k2, 2k7, 3k3, 3k9, 4k7, 5k6, 6k8, 8k2, 10k, 12k, 15k, 18k, 22k,
+            27k, 33k, 39k, 47k, 56k, 68k, 82k, 100k]
+"""
+
+
+def test_the_window_is_one_bit_xor_a_small_product():
+    # brute force over every tick: 17 <= t % 64 < 49 is b5 XOR (b4 AND (b0|b1|b2|b3))
+    for t in range(256):
+        b = [(t >> i) & 1 for i in range(8)]
+        assert (17 <= t % 64 < 49) == bool(b[5] ^ (b[4] & (b[0] | b[1] | b[2] | b[3])))
+
+
+def hand_design(t: int) -> tuple[bool, bool]:
+    """The hand design the tight drawer fits (written here, not the mapper's): strobe =
+    AND3(AND3(b0, b1, b2), b3, b3); o = NAND(AND3(~b0, ~b1, ~b2), ~b3) (four Schmitt
+    inverters); e = NAND(b4, o); reset = a spare 4053 section selecting e or ~e by b5."""
+    b = [bool((t >> i) & 1) for i in range(8)]
+    strobe = (b[0] and b[1] and b[2]) and b[3]
+    o = not ((not b[0]) and (not b[1]) and (not b[2]) and (not b[3]))
+    e = not (b[4] and o)
+    reset = (not e) if not b[5] else e      # select low: the inverted net, high: e itself
+    return strobe, reset
+
+
+def test_the_hand_design_for_the_tight_drawer_meets_the_spec():
+    # unit count: AND3 x3 (one 4073), NAND2 x2 (of 8 on two 4011), Schmitt inverters x5
+    # (of 6 on one 40106), one spare SPDT of the 4053 (one of three; dut_in takes one)
+    for t in range(256):
+        assert hand_design(t) == (t % 16 == 15, 17 <= t % 64 < 49)
+
+
+def test_a_tight_drawer_that_fits_by_hand_is_never_called_impossible(tmp_path, capsys):
+    spec = write(tmp_path, "spec.yaml", TIGHT_SPEC)
+    stock = write(tmp_path, "bin.yaml", TIGHT_BIN)
+    code = main(["plan", str(spec), "--bin", str(stock), "--json", "-", "--lacks", "0"])
+    doc = json.loads(capsys.readouterr().out)
+    assert code != 3 and doc["verdict"] != "impossible"
