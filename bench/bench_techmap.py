@@ -45,7 +45,7 @@ sys.path.insert(0, str(ROOT))
 from synth.errors import NotFoundError, ShortError  # noqa: E402
 from synth.inventory import Bin, load_catalog  # noqa: E402
 from synth.minimize import Function  # noqa: E402
-from synth.techmap import build_library, map_design  # noqa: E402
+from synth.mapper import build_library, map_design  # noqa: E402
 
 BINS = [("4011",), ("4001",), ("4011", "4069"), ("4081", "4069"), ("4071", "4069"),
         ("4023", "4011"), ("4012", "4001"), ("4073", "4011"), ("4070", "4011"),

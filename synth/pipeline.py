@@ -24,6 +24,9 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any, Iterable
 
+from .effort import effort_named
+from .errors import Shortage, ShortError
+
 
 @dataclass
 class Design:
@@ -130,8 +133,6 @@ def _counted_first(spec, stock, catalog, allocate):
     one ``ShortError`` naming each missing item and what fills it, so a user
     does not fix one and meet the next.  Returns the counter plan.
     """
-    from .errors import Shortage, ShortError
-
     found: list[tuple[str, Shortage]] = []
     counter_plan = None
     try:
@@ -152,8 +153,6 @@ def _counted_first(spec, stock, catalog, allocate):
 
 def _other_shortages(spec, stock, catalog) -> list:
     """Switch sections, ladder resistors, oscillator R and C: (text, Shortage) each."""
-    from .errors import Shortage
-
     found = []
     wanted = len(spec.switches)
     if wanted:
@@ -186,7 +185,7 @@ def _switch_sections(stock, catalog) -> int:
 
 def mapping_inputs(spec, stock, catalog, counter_plan, decode):
     """The library (counter and switch chips reserved) and polarities the mapper sees."""
-    from .techmap import build_library
+    from .mapper import build_library
 
     library = build_library(stock, catalog, reserved=reserved_chips(counter_plan, spec, stock, catalog))
     polarity = switch_polarity(spec)
@@ -197,7 +196,7 @@ def mapping_inputs(spec, stock, catalog, counter_plan, decode):
 
 def map_decode(decode, counter_plan, library, polarity, exact: str, effort=None):
     """The decode mapped onto the library; an async reset decode must be hazard-free."""
-    from .techmap import map_design
+    from .mapper import map_design
 
     return map_design(decode.functions, len(counter_plan.vars), [v.net for v in counter_plan.vars],
                       library, polarity=polarity, cover=decode.cover, exact=exact, effort=effort,
@@ -206,8 +205,6 @@ def map_decode(decode, counter_plan, library, polarity, exact: str, effort=None)
 
 def _start_lacks(wanted: bool, effort, decode, counter_plan, library, polarity, stock, catalog):
     """The what-the-bin-lacks search, begun before the mapping so the two overlap."""
-    from .effort import effort_named
-
     if not wanted or not effort_named(effort).lacks_steps:
         return None
     from .wishlist import start_search

@@ -19,7 +19,7 @@ A target is a gate name -- ``and``, ``nand``, ``or``, ``nor``, ``xor``,
 NOT binds tightest, then AND, XOR, OR; names are letters, digits and ``_``
 starting with a letter.  Gate targets name their inputs a, b, c, ...
 
-Every way is a mapper result (``techmap.map_design``: exact synthesis where
+Every way is a mapper result (``mapper.map_design``: exact synthesis where
 the size allows) over the whole bin or over one or two of its part types, so
 the list shows genuinely different builds: the mapper's best first, then
 cheaper-to-stock alternatives.  The first way carries the mapper's proof
@@ -34,7 +34,8 @@ import itertools
 import re
 from dataclasses import dataclass, field
 
-from .errors import ShortError, UsageError
+from .effort import effort_named
+from .errors import NotFoundError, SafetyCapError, ShortError, UsageError
 from .minimize import Function
 from .network import Network, SignalOut
 
@@ -271,9 +272,7 @@ def substitute(target: Target, library, bin, *, either_polarity: bool = False, l
     The whole bin gets half of the effort level's work, each smaller group of
     part types a twentieth, until the work is spent (work, not seconds, so the
     answer is the same on a busy machine)."""
-    from .effort import effort_named
-    from .errors import NotFoundError, SafetyCapError
-    from .techmap import map_design
+    from .mapper import map_design
 
     total = effort_named(effort).steps
     left = total

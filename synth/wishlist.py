@@ -36,6 +36,7 @@ from dataclasses import dataclass, field
 from typing import Any
 
 from .effort import Effort, effort_named
+from .errors import SafetyCapError, SynthError
 
 LOGIC_CATEGORIES = ("gate", "inverter", "mux", "decoder")
 
@@ -131,8 +132,7 @@ class _SafetyCap(Exception):
 
 def _remap(inputs: _Inputs, part: str, effort: Effort) -> tuple[dict, int] | None:
     """(logic chips by part, gates) with one more ``part`` chip; None if it cannot map."""
-    from .errors import SafetyCapError, SynthError
-    from .techmap import map_design
+    from .mapper import map_design
 
     try:
         network = map_design(inputs.functions, inputs.nvars, list(inputs.var_nets),
@@ -280,7 +280,7 @@ def _mapping_inputs(design):
 
 def candidate_parts(stock, catalog, library) -> list[str]:
     """Logic part types worth adding: one per distinct unit set, kinds the bin lacks first."""
-    from .techmap import cells_of_part
+    from .mapper import cells_of_part
 
     supply = stock.supply
     families = {catalog.parts[p].family for p in stock.parts} or {"4000B"}

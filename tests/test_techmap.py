@@ -31,7 +31,7 @@ from hypothesis import strategies as st
 from synth.cli import main
 from synth.inventory import Bin, load_catalog
 from synth.minimize import Function
-from synth.techmap import build_library, map_design
+from synth.mapper import build_library, map_design
 
 ROOT = Path(__file__).resolve().parent.parent
 CATALOG = load_catalog()

@@ -9,6 +9,8 @@ from __future__ import annotations
 
 import argparse
 
+from ..errors import NotFoundError, ShortError
+
 NAME = "plan"
 HELP = "plan the circuit for a spec from the chips in a bin: chips, pins, wiring list and checks"
 
@@ -53,7 +55,6 @@ LACKS_NOTE = ("--lacks no longer takes seconds: what the bin lacks is searched b
 
 
 def run(args: argparse.Namespace) -> int:
-    from ..errors import NotFoundError, ShortError
     from ..pipeline import make_plan
     from ..render import show
 

@@ -10,6 +10,8 @@ from __future__ import annotations
 
 import argparse
 
+from ..effort import DEFAULT_EFFORT, EFFORTS
+
 NAME = "substitute"
 HELP = ("the cheapest ways to build a gate the bin lacks (nand4, and8, xor2, nor3, inv) or a "
         "boolean expression ('a & ~b | c') from the bin's gates, with pin-level wiring")
@@ -29,8 +31,6 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 
 def add_effort_argument(parser: argparse.ArgumentParser) -> None:
     """``--effort LEVEL``: how much search work (counted, never timed) the mapper may spend."""
-    from ..effort import DEFAULT_EFFORT, EFFORTS
-
     levels = "; ".join(f"{e.name}: {e.summary}" for e in EFFORTS.values())
     parser.add_argument("--effort", choices=list(EFFORTS), default=DEFAULT_EFFORT,
                         help=f"how hard the search tries, counted in work so every run gives the same "
@@ -42,7 +42,7 @@ def run(args: argparse.Namespace) -> int:
     from ..inventory import load_bin, load_catalog
     from ..render import print_json, show
     from ..substitute import parse_target, substitute
-    from ..techmap import build_library
+    from ..mapper import build_library
     from ..units import parse_quantity
 
     target = parse_target(args.target)
