@@ -19,14 +19,15 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 def run(args: argparse.Namespace) -> int:
     from ..inventory import data_path, example_path
     from ..pipeline import make_plan
-    from ..render import Text, show
+    from ..render import Text, progress, show
     from .plan import plan_blocks, write_outputs
 
     spec = example_path(f"{EXAMPLE}.yaml")
     stock = data_path("bins", f"{EXAMPLE}.yaml")
     out = Path(args.out)
     out.mkdir(parents=True, exist_ok=True)
-    design = make_plan(spec, stock, lacks=True)
+    with progress(f"planning {spec.name}"):
+        design = make_plan(spec, stock, lacks=True)
     files = argparse.Namespace(json=str(out / "plan.json"), wiring=str(out / "wiring.md"),
                                verilog=str(out / "plan.v"), vcd=str(out / "plan.vcd"),
                                svg=str(out / "timing.svg"), take=False)

@@ -8,6 +8,8 @@ args)`` (the files asked for), shared with ``binsynth demo``.
 from __future__ import annotations
 
 import argparse
+import sys
+from pathlib import Path
 
 from ..errors import NotFoundError, ShortError
 
@@ -56,16 +58,18 @@ LACKS_NOTE = ("--lacks no longer takes seconds: what the bin lacks is searched b
 
 def run(args: argparse.Namespace) -> int:
     from ..pipeline import make_plan
-    from ..render import show
+    from ..render import progress, show
 
     try:
-        design = make_plan(args.spec, args.bin, exact=args.exact, fix=args.fix, effort=args.effort,
-                           lacks=args.lacks != 0)
+        with progress(f"planning {Path(args.spec).name}"):
+            design = make_plan(args.spec, args.bin, exact=args.exact, fix=args.fix, effort=args.effort,
+                               lacks=args.lacks != 0)
     except (ShortError, NotFoundError) as exc:
         _write_verdict(exc, args.json)
         raise
     if args.lacks:
         design.plan.warnings.append(LACKS_NOTE)
+    show_spec_notes(design.spec)
     to_stdout = args.json == "-"
     if not to_stdout:
         show(plan_blocks(design))
@@ -84,6 +88,12 @@ def _write_verdict(error, target: str | None) -> None:
         print_json(failure_to_json(error))
     else:
         write_failure_json(error, target)
+
+
+def show_spec_notes(spec) -> None:
+    """How the spec was read (an earlier key name, ...), one line each on stderr."""
+    for note in spec.notes:
+        sys.stderr.write(f"binsynth: {note}\n")
 
 
 def seconds(text: str) -> float:
@@ -191,6 +201,7 @@ def _asserted_expression(signal) -> str:
 
 
 def plan_blocks(design) -> list:
+    from ..exports.wiring import driver_first
     from ..netlist import pin_table, wire_list
     from ..render import Table, Text
 
@@ -211,8 +222,8 @@ def plan_blocks(design) -> list:
     if plan.decoupling:
         blocks.append(Table("decoupling (add one per chip, close to its supply pins)", ("chip", "capacitor"),
                             list(plan.decoupling)))
-    wires = wire_list(plan)
-    blocks.append(Table(f"wiring list by net ({len(wires)} wires)", ("net", "from", "to"),
+    wires = driver_first(wire_list(plan))
+    blocks.append(Table(f"wiring list, driver to load ({len(wires)} wires)", ("net", "from", "to"),
                         [(w.net, _end(plan, w.frm), _end(plan, w.to)) for w in wires]))
     if plan.glitches:
         blocks.append(Table("glitches (a signal briefly wrong on a tick entry; one line per signal and cause)",
