@@ -30,7 +30,8 @@ def run(args: argparse.Namespace) -> int:
         design = make_plan(spec, stock, lacks=True)
     files = argparse.Namespace(json=str(out / "plan.json"), wiring=str(out / "wiring.md"),
                                verilog=str(out / "plan.v"), vcd=str(out / "plan.vcd"),
-                               svg=str(out / "timing.svg"), take=False)
+                               svg=str(out / "timing.svg"), report=str(out / "report.html"),
+                               take=False)
     written = write_outputs(design, files)
     blocks = [Text(f"demo: {spec.name} planned from the bin {stock.name}")] + plan_blocks(design)
     blocks.append(Text("files written: " + ", ".join(written)))

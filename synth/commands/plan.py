@@ -39,6 +39,9 @@ def add_output_arguments(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--spice", metavar="FILE",
                         help="write the analog parts (oscillator, power-on reset, staircases, RC delays) as a plain "
                              "SPICE deck")
+    parser.add_argument("--report", metavar="FILE",
+                        help="write one self-contained HTML page to build from: breadboard layout, "
+                             "wiring checklist, pin maps, gate diagrams, timing")
     parser.add_argument("--take", action="store_true",
                         help="write the bin back with the parts this plan uses removed (keeps a .bak)")
     parser.add_argument("--fix", action="append", choices=["glitches"], default=[],
@@ -137,6 +140,10 @@ def write_outputs(design, args) -> list[str]:
 
         tick_ns = getattr(design.trace, "period_ns", None)
         written.append(str(write_spice(plan, design.catalog, args.spice, tick_ns=tick_ns)))
+    if getattr(args, "report", None):
+        from ..exports.report import write_report
+
+        written.append(str(write_report(design, args.report)))
     if args.take:
         from ..bintake import take_from_bin
 
