@@ -19,7 +19,6 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 def run(args: argparse.Namespace) -> int:
     from ..inventory import data_path, example_path
     from ..pipeline import make_plan
-    from ..wishlist import DEFAULT_BUDGET
     from ..render import Text, progress, show
     from .plan import plan_blocks, write_outputs
 
@@ -28,7 +27,7 @@ def run(args: argparse.Namespace) -> int:
     out = Path(args.out)
     out.mkdir(parents=True, exist_ok=True)
     with progress(f"planning {spec.name}"):
-        design = make_plan(spec, stock, lacks=DEFAULT_BUDGET)
+        design = make_plan(spec, stock, lacks=True)
     files = argparse.Namespace(json=str(out / "plan.json"), wiring=str(out / "wiring.md"),
                                verilog=str(out / "plan.v"), vcd=str(out / "plan.vcd"),
                                svg=str(out / "timing.svg"), report=str(out / "report.html"),
