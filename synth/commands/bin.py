@@ -23,10 +23,13 @@ def run(args: argparse.Namespace) -> int:
     from ..render import print_json, show
     from ..units import parse_quantity
 
+    from ..limits import check_supply
+
     try:
         supply = parse_quantity(args.supply, "V")
     except ValueError as exc:
         raise UsageError(f"--supply: {exc}") from None
+    check_supply(supply, "--supply", error=UsageError)
     catalog = load_catalog()
     stock = load_bin(args.bin, catalog, supply)
     if args.diff:

@@ -34,13 +34,16 @@ def run(args: argparse.Namespace) -> int:
     from ..techmap import build_library
     from ..units import parse_quantity
 
+    from ..limits import check_expression, check_supply
+
+    check_expression(args.target, "target", error=UsageError,
+                     fix="a gate of at most 8 inputs needs a short expression; write a shorter one")
     target = parse_target(args.target)
     try:
         supply = parse_quantity(args.supply, "V")
     except ValueError as exc:
         raise UsageError(f"--supply: {exc}") from None
-    if supply <= 0:
-        raise UsageError(f"--supply: expected a positive voltage, got {args.supply!r}")
+    check_supply(supply, "--supply", error=UsageError)
     if args.limit < 1:
         raise UsageError(f"--limit: expected at least 1, got {args.limit}")
     catalog = load_catalog()
