@@ -6,6 +6,8 @@ Interface:
   ``rc_formula(...) -> str`` (the same with the numbers written out)
 - ``thresholds_at(part_thresholds, supply) -> dict`` (catalog table -> one supply)
 - ``plain_input_thresholds(supply) -> dict`` (a non-Schmitt CMOS input)
+- ``choose_receiver(bin_, catalog, wanted, supply) -> Receiver`` (the input an RC
+  delay drives: a Schmitt part from the bin, the one asked for, or a plain input)
 - ``rc_delay_design(wanted_s, *, supply, thresholds, resistors, capacitors,
   fixed_r=None, fixed_c=None, edge="rising") -> DelayDesign``
 - ``schmitt_period(r, c, supply, vt_plus, vt_minus) -> float``
@@ -37,8 +39,10 @@ import itertools
 import math
 import random
 from dataclasses import dataclass, field
+from typing import NamedTuple
 
-from .errors import CatalogError, InputError, ShortError
+from .errors import CatalogError, InputError, ShortError, UsageError
+from .inventory import Bin, Catalog
 from .units import format_si
 
 __all__ = [
@@ -234,6 +238,57 @@ def _check_thresholds(supply: float, thresholds: dict) -> None:
             if not 0 < row[name] < supply:
                 raise InputError(f"expected {key} {name} between 0 V and the {supply:g} V supply, "
                                  f"got {row[name]:g} V", hint="check the supply or the catalog thresholds")
+
+
+# ---------------------------------------------------------------- the receiving input
+
+class Receiver(NamedTuple):
+    """The input an RC delay drives: a part type (None: a plain CMOS input),
+    its thresholds at the supply (``thresholds_at`` / ``plain_input_thresholds``)
+    and notes for the user."""
+
+    part: str | None
+    thresholds: dict
+    notes: list[str]
+
+
+def choose_receiver(bin_: Bin, catalog: Catalog, wanted: str | None, supply: float) -> Receiver:
+    """The input an RC delay should drive, from the bin.
+
+    ``wanted`` is the user's choice (a marking or type, or ``plain``); without
+    one a Schmitt part on hand is taken, inverters first, because a slow RC
+    edge into a plain input makes it draw current and may oscillate (common
+    practice).  Raises ``ShortError`` when nothing in the bin runs at the
+    supply or the wanted part is missing, ``UsageError`` for an unknown part.
+    """
+    families = {catalog.parts[t].family for t in bin_.parts}
+    band = catalog.plain_input_levels(families, supply)
+    if not bin_.parts:
+        raise ShortError(f"no part in the bin {bin_.path} runs at {supply:g} V to drive or "
+                         "receive the delay", hint="check --supply, or add a part rated for it")
+    if wanted and wanted.lower() == "plain":
+        return Receiver(None, plain_input_thresholds(supply, band), [])
+    if wanted:
+        part_type = catalog.normalise(wanted)
+        if part_type is None:
+            close = catalog.closest(wanted)
+            raise UsageError(f"--part: unknown part {wanted!r}",
+                             hint=f"closest known types: {', '.join(close)}" if close else None)
+        if bin_.count(part_type) == 0:
+            raise ShortError(f"the bin {bin_.path} has no usable {part_type} at {supply:g} V",
+                             hint="add it to the bin, or leave out --part to use what is there")
+        part = catalog.parts[part_type]
+        if part.thresholds:
+            return Receiver(part_type, thresholds_at(part.thresholds, supply), [])
+        return Receiver(part_type, plain_input_thresholds(supply, band), [
+            f"{part_type} has no Schmitt thresholds in the catalog: treated as a plain CMOS input"])
+    schmitt = [t for t in bin_.parts if catalog.parts[t].thresholds]
+    if schmitt:
+        part_type = min(schmitt, key=lambda t: (catalog.parts[t].category != "inverter", t))
+        return Receiver(part_type, thresholds_at(catalog.parts[part_type].thresholds, supply), [])
+    return Receiver(None, plain_input_thresholds(supply, band), [
+        "no Schmitt-input part (40106, 74HC14, 4093, 74HC132) in the bin: the delay drives a "
+        "plain CMOS input"])
 
 
 # ---------------------------------------------------------------- choosing R and C

@@ -3,19 +3,32 @@
 Interface: ``main(argv=None) -> int``.  Errors raised on purpose
 (``SynthError``) become one line on stderr and their exit code (2 bad input,
 3 the bin is short, 1 a failed self-check); nothing here prints a traceback
-for them.  A stray exception is reported as an internal error, exit 1.
+for them.  Any other exception is a bug: one line names the file its
+traceback was saved to (``save_crash_report``) and the exit code is 70
+(``EXIT_INTERNAL``, the format contract's internal error; BSD sysexits.h
+calls it EX_SOFTWARE).  ``--debug`` lets the traceback through instead.
 """
 
 from __future__ import annotations
 
 import argparse
 import importlib
+import os
+import platform
 import sys
+import tempfile
+import traceback
+from pathlib import Path
 from types import ModuleType
 
 from . import __version__
 from .commands import COMMANDS
 from .errors import SynthError
+
+EXIT_INTERNAL = 70
+"""Exit code of an unexpected exception (format contract section 5)."""
+
+DEBUG_HELP = "on an internal error, show the Python traceback instead of saving it to a file"
 
 
 class _Parser(argparse.ArgumentParser):
@@ -42,21 +55,71 @@ def build_parser() -> argparse.ArgumentParser:
     parser = _Parser(prog="binsynth", description=(
         "Waveforms in clock ticks + the chips in your drawer -> a circuit you can build."))
     parser.add_argument("--version", action="version", version=f"binsynth {__version__}")
+    parser.add_argument("--debug", action="store_true", help=DEBUG_HELP)
+    parser.set_defaults(_run=None)
     sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
     for name, module in _command_modules().items():
         child = sub.add_parser(name, help=module.HELP, description=module.HELP)
         module.add_arguments(child)
+        # accepted after the command too; SUPPRESS keeps a flag given before it
+        child.add_argument("--debug", action="store_true", default=argparse.SUPPRESS, help=DEBUG_HELP)
         child.set_defaults(_run=module.run)
     return parser
 
 
+def crash_folder() -> Path:
+    """Where tracebacks go: ``$XDG_CACHE_HOME/binsynth`` (XDG Base Directory
+    specification; ``~/.cache`` when unset), or the system temp folder when
+    that cannot be created."""
+    base = os.environ.get("XDG_CACHE_HOME") or str(Path.home() / ".cache")
+    folder = Path(base) / "binsynth"
+    try:
+        folder.mkdir(parents=True, exist_ok=True)
+    except OSError:
+        return Path(tempfile.gettempdir())
+    return folder
+
+
+def save_crash_report(exc: BaseException, argv: list[str]) -> Path:
+    """Write the traceback, version and command line to a new file; return its path."""
+    text = "".join([
+        f"binsynth {__version__}, Python {platform.python_version()} on {platform.platform()}\n",
+        f"command: binsynth {' '.join(argv)}\n\n",
+        *traceback.format_exception(exc),
+    ])
+    for folder in (crash_folder(), Path(tempfile.gettempdir())):
+        try:
+            handle, name = tempfile.mkstemp(prefix="binsynth-internal-error-", suffix=".txt",
+                                            dir=folder)
+        except OSError:
+            continue
+        with os.fdopen(handle, "w", encoding="utf-8") as out:
+            out.write(text)
+        return Path(name)
+    raise OSError("no writable folder for the error report")
+
+
+def report_internal_error(exc: BaseException, argv: list[str]) -> int:
+    """One line on stderr saying where the details are; the internal-error exit code."""
+    try:
+        saved = save_crash_report(exc, argv)
+    except OSError as save_error:
+        sys.stderr.write(f"binsynth: internal error ({type(exc).__name__}); details could not be "
+                         f"saved ({save_error}); run again with --debug to see them\n")
+    else:
+        sys.stderr.write(f"binsynth: internal error; details saved to {saved}, "
+                         "please attach it to a report\n")
+    return EXIT_INTERNAL
+
+
 def main(argv: list[str] | None = None) -> int:
+    argv = list(sys.argv[1:] if argv is None else argv)
     parser = build_parser()
     try:
         args = parser.parse_args(argv)
     except SystemExit as exc:
         return int(exc.code or 0)
-    if not getattr(args, "_run", None):
+    if args._run is None:
         parser.print_help()
         return 2
     try:
@@ -68,11 +131,15 @@ def main(argv: list[str] | None = None) -> int:
         sys.stderr.write("binsynth: interrupted\n")
         return 130
     except (FileNotFoundError, PermissionError, IsADirectoryError, NotADirectoryError) as exc:
-        where = f"{exc.filename}: " if getattr(exc, "filename", None) else ""
+        where = f"{exc.filename}: " if exc.filename else ""
         sys.stderr.write(f"binsynth: {where}{exc.strerror or exc} (check the path and its permissions)\n")
         return 2
     except BrokenPipeError:
         return 0
+    except Exception as exc:  # noqa: BLE001 - every other exception is a bug to report
+        if args.debug:
+            raise
+        return report_internal_error(exc, argv)
 
 
 if __name__ == "__main__":  # pragma: no cover

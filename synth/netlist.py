@@ -9,7 +9,8 @@ driver per net); ``counter_levels(counter, t)``, ``simulate_nets(plan)`` and
 ``self_check(plan, spec_or_delivered)``; ``PinRow`` and ``pin_table(plan, ref)``;
 ``Wire`` and ``wire_list(plan)`` (what a person builds, one wire per pair of
 endpoints); ``endpoint_text(plan, ref, pin)``; ``ref_key(ref)``;
-``verilog_module_name(name)``; ``Passive`` (a resistor or capacitor of the
+``verilog_module_name(name)`` (kept here for the exports; owned by
+``verilog_names``); ``Passive`` (a resistor or capacitor of the
 plan: its ref ``R1``/``C1`` and the nets at its two ends, which appear in
 ``Plan.nets`` as pins 1 and 2 of that ref) and ``is_passive(ref)``.
 
@@ -28,6 +29,7 @@ from typing import Any, Literal, NamedTuple
 from .errors import InternalError
 from .inventory import Part
 from .network import Network, evaluate_words
+from .verilog_names import VERILOG_KEYWORDS, verilog_module_name  # noqa: F401 - re-exported
 
 RAIL_NETS = ("VDD", "VSS")
 Role = Literal["counter", "logic", "switch", "oscillator"]
@@ -606,43 +608,3 @@ def wire_list(plan: Plan) -> list[Wire]:
         if net in plan.external:
             wires.append(Wire(net, anchor, plan.external[net]))
     return sorted(wires, key=lambda w: (ref_key(w.frm[0]), w.frm[1], str(w.to)))
-
-
-# ---------------------------------------------------------------- names
-
-# IEEE 1364-2001 reserved words (Annex B; from memory).
-VERILOG_KEYWORDS = frozenset("""
-always and assign automatic begin buf bufif0 bufif1 case casex casez cell cmos config deassign
-default defparam design disable edge else end endcase endconfig endfunction endgenerate
-endmodule endprimitive endspecify endtable endtask event for force forever fork function
-generate genvar highz0 highz1 if ifnone incdir include initial inout input instance integer
-join large liblist library localparam macromodule medium module nand negedge nmos nor
-noshowcancelled not notif0 notif1 or output parameter pmos posedge primitive pull0 pull1
-pulldown pullup pulsestyle_ondetect pulsestyle_onevent rcmos real realtime reg release repeat
-rnmos rpmos rtran rtranif0 rtranif1 scalared showcancelled signed small specify specparam
-strong0 strong1 supply0 supply1 table task time tran tranif0 tranif1 tri tri0 tri1 triand
-trior trireg unsigned use vectored wait wand weak0 weak1 while wire wor xnor xor
-""".split())
-
-
-def verilog_module_name(name: str) -> str:
-    """A legal Verilog-2001 simple identifier made from a spec name.
-
-    Letters, digits and ``_`` only, never a leading digit, never a keyword
-    (IEEE 1364-2001 section 3.7; from memory).
-
-    >>> verilog_module_name("sh-bench")
-    'sh_bench'
-    >>> verilog_module_name("4-phase stepper")
-    'm_4_phase_stepper'
-    >>> verilog_module_name("module"), verilog_module_name("--")
-    ('module_', 'binsynth_plan')
-    """
-    text = re.sub(r"[^A-Za-z0-9_]+", "_", name.strip()).strip("_")
-    if not text:
-        return "binsynth_plan"
-    if text[0].isdigit():
-        text = f"m_{text}"
-    if text in VERILOG_KEYWORDS:
-        text += "_"
-    return text

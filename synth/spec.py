@@ -100,6 +100,7 @@ from .expr import ExprError, ticks_where
 from .limits import (CYCLE_TICKS, NAME_CHARS, SIGNALS, TICK_CELLS, check_at_most, check_expression,
                      check_supply, describe, listed)
 from .units import format_si, parse_quantity
+from .verilog_names import VERILOG_KEYWORDS
 from .yamlsrc import MarkedDict, MarkedList, load_yaml, parse_yaml
 
 __all__ = [
@@ -129,21 +130,6 @@ SWITCH_KEYS = ("select", "on", "off")
 POLARITIES = ("high", "low", "free")
 CLOCK_SOURCES = ("external", "oscillator")
 POWER_NETS = ("GND", "VDD", "VSS")
-
-# IEEE 1364-2001 reserved words (Annex B), plus uwire from 1364-2005; from memory.
-VERILOG_KEYWORDS = frozenset("""
-always and assign automatic begin buf bufif0 bufif1 case casex casez cell cmos config
-deassign default defparam design disable edge else end endcase endconfig endfunction
-endgenerate endmodule endprimitive endspecify endtable endtask event for force forever
-fork function generate genvar highz0 highz1 if ifnone incdir include initial inout input
-instance integer join large liblist library localparam macromodule medium module nand
-negedge nmos nor noshowcancelled not notif0 notif1 or output parameter pmos posedge
-primitive pull0 pull1 pulldown pullup pulsestyle_onevent pulsestyle_ondetect rcmos real
-realtime reg release repeat rnmos rpmos rtran rtranif0 rtranif1 scalared showcancelled
-signed small specify specparam strong0 strong1 supply0 supply1 table task time tran
-tranif0 tranif1 tri tri0 tri1 triand trior trireg unsigned use uwire vectored wait wand
-weak0 weak1 while wire wor xnor xor
-""".split())
 
 _IDENTIFIER = re.compile(r"[A-Za-z_][A-Za-z0-9_]*\Z")
 _DIGITS = re.compile(r"[+-]?\d+\Z")

@@ -12,59 +12,17 @@ from __future__ import annotations
 
 import io
 import xml.etree.ElementTree as ET
-from dataclasses import dataclass, field
 from types import SimpleNamespace
 
 import pytest
+from conftest import Chip, CounterPlan, Var
 
 from synth import timing
 from synth.exports.svg import trace_to_svg, write_svg
 from synth.exports.vcd import trace_to_vcd, vcd_scopes, write_vcd
-from synth.inventory import load_catalog
 from synth.network import Gate, Network, SignalOut
 
 SVG = "{http://www.w3.org/2000/svg}"
-
-
-@dataclass
-class Var:
-    index: int
-    net: str
-    chip: int
-    unit: str
-    pin: int
-    pin_name: str
-    weight: int | None
-
-
-@dataclass
-class Chip:
-    ref: str
-    part: str
-    unit: str
-    clock_net: str
-    clock_pin: int
-    clock_edge: str
-    reset_pin: int | None
-    reset_net: str
-    ties: dict = field(default_factory=dict)
-
-
-@dataclass
-class CounterPlan:
-    chips: list
-    vars: list
-    cycle: int
-    state_of_tick: tuple
-    edge: str
-    synchronous: bool
-    reset: object = None
-    unreachable: frozenset = frozenset()
-
-
-@pytest.fixture(scope="module")
-def catalog():
-    return load_catalog()
 
 
 @pytest.fixture(scope="module")

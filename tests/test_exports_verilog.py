@@ -18,14 +18,15 @@ from __future__ import annotations
 import re
 import shutil
 import subprocess
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from pathlib import Path
 
 import pytest
+from conftest import Chip, CounterPlan, Reset, Var
 
 from synth import timing
 from synth.exports.verilog import plan_to_verilog, spec_signals, verilog_names, write_verilog
-from synth.inventory import data_path, example_path, load_catalog
+from synth.inventory import data_path, example_path
 from synth.netlist import ChipInstance, Plan, verilog_module_name
 from synth.network import Gate, Network, SignalOut
 
@@ -34,59 +35,7 @@ needs_iverilog = pytest.mark.skipif(
     reason="Icarus Verilog is not installed (Debian package iverilog; .ci/run installs it)")
 
 
-@pytest.fixture(scope="module")
-def catalog():
-    return load_catalog()
-
-
 # ---------------------------------------------------------------- stand-in counter plans
-
-@dataclass
-class Var:
-    index: int
-    net: str
-    chip: int
-    unit: str
-    pin: int
-    pin_name: str
-    weight: int | None
-
-
-@dataclass
-class Chip:
-    ref: str
-    part: str
-    unit: str
-    clock_net: str
-    clock_pin: int
-    clock_edge: str
-    reset_pin: int | None
-    reset_net: str
-    ties: dict = field(default_factory=dict)
-
-
-@dataclass
-class Reset:
-    name: str
-    net: str
-    state: int
-    active: str
-    synchronous: bool = False
-    direct: bool = False
-    direct_pin: tuple | None = None
-
-
-@dataclass
-class CounterPlan:
-    chips: list
-    vars: list
-    cycle: int
-    state_of_tick: tuple
-    edge: str
-    synchronous: bool
-    reset: object = None
-    unreachable: frozenset = frozenset()
-
 
 def make_plan(name: str, cp: CounterPlan, network: Network, units: dict[str, dict[str, str]],
               parts: dict[str, str], catalog, supply: float = 5.0) -> Plan:

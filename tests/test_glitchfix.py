@@ -22,7 +22,6 @@ import pytest
 from synth import timing
 from synth.exports.plan_json import plan_to_json
 from synth.exports.verilog import spec_signals, verilog_names, write_verilog
-from synth.inventory import load_catalog
 from synth.netlist import simulate_ticks, verilog_module_name
 from synth.pipeline import make_plan
 
@@ -32,11 +31,6 @@ needs_iverilog = pytest.mark.skipif(
 
 SPEC = "name: zero-strobe\nsupply: 5 V\nclock: {frequency: 100 kHz}\ncycle: 16\nsignals:\n  zero: {high: [0]}\n"
 ZERO_SPIKES = [2, 4, 8]          # common practice (see the module text)
-
-
-@pytest.fixture(scope="module")
-def catalog():
-    return load_catalog()
 
 
 def _files(tmp_path, parts: dict[str, int], passives: str = ""):

@@ -11,69 +11,17 @@ Counter plans are small stand-ins with the fields ``synth.counter`` hands on.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 
 import pytest
+from conftest import Chip, CounterPlan, Reset, Var
 
 from synth.errors import InternalError
-from synth.inventory import load_catalog
 from synth.network import Gate, Network, SignalOut
 from synth import timing
 
 
-@pytest.fixture(scope="module")
-def catalog():
-    return load_catalog()
-
-
 # ---------------------------------------------------------------- stand-ins
-
-@dataclass
-class Var:
-    index: int
-    net: str
-    chip: int
-    unit: str
-    pin: int
-    pin_name: str
-    weight: int | None
-
-
-@dataclass
-class Chip:
-    ref: str
-    part: str
-    unit: str
-    clock_net: str
-    clock_pin: int
-    clock_edge: str
-    reset_pin: int | None
-    reset_net: str
-    ties: dict = field(default_factory=dict)
-
-
-@dataclass
-class Reset:
-    name: str
-    net: str
-    state: int
-    active: str
-    synchronous: bool = False
-    direct: bool = False
-    direct_pin: tuple | None = None
-
-
-@dataclass
-class CounterPlan:
-    chips: list
-    vars: list
-    cycle: int
-    state_of_tick: tuple
-    edge: str
-    synchronous: bool
-    reset: object = None
-    unreachable: frozenset = frozenset()
-
 
 STAGE_PINS = {  # stage k -> package pin, as in the catalog (datasheet pinouts)
     "4040": {1: 9, 2: 7, 3: 6, 4: 5},

@@ -1,8 +1,8 @@
 """``binsynth delay TIME --bin BIN``: R and C from the bin for an RC delay between two stages.
 
 Interface: ``NAME``, ``HELP``, ``add_arguments(parser)``, ``run(args) -> int``;
-``choose_receiver(bin_, catalog, part_arg, supply) -> (type or None, thresholds)``
-and ``delay_blocks(...)`` / ``delay_json(...)`` for the two ways of printing.
+``delay_blocks(...)`` / ``delay_json(...)`` for the two ways of printing.  The
+receiving input is chosen by ``analog.choose_receiver``.
 
 The receiving stage is a Schmitt input from the bin (any part whose catalog
 entry has ``thresholds``: 40106, 74HC14, 4093, 74HC132 ...), inverters first;
@@ -35,7 +35,7 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
-    from ..analog import rc_delay_design
+    from ..analog import choose_receiver, rc_delay_design
     from ..inventory import load_bin, load_catalog
     from ..render import print_json, show
 
@@ -69,41 +69,6 @@ def _quantity(text: str, unit: str, what: str) -> float:
     if value <= 0:
         raise UsageError(f"{what}: expected a positive value, got {text!r}")
     return value
-
-
-def choose_receiver(bin_, catalog, part_arg: str | None, supply: float):
-    """The receiving part type (None: plain input), its thresholds, and notes for the user."""
-    from ..analog import plain_input_thresholds, thresholds_at
-    from ..errors import ShortError, UsageError
-
-    families = {catalog.parts[t].family for t in bin_.parts}
-    band = catalog.plain_input_levels(families, supply)
-    if not bin_.parts:
-        raise ShortError(f"no part in the bin {bin_.path} runs at {supply:g} V to drive or "
-                         "receive the delay", hint="check --supply, or add a part rated for it")
-    if part_arg and part_arg.lower() == "plain":
-        return None, plain_input_thresholds(supply, band), []
-    if part_arg:
-        part_type = catalog.normalise(part_arg)
-        if part_type is None:
-            close = catalog.closest(part_arg)
-            raise UsageError(f"--part: unknown part {part_arg!r}",
-                             hint=f"closest known types: {', '.join(close)}" if close else None)
-        if bin_.count(part_type) == 0:
-            raise ShortError(f"the bin {bin_.path} has no usable {part_type} at {supply:g} V",
-                             hint="add it to the bin, or leave out --part to use what is there")
-        part = catalog.parts[part_type]
-        if part.thresholds:
-            return part_type, thresholds_at(part.thresholds, supply), []
-        return part_type, plain_input_thresholds(supply, band), [
-            f"{part_type} has no Schmitt thresholds in the catalog: treated as a plain CMOS input"]
-    schmitt = [t for t in bin_.parts if catalog.parts[t].thresholds]
-    if schmitt:
-        part_type = min(schmitt, key=lambda t: (catalog.parts[t].category != "inverter", t))
-        return part_type, thresholds_at(catalog.parts[part_type].thresholds, supply), []
-    return None, plain_input_thresholds(supply, band), [
-        "no Schmitt-input part (40106, 74HC14, 4093, 74HC132) in the bin: the delay drives a "
-        "plain CMOS input"]
 
 
 def _unit_pins(part, index: int):
