@@ -33,7 +33,7 @@ from synth.cli import main
 from synth.spec import SIGNAL_KEYS
 
 ASSERTED = "asserted" if "asserted" in SIGNAL_KEYS else "high"
-EXAMPLES = int(os.environ.get("BINSYNTH_FUZZ_EXAMPLES", "60"))
+EXAMPLES = int(os.environ.get("BINSYNTH_FUZZ_EXAMPLES", "100"))
 FUZZ = settings(max_examples=EXAMPLES, derandomize=True, deadline=None, database=None,
                 suppress_health_check=[HealthCheck.too_slow, HealthCheck.data_too_large])
 
@@ -182,5 +182,7 @@ def test_odd_command_line_arguments(workdir, template, value):
     argv = [part.format(spec=spec, bin=stock, x=value) if "{" in part else part for part in template]
     if argv[0] == "plan" and value not in ("", "-"):
         argv = argv + ["--wiring", ""]          # a plan is only run up to the path check
-    _run(argv, value)
+    as_path = template[-1] == "{x}" and template[-2] in ("--bin", "--diff") or template[:2] == ["bin", "{x}"] \
+        or template[1] == "{x}" and template[0] == "decode" or "--json" in template
+    _run(argv, *([] if as_path else [value]))       # a file's path is named in full, as given
     assert spec.read_text(encoding="utf-8") == _dump(SPEC)
