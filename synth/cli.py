@@ -34,7 +34,8 @@ DEBUG_HELP = "on an internal error, show the Python traceback instead of saving 
 
 
 _LONG_QUOTE = re.compile("'([^']{%d,})'" % (ECHO_CHARS + 1))
-"""A value argparse quotes whole in its message; cut to what ``limits.shown`` repeats."""
+_LONG_WORD = re.compile("[^\\s']{%d,}" % (ECHO_CHARS + 1))
+"""A value argparse quotes (or lists bare) whole in its message; cut to what ``limits.shown`` repeats."""
 
 
 class _Parser(argparse.ArgumentParser):
@@ -43,6 +44,7 @@ class _Parser(argparse.ArgumentParser):
     def error(self, message: str) -> None:  # noqa: D401 - argparse API
         self.print_usage(sys.stderr)
         message = _LONG_QUOTE.sub(lambda match: shown(match.group(1)), message)
+        message = _LONG_WORD.sub(lambda match: match.group()[:ECHO_CHARS] + "...", message)
         sys.stderr.write(f"binsynth: error: {message}\n")
         raise SystemExit(2)
 

@@ -161,6 +161,10 @@ COMMANDS = st.sampled_from([
     ["substitute", "nand2", "--bin", "{bin}", "--supply", "{x}"],
     ["substitute", "and3", "--bin", "{bin}", "--limit", "{x}"],
     ["parts", "{x}"],
+    ["delay", "{x}", "--bin", "{bin}"],
+    ["delay", "50us", "--bin", "{bin}", "--supply", "{x}"],
+    ["delay", "50us", "--bin", "{bin}", "--r", "{x}"],
+    ["delay", "50us", "--bin", "{bin}", "--part", "{x}"],
     ["plan", "{spec}", "--bin", "{bin}", "--lacks", "{x}", "--json", ""],
     ["plan", "{spec}", "--bin", "{bin}", "--json", "{x}", "--svg", "{x}"],
     ["plan", "{spec}", "--bin", "{bin}", "--wiring", "{spec}", "--vcd", "{x}"],
@@ -168,7 +172,8 @@ COMMANDS = st.sampled_from([
 ])
 ARGUMENT = st.one_of(st.sampled_from(["", "-", "--", "nan", "inf", "-5", "1e308", "0", LONG, "a & (",
                                       "~" * 90 + "a", "(" * 70 + "a" + ")" * 70, "and9", "xor1",
-                                      "/", "/dev/null", ".", "no/such/file.yaml", "5 mV", "\x07"]),
+                                      "/", "/dev/null", ".", "no/such/file.yaml", "5 mV", "\x07", "1e400",
+                                      "1e-30", "4k7", "plain", "CD40106BE"]),
                      st.text(alphabet=st.characters(blacklist_categories=["Cs"],
                                                     blacklist_characters="\x00"), max_size=40))
 

@@ -15,6 +15,9 @@ from __future__ import annotations
 import argparse
 from dataclasses import asdict
 
+from ..errors import UsageError
+from ..limits import check_supply, shown
+
 NAME = "delay"
 HELP = ("choose R and C from the bin for an RC delay between two logic stages, "
         "with its spread over the input thresholds")
@@ -40,7 +43,7 @@ def run(args: argparse.Namespace) -> int:
     from ..render import print_json, show
 
     wanted = _quantity(args.delay, "s", "delay")
-    supply = _quantity(args.supply, "V", "--supply")
+    supply = check_supply(_quantity(args.supply, "V", "--supply"), "--supply", error=UsageError)
     fixed_r = _quantity(args.r, "ohm", "--r") if args.r else None
     fixed_c = _quantity(args.c, "F", "--c") if args.c else None
     catalog = load_catalog()
@@ -66,8 +69,8 @@ def _quantity(text: str, unit: str, what: str) -> float:
         value = parse_quantity(text, unit)
     except ValueError as exc:
         raise UsageError(f"{what}: {exc}") from None
-    if value <= 0:
-        raise UsageError(f"{what}: expected a positive value, got {text!r}")
+    if not 0 < value < float("inf"):
+        raise UsageError(f"{what}: expected a positive value, got {shown(text)}")
     return value
 
 

@@ -4,6 +4,8 @@ from __future__ import annotations
 
 import argparse
 
+from ..limits import shown
+
 NAME = "parts"
 HELP = "list the part catalog, or show one part's package, pins and datasheet facts"
 
@@ -26,7 +28,7 @@ def run(args: argparse.Namespace) -> int:
         part_type = catalog.normalise(args.type)
         if part_type is None:
             close = catalog.closest(args.type)
-            raise UsageError(f"unknown part {args.type!r}",
+            raise UsageError(f"unknown part {shown(args.type)}",
                              hint=f"closest known types: {', '.join(close)}" if close else None)
         part = catalog.parts[part_type]
         if args.json:
