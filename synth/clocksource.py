@@ -6,7 +6,10 @@ Interface:
   oscillator on a packed plan: the gate unit, R, C, the 4060's Rs, and the
   nets; the caller then runs ``packing.refresh`` and ``check_nets``)
 - ``find_sites(plan, bin, catalog) -> list[Site]`` (every place an oscillator
-  could go, best first)
+  could go, best first); ``spare_schmitt_sites`` (the Schmitt gates among them)
+- ``place_schmitt(plan, site, part, net_in, net_out, role, note_in, note_out)``
+  (a Schmitt inverter or NAND of a site wired between two nets; also used by
+  the power-on reset)
 - ``DEFAULT_TOLERANCE`` (assumed when the spec gives no ``clock.tolerance``)
 - records: ``Site``, ``OscillatorPlan``
 
@@ -39,8 +42,8 @@ from .netlist import RAIL_NETS, Passive
 from .packing import add_chip, rewire_pin, unit_logic_pins
 from .units import format_si
 
-__all__ = ["Site", "OscillatorPlan", "add_oscillator", "find_sites", "DEFAULT_TOLERANCE",
-           "PERIOD_FORMULA"]
+__all__ = ["Site", "OscillatorPlan", "add_oscillator", "find_sites", "spare_schmitt_sites",
+           "place_schmitt", "DEFAULT_TOLERANCE", "PERIOD_FORMULA"]
 
 DEFAULT_TOLERANCE = 0.10
 """The frequency spread accepted when ``clock.tolerance`` is not given (10 %)."""
@@ -251,23 +254,36 @@ def _add_passive(plan, kind: str, value: float, ends: tuple[str, str], purpose: 
     return ref
 
 
-def _wire_schmitt(plan, site: Site, part, bin, design) -> tuple[str, bool, dict[str, int]]:
+def place_schmitt(plan, site: Site, part, net_in: str, net_out: str, role: str, note_in: str,
+                  note_out: str) -> tuple[str, bool, list[int], list[int]]:
+    """Put a Schmitt inverter (or a NAND with its other inputs at VDD) of ``site`` between
+    two nets: on a chip of the plan, or on a new chip from the bin.  Returns (ref, opened,
+    input pins, output pins)."""
     unit = next(u for u in part.units if u.id == site.unit)
     ins, outs, _ = unit_logic_pins(unit)
-    pins = {ins[0]: TIMING_NODE, outs[0]: "CLK"}
-    notes = {ins[0]: "oscillator input: the timing node (R from the output, C to VSS)",
-             outs[0]: "oscillator output: the clock"}
+    pins = {ins[0]: net_in, outs[0]: net_out}
+    notes = {ins[0]: note_in, outs[0]: note_out}
     for extra in ins[1:]:
         pins[extra] = "VDD"
         notes[extra] = "held at VDD: the NAND works as a Schmitt inverter"
     if site.ref is None:
-        chip = add_chip(plan, part, "oscillator", {unit.id: "oscillator"}, pins, notes)
-        ref, opened = chip.ref, True
-    else:
-        ref, opened = site.ref, False
-        plan.chip(ref).units_used[unit.id] = "oscillator"
-        for pin, net in pins.items():
-            rewire_pin(plan, ref, pin, net, notes[pin])
+        chip = add_chip(plan, part, role, {unit.id: role}, pins, notes)
+        return chip.ref, True, list(ins), list(outs)
+    plan.chip(site.ref).units_used[unit.id] = role
+    for pin, net in pins.items():
+        rewire_pin(plan, site.ref, pin, net, notes[pin])
+    return site.ref, False, list(ins), list(outs)
+
+
+def spare_schmitt_sites(plan, bin, catalog) -> list[Site]:
+    """The places a Schmitt inverter can go, best first: a spare unit on the board, then a new chip."""
+    return [site for site in find_sites(plan, bin, catalog) if site.kind != "counter-stage"]
+
+
+def _wire_schmitt(plan, site: Site, part, bin, design) -> tuple[str, bool, dict[str, int]]:
+    ref, opened, ins, outs = place_schmitt(
+        plan, site, part, TIMING_NODE, "CLK", "oscillator",
+        "oscillator input: the timing node (R from the output, C to VSS)", "oscillator output: the clock")
     r_ref = _add_passive(plan, "resistor", design.r, ("CLK", TIMING_NODE),
                          f"oscillator timing R, from {ref} pin {outs[0]} (output) to pin {ins[0]} (input)")
     c_ref = _add_passive(plan, "capacitor", design.c, (TIMING_NODE, "VSS"),

@@ -114,6 +114,7 @@ class Plan:
     passives: list[Passive] = field(default_factory=list)
     oscillator: Any = None          # clocksource.OscillatorPlan when the spec asks for one
     ladders: dict = field(default_factory=dict)   # staircase.LadderPlan by net name
+    power_on_reset: Any = None      # poweron.PowerOnReset when the spec asks for one
 
     def passive(self, ref: str) -> Passive:
         for item in self.passives:

@@ -3,8 +3,9 @@
 Interface: ``Design`` (the plan and what led to it), ``make_plan(spec_path,
 bin_path, *, catalog=None, exact='auto', fix=()) -> Design``, and
 ``switch_polarity(spec)`` (which signals may be delivered either way up).
-After packing, ``clocksource.add_oscillator`` (``clock.source: oscillator``)
-and ``staircase.add_ladders`` (``levels``) add their parts to the plan, and
+After packing, ``clocksource.add_oscillator`` (``clock.source: oscillator``),
+``poweron.add_power_on_reset`` (``power_on_reset``) and
+``staircase.add_ladders`` (``levels``) add their parts to the plan, and
 the net check runs again.
 
 Each stage is a pure function of the previous stage's result; this module
@@ -158,17 +159,29 @@ def _analog_parts(plan, spec, stock, catalog) -> None:
     if wants_oscillator and not plan.counter.chips:
         plan.warnings.append("clock.source: oscillator, but a cycle of 1 tick needs no clock")
         wants_oscillator = False
-    if not wants_oscillator and not spec.levels:
+    wants_reset = bool(getattr(spec, "power_on_reset", None)) and bool(plan.counter.chips)
+    if not wants_oscillator and not spec.levels and not wants_reset:
         return
     if wants_oscillator:
         plan.oscillator = add_oscillator(plan, spec, stock, catalog)
         refresh(plan, stock)
         plan.warnings += [f"oscillator: {w}" for w in plan.oscillator.warnings]
+    if wants_reset:
+        from .poweron import add_power_on_reset
+
+        plan.power_on_reset = add_power_on_reset(plan, spec, stock, catalog)
+        refresh(plan, stock)
+        plan.warnings += [f"power-on reset: {w}" for w in plan.power_on_reset.warnings]
     if spec.levels:
         plan.ladders = add_ladders(plan, spec, stock, catalog)
         for ladder in plan.ladders.values():
             plan.warnings += ladder.warnings
     refresh(plan, stock)
+    if getattr(plan, "power_on_reset", None) is not None:
+        plan.cautions = [c for c in plan.cautions if not c.startswith("At power-up the counter starts")]
+        plan.cautions.append("At power-up the power-on reset holds the counter at tick 0 for about "
+                             f"{plan.power_on_reset.width_s[1] * 1e3:.3g} ms; after switching off, wait "
+                             "a few seconds before switching on again so its capacitor can empty.")
     check_nets(plan)
 
 

@@ -81,6 +81,10 @@ choice open, this module decides as follows.
   resistance from the output to VSS, e.g. ``100k``).  Whether the counter
   brings those bits out is checked when the plan is made (also exit 2,
   naming the ``bits`` line).
+- ``power_on_reset``: ``true`` or a time (``5 ms``) asks for an RC into a
+  Schmitt input that holds the counter reset that long after power-up, so
+  the sequence starts at tick 0 (R and C from the bin; the counter's reset
+  pin must be free, not used by the decode).
 - ``cycle`` is at most ``MAX_CYCLE`` ticks: tick sets are built in memory.
 """
 
@@ -119,7 +123,10 @@ STRETCH_OPTION_LIMIT = 4096
 SEARCH_BUDGET = 200_000
 """Search steps ``clear_of_feasible`` may take before it answers 'unknown'."""
 
-TOP_KEYS = ("name", "supply", "clock", "cycle", "signals", "switches", "levels")
+TOP_KEYS = ("name", "supply", "clock", "cycle", "signals", "switches", "levels", "power_on_reset")
+DEFAULT_POWER_ON_RESET_S = 10e-3
+"""``power_on_reset: true`` holds the counter reset this long after power-up (10 ms: longer
+than a bench supply's rise and an RC oscillator's start, common practice)."""
 CLOCK_KEYS = ("frequency", "source", "tolerance")
 LEVEL_KEYS = ("bits", "kind", "tolerance", "load")
 LEVEL_KINDS = ("r2r", "binary")
@@ -204,6 +211,7 @@ class Spec:
     switches: dict[str, SwitchSpec]
     levels: dict[str, LevelSpec]
     line_of_signal: dict[str, int]
+    power_on_reset: float | None = None    # seconds the counter is held reset after power-up
 
     def period_of(self, name: str) -> int:
         """The period the signal's windows repeat with (``every`` or the cycle)."""
@@ -723,9 +731,28 @@ class _Reader:
         switches = self.switches(data, signals)
         spec = Spec(name=name, path=self.path, supply=supply, clock=clock, cycle=cycle,
                     signals=signals, switches=switches, levels=levels,
-                    line_of_signal={n: s.line for n, s in signals.items()})
+                    line_of_signal={n: s.line for n, s in signals.items()},
+                    power_on_reset=self.power_on_reset(data))
         self.check_clear_of(spec, data)
         return spec
+
+    def power_on_reset(self, data: MarkedDict) -> float | None:
+        """``true`` (the default length), ``false`` / absent (none), or a time such as '5 ms'."""
+        if "power_on_reset" not in data or data["power_on_reset"] in (None, False):
+            return None
+        value, line = data["power_on_reset"], data.line_of("power_on_reset")
+        if value is True:
+            return DEFAULT_POWER_ON_RESET_S
+        expected = "power_on_reset: expected true or a time such as '10 ms'"
+        if not isinstance(value, str):
+            self.fail(f"{expected}, got {_kind(value)}", line)
+        try:
+            seconds = parse_quantity(value, "s")
+        except ValueError:
+            self.fail(f"{expected}, got {value!r}", line)
+        if not 1e-6 <= seconds <= 10.0:
+            self.fail(f"power_on_reset: expected between 1 us and 10 s, got {value!r}", line)
+        return seconds
 
     def name(self, data: MarkedDict) -> str:
         if "name" not in data:

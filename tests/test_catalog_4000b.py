@@ -65,7 +65,10 @@ PINOUT_ROWS = [
     ("4022", ("units", 0, "decoded"), {0: 2, 1: 1, 2: 3, 3: 7, 4: 11, 5: 4, 6: 5, 7: 10}),
     ("4022", ("nc",), [6, 9]),
     # [nxp4013] Nexperia HEF4013B: 1Q 1, 1Q bar 2, 1CP 3, 1CD 4, 1D 5, 1SD 6
-    ("4013", ("units", 0, "clock"), {"pin": 3, "edge": "rising"}),
+    # Philips HEF4013B (Jan 1995) / Nexperia HEF4013B Rev. 12: "Schmitt-trigger action in
+    # the clock input makes the circuit highly tolerant to slower clock rise and fall times"
+    ("4013", ("units", 0, "clock"), {"pin": 3, "edge": "rising", "schmitt": True}),
+    ("4013", ("units", 1, "clock"), {"pin": 11, "edge": "rising", "schmitt": True}),
     ("4013", ("units", 0, "d"), 5),
     ("4013", ("units", 0, "reset"), {"pin": 4, "active": "high"}),
     ("4013", ("units", 1, "q"), 13),
@@ -241,3 +244,23 @@ READ_FACTS = [
 @pytest.mark.parametrize("part, path, expected", READ_FACTS)
 def test_read_facts(part, path, expected):
     assert dig(PARTS[part], path) == expected
+
+
+def test_4060_clock_rate_is_given_per_supply_and_used_at_the_plan_supply():
+    """The 4060's maximum clock is a min / typ per supply, not one 15 V figure.
+
+    15 V minimum 12 MHz: TI CD4060B product page ('12 MHz clock rate at 15 V') and
+    Intersil CD4060BMS FN3317 ('12MHz Clock Rate at 15V'), both read; 3.5 MHz at 5 V:
+    a secondary source only (see the catalog's source note); 10 V and the typicals
+    from memory (TI CD4060B).  A 5 V plan trusts the guaranteed 3.5 MHz, not a
+    scaled-down 15 V figure.
+    """
+    from synth.counter import counter_fmax_mhz
+    from synth.inventory import load_catalog
+
+    assert PARTS["4060"]["timing"]["fmax_mhz"] == {5: {"min": 3.5, "typ": 7}, 10: {"min": 8, "typ": 16},
+                                                   15: {"min": 12, "typ": 24}}
+    part = load_catalog().parts["4060"]
+    assert counter_fmax_mhz(part, 5.0) == (3.5, "guaranteed")
+    assert counter_fmax_mhz(part, 10.0) == (8.0, "guaranteed")
+    assert counter_fmax_mhz(part, 15.0) == (12.0, "guaranteed")

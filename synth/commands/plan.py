@@ -184,7 +184,7 @@ def plan_blocks(design) -> list:
     for name, sw in plan.switches.items():
         blocks.append(Text(f"switch {name}: {sw.get('ref')} section {sw.get('unit', '?')}; common joins "
                            f"{sw.get('when_control_high')} while its control is high"))
-    blocks += oscillator_blocks(plan) + ladder_blocks(plan) + passive_blocks(plan)
+    blocks += oscillator_blocks(plan) + power_on_blocks(plan) + ladder_blocks(plan) + passive_blocks(plan)
     for chip in plan.chips:
         part = plan.part_of(chip.ref)
         rows = [(r.pin, r.function, r.net or "(open)", ", ".join(r.goes_to)) for r in pin_table(plan, chip.ref)]
@@ -320,6 +320,23 @@ def oscillator_blocks(plan) -> list:
                         f"range {hz(osc.f_min)} .. {hz(osc.f_max)}, tolerance {tol}{fmax}",
                         ("thresholds", "VT+ V", "VT- V", "frequency"), rows))
     return blocks
+
+
+def power_on_blocks(plan) -> list:
+    """The power-on reset: where, R and C, and the pulse over the threshold spread."""
+    from ..render import Text
+    from ..units import format_si
+
+    por = getattr(plan, "power_on_reset", None)
+    if por is None:
+        return []
+    where = "a new chip from the bin" if por.opened else "a spare unit of a chip already in the plan"
+    resets = ", ".join(f"{r} pin {p}" for r, p in por.resets)
+    low, typ, high = (format_si(t, "s") for t in por.width_s)
+    return [Text(f"power-on reset: Schmitt {por.part} unit {por.unit} on {por.ref} ({where}); "
+                 f"{', '.join(f'{ref} = {plan.passive(ref).label()}' for ref in por.passives)}; holds "
+                 f"{resets} {por.active} for {typ} after power-up ({low} .. {high} over the threshold "
+                 f"spread; wanted {format_si(por.wanted_s, 's')}): {por.formula}")]
 
 
 def ladder_blocks(plan) -> list:

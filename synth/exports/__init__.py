@@ -62,6 +62,8 @@ EXPORTERS: tuple[Exporter, ...] = (
     Exporter("verilog", ".v", "plan.v", "write a structural Verilog model", "verilog"),
     Exporter("vcd", ".vcd", "plan.vcd", "write the simulated cycle as a VCD file", "vcd"),
     Exporter("svg", ".svg", "timing.svg", "write a timing diagram (SVG)", "svg"),
+    Exporter("spice", ".cir", "analog.cir", "write the analog parts (oscillator, power-on reset, "
+             "staircases, RC delays) as a plain SPICE deck", "spice"),
 )
 
 

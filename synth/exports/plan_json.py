@@ -5,8 +5,8 @@ contract, plus ``proven_minimal``, ``lower_bound``, ``method``, ``supply``,
 ``decoupling``, ``cautions``, ``counter``, ``nets_external``, per-chip pin
 notes, ``passives`` (every resistor and capacitor: ref, value, the net at
 each end; their ends appear in ``wires`` as pins 1 and 2 of refs R1, C1 ...),
-``oscillator`` (null unless ``clock.source: oscillator``) and ``levels`` (one
-entry per staircase)); ``plan_to_text(plan) -> str``; ``write_json(plan, path)`` (atomic).
+``oscillator`` (null unless ``clock.source: oscillator``), ``power_on_reset``
+(null unless the spec asks for one) and ``levels`` (one entry per staircase)); ``plan_to_text(plan) -> str``; ``write_json(plan, path)`` (atomic).
 """
 
 from __future__ import annotations
@@ -127,6 +127,8 @@ def plan_to_json(plan: Plan) -> dict:
                       "ends": [{"end": 1, "net": p.ends[0]}, {"end": 2, "net": p.ends[1]}],
                       "purpose": p.purpose} for p in plan.passives],
         "oscillator": plan.oscillator.as_json() if plan.oscillator is not None else None,
+        "power_on_reset": (plan.power_on_reset.as_json()
+                           if getattr(plan, "power_on_reset", None) is not None else None),
         "levels": {name: ladder.as_json() for name, ladder in plan.ladders.items()},
     }
 

@@ -8,7 +8,9 @@ plan's ``glitches`` and ``coincident_edges`` (records or ``Glitch`` objects).
 Layout (self-contained SVG 1.1, no script): a title line; the main diagram
 over one cycle with a tick ruler on top and one labelled trace per row (the
 clock, each counter output used by the decode, lowest weight first, then each
-spec signal with its asserted ticks shaded); red marks where a signal can
+spec signal with its asserted ticks shaded, then each staircase and switch
+common voltage from 0 V to VDD in a taller row and each switch position,
+``analogwave.analog_waves``); red marks where a signal can
 glitch on a tick entry and amber lines where two signals switch on the same
 boundary.  Below it, one close-up panel per marked tick with a nanosecond
 ruler, drawn from the simulated changes themselves.  Each mark links to its
@@ -25,6 +27,7 @@ from pathlib import Path
 from typing import Any
 from xml.sax.saxutils import escape, quoteattr
 
+from ..analogwave import analog_waves
 from ..timing import Trace, nice_period_ns
 from ..units import format_si
 from .files import atomic_write_text
@@ -36,6 +39,7 @@ LABEL = 170
 RIGHT = 24
 ROW = 24
 WAVE = 14
+ANALOG = 40          # height of a staircase row, 0 V at its foot, VDD at its top
 PLOT = WIDTH - LABEL - RIGHT
 
 STYLE = """
@@ -49,6 +53,8 @@ text { font-family: 'DejaVu Sans Mono', Menlo, Consolas, monospace; font-size: 1
 .clock .wave { stroke: #8a8474; stroke-width: 1; }
 .counter .wave { stroke: #2a7f62; }
 .signal .wave { stroke: #1d4e89; }
+.analog .wave { stroke: #7a3e9d; stroke-width: 1.4; }
+.switch .wave { stroke: #7a3e9d; }
 .asserted { fill: #1d4e89; fill-opacity: 0.12; }
 .glitch { fill: #c8102e; }
 .glitchband { fill: #c8102e; fill-opacity: 0.22; stroke: #c8102e; stroke-width: 0.8; }
@@ -177,8 +183,41 @@ def _main(trace: Trace, plan: Any, glitches: list[dict], coincident: list[dict],
         out.append("</g>")
     out += _glitch_marks(glitches, row_y, x, cycle)
     out += _race_marks(coincident, row_y, x)
+    bottom = y0 + (len(rows) + 1) * ROW
+    analog, bottom = _analog_rows(trace, plan, bottom - ROW + 4)
+    out += analog
     out.append("</g>")
-    return out, y0 + (len(rows) + 1) * ROW
+    return out, bottom
+
+
+def _analog_rows(trace: Trace, plan: Any, top: float) -> tuple[list[str], float]:
+    """Each staircase and switch common voltage (0 V .. VDD in a taller row, its levels
+    drawn from the simulated codes, ripple steps included), each switch position as a level."""
+    cycle_ns = trace.cycle * trace.period_ns
+    x = lambda t: LABEL + min(t, cycle_ns) * PLOT / cycle_ns  # noqa: E731
+    out, y = [], top
+    supply = float(getattr(plan, "supply", trace.supply) or trace.supply)
+    for wave in analog_waves(trace, plan):
+        height = WAVE if wave.kind == "switch" else ANALOG
+        y += height + ROW - WAVE
+        cls = "switch" if wave.kind == "switch" else "analog"
+        out.append(f'<line class="grid" x1="{LABEL}" y1="{y + 4:.1f}" x2="{x(cycle_ns):.1f}" y2="{y + 4:.1f}"/>')
+        out.append(f'<g class="trace {cls}" data-net={quoteattr(wave.name)} data-kind="{wave.kind}">')
+        label = wave.name + (" (position)" if wave.kind == "switch" else f" (0 .. {supply:g} V)")
+        out.append(f"<title>{escape(wave.detail)}</title>")
+        out.append(_label(8, y - 2, label))
+        points = [(0.0, wave.initial)] + [(t, v) for t, v in wave.changes if t < cycle_ns]
+        if wave.kind == "switch":
+            steps = [(x(t), bool(v)) for t, v in points]
+            out.append(f'<path class="wave" d="{_step_path(steps, x(cycle_ns), y)}"/>')
+        else:
+            scale = lambda v: y - ANALOG * max(0.0, min(1.0, v / supply))  # noqa: E731
+            d = [f"M{x(0):.2f},{scale(points[0][1]):.2f}"]
+            d += [f"H{x(t):.2f}V{scale(v):.2f}" for t, v in points[1:]]
+            d.append(f"H{x(cycle_ns):.2f}")
+            out.append(f'<path class="wave" d="{"".join(d)}"/>')
+        out.append("</g>")
+    return out, y + ROW
 
 
 def _clock_path(trace: Trace, x: Any, y: float) -> str:

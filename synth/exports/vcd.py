@@ -10,8 +10,12 @@ exact), one ``$scope module`` named as the Verilog module with three
 sub-scopes, ``counter`` (the clock and each counter output used by the
 decode, lowest weight first), ``signals`` (each spec signal by its name, at
 its electrical level) and ``internal`` (every other gate net, the counter
-reset included), each a ``$var wire 1``.  ``$dumpvars`` gives the levels at
-time 0; then one ``#time`` line per instant something changes.
+reset included), each a ``$var wire 1``, and, when the plan has staircases
+or switches, ``analog``: each staircase's voltage and each switch's common
+voltage as a ``$var real 64`` (IEEE 1364 section 18.2.3, values written
+``r<volts>``) and each switch's position (1 while it joins its ``on`` net)
+as a ``$var wire 1`` (``analogwave.analog_waves``).  ``$dumpvars`` gives the
+levels at time 0; then one ``#time`` line per instant something changes.
 """
 
 from __future__ import annotations
@@ -22,6 +26,7 @@ from pathlib import Path
 from typing import Any
 
 from .. import __version__
+from ..analogwave import analog_waves
 from ..netlist import verilog_module_name
 from ..timing import Trace, ps
 from .files import atomic_write_text
@@ -96,13 +101,27 @@ def trace_to_vcd(trace: Trace, plan: Any, *, date: str | None = None) -> str:
                 codes[net] = identifier_code(len(codes))
             lines.append(f"$var wire 1 {codes[net]} {name} $end")
         lines.append("$upscope $end")
+    waves = analog_waves(trace, plan)
+    wave_codes = []
+    if waves:
+        lines.append("$scope module analog $end")
+        for wave, name in zip(waves, _unique_names(waves, codes, trace, plan)):
+            code = identifier_code(len(codes) + len(wave_codes))
+            wave_codes.append((wave, code))
+            kind = "wire 1" if wave.kind == "switch" else "real 64"
+            lines.append(f"$var {kind} {code} {name} $end")
+        lines.append("$upscope $end")
     lines += ["$upscope $end", "$enddefinitions $end", "#0", "$dumpvars"]
     lines += [f"{int(_initial(trace, net))}{code}" for net, code in codes.items()]
+    lines += [_value(wave, wave.initial, code) for wave, code in wave_codes]
     lines.append("$end")
     events: dict[int, list[str]] = {}
     for net, code in codes.items():
         for t, level in trace.changes.get(net, []):
             events.setdefault(ps(t), []).append(f"{int(level)}{code}")
+    for wave, code in wave_codes:
+        for t, value in wave.changes:
+            events.setdefault(ps(t), []).append(_value(wave, value, code))
     for t in sorted(events):
         if t == 0:
             continue
@@ -110,6 +129,27 @@ def trace_to_vcd(trace: Trace, plan: Any, *, date: str | None = None) -> str:
         lines += events[t]
     lines.append(f"#{ps(trace.end_ns)}")
     return "\n".join(lines) + "\n"
+
+
+def _value(wave, value: float, code: str) -> str:
+    """A VCD value change: ``0!`` / ``1!`` for a switch position, ``r2.5 !`` for volts."""
+    if wave.kind == "switch":
+        return f"{int(value)}{code}"
+    return f"r{value:.6g} {code}"
+
+
+def _unique_names(waves, codes, trace, plan) -> list[str]:
+    taken = {name for rows in vcd_scopes(trace, plan).values() for name, _ in rows}
+    rows = _unique([(vcd_name(w.name), w.name) for w in waves])
+    out = []
+    for name, _ in rows:
+        base, k = name, 2
+        while name in taken:
+            name = f"{base}_{k}"
+            k += 1
+        taken.add(name)
+        out.append(name)
+    return out
 
 
 def _initial(trace: Trace, net: str) -> bool:

@@ -19,7 +19,13 @@ xor xnor not buf``) named after its chip and unit (``U2_A``) with the
 catalog's typical delay at the plan's supply (a decoder or multiplexer output
 is a delayed continuous assignment).  Delays are the ones ``synth.timing``
 simulates with, so Icarus Verilog and binsynth agree event for event.
-Analog switches are not modelled; a comment says how each is wired.
+The analog parts are internal ``real`` variables (IEEE 1364-2001 section
+4.2.2; a real cannot be a port): each staircase's voltage is a ``case`` on
+its driving counter outputs giving the ladder's level for every code (with
+the drivers' resistance, as the plan prints it), and each switch has a
+``<name>_on`` wire (1 while its common joins the ``on`` net) and, where both
+nets it joins have known voltages, a real for its common terminal.  A
+driving output or control the model does not carry becomes a comment.
 """
 
 from __future__ import annotations
@@ -258,12 +264,61 @@ def _decoder_lines(gate: Any, ins: list[str], names: dict[str, str], delay: str)
 
 # ---------------------------------------------------------------- the module
 
-def _switch_comments(plan: Any) -> list[str]:
+def _volts(value: float) -> str:
+    """A real literal Verilog reads (digits on both sides of the point).
+
+    >>> _volts(0.0), _volts(2.4904841)
+    ('0.000000', '2.490484')
+    """
+    return f"{value:.6f}"
+
+
+def _staircase_lines(plan: Any, names: dict[str, str], taken: set[str],
+                     reals: dict[str, str]) -> list[str]:
     lines = []
-    for name, sw in (getattr(plan, "switches", {}) or {}).items():
+    for name, lad in sorted((getattr(plan, "ladders", {}) or {}).items()):
+        nets = [net for _, _, net in lad.drivers]
+        head = (f"  // staircase {name}: {lad.kind} ladder on "
+                + ", ".join(f"{net} (tick bit {bit})" for bit, net in zip(lad.bits, nets))
+                + f"; volts at {plan.supply:g} V with the drivers' {lad.r_out_driver:g} ohm")
+        missing = [net for net in nets if net not in names]
+        if missing:
+            lines += [head, f"  // (not modelled: the model does not carry {', '.join(missing)})"]
+            continue
+        ident = _legal(name, taken)
+        taken.add(ident)
+        reals[name] = ident
+        bits = ", ".join(names[net] for net in reversed(nets))
+        width = len(nets)
+        lines += [head, f"  real {ident};", f"  always @({' or '.join(names[n] for n in nets)})",
+                  f"    case ({{{bits}}})"]
+        lines += [f"      {width}'d{code}: {ident} = {_volts(level)};" for code, level in enumerate(lad.levels)]
+        lines += [f"      default: {ident} = 0.0;  // a bit still unknown (x) before the count starts",
+                  "    endcase"]
+    return lines
+
+
+def _switch_lines(plan: Any, names: dict[str, str], taken: set[str], reals: dict[str, str]) -> list[str]:
+    lines = []
+    for name, sw in sorted((getattr(plan, "switches", {}) or {}).items()):
+        control, on, off = sw.get("control_net"), sw.get("on"), sw.get("off")
         lines.append(f"  // switch {name}: {sw.get('ref')} ({sw.get('part', '')}) section {sw.get('unit', '?')}, "
-                     f"control {sw.get('control_net')}; common joins {sw.get('when_control_high')} while the "
-                     "control is high (analog switches are not modelled)")
+                     f"control {control}; common joins {sw.get('when_control_high')} while the control is high")
+        if control not in names:
+            lines.append("  // (position not modelled: the model does not carry its control)")
+            continue
+        ident = _legal(f"{name}_on", taken)
+        taken.add(ident)
+        level = "1'b1" if sw.get("when_control_high") == on else "1'b0"
+        other = "1'b0" if level == "1'b1" else "1'b1"
+        lines.append(f"  wire {ident} = {names[control]} ? {level} : {other};  // 1 while it joins {on}")
+        sources = {net: reals.get(net) or {"GND": "0.0", "VSS": "0.0", "VDD": _volts(plan.supply)}.get(net)
+                   for net in (on, off)}
+        if all(sources.values()):
+            common = _legal(str(sw.get("common_net") or name), taken)
+            taken.add(common)
+            lines += [f"  real {common};  // the common terminal's volts",
+                      f"  always @* {common} = {ident} ? {sources[on]} : {sources[off]};"]
     return lines
 
 
@@ -288,6 +343,11 @@ def plan_to_verilog(plan: Any, catalog: Any) -> str:
         # and the signals).
         head.append(f"// clk is made on the board by an RC oscillator ({osc.site.part} {osc.ref}, "
                     f"nominal {osc.f_nom:.6g} Hz); it stays an input here: drive it from the testbench.")
+    por = getattr(plan, "power_on_reset", None)
+    if por is not None:
+        head.append(f"// A power-on reset ({por.part} {por.ref}, R {por.r:g} ohm, C {por.c:g} F) holds the "
+                    f"counter reset for about {por.width_s[1]:.3g} s after power-up; the model simply "
+                    "starts from zero.")
     head += [
         "`timescale 1ns/1ps",
         f"module {module} ({', '.join(['clk', *ports.values()])});",
@@ -321,10 +381,11 @@ def plan_to_verilog(plan: Any, catalog: Any) -> str:
             body.append(f"  assign {ports[n]} = {source};{note}")
         else:
             body.append(note + " (driven by its gate)")
-    switches = _switch_comments(plan)
-    if switches:
-        body.append("")
-        body += switches
+    reals: dict[str, str] = {}
+    for analog in (_staircase_lines(plan, names, taken, reals), _switch_lines(plan, names, taken, reals)):
+        if analog:
+            body.append("")
+            body += analog
     return "\n".join(head + body + ["endmodule", ""])
 
 
