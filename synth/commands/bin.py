@@ -5,6 +5,8 @@ from __future__ import annotations
 import argparse
 from collections import defaultdict
 
+from ..limits import check_supply
+
 NAME = "bin"
 HELP = "validate a bin file and show the gates, counters, switches and passives it provides"
 
@@ -22,8 +24,6 @@ def run(args: argparse.Namespace) -> int:
     from ..inventory import load_bin, load_catalog
     from ..render import print_json, show
     from ..units import parse_quantity
-
-    from ..limits import check_supply
 
     try:
         supply = parse_quantity(args.supply, "V")

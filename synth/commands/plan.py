@@ -18,7 +18,7 @@ from pathlib import Path
 from ..bintake import take_from_bin
 from ..errors import UsageError
 from ..exports import EXPORTERS, Exporter, Output, OutputTransaction, check_outputs
-from ..limits import os_reason
+from ..limits import check_seconds, os_reason
 
 NAME = "plan"
 HELP = "plan the circuit for a spec from the chips in a bin: chips, pins, wiring list and checks"
@@ -90,8 +90,6 @@ def read_bin_bytes(path: Path) -> bytes:
 def seconds(text: str) -> float:
     """A number of seconds from 0 to ``limits.SEARCH_SECONDS`` (argparse turns the ValueError
     into exit 2)."""
-    from ..limits import check_seconds
-
     try:
         return check_seconds(text)
     except ValueError as exc:

@@ -10,6 +10,8 @@ from __future__ import annotations
 
 import argparse
 
+from ..limits import check_expression, check_supply
+
 NAME = "substitute"
 HELP = ("the cheapest ways to build a gate the bin lacks (nand4, and8, xor2, nor3, inv) or a "
         "boolean expression ('a & ~b | c') from the bin's gates, with pin-level wiring")
@@ -33,8 +35,6 @@ def run(args: argparse.Namespace) -> int:
     from ..substitute import parse_target, substitute
     from ..techmap import build_library
     from ..units import parse_quantity
-
-    from ..limits import check_expression, check_supply
 
     check_expression(args.target, "target", error=UsageError,
                      fix="a gate of at most 8 inputs needs a short expression; write a shorter one")
