@@ -39,7 +39,7 @@ NET = "POR"          # the Schmitt output: the counters' reset
 NODE = "POR_RC"      # the RC node: the Schmitt input
 
 
-@dataclass
+@dataclass(frozen=True)
 class PowerOnReset:
     """The power-on reset as planned."""
 

@@ -148,3 +148,17 @@ def test_verilog_reals_give_the_levels_in_icarus(example, tmp_path):
         assert float(ramp) == pytest.approx(level, abs=1e-6), tick
         assert on == ("1" if asserted else "0"), tick
         assert float(common) == pytest.approx(level if asserted else 0.0, abs=1e-6), tick
+
+
+def test_a_driver_the_trace_lacks_follows_the_tick_count(example):
+    """A ladder bit no decode reads is not simulated: its level comes from the tick index."""
+    from types import SimpleNamespace
+
+    trace = example.trace
+    ladder = SimpleNamespace(kind="r-2r", bits=(6,), drivers=[("U1", 2, "not_simulated")],
+                             levels=(0.0, 2.5))
+    plan = SimpleNamespace(ladders={"half": ladder}, switches={}, supply=5.0)
+    wave = analog_waves(trace, plan)[0]
+    for tick in (0, 63, 64, 127):
+        assert wave.value_at((tick + 0.5) * trace.period_ns) == (2.5 if tick >= 64 else 0.0), tick
+    assert wave.changes[0] == (64 * trace.period_ns, 2.5)

@@ -10,17 +10,17 @@ method:
   constant law V(t) = V_end + (V_start - V_end) exp(-t / RC) (common
   practice; any circuits handbook, e.g. Horowitz & Hill, The Art of
   Electronics, ch. 1, from memory); the simulator places each threshold
-  crossing within one time step, which the deck sets to period / 2000 and
+  crossing within one time step, which the deck sets to period / 1000 and
   RC / 1000: 0.5 % allowed;
-- a ladder is a linear resistor network, solved by the simulator to its
-  convergence tolerance (ngspice defaults RELTOL 1e-3, VNTOL 1 uV): 0.1 % of
+- a ladder, and a switch section routing it with no load, is a linear
+  resistor network, solved by the simulator to its convergence tolerance (ngspice defaults RELTOL 1e-3, VNTOL 1 uV): 0.1 % of
   the level + 10 uV allowed;
 - the 4060 stage's f = 1 / (k Rt Ct) uses the datasheet's k (2.3, NXP
   HEF4060B / Motorola MC14541B); ideal inverters at VDD/2 give 2 ln 3 = 2.197:
   15 % allowed (see ``synth/exports/spice.py``).
 
-Only the SPICE3 common subset may appear in a deck (R, C, V with DC or
-PULSE, S with SW models, .model / .ic / .tran / .end); a test reads every
+Only the SPICE3 common subset may appear in a deck (R, C, V with DC,
+PULSE or PWL, S with SW models, .model / .ic / .tran / .end); a test reads every
 line to hold that.
 """
 
@@ -96,6 +96,10 @@ def test_example_deck_agrees_with_ngspice(example, tmp_path):
     assert "osc_three_periods" in names
     assert [n for n in names if n.startswith("lad_ramp_c")] == [f"lad_ramp_c{k}" for k in range(16)]
     assert {"dly1_rise", "dly1_fall"} <= set(names)
+    # the 4053 section routes the ramp while sweep is asserted (ticks 0-63), else GND
+    switch = {int(c.name.rsplit("_t", 1)[1]): c.expected for c in checks if c.name.startswith("sw_adc_in_t")}
+    assert {63, 64} <= set(switch) and switch[64] == 0.0
+    assert switch[63] == plan.ladders["ramp"].levels[15]
     values = _simulate(tmp_path, deck, checks)
     _assert_agrees(values, checks)
     # the figures compared are binsynth's own: the oscillator's period and the ladder's levels
@@ -132,7 +136,7 @@ def test_deck_keeps_to_the_common_subset(example):
         else:
             assert head[0] in "rcvs", line
             if head[0] == "v":
-                assert re.search(r" (DC \S+|PULSE\([^)]*\))$", line), line
+                assert re.search(r" (DC \S+|PULSE\([^)]*\)|PWL\([^)]*\))$", line), line
     assert lines[-1] == ".end" and lines[-2].startswith(".tran ") and lines[-2].endswith(" UIC")
     # numbers never use SI suffixes (a SPICE reads 1M as milli)
     assert not re.search(r"\s\d+(\.\d+)?(k|m|meg|u|n|p)\b", deck, re.I)

@@ -10,13 +10,16 @@ What goes in: the clock oscillator (a Schmitt inverter with its R and C, or a
 4060's three-pin stage with Rt, Ct and Rs), the power-on reset (its R, C and
 Schmitt gate on a supply that ramps up at time 0), every staircase ladder exactly as
 wired (the plan's own resistors, each counter output as a source behind the
-catalog's output resistance, any load), and every RC delay the plan offers
+catalog's output resistance, any load), every switch section that routes a
+staircase or a rail (two switches of the catalog's on-resistance, their
+control a PWL copy of the control net's level per tick), and every RC delay
+the plan offers
 (a step into R, C and a Schmitt receiver).  Digital logic is left out: the
 Verilog export models it.
 
 Only elements every SPICE simulator reads are used (the SPICE2 / SPICE3
 common subset): ``R``, ``C`` (with ``IC=``), independent ``V`` sources
-(``DC``, ``PULSE``), and the SPICE3 voltage-controlled switch ``S`` with a
+(``DC``, ``PULSE``, ``PWL``), and the SPICE3 voltage-controlled switch ``S`` with a
 ``SW`` model (``VT``, ``VH``, ``RON``, ``ROFF``).  A Schmitt inverter is two
 such switches: one joins the output to VSS once the input rises above VT+
 (and lets go below VT-), the other joins it to VDD in the opposite sense;
@@ -37,6 +40,7 @@ from typing import Any
 
 from .. import __version__
 from ..analog import thresholds_at
+from ..netlist import simulate_nets
 from ..units import format_si
 from .files import atomic_write_text
 
@@ -44,7 +48,7 @@ __all__ = ["SpiceCheck", "plan_to_spice", "write_spice", "spice_checks", "measur
 
 RON = 1.0            # switch on-resistance, ohms: small beside every timing R (>= 1 kOhm)
 ROFF = 1e9           # switch off-resistance, ohms: large beside every timing R (<= 10 MOhm)
-STEPS_PER_PERIOD = 2000   # the oscillator's largest time step is its period / this
+STEPS_PER_PERIOD = 1000   # the oscillator's largest time step is its period / this
 PLAIN_HYSTERESIS = 0.01   # a plain CMOS input modelled with 1 % of VDD hysteresis (no chatter)
 
 
@@ -218,6 +222,76 @@ def _ladder(plan: Any, name: str, lad: Any, tick: float, driven: set[str]) -> _S
     return _Section(lines, checks, span, None)
 
 
+# ---------------------------------------------------------------- the analog switches
+
+def _on_resistance(catalog: Any, part_type: str | None, supply: float) -> float:
+    part = catalog.parts.get(part_type) if part_type else None
+    table = getattr(part, "r_on", None) or {}
+    if not table:
+        return RON
+    volts = min(table, key=lambda v: abs(float(v) - supply))
+    row = table[volts]
+    return float(row.get("typ") or row.get("max") or RON)
+
+
+def _net_volts(plan: Any, net: str, tick: int) -> float | None:
+    """A net's voltage in the middle of ``tick``: a rail, or a staircase's level."""
+    if net in ("GND", "VSS"):
+        return 0.0
+    if net == "VDD":
+        return float(plan.supply)
+    lad = (getattr(plan, "ladders", {}) or {}).get(net)
+    if lad is None:
+        return None
+    return float(lad.levels[sum(((tick >> bit) & 1) << k for k, bit in enumerate(lad.bits))])
+
+
+def _switch(plan: Any, catalog: Any, name: str, sw: dict, tick: float) -> _Section | None:
+    """A switch section routing rails or staircases: two SPICE switches of the catalog's
+    on-resistance, their control a PWL copy of the control net's level tick by tick."""
+    on, off, control = sw.get("on"), sw.get("off"), sw.get("control_net")
+    if _net_volts(plan, on, 0) is None or _net_volts(plan, off, 0) is None:
+        return None
+    rows = simulate_nets(plan)
+    if not rows or control not in rows[0]:
+        return None
+    levels = [bool(row[control]) for row in rows]
+    supply, edge, tag = plan.supply, tick / 1000, _node(name)
+    high_net = sw.get("when_control_high")
+    low_net = off if high_net == on else on
+    points = [(0.0, levels[0])]
+    for k in range(1, len(levels)):
+        if levels[k] != levels[k - 1]:
+            points += [(k * tick, levels[k - 1]), (k * tick + edge, levels[k])]
+    pwl = " ".join(f"{_num(t)} {_num(supply if level else 0.0)}" for t, level in points)
+    r_on = _on_resistance(catalog, sw.get("part"), supply)
+    common = _node(str(sw.get("common_net") or name))
+    node = lambda net: {"GND": "0", "VSS": "0", "VDD": "vdd"}.get(net, _node(net))  # noqa: E731
+    lines = [f"* switch {name}: {sw.get('ref')} ({sw.get('part')}) section {sw.get('unit')}, on-resistance "
+             f"{format_si(r_on, 'Ω')}; the common joins {high_net} while control {control} is high, "
+             f"{low_net} while it is low (the control copied tick by tick from the plan's logic)",
+             f"V{tag}_ctl {tag}_ctl 0 PWL({pwl})",
+             f"S{tag}_H {common} {node(high_net)} {tag}_ctl 0 {tag}_sw_hi {'ON' if levels[0] else 'OFF'}",
+             f"S{tag}_L {common} {node(low_net)} 0 {tag}_ctl {tag}_sw_lo {'OFF' if levels[0] else 'ON'}",
+             f".model {tag}_sw_hi SW(VT={_num(supply / 2)} VH={_num(PLAIN_HYSTERESIS * supply)} "
+             f"RON={_num(r_on)} ROFF={_num(ROFF)})",
+             f".model {tag}_sw_lo SW(VT={_num(-supply / 2)} VH={_num(PLAIN_HYSTERESIS * supply)} "
+             f"RON={_num(r_on)} ROFF={_num(ROFF)})"]
+    cycle = len(levels)
+    changes = [k for k in range(1, cycle) if levels[k] != levels[k - 1]]
+    ticks = sorted({*changes, *(k - 1 for k in changes), *range(0, cycle, max(1, cycle // 16))})
+    checks = []
+    for k in ticks:
+        joined = high_net if levels[k] else low_net
+        volts = _net_volts(plan, joined, k)
+        checks.append(SpiceCheck(
+            f"sw_{tag}_t{k}", f"FIND v({common}) AT={_num((k + 0.5) * tick)}", volts, "V",
+            1e-3 * abs(volts) + 1e-5,
+            f"with no load the common carries the joined net ({joined}) exactly: the simulator's "
+            "RELTOL 1e-3 and VNTOL 1 µV; a wrong throw shows as the other net's voltage"))
+    return _Section(lines, checks, cycle * tick, None)
+
+
 # ---------------------------------------------------------------- the RC delays offered
 
 def _receiver_thresholds(catalog: Any, receiver: str, supply: float) -> tuple[float, float]:
@@ -308,6 +382,10 @@ def _sections(plan: Any, catalog: Any, tick_ns: float | None) -> list[_Section]:
     driven: set[str] = set()
     for name, lad in sorted(getattr(plan, "ladders", {}).items()):
         sections.append(_ladder(plan, name, lad, tick, driven))
+    for name, sw in sorted((getattr(plan, "switches", {}) or {}).items()):
+        section = _switch(plan, catalog, name, sw, tick)
+        if section is not None:
+            sections.append(section)
     offers = [o for o in getattr(plan, "rc_offers", None) or [] if o.get("applicable") and "r_ohm" in o]
     for index, offer in enumerate(offers, 1):
         sections.append(_delay(plan, catalog, index, offer))
@@ -328,7 +406,7 @@ def plan_to_spice(plan: Any, catalog: Any, *, tick_ns: float | None = None) -> s
     """The deck as text; a plan without analog parts gives a deck that says so."""
     sections = _sections(plan, catalog, tick_ns)
     lines = [f"* binsynth {__version__}: analog parts of plan {plan.name} at {plan.supply:g} V",
-             "* elements: R, C, V (DC, PULSE), S with SW models (VT, VH, RON, ROFF): the SPICE3 "
+             "* elements: R, C, V (DC, PULSE, PWL), S with SW models (VT, VH, RON, ROFF): the SPICE3 "
              "subset; a Schmitt or plain input is two switches with hysteresis",
              "* to look: ngspice FILE, then 'plot v(clk)' (or any node named below)",
              f"VDD vdd 0 DC {_num(plan.supply)}"]
