@@ -27,7 +27,9 @@ Counter variable ``index`` is the bit of the minterm (variable 0 lowest
 weight); nets are the datasheet pin names, prefixed with the chip's ref
 (``U1.Q4``) when more than one counter chip is used (the two halves of a
 dual counter share one ref and have distinct pin names).  Synchronous carry
-cascades (74HC161/163 TC -> CET) are not built: those parts serve alone.
+cascades: a 74HC161/163 counts on CLK while the unit below's TC is high
+(TC -> CEP and CET, the datasheet's synchronous cascade), so all outputs
+change on one edge; two units (8 stages) at most.
 """
 
 from __future__ import annotations
@@ -79,6 +81,8 @@ class CounterChip:
     stages: tuple[int, ...] = ()    # stages (or decoded outputs) used by the plan
     divisor: int = 1                # ticks per count of this unit
     how: str = ""                   # one sentence for people
+    carry_net: str | None = None    # the net on its carry output (TC) when a later unit counts on it
+    count_enable_pins: tuple[int, ...] = ()   # pins joined to enable_net (CEP, CET of a carry cascade)
 
 
 @dataclass
@@ -318,8 +322,10 @@ class _Element:
     slot: int                 # which unit of this part type (0, 1, ...) in allocation order
     divisor: int              # ticks per count
     source: tuple[int, int] | None   # None = CLK, else (element, stage) that clocks it
-    via: str                  # 'clock' or 'enable'
+    via: str                  # 'clock', 'enable', or 'carry' (clocked by CLK, counting while
+                              # element ``carry_from``'s TC is high: a synchronous cascade)
     offset: int = 0           # binary chains: the bit of stage 1
+    carry_from: int | None = None
 
 
 @dataclass(frozen=True)
@@ -393,9 +399,35 @@ def _binary_chains(kinds: list[_Kind], n: int, max_chips: int) -> list[_Chain]:
                     continue
                 element = _Element(kind, _used(elements, kind), 1 << offset, source, via, offset)
                 grow(elements + (element,), edge if edge is not None else needed)
+            carry = _carry_source(elements, kind, top, n)
+            if carry is not None:
+                element = _Element(kind, _used(elements, kind), 1 << top, None, "carry", top, carry)
+                grow(elements + (element,), edge)
 
     grow((), None)
     return list(found.values())
+
+
+def _carries(kind: _Kind) -> bool:
+    """A synchronous binary unit with a carry output (TC) and count-enable inputs
+    (74HC161/163: TC = CET and count 15; CEP, CET high to count)."""
+    f = kind.units[0].fields
+    return kind.synchronous and kind.mode == "binary" and f.get("carry_out") is not None \
+        and bool(f.get("count_enable")) and set(kind.visible) == set(range(1, kind.width + 1))
+
+
+def _carry_source(elements, kind: _Kind, top: int, n: int) -> int | None:
+    """The element whose TC can enable ``kind`` as the next unit of a synchronous
+    cascade: the top unit, clocked by CLK, itself not carry-enabled (its TC would then
+    depend on its own enable, which the models do not carry: two units, 8 stages)."""
+    if not elements or top >= n or not _carries(kind):
+        return None
+    for i, e in enumerate(elements):
+        if e.offset + e.kind.width == top and e.source is None and e.via == "clock" \
+                and _carries(e.kind) and e.carry_from is None \
+                and _fields(e)["clock"]["edge"] == kind.units[0].fields["clock"]["edge"]:
+            return i
+    return None
 
 
 def _binary_sources(elements, top, seen, hidden, n, edge):
@@ -561,7 +593,9 @@ def _period(chain: _Chain) -> int:
 def _element_edge(e: _Element) -> Edge:
     """The edge of its input net that advances a unit."""
     fields = _fields(e)
-    return fields["clock"]["edge"] if e.via == "clock" else (_enable_edge(fields) or "falling")
+    if e.via in ("clock", "carry"):
+        return fields["clock"]["edge"]
+    return _enable_edge(fields) or "falling"
 
 
 def _edge_of(chain: _Chain) -> Edge:
@@ -615,7 +649,7 @@ def _fmax_problem(chain: _Chain, supply: float, frequency: float | None, verdict
     if not frequency:
         return ""
     for e in chain.elements:
-        f_in = frequency / e.divisor / 1e6
+        f_in = frequency / (1 if e.via == "carry" else e.divisor) / 1e6
         fmax, how = e.kind.fmax_mhz(supply)
         if fmax is None:
             verdict.fmax_notes.append(f"{e.kind.part.type}: no fmax in the catalog; "
@@ -786,13 +820,18 @@ def _shortage(spec, stock: Bin, catalog: Catalog, rejected: list[_Verdict], supp
 def _unchainable(kinds: list[_Kind], n: int) -> str:
     """Why the bin's short binary counters cannot follow one another ('' if they can)."""
     short = [k for k in kinds if k.mode == "binary" and k.width < n]
-    stuck = [k.part.type for k in short if k.clocking("falling") is None]
+    stuck = [k.part.type for k in short if k.clocking("falling") is None and not _carries(k)]
+    carry = sorted({k.part.type for k in short if k.clocking("falling") is None and _carries(k)})
+    if carry and len(stuck) + len(carry) == len(short):
+        return (f"the {_or_list(carry)} counts only on a rising clock edge; a synchronous carry "
+                f"cascade of two units gives {2 * min(k.width for k in short if _carries(k))} stages, "
+                "and longer cascades are not built")
     if not stuck or len(stuck) < len(short):
         return ""
     names = _or_list(sorted(set(stuck)))
     return (f"the {names} counts only on a rising clock edge and has no falling-edge enable, so it "
-            "cannot be clocked from another counter's stage (synchronous carry cascades through "
-            "TC are not built)")
+            "cannot be clocked from another counter's stage and has no carry output for a "
+            "synchronous cascade")
 
 
 def _fixes(spec, stock: Bin, catalog: Catalog, supply: float, frequency: float | None,
@@ -884,7 +923,14 @@ def _chips(chain: _Chain, vars_: list[CounterVar], refs: list[str], reset: Reset
             used[e.source[0]].add(e.source[1])
         enable = fields.get("enable")
         enable_pin = int(enable["pin"]) if enable else None
-        if e.via == "enable":
+        count_enable: tuple[int, ...] = ()
+        if e.via == "carry":
+            count_enable = tuple(int(p) for p in fields["count_enable"])
+            clock_pin = int(fields["clock"]["pin"])
+            enable_pin, enable_net = count_enable[0], _carry_net(chain, e, refs, prefix)
+            for pin in count_enable:
+                ties.pop(pin, None)
+        elif e.via == "enable":
             clock_pin = enable_pin
             ties[int(fields["clock"]["pin"])] = _clock_hold(fields)
             enable_net = clock_net
@@ -905,10 +951,23 @@ def _chips(chain: _Chain, vars_: list[CounterVar], refs: list[str], reset: Reset
         for pin in (clock_pin, enable_pin if e.via == "enable" else None, reset_pin if reset else None):
             ties.pop(pin, None)
         chip = CounterChip(refs[i], part.type, _unit_id(e), clock_net, clock_pin, edge, reset_pin,
-                           reset_net, enable_pin, enable_net, ties, tuple(sorted(used[i])), e.divisor)
-        chip.how = _how(chip, part, e, fields)
+                           reset_net, enable_pin, enable_net, ties, tuple(sorted(used[i])), e.divisor,
+                           count_enable_pins=count_enable[1:])
         chips.append(chip)
+    for i, e in enumerate(chain.elements):
+        if e.carry_from is not None:
+            chips[e.carry_from].carry_net = chips[i].enable_net
+    for chip, e in zip(chips, chain.elements):
+        chip.how = _how(chip, e.kind.part, e, e.kind.units[e.slot % len(e.kind.units)].fields)
     return chips
+
+
+def _carry_net(chain: _Chain, e: _Element, refs: list[str], prefix: bool) -> str:
+    """The net from the earlier unit's TC pin to this unit's count enables."""
+    source = chain.elements[e.carry_from]          # type: ignore[index]
+    pin = int(_fields(source)["carry_out"])
+    name = source.kind.part.pins.get(pin, "TC")
+    return f"{refs[e.carry_from]}.{name}" if prefix else name     # type: ignore[index]
 
 
 def _how(chip: CounterChip, part: Part, e: _Element, fields: dict) -> str:
@@ -916,13 +975,19 @@ def _how(chip: CounterChip, part: Part, e: _Element, fields: dict) -> str:
     unit = f" unit {chip.unit}" if len(e.kind.units) > 1 else ""
     text = (f"{chip.ref} {part.type}{unit} counts on the {chip.clock_edge} edge of {chip.clock_net} "
             f"at {name.get(chip.clock_pin, chip.clock_pin)} (pin {chip.clock_pin})")
-    if e.via == "enable":
+    if e.via == "carry":
+        pins = ", ".join(f"{name.get(p, p)} (pin {p})" for p in (chip.enable_pin, *chip.count_enable_pins))
+        text += (f" while {chip.enable_net} is high ({pins} on it): a synchronous cascade, every "
+                 "output of both units changes on the same clock edge")
+    elif e.via == "enable":
         clock_pin = int(fields["clock"]["pin"])
         level = "low" if chip.ties.get(clock_pin) == "VSS" else "high"
         text += f", {name.get(clock_pin, clock_pin)} (pin {clock_pin}) held {level}"
     elif chip.enable_pin is not None:
         text += f", {name.get(chip.enable_pin)} (pin {chip.enable_pin}) tied {chip.enable_net}"
     stages = [name.get(e.kind.outputs(e.slot)[k], f"Q{k}") for k in chip.stages]
+    if chip.carry_net:
+        text += f"; its {chip.carry_net.split('.')[-1]} drives {chip.carry_net}"
     if stages:
         text += "; uses " + ", ".join(stages)
     if e.divisor > 1:

@@ -79,10 +79,38 @@ def apply_fixes(design: Any, fix: Iterable[str], *, exact: str = "auto") -> Any:
     widths = _widest(design.plan.glitches)
     if "glitches" in fix:
         design = _fix_glitches(design, exact)
+    else:
+        design = _steady_signals(design, exact)
     if not hasattr(design.plan, "strobed"):
         design.plan.strobed = {}
     design.plan.rc_offers = rc_offers(design, widths)
     return design
+
+
+def _steady_signals(design: Any, exact: str) -> Any:
+    """Signals the spec marks ``steady: true`` that glitch are registered without ``--fix``;
+    a bin that cannot register them is short (exit 3), never a silent glitch."""
+    spec = design.spec
+    wanted = sorted(s for s in _by_signal(design.plan.glitches)
+                    if getattr(spec.signals.get(s), "steady", None))
+    if not wanted:
+        return design
+    before = _by_signal(design.plan.glitches)
+    try:
+        new = _register(design, wanted, exact)
+    except NotApplicable as exc:
+        raise ShortError(f"{', '.join(wanted)} must hold a steady level (steady: true) but glitch; "
+                         f"registering failed: {exc}", hint="add a 74HC74 or 74HC174 (4013 or 40174 "
+                         "at 4000B supplies), or drop steady: true") from None
+    after = _by_signal(new.plan.glitches)
+    new.plan.timing_fixes = [
+        {"signal": s, "glitches_before": before[s], "tried": [], "glitches_after": after.get(s, []),
+         "remedies_applied": ["registered"], "remedy": "registered", "applied": True,
+         "cost": {"chips": _chips(new) - _chips(design), "gates": _gates(new) - _gates(design)},
+         "cost_shared": "the decode was re-derived for the early signals: its change counts for every signal",
+         "detail": new.plan.registered[s]["detail"], "asked_by": "steady: true"}
+        for s in wanted]
+    return new
 
 
 def _widest(glitch_records) -> dict[str, float]:
@@ -109,30 +137,70 @@ def _fix_glitches(design: Any, exact: str) -> Any:
     elif choice is not None:
         _note_all(records, "decode_choice", "re-derived, but it removed no glitch without a new chip")
     remaining = sorted(_by_signal(current.plan.glitches))
-    candidates = []
     if remaining:
-        strobed = _attempt(records, "clock_gating", lambda: _strobe_all(current, remaining), current)
-        if strobed is not None:
-            candidates.append(("clock_gating", strobed, strobed))
-        sync = _attempt(records, "synchronous_counter", lambda: _synchronous(current, exact), current)
-        if sync is not None:
-            left = sorted(_by_signal(sync.plan.glitches))
-            both = sync
-            if left:
-                try:
-                    both = _strobe_all(sync, left)
-                except (NotApplicable, SynthError):
-                    both = sync
-            candidates.append(("synchronous_counter", sync, both))
-    if candidates:
-        name, step, best = min(candidates, key=lambda c: (_count(c[2]), _chips(c[2]), _gates(c[2])))
-        if _count(best) < _count(current):
-            _credit(fixed_by, current, step, name)
-            if step is not best:
-                _credit(fixed_by, step, best, "clock_gating", only_strobed=True)
-            current = best
+        best = _best_plan(records, current, remaining, exact)
+        if best is not None and _key(best[-1][1], current.spec) < _key(current, current.spec):
+            previous = current
+            for name, step in best:
+                _credit(fixed_by, previous, step, name, only_strobed=name == "clock_gating")
+                previous = step
+            current = best[-1][1]
     _finish_records(records, fixed_by, design, current)
     return current
+
+
+def _key(design: Any, spec: Any) -> tuple:
+    """How good a fixed design is: glitches left on signals that must hold their level
+    (no pulse per tick acceptable), glitches left, chips, gates."""
+    from .registers import pulse_per_tick_ok
+
+    left = _by_signal(design.plan.glitches)
+    strobed = getattr(design.plan, "strobed", None) or {}
+    must_hold = sum(len(t) for s, t in left.items() if not pulse_per_tick_ok(spec, s))
+    chopped = sum(1 for s in strobed if not pulse_per_tick_ok(spec, s))
+    return (must_hold + chopped, _count(design), _chips(design), _gates(design))
+
+
+def _best_plan(records: dict, current: Any, remaining: list[str], exact: str):
+    """The remedies compared per signal: a signal for which a pulse per tick is acceptable
+    (``registers.pulse_per_tick_ok``) may be gated with the clock; every other one is
+    registered in a flip-flop of the bin; a synchronous counter is tried first where
+    the bin has one.  Returns the cheapest sequence of (remedy, design) steps."""
+    from .registers import pulse_per_tick_ok
+
+    spec = current.spec
+    gateable = [s for s in remaining if pulse_per_tick_ok(spec, s)]
+    for signal in remaining:
+        if signal not in gateable:
+            records[signal]["tried"].append({"remedy": "clock_gating", "result": (
+                f"not applicable: {signal} has windows of several ticks; gated with the clock it would "
+                "pulse once per tick instead of holding its level (say steady: false to allow it)")})
+    candidates: list[list[tuple[str, Any]]] = []
+
+    def extend(base: Any, steps: list, left: list[str]) -> None:
+        steps = list(steps)
+        hold = [s for s in left if s not in gateable]
+        gate = [s for s in left if s in gateable]
+        if hold:
+            reg = _attempt(records, "registered", lambda: _register(base, hold, exact), base)
+            if reg is not None:
+                steps.append(("registered", reg))
+                base = reg
+                gate = [s for s in gate if s in _by_signal(reg.plan.glitches)]
+        if gate:
+            gated = _attempt(records, "clock_gating", lambda: _strobe_all(base, gate), base)
+            if gated is not None:
+                steps.append(("clock_gating", gated))
+        if steps:
+            candidates.append(steps)
+
+    extend(current, [], remaining)
+    sync = _attempt(records, "synchronous_counter", lambda: _synchronous(current, exact), current)
+    if sync is not None:
+        extend(sync, [("synchronous_counter", sync)], sorted(_by_signal(sync.plan.glitches)))
+    if not candidates:
+        return None
+    return min(candidates, key=lambda steps: _key(steps[-1][1], spec))
 
 
 def _attempt(records: dict, remedy: str, build, base: Any) -> Any:
@@ -188,11 +256,18 @@ def _finish_records(records: dict, fixed_by: dict, start: Any, final: Any) -> No
         rec["applied"] = bool(steps)
         chips = gates = 0
         details = []
+        registered = getattr(final.plan, "registered", None) or {}
         for remedy, old, new in steps:
             if remedy == "clock_gating" and signal in strobed:
                 chips += strobed[signal]["cost"]["chips"]
                 gates += strobed[signal]["cost"]["gates"]
-                details.append(strobed[signal]["detail"])
+                details.append(strobed[signal]["detail"] + _pulse_reason(final.spec, signal))
+            elif remedy == "registered" and signal in registered:
+                chips += _chips(new) - _chips(old)
+                gates += _gates(new) - _gates(old)
+                details.append(registered[signal]["detail"])
+                rec["cost_shared"] = ("the flip-flops and the early decode are shared by the "
+                                      "registered signals: the change counts for every one")
             else:
                 chips += _chips(new) - _chips(old)
                 gates += _gates(new) - _gates(old)
@@ -203,6 +278,14 @@ def _finish_records(records: dict, fixed_by: dict, start: Any, final: Any) -> No
         if rec["glitches_after"] and steps:
             rec["note"] = _note_text(final, signal)
     final.plan.timing_fixes = [records[s] for s in sorted(records)]
+
+
+def _pulse_reason(spec: Any, signal: str) -> str:
+    """Why a pulse per tick is acceptable for a gated signal (said with the remedy)."""
+    sig = spec.signals.get(signal) if spec is not None else None
+    if sig is not None and sig.steady is False:
+        return "; a pulse per tick is acceptable here: the spec says steady: false"
+    return "; a pulse per tick is acceptable here: each of its windows is one tick long"
 
 
 def _note_text(design: Any, signal: str) -> str:
@@ -249,7 +332,7 @@ def _gates(design: Any) -> int:
 # ---------------------------------------------------------------- rebuilding a design
 
 def _rebuild(design: Any, *, counter_plan: Any = None, network: Network | None = None,
-             strobed: dict | None = None, exact: str = "auto") -> Any:
+             strobed: dict | None = None, exact: str = "auto", decode: Any = None) -> Any:
     """The pipeline's stages from the counter plan on (or from packing on, given a
     network), then the timing analysis; raises what the stages raise."""
     from .packing import pack
@@ -258,16 +341,72 @@ def _rebuild(design: Any, *, counter_plan: Any = None, network: Network | None =
 
     spec, stock, catalog = design.spec, design.stock, design.catalog
     cp = counter_plan if counter_plan is not None else design.counter
-    decode = design.decode
+    decode = decode if decode is not None else design.decode
     if network is None:
         decode, network = _decode_and_map(spec, stock, catalog, cp, exact)
     plan = pack(network, cp, spec, stock, catalog)
     plan.warnings[:0] = list(stock.warnings) + list(getattr(cp, "warnings", []))
     _analog_parts(plan, spec, stock, catalog)
     plan.strobed = dict(strobed or {})
+    plan.registered = dict(getattr(design.plan, "registered", None) or {})
     new = Design(plan, spec, stock, catalog, cp, decode, network)
     analyse(new)
     return new
+
+
+# ---------------------------------------------------------------- (d) registering
+
+def _register(design: Any, signals, exact: str) -> Any:
+    """The design with ``signals`` decoded one tick early and clocked into D flip-flops
+    (``synth.registers``); packed, self-checked and re-analysed like the others."""
+    from .registers import prepare_registering, with_flipflops
+
+    if getattr(design.plan, "strobed", None):
+        raise NotApplicable("the plan already gates signals with the clock")
+    names = [s for s in signals if s not in (getattr(design.plan, "registered", None) or {})]
+    if not names:
+        raise NotApplicable("already registered")
+    try:
+        reg = prepare_registering(design, names)
+    except ShortError as exc:
+        raise NotApplicable(exc.args[0] if exc.args else str(exc)) from None
+    try:
+        decode, network = _decode_and_map(reg.spec, design.stock, design.catalog, reg.counter, exact)
+        network = with_flipflops(network, reg, design.catalog)
+        new = _rebuild(design, counter_plan=reg.counter, network=network, decode=decode, exact=exact)
+    except ShortError as exc:
+        raise NotApplicable(f"no room on the board or in the bin ({exc.args[0]})") from None
+    new.plan.registered = {**(getattr(design.plan, "registered", None) or {}),
+                           **register_records(new.plan, reg)}
+    return new
+
+
+def register_records(plan: Any, reg: Any) -> dict[str, dict]:
+    """Signal -> how it is registered (flip-flop, its clock, the counter's clock), for the report."""
+    from .timing import gate_names_of, registered_signals
+
+    names = gate_names_of(plan)
+    flops = registered_signals(plan.network)
+    inverter = next((g for g in plan.network.gates if g.outputs and g.outputs[0] == "CLK_n"), None)
+    out = {}
+    for signal in reg.signals:
+        gate = flops.get(signal)
+        if gate is None:
+            continue
+        name = names.get(gate.id, gate.id)
+        how = (f"decoded one tick early into D of flip-flop {name} ({gate.part}), clocked on the "
+               f"{plan.clock_edge} edge of CLK: {signal} changes once per counting edge and holds its "
+               "level through every tick")
+        counter_clock = ""
+        if inverter is not None:
+            counter_clock = (f"the counter takes CLK through {names.get(inverter.id, inverter.id)} "
+                             f"({inverter.part}), so it advances on CLK's {plan.clock_edge} edge one gate "
+                             "delay after the flip-flops have sampled (their D cannot change before "
+                             "their own edge)")
+        out[signal] = {"flipflop": name, "part": gate.part, "d_net": gate.inputs[0],
+                       "clock_net": gate.inputs[1], "edge": plan.clock_edge,
+                       "counter_clock": counter_clock, "detail": how}
+    return out
 
 
 def _decode_and_map(spec, stock, catalog, cp, exact: str):
@@ -409,8 +548,12 @@ def strobe_network(network: Network, signal: str, plan: Any, stock: Any, catalog
 
 
 def _clock_net(counter: Any) -> str:
+    """The board clock: the counters' clock net, or CLK where they take an inverted copy."""
+    from .registers import COUNTER_CLOCK_NET
+
     var_nets = {str(v.net) for v in counter.vars}
-    return next((str(c.clock_net) for c in counter.chips if str(c.clock_net) not in var_nets), "CLK")
+    net = next((str(c.clock_net) for c in counter.chips if str(c.clock_net) not in var_nets), "CLK")
+    return "CLK" if net == COUNTER_CLOCK_NET else net
 
 
 def _phase_text(clock: str, level: bool) -> str:
@@ -613,6 +756,8 @@ def rc_offers(design: Any, widths: dict[str, float] | None = None) -> list[dict]
     offers = []
     races: dict[str, list[dict]] = {}
     for edge in plan.coincident_edges:
+        if edge.get("relation") == "complementary":
+            continue            # one edge seen twice: nothing to delay
         a, b = edge["signals"]
         races.setdefault(b if edge.get("first") == a else a, []).append(edge)
     for signal, edges in sorted(races.items()):
@@ -641,10 +786,14 @@ def _race_offer(design: Any, later: str, edges: list[dict], period: float | None
     others = sorted({n for e in edges for n in e["signals"] if n != later})
     ticks = sorted({e["at_tick"] for e in edges})
     offer = _rc_design(design, later, period / 4, period)
-    offer.update({"problem": "race", "signals": [later, *others], "at_ticks": ticks,
+    race = any(e.get("race", True) for e in edges)
+    condition = "" if race else (" (needed only if your circuit clocks, resets or gates one of them "
+                                 "with the other: on this board neither reads the other)")
+    offer.update({"problem": "race" if race else "coincident", "signals": [later, *others], "at_ticks": ticks,
                   "why": (f"{later} switches on the same clock edge as {', '.join(others)} (ticks "
                           f"{', '.join(map(str, ticks))}); delayed by about a quarter tick its edges "
-                          "come clear of theirs and the level sampled at the end of each tick is unchanged")})
+                          "come clear of theirs and the level sampled at the end of each tick is "
+                          f"unchanged{condition}")})
     return offer
 
 

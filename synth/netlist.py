@@ -32,6 +32,7 @@ from .network import Network, evaluate_words
 from .verilog_names import VERILOG_KEYWORDS, verilog_module_name  # noqa: F401 - re-exported
 
 RAIL_NETS = ("VDD", "VSS")
+CLOCK_NET = "CLK"          # the board's clock input (formats.md: the clock input is the net CLK)
 Role = Literal["counter", "logic", "switch", "oscillator"]
 Direction = Literal["in", "out", "analog", "power", "nc", "other"]
 
@@ -146,7 +147,7 @@ def ref_key(ref: str) -> tuple[str, int, str]:
 
 # ---------------------------------------------------------------- pin directions
 
-_IN_HEADS = {"inputs", "input", "clock", "enable", "enables", "reset", "selects", "data",
+_IN_HEADS = {"inputs", "input", "clock", "enable", "enables", "reset", "selects", "data", "count_enable",
              "d", "set", "control", "tie", "load", "clear"}
 _OUT_HEADS = {"output", "also", "outputs", "stages", "decoded", "carry", "carry_out",
               "q", "qn", "output_inv"}
@@ -336,8 +337,11 @@ def sampled_clock_levels(counter: Any) -> dict[str, bool]:
     sampled: a decode gated with the clock's still half reads its tick's level there."""
     var_nets = {str(v.net) for v in getattr(counter, "vars", ())}
     level = str(getattr(counter, "edge", "rising")) == "falling"
-    return {str(c.clock_net): level for c in getattr(counter, "chips", ())
-            if str(c.clock_net) not in var_nets}
+    levels = {str(c.clock_net): level for c in getattr(counter, "chips", ())
+              if str(c.clock_net) not in var_nets}
+    if CLOCK_NET not in var_nets:        # the board clock, also where the counters take an inverted copy
+        levels.setdefault(CLOCK_NET, level)
+    return levels
 
 
 class _TickLevels(Mapping):

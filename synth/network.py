@@ -18,7 +18,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from typing import Literal, Mapping
 
-Op = Literal["and", "nand", "or", "nor", "xor", "xnor", "not", "buf", "mux", "decoder"]
+Op = Literal["and", "nand", "or", "nor", "xor", "xnor", "not", "buf", "mux", "decoder", "flipflop"]
 RAILS = {"VDD": True, "VSS": False}
 
 
@@ -30,7 +30,12 @@ class Gate:
     units ``inputs`` are the data pins (code 0, 1, ...) followed by the
     selects (least significant first); for ``decoder`` units the selects
     (lsb first) followed by the enables, with ``outputs`` one net per code
-    ('' = pin left open) and ``active`` saying their asserted level.
+    ('' = pin left open) and ``active`` saying their asserted level.  A
+    ``flipflop`` unit (a D flip-flop, edge-triggered) has ``inputs`` D, the
+    clock, then its set and reset pins where the unit has them (their active
+    levels in ``enables_active``), and ``outputs`` Q and, where pinned, Q-bar.
+    Its output at tick t is its D at tick t-1: only tick-indexed words
+    (``evaluate_words`` over a whole cycle) can evaluate it.
     """
 
     id: str
@@ -112,6 +117,9 @@ def evaluate_gate(gate: Gate, values: Mapping[str, bool]) -> dict[str, bool]:
                                                   if len(gate.outputs) > 1 and gate.outputs[1] else {})}
     elif op == "decoder":
         return _evaluate_decoder(gate, ins)
+    elif op == "flipflop":
+        raise ValueError(f"{gate.id}: a flip-flop has no zero-delay value of its inputs alone "
+                         "(its output is the previous tick's D; evaluate it over a whole cycle)")
     else:
         raise ValueError(f"expected a known gate op, got {op!r}")
     return {gate.outputs[0]: out}
@@ -197,7 +205,11 @@ def counting_words(nvars: int) -> list[int]:
 def evaluate_words(network: Network, inputs: Mapping[str, int], width: int) -> dict[str, int]:
     """Every net's levels over ``width`` input assignments at once: bit t of a net's
     word is its level in assignment t (the same logic as ``evaluate_gate``, one
-    Python integer operation per gate instead of one call per gate and tick)."""
+    Python integer operation per gate instead of one call per gate and tick).
+
+    A flip-flop reads the assignments as the ticks of one cycle in order: its Q
+    in assignment t is its D in assignment t-1 (cyclically), clocked once per tick.
+    """
     full = (1 << width) - 1
     values = {"VDD": full, "VSS": 0, **inputs}
     for gate in _driven_order(network, values):
@@ -244,6 +256,8 @@ def _gate_words(gate: Gate, ins: list[int], full: int) -> dict[str, int]:
         flip = 0 if gate.active == "high" else full
         return {net: (enabled & _code_match(sel, k, full)) ^ flip
                 for k, net in enumerate(gate.outputs) if net}
+    if op == "flipflop":
+        return _flipflop_words(gate, ins, full)
     raise ValueError(f"expected a known gate op, got {op!r}")
 
 
@@ -253,3 +267,31 @@ def _code_match(selects: list[int], code: int, full: int) -> int:
     for b, word in enumerate(selects):
         match &= word if code >> b & 1 else word ^ full
     return match
+
+
+def _flipflop_words(gate: Gate, ins: list[int], full: int) -> dict[str, int]:
+    """Q over a cycle of ticks: D one tick earlier (bit t of Q = bit t-1 of D,
+    bit 0 from the cycle's last tick); an active set forces Q high, an active
+    reset low, both together both outputs high (the 74HC74 and 4013 function
+    tables).  ``enables_active`` names each control ``set:high``, ``reset:low``...
+
+    >>> g = Gate("f", "74HC74", "flipflop", ("d", "CLK", "VDD", "VDD"), ("q", "qn"),
+    ...          enables_active=("set:low", "reset:low"))
+    >>> w = _flipflop_words(g, [0b0011, 0, 0b1111, 0b1111], 0b1111)
+    >>> bin(w["q"]), bin(w["qn"])
+    ('0b110', '0b1001')
+    """
+    width = full.bit_length()
+    d = ins[0]
+    q = ((d << 1) | (d >> (width - 1))) & full
+    forced = {"set": 0, "reset": 0}
+    for word, control in zip(ins[2:], gate.enables_active):
+        kind, _, active = control.partition(":")
+        forced[kind] |= word if active == "high" else word ^ full
+    both = forced["set"] & forced["reset"]
+    q = (q | forced["set"]) & ~(forced["reset"] & ~forced["set"]) & full
+    qn = (q ^ full) | both
+    out = {gate.outputs[0]: q} if gate.outputs and gate.outputs[0] else {}
+    if len(gate.outputs) > 1 and gate.outputs[1]:
+        out[gate.outputs[1]] = qn
+    return out

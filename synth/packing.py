@@ -28,11 +28,11 @@ from typing import Any
 
 from .errors import InternalError, ShortError, SpecError
 from .inventory import Bin, Catalog, Part, Unit
-from .netlist import (RAIL_NETS, ChipInstance, Plan, check_nets, is_passive, pin_direction,
+from .netlist import (CLOCK_NET, RAIL_NETS, ChipInstance, Plan, check_nets, is_passive, pin_direction,
                       pin_directions, ref_key, self_check)
 from .network import Gate, Network, evaluate_gate
 
-__all__ = ["pack", "unit_logic_pins", "spec_net", "check_nets", "add_chip", "rewire_pin", "refresh"]
+__all__ = ["pack", "unit_logic_pins", "flipflop_controls", "spec_net", "check_nets", "add_chip", "rewire_pin", "refresh"]
 
 # Common practice: an unused CMOS input is tied to a rail, never left floating;
 # either rail is fine for a gate input, and binsynth always uses VSS.
@@ -61,7 +61,18 @@ def unit_logic_pins(unit: Unit) -> tuple[list[int], list[int], dict[int, str]]:
     if unit.type == "decoder":
         enables = [e["pin"] for e in f.get("enables") or ()]
         return list(f["selects"]) + enables, list(f["outputs"]), held
+    if unit.type == "flipflop":
+        controls = [f[k]["pin"] for k in ("set", "reset") if f.get(k)]
+        outs = [f["q"]] + ([f["qn"]] if f.get("qn") else [])
+        return [f["d"], f["clock"]["pin"]] + controls, outs, held
     return [], [], held
+
+
+def flipflop_controls(unit: Unit) -> tuple[str, ...]:
+    """A flip-flop unit's set and reset pins as ``Gate.enables_active`` names them
+    (``set:low``, ``reset:low``), in ``unit_logic_pins`` order."""
+    f = unit.fields
+    return tuple(f"{k}:{f[k].get('active', 'high')}" for k in ("set", "reset") if f.get(k))
 
 
 def _level(active: str) -> str:
@@ -168,10 +179,20 @@ def _place_counters(board: _Board, counter_plan: Any, network: Network) -> None:
             else:
                 chip.set_pin(int(cc.reset_pin), reset_net.get(net, net), "counter reset")
         enable_pin, enable_net = getattr(cc, "enable_pin", None), getattr(cc, "enable_net", None)
+        carried = tuple(getattr(cc, "count_enable_pins", ()) or ())
         if enable_pin is not None and enable_net:
             note = ("enable held active for plain counting" if enable_net in RAIL_NETS
                     else "counts on this input")
+            if _counts_on_carry(part, cc):
+                note = "count enable from the unit below's carry (TC): a synchronous cascade"
             chip.set_pin(int(enable_pin), str(enable_net), note)
+            for pin in carried:
+                chip.set_pin(int(pin), str(enable_net), note)
+        carry_net = getattr(cc, "carry_net", None)
+        if carry_net:
+            unit = next(u for u in part.units if str(u.id) == str(cc.unit))
+            chip.set_pin(int(unit.fields["carry_out"]), str(carry_net),
+                         "carry out (TC) to the next unit's count enables")
         for pin, level in (getattr(cc, "ties", None) or {}).items():
             chip.set_pin(int(pin), str(level), f"held at {level} for plain counting")
     for var in counter_plan.vars:
@@ -185,6 +206,13 @@ def _place_counters(board: _Board, counter_plan: Any, network: Network) -> None:
     if direct is not None:
         chip = by_ref[direct[0]]
         chip.set_pin(int(direct[1]), reset_net.get(reset.net, reset.net), "drives the counter reset")
+
+
+def _counts_on_carry(part: Part, cc: Any) -> bool:
+    """Whether a counter unit's enable pin is one of its count enables on a carry net."""
+    unit = next((u for u in part.units if str(u.id) == str(cc.unit)), None)
+    pins = (unit.fields.get("count_enable") or ()) if unit is not None else ()
+    return getattr(cc, "enable_pin", None) in pins and str(cc.enable_net) not in RAIL_NETS
 
 
 def _chip_ref(counter_plan: Any, chip: Any) -> str:
@@ -233,11 +261,14 @@ def _gate_assignment(unit: Unit, gate: Gate) -> tuple[dict[int, str], dict[int, 
     ins, outs, held = unit_logic_pins(unit)
     assignment: dict[int, str] = {}
     notes: dict[int, str] = {}
-    for pin, net in zip(ins, gate.inputs):
+    controls = flipflop_controls(unit) if unit.type == "flipflop" else ()
+    for index, (pin, net) in enumerate(zip(ins, gate.inputs)):
         if not net:
             raise InternalError(f"gate {gate.id} leaves an input without a net")
         assignment[pin] = net
-        if net in RAIL_NETS:
+        if index >= 2 and controls and net in RAIL_NETS:
+            notes[pin] = f"{controls[index - 2].split(':')[0]} held inactive ({net})"
+        elif net in RAIL_NETS:
             notes[pin] = f"input held at {net} (part of gate {gate.id}'s function)"
     for pin, net in zip(outs, gate.outputs):
         if net:
@@ -547,6 +578,8 @@ def _finish_chip(chip: _Chip) -> None:
     for unit in part.units:
         used = unit.id in chip.units_used
         for pin, level in (unit.fields.get("ties") or {}).items():
+            if chip.role == "counter" and int(pin) in chip.pins:
+                continue        # the counter plan wired it (a count enable on a carry net)
             chip.set_pin(int(pin), str(level), f"held at {level} for plain use (datasheet)")
         for pin, role in unit.pins():
             if pin in chip.pins:
@@ -563,12 +596,15 @@ def _finish_chip(chip: _Chip) -> None:
 
 def _free_input_level(unit: Unit, role: str, used: bool) -> tuple[str, str]:
     """The rail for an input nothing else drives, and why."""
-    if not used:
-        return UNUSED_INPUT_LEVEL, ("unused input tied to VSS (common practice: never leave "
-                                    "a CMOS input floating)")
     head = role.split(".")[0].split("[")[0]
     spec = unit.fields.get(head)
     active = spec.get("active", "high") if isinstance(spec, dict) else "high"
+    if not used and unit.type == "flipflop" and head in ("set", "reset"):
+        inactive = "VSS" if active == "high" else "VDD"
+        return inactive, f"unused flip-flop's {head} held inactive ({inactive})"
+    if not used:
+        return UNUSED_INPUT_LEVEL, ("unused input tied to VSS (common practice: never leave "
+                                    "a CMOS input floating)")
     if head in ("enable", "enables"):
         return _level(active), f"enable held active ({_level(active)}) for plain use"
     if head in ("reset", "set", "load", "clear"):
@@ -713,8 +749,8 @@ def _external_nets(plan: Plan, routes: list[_Route], net_for: Any) -> dict[str, 
         if net in RAIL_NETS:
             continue
         dirs = [pin_direction(plan, r, p) for r, p in pins]
-        if "out" not in dirs and any(
-                c.clock_net == net for c in plan.counter.chips):
+        if "out" not in dirs and (net == CLOCK_NET or any(
+                c.clock_net == net for c in plan.counter.chips)):
             external[net] = "clock source (a square wave from VSS to VDD)"
     for name, sig in plan.signals.items():
         if sig["net"] not in RAIL_NETS and sig["net"] in plan.nets:

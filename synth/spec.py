@@ -65,6 +65,12 @@ choice open, this module decides as follows.
   capitals), both required and different; the bare keys ``on:``/``off:``,
   which YAML 1.1 reads as booleans, are taken back as the words.  Every
   unknown key is an error naming the closest known one.
+- ``steady: true`` says the signal must hold one level through every tick
+  (no glitch, no pulse per tick): a plan whose timing shows a glitch on it
+  registers it in a D flip-flop of the bin without ``--fix``.  ``steady:
+  false`` says a pulse per tick is acceptable (clock gating may be used).
+  Unset: clock gating is used only on a signal whose windows are all one
+  tick long.
 - ``clock.source: oscillator`` asks the plan for an on-board RC oscillator
   (a spare Schmitt gate or a 4060's own stage, R and C from the bin) at
   ``clock.frequency``; ``clock.tolerance`` is how far the frequency may move
@@ -132,7 +138,7 @@ LEVEL_KEYS = ("bits", "kind", "tolerance", "load")
 LEVEL_KINDS = ("r2r", "binary")
 DEFAULT_LADDER_TOLERANCE = 0.05
 """Resistor tolerance assumed when a ``levels`` entry gives none (5 %, common stock)."""
-SIGNAL_KEYS = ("high", "every", "polarity", "dont_care", "clear_of", "stretch")
+SIGNAL_KEYS = ("high", "every", "polarity", "dont_care", "clear_of", "stretch", "steady")
 SWITCH_KEYS = ("select", "on", "off")
 POLARITIES = ("high", "low", "free")
 CLOCK_SOURCES = ("external", "oscillator")
@@ -171,6 +177,7 @@ class SignalSpec:
     clear_of: dict[str, int]
     stretch: int
     line: int
+    steady: bool | None = None   # True: must hold its level through every tick; False: a pulse per tick will do
 
 
 @dataclass(frozen=True)
@@ -893,9 +900,15 @@ class _Reader:
             stretch = self.ticks(body["stretch"], f"{where}.stretch", body.line_of("stretch"),
                                  minimum=0, what="a stretch")
         clear_of = self.clear_of(body, name, where, names) if "clear_of" in body else {}
+        steady = None
+        if "steady" in body:
+            steady = body["steady"]
+            if not isinstance(steady, bool):
+                self.fail(f"{where}.steady: expected true or false, got {_kind(steady)}",
+                          body.line_of("steady"), "steady: true (hold the level through every tick)")
         return SignalSpec(name=name, high=high, dont_care=dont_care, polarity=polarity,
                           every=every, windows=windows_of(high, cycle), clear_of=clear_of,
-                          stretch=stretch, line=line)
+                          stretch=stretch, line=line, steady=steady)
 
     def every(self, body: MarkedDict, where: str, cycle: int) -> int:
         line = body.line_of("every")

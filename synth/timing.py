@@ -70,7 +70,8 @@ __all__ = [
     "reset_net_of", "CounterModel", "CounterOutput", "GateModel", "glitches", "Glitch",
     "settle_mismatches", "merge_glitches", "ripple_hazards", "RippleHazard", "coincident_edges",
     "edge_skews", "remedies", "spare_input", "analyse", "default_period_ns", "nice_period_ns",
-    "ps", "expected_from_delivered",
+    "ps", "expected_from_delivered", "registered_signals", "register_start_levels",
+    "flipflop_requirement_ns", "register_checks", "pulse_width_checks", "pulse_warning_lines", "mark_races",
 ]
 
 CORNERS = ("typ", "max")
@@ -137,6 +138,7 @@ class CounterModel:
     reset_ps: int
     outputs: list[CounterOutput]
     notes: list[str] = field(default_factory=list)
+    enable_net: str | None = None   # a count enable on a carry net: counts only while it is high
 
     def level(self, output: CounterOutput, state: int) -> bool:
         """The output's level in a counter state."""
@@ -165,6 +167,11 @@ class GateModel:
     delay_ps: int
     also_op: str | None = None     # second output of the same inputs (4068 AND, 4078 OR)
     borrowed: str | None = None    # the warning when the delay is a stand-in (``stand_in_delay``)
+    edge: str | None = None        # a flip-flop's clocking edge ('rising'/'falling'); None for gates
+
+    @property
+    def clocked(self) -> bool:
+        return self.gate.op == "flipflop"
 
     def evaluate(self, values: Mapping[str, bool]) -> dict[str, bool]:
         out = evaluate_gate(self.gate, values)
@@ -244,6 +251,12 @@ def counter_models(counter_plan: Any, network: Network, catalog: Any, supply: fl
             ref, pin = reset.direct_pin
             if ref == cc.ref and (int(pin) in stages or int(pin) in decoded):
                 pins.setdefault(int(pin), str(board_reset))
+        if getattr(cc, "carry_net", None) and f.get("carry_out") is not None:
+            pins[int(f["carry_out"])] = str(cc.carry_net)
+        carry_in = None
+        if getattr(cc, "enable_pin", None) in (f.get("count_enable") or ()) and \
+                str(getattr(cc, "enable_net", "") or "VDD") not in RAILS:
+            carry_in = str(cc.enable_net)
         outputs = []
         synchronous = bool(f.get("synchronous", False))
         for pin, net in sorted(pins.items()):
@@ -274,7 +287,7 @@ def counter_models(counter_plan: Any, network: Network, catalog: Any, supply: fl
             synchronous=synchronous or f.get("mode") == "johnson",
             clock_net=str(cc.clock_net), edge=edge, reset_net=net, reset_high=reset_high,
             reset_sync=bool(reset_field.get("synchronous", False)), reset_ps=ps(t_reset),
-            outputs=outputs, notes=notes))
+            outputs=outputs, notes=notes, enable_net=carry_in))
     return models
 
 
@@ -303,6 +316,9 @@ def gate_models(network: Network, catalog: Any, supply: float, corner: str = "ty
     models = []
     for gate in network.gates:
         part = catalog.parts.get(gate.part)
+        if gate.op == "flipflop":
+            models.append(_flipflop_model(gate, part, supply, corner, gate_names))
+            continue
         delay, borrowed = _delay(part, "tpd", supply, corner), None
         if delay is None:
             delay, borrowed = stand_in_delay(catalog, gate, supply, corner)
@@ -312,6 +328,34 @@ def gate_models(network: Network, catalog: Any, supply: float, corner: str = "ty
         name = (gate_names or {}).get(gate.id, gate.id)
         models.append(GateModel(gate, name, ps(delay), _also_op(part, gate), borrowed))
     return models
+
+
+def _flipflop_model(gate: Gate, part: Any, supply: float, corner: str,
+                    gate_names: Mapping[str, str] | None) -> GateModel:
+    """A D flip-flop: clock-to-output delay, the unit's clocking edge; its set and
+    reset must be held inactive (they are, as packing ties them)."""
+    if part is None:
+        raise InternalError(f"flip-flop {gate.id}: part {gate.part} is not in the catalog")
+    delay = _delay(part, "clock_to_q", supply, corner)
+    if delay is None:
+        raise InternalError(f"flip-flop {gate.id}: the catalog gives no clock_to_q for {gate.part}")
+    for net, control in zip(gate.inputs[2:], gate.enables_active):
+        active = control.partition(":")[2] == "high"
+        if net not in RAILS or RAILS[net] == active:
+            raise InternalError(f"flip-flop {gate.id}: its {control.partition(':')[0]} is not held "
+                                "inactive (only tied set/reset inputs are modelled)")
+    unit = next(u for u in part.units if u.type == "flipflop")
+    edge = str(unit.fields["clock"].get("edge", "rising"))
+    name = (gate_names or {}).get(gate.id, gate.id)
+    return GateModel(gate, name, ps(delay), edge=edge)
+
+
+def flipflop_requirement_ns(part: Any, key: str, supply: float) -> float | None:
+    """A flip-flop's setup, hold or minimum pulse width at the supply: the
+    guaranteed figure (``max`` row) where the catalog gives one, else typical."""
+    if part is None:
+        return None
+    return part.delay_ns(key, supply, "max") or part.delay_ns(key, supply, "typ")
 
 
 def stand_in_delay(catalog: Any, gate: Gate, supply: float, corner: str) -> tuple[float | None, str | None]:
@@ -511,9 +555,13 @@ class _Engine:
         self.cancelled: set[int] = set()
         self.computed: dict[tuple[int, str], bool] = {}
         self.fanout: dict[str, list[int]] = {}
+        self.clocked: dict[str, list[int]] = {}
         for i, g in enumerate(gates):
-            for net in set(g.gate.inputs):
-                self.fanout.setdefault(net, []).append(i)
+            if g.clocked:
+                self.clocked.setdefault(g.gate.inputs[1], []).append(i)
+            else:
+                for net in set(g.gate.inputs):
+                    self.fanout.setdefault(net, []).append(i)
             for net in g.gate.outputs:
                 if net:
                     self.computed[(i, net)] = initial[net]
@@ -568,9 +616,26 @@ class _Engine:
                 was, now = changed[c.clock_net], self.levels[c.clock_net]
                 if was != now and now == (c.edge == "rising"):
                     self._count(i, c, t)
+        for net in [n for n in changed if n in self.clocked]:
+            if changed[net] != self.levels[net]:
+                for gi in self.clocked[net]:
+                    if self.levels[net] == (self.gates[gi].edge == "rising"):
+                        self._clock_flipflop(gi, t, changed)
         touched = sorted({g for net in changed for g in self.fanout.get(net, ())})
         for gi in touched:
             self._evaluate(gi, t, changed)
+
+    def _clock_flipflop(self, gi: int, t: int, changed: dict[str, bool]) -> None:
+        """A flip-flop's clocking edge: D as it was just before the edge goes to Q
+        (and its complement to Q-bar) after the clock-to-output delay."""
+        g = self.gates[gi]
+        d = g.gate.inputs[0]
+        value = RAILS[d] if d in RAILS else changed.get(d, self.levels[d])
+        cause = self.last_change(g.gate.inputs[1])
+        for net, level in zip(g.gate.outputs, (value, not value)):
+            if net and self.computed[(gi, net)] != level:
+                self.computed[(gi, net)] = level
+                self.schedule(t + g.delay_ps, net, level, cause, "gate")
 
     def _reset_active(self, c: CounterModel) -> bool:
         return c.reset_net is not None and self.levels[c.reset_net] == c.reset_high
@@ -581,6 +646,9 @@ class _Engine:
                                  "reset was still held; the count was lost")
             return
         old = self.state[i]
+        if c.enable_net is not None and not self.levels[c.enable_net] and \
+                not (c.reset_sync and self._reset_active(c)):
+            return          # a carry-enabled unit holds its count while the unit below is not at 15
         new = c.next_state(old, self._reset_active(c))
         cause = self.last_change(c.clock_net)
         for out in c.outputs:
@@ -631,8 +699,11 @@ class _Engine:
 
 def _compiled(model: GateModel):
     """A gate's evaluation as a closure over its input nets: the simulator's inner
-    loop runs it a million times on a long cycle; other ops take ``evaluate``."""
+    loop runs it a million times on a long cycle; other ops take ``evaluate``
+    (a flip-flop is not evaluated: its clock edge moves it)."""
     gate = model.gate
+    if model.clocked:
+        return lambda v: ()
     ins, out = tuple(gate.inputs), gate.outputs[0] if gate.outputs else ""
     simple = not model.also_op and out and len([n for n in gate.outputs if n]) == 1
     if simple and gate.op in ("and", "nand"):
@@ -648,15 +719,17 @@ def _compiled(model: GateModel):
 
 
 def _settled_levels(counters: list[CounterModel], gates: list[GateModel], clock_net: str,
-                    clock_level: bool, extra_inputs: Sequence[str]) -> dict[str, bool]:
-    """Every net's zero-delay level with the counters at zero (the state at time 0)."""
-    levels: dict[str, bool] = {clock_net: clock_level}
+                    clock_level: bool, extra_inputs: Sequence[str],
+                    registers: Mapping[str, bool] | None = None) -> dict[str, bool]:
+    """Every net's zero-delay level with the counters at zero (the state at time 0);
+    ``registers`` gives each flip-flop output its tick-0 level."""
+    levels: dict[str, bool] = {clock_net: clock_level, **(registers or {})}
     for c in counters:
         for out in c.outputs:
             levels[out.net] = c.level(out, 0)
     for net in extra_inputs:
         levels.setdefault(net, False)
-    pending = list(gates)
+    pending = [g for g in gates if not g.clocked]
     while pending:
         ready = [g for g in pending if all(n in levels or n in RAILS for n in g.gate.inputs)]
         if not ready:
@@ -691,7 +764,8 @@ def simulate(counter_plan: Any, network: Network, catalog: Any, supply: float, *
     after_edge = edge == "rising"
     undriven = [n for g in gates for n in g.gate.inputs
                 if n not in driven and n not in RAILS and n != clock_net]
-    initial = _settled_levels(counters, gates, clock_net, after_edge, undriven)
+    registers = register_start_levels(counter_plan, network, not after_edge)
+    initial = _settled_levels(counters, gates, clock_net, after_edge, undriven, registers)
     engine = _Engine(counters, gates, clock_net, inertial, initial)
     engine.warnings += _borrowed_notes(gates)
     ticks = cycles * cycle
@@ -703,6 +777,29 @@ def simulate(counter_plan: Any, network: Network, catalog: Any, supply: float, *
     engine.run(end - 1, period)
     return _trace_of(engine, counter_plan, network, counters, gates, period, cycle, cycles,
                      corner, supply, inertial, clock_net, edge, initial, end)
+
+
+def register_start_levels(counter_plan: Any, network: Network, sampled_clock: bool) -> dict[str, bool]:
+    """Each flip-flop output's level at tick 0: its D at the cycle's last tick (the
+    zero-delay network evaluated over one cycle, the clock at ``sampled_clock``,
+    its level just before a counting edge)."""
+    if not any(g.op == "flipflop" for g in network.gates):
+        return {}
+    from .network import evaluate_words
+
+    states = [int(s) for s in counter_plan.state_of_tick]
+    width = len(states)
+    full = (1 << width) - 1
+    inputs = {str(v.net): sum(((s >> int(v.index)) & 1) << t for t, s in enumerate(states))
+              for v in counter_plan.vars}
+    driven = {n for g in network.gates for n in g.outputs if n}
+    for g in network.gates:
+        for n in g.inputs:
+            if n not in driven and n not in RAILS and n not in inputs:
+                inputs[n] = full if sampled_clock else 0
+    words = evaluate_words(network, inputs, width)
+    return {n: bool(words[n] & 1) for g in network.gates if g.op == "flipflop"
+            for n in g.outputs if n}
 
 
 def _trace_of(engine: _Engine, counter_plan: Any, network: Network, counters: list[CounterModel],
@@ -1119,6 +1216,8 @@ def _function_values(counter_plan: Any, functions_or_network: Any) -> Callable[[
         from .network import counting_words, evaluate_words
 
         net = functions_or_network
+        if any(g.op == "flipflop" for g in net.gates):     # registered outputs follow no transient
+            net = Network([g for g in net.gates if g.op != "flipflop"], net.signals, net.inputs)
         driven = {n for g in net.gates for n in g.outputs}
         free = {n for g in net.gates for n in g.inputs if n not in RAILS and n not in driven}
         clock_level = getattr(counter_plan, "edge", "rising") == "rising"
@@ -1238,6 +1337,32 @@ def coincident_edges(delivered: Mapping[str, frozenset[int]], cycle: int) -> lis
     return out
 
 
+def mark_races(records: list[dict], delivered: Mapping[str, frozenset[int]], plan: Any,
+               cycle: int) -> list[dict]:
+    """Each coincident pair with ``relation`` and ``race``: a race only where one signal
+    gates what the other drives on the board (it selects a switch that routes the
+    other); complementary signals (one asserted exactly when the other is not) are
+    two views of one edge; other pairs are independent outputs, listed, not raced."""
+    routes: dict[str, set[str]] = {}
+    nets = {name: info.get("net") for name, info in (getattr(plan, "signals", {}) or {}).items()}
+    for sw in (getattr(plan, "switches", {}) or {}).values():
+        routed = {sw.get("on"), sw.get("off"), sw.get("on_net"), sw.get("off_net")}
+        routes.setdefault(sw.get("select"), set()).update(
+            n for n, net in nets.items() if n in routed or net in routed)
+    everything = frozenset(range(cycle))
+    out = []
+    for rec in records:
+        a, b = rec["signals"]
+        if frozenset(delivered.get(a, ())) == everything - frozenset(delivered.get(b, ())):
+            relation = "complementary"
+        elif b in routes.get(a, ()) or a in routes.get(b, ()):
+            relation = "gates"
+        else:
+            relation = "independent"
+        out.append({**rec, "relation": relation, "race": relation == "gates"})
+    return out
+
+
 def edge_skews(trace: Trace, records: list[dict]) -> list[dict]:
     """Each coincident pair with, from the trace, which signal settles first and by how much."""
     out = []
@@ -1329,7 +1454,9 @@ def remedies(glitch: Glitch, plan: Any, *, catalog: Any = None, stock: Any = Non
                 out.append(f"a synchronous counter: the bin has {', '.join(parts)}, whose outputs change "
                            "together on the clock edge, so the count never shows "
                            f"{shown} on the way")
-    out += _clock_gating_remedy(glitch, plan)
+    out += _register_remedy(glitch, plan, catalog, stock)
+    if spec is None or _pulse_per_tick_ok(spec, glitch.signal):
+        out += _clock_gating_remedy(glitch, plan)
     switch = [n for n, s in (getattr(plan, "switches", {}) or {}).items() if s.get("select") == glitch.signal]
     if switch:
         out.append(f"note: {glitch.signal} drives switch {', '.join(switch)}: for {glitch.width_ns:.0f} ns "
@@ -1340,6 +1467,30 @@ def remedies(glitch: Glitch, plan: Any, *, catalog: Any = None, stock: Any = Non
                    "or motor driver, an RC-filtered input) will not see it; an edge-triggered input "
                    "(a counter clock, a flip-flop, an interrupt pin) will")
     return out
+
+
+def _pulse_per_tick_ok(spec: Any, name: str) -> bool:
+    """As ``registers.pulse_per_tick_ok`` (steady: false, or unset with one-tick windows)."""
+    sig = getattr(spec, "signals", {}).get(name)
+    if sig is None:
+        return True
+    steady = getattr(sig, "steady", None)
+    if steady is not None:
+        return not steady
+    return all(b - a == 1 for a, b in getattr(sig, "windows", ()))
+
+
+def _register_remedy(glitch: Glitch, plan: Any, catalog: Any, stock: Any) -> list[str]:
+    """Registering: the bin's D flip-flops, the signal decoded one tick early."""
+    if glitch.signal in (getattr(plan, "registered", None) or {}) or catalog is None or stock is None:
+        return []
+    parts = [t for t in sorted(getattr(stock, "parts", {}) or {})
+             if catalog.parts.get(t) is not None and catalog.parts[t].units_of("flipflop")]
+    if not parts:
+        return []
+    return [f"register it: the bin has {', '.join(parts)}; decoded one tick early and clocked into a "
+            f"D flip-flop on the counting edge, {glitch.signal} changes once per edge and holds its "
+            "level through every tick (steady: true in the spec, or --fix glitches)"]
 
 
 def _decode_choice_remedy(glitch: Glitch, counter: Any, spec: Any) -> list[str]:
@@ -1421,10 +1572,21 @@ def analyse(design: Any, fix: Sequence[str] | set[str] = ()) -> None:
     found = merge_glitches(plan, expected, typ, run)
     plan.glitches = [g.as_json() for g in found]
     delivered = {n: t for n, t in delivered_sets(plan, levels).items() if n in typ.signals}
-    plan.coincident_edges = edge_skews(typ, coincident_edges(delivered, typ.cycle))
-    for pulse in typ.resets[:1]:
-        plan.warnings.append(f"the counter reset pulse on {pulse.ref} lasts {pulse.width_ns:.0f} ns at "
-                             "typical delays (the catalog gives no minimum reset pulse width to check)")
+    plan.coincident_edges = mark_races(edge_skews(typ, coincident_edges(delivered, typ.cycle)),
+                                       delivered, plan, typ.cycle)
+    plan.register_checks = register_checks(plan, [typ, worst], catalog)
+    for rec in plan.register_checks:
+        if not rec["setup_ok"]:
+            plan.warnings.append(f"{rec['signal']}: flip-flop {rec['flipflop']} ({rec['part']}) sees D settle "
+                                 f"{-rec['setup_slack_ns']:.0f} ns too late for its {rec['setup_needed_ns']:g} ns "
+                                 "setup time at worst-case delays; slow the clock")
+        if not rec["hold_ok"]:
+            plan.warnings.append(f"{rec['signal']}: flip-flop {rec['flipflop']} ({rec['part']}) sees D change "
+                                 f"{rec['hold_margin_ns']:g} ns after its clock edge, inside its "
+                                 f"{rec['hold_needed_ns']:g} ns hold time")
+    plan.pulse_widths = pulse_width_checks(plan, typ, catalog)
+    for rec in plan.pulse_widths:
+        plan.warnings += pulse_warning_lines(rec)
     plan.warnings += [w for w in dict.fromkeys(typ.warnings + worst.warnings) if w not in plan.warnings]
     design.trace = typ
     stock = getattr(design, "stock", None)
@@ -1437,6 +1599,24 @@ def analyse(design: Any, fix: Sequence[str] | set[str] = ()) -> None:
             if not line.startswith("note:") and entry not in text:
                 text.append(entry)
     design.remedies = {"text": text, "by_glitch": by_glitch, "glitches": found}
+
+
+def pulse_warning_lines(rec: dict) -> list[str]:
+    """A runt clock or reset pulse, said once, with the remedy; a reset pulse the
+    catalog has no figure for is said to be unchecked."""
+    if rec["what"] == "reset" and rec["ok"] is None:
+        return [f"the counter reset pulse on {rec['ref']} lasts {rec['width_ns']:.0f} ns at typical delays "
+                f"(the catalog gives no minimum reset pulse width for {rec['part']} to check)"]
+    if rec["ok"] is not False:
+        return []
+    if rec["what"] == "reset":
+        return [f"the counter reset pulse on {rec['ref']} ({rec['part']}) lasts {rec['width_ns']:.0f} ns, "
+                f"shorter than the {rec['needed_ns']:g} ns minimum at this supply: the count may not "
+                "clear every time; remedy: a counter with a synchronous clear (74HC163) or a reset "
+                "stretched by an RC delay between two Schmitt stages, or a higher supply"]
+    return [f"the clock's {rec['width_ns']:.0f} ns half period is shorter than the {rec['needed_ns']:g} ns "
+            f"minimum clock pulse of {rec['ref']} ({rec['part']}) at this supply; remedy: a slower "
+            "clock or a higher supply"]
 
 
 def merge_glitches(plan: Any, expected: Mapping[str, Sequence[bool]], typ: Trace,
@@ -1467,7 +1647,9 @@ def merge_glitches(plan: Any, expected: Mapping[str, Sequence[bool]], typ: Trace
             g.seen_inertial = True
             merged[key] = g
         merged[key].models.add("inertial_typ")
-    for h in ripple_hazards(plan.counter, plan.network, run["catalog"], signals=list(typ.signals)):
+    registered = set(registered_signals(plan.network))
+    for h in ripple_hazards(plan.counter, plan.network, run["catalog"],
+                            signals=[s for s in typ.signals if s not in registered]):
         key = (h.signal, h.at_tick)
         if key not in merged:
             lasts = _state_duration(typ, h.at_tick or typ.cycle, h.transient)
@@ -1480,6 +1662,89 @@ def merge_glitches(plan: Any, expected: Mapping[str, Sequence[bool]], typ: Trace
             merged[key].transient_state = h.transient
         merged[key].models.add("states")
     return sorted(merged.values(), key=lambda g: (g.signal, g.at_tick))
+
+
+def registered_signals(network: Network) -> dict[str, Gate]:
+    """Signal -> the flip-flop whose output carries it (registered outputs)."""
+    by_output = {n: g for g in network.gates if g.op == "flipflop" for n in g.outputs if n}
+    return {name: by_output[sig.net] for name, sig in network.signals.items() if sig.net in by_output}
+
+
+def register_checks(plan: Any, traces: Sequence[Trace], catalog: Any) -> list[dict]:
+    """Setup and hold of every registered output's flip-flop, measured on the traces.
+
+    Setup: the last change of D before each clocking edge, at the slowest
+    trace, must come at least the catalog's setup time (guaranteed figure)
+    before the edge.  Hold: D's first change after the edge must come at least
+    the hold time after it; the datasheets give no minimum delays, so the hold
+    margin is the simulated one (typical and worst-case traces) and the record
+    says what it rests on.
+    """
+    out = []
+    for signal, gate in sorted(registered_signals(plan.network).items()):
+        part = catalog.parts.get(gate.part)
+        d, clock = gate.inputs[0], gate.inputs[1]
+        setup = flipflop_requirement_ns(part, "setup", plan.supply) or 0.0
+        hold = flipflop_requirement_ns(part, "hold", plan.supply) or 0.0
+        edge = next((str(u.fields["clock"].get("edge", "rising")) for u in part.units
+                     if u.type == "flipflop"), "rising")
+        setup_slack, hold_margin = math.inf, math.inf
+        for trace in traces:
+            d_times = [t for t, _ in trace.changes.get(d, [])]
+            for te, level in trace.changes.get(clock, []):
+                if level != (edge == "rising") or te <= 0:
+                    continue
+                i = bisect.bisect_right(d_times, te)
+                before = [t for t in d_times[:i] if t > te - trace.period_ns]
+                if before:
+                    setup_slack = min(setup_slack, te - before[-1] - setup)
+                if i < len(d_times) and d_times[i] < te + trace.period_ns:
+                    hold_margin = min(hold_margin, d_times[i] - te)
+        names = gate_names_of(plan)
+        record = {"signal": signal, "flipflop": names.get(gate.id, gate.id), "part": gate.part,
+                  "clock": clock, "edge": edge, "d": d, "setup_needed_ns": round(setup, 1),
+                  "hold_needed_ns": round(hold, 1),
+                  "setup_slack_ns": None if setup_slack == math.inf else round(setup_slack, 1),
+                  "hold_margin_ns": None if hold_margin == math.inf else round(hold_margin, 1)}
+        record["setup_ok"] = record["setup_slack_ns"] is None or record["setup_slack_ns"] >= 0
+        record["hold_ok"] = record["hold_margin_ns"] is None or record["hold_margin_ns"] >= hold
+        record["hold_basis"] = ("the simulated margin at typical and worst-case delays; the datasheets give "
+                                "no minimum delays, so it rests on D being decoded from outputs that "
+                                "change only after this flip-flop's own clocking edge")
+        out.append(record)
+    return out
+
+
+def pulse_width_checks(plan: Any, trace: Trace, catalog: Any) -> list[dict]:
+    """Every clock input and every asynchronous reset pulse against the catalog's
+    minimum width at the plan's supply (``clock_width``, ``reset_width``).
+
+    The clock's narrower half is half the period (the simulator's square wave);
+    a counter reset decoded from a count lasts as long as that count shows.
+    A part with no width figure is listed as not checked, never as passed.
+    """
+    out = []
+    half = trace.period_ns / 2
+    clocked = [(c.ref, c.part) for c in counter_models(plan.counter, plan.network, catalog, plan.supply)]
+    clocked += [(name, g.part) for name, g in
+                ((gate_names_of(plan).get(g.id, g.id), g) for g in plan.network.gates if g.op == "flipflop")]
+    for ref, part_type in dict.fromkeys(clocked):
+        need = flipflop_requirement_ns(catalog.parts.get(part_type), "clock_width", plan.supply)
+        out.append({"what": "clock", "ref": ref, "part": part_type, "width_ns": round(half, 1),
+                    "needed_ns": None if need is None else round(need, 1),
+                    "ok": None if need is None else half >= need})
+    seen = set()
+    for pulse in trace.resets:
+        if pulse.ref in seen:
+            continue
+        seen.add(pulse.ref)
+        part_type = next((c.part for c in plan.counter.chips if c.ref == pulse.ref), "")
+        need = flipflop_requirement_ns(catalog.parts.get(part_type), "reset_width", plan.supply)
+        out.append({"what": "reset", "ref": pulse.ref, "part": part_type,
+                    "width_ns": round(pulse.width_ns, 1), "at_tick": pulse.at_tick,
+                    "needed_ns": None if need is None else round(need, 1),
+                    "ok": None if need is None else pulse.width_ns >= need})
+    return out
 
 
 def _strobed_levels(plan: Any) -> dict[str, bool]:

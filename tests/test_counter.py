@@ -211,13 +211,16 @@ def test_not_enough_stages_exits_3_through_the_cli(tmp_path, capsys):
 
 
 def test_rising_edge_counters_that_cannot_ripple_say_why(tmp_path):
-    # Motorola MC74HC161A/163A data sheet (hc-74.md): the 163 counts on the rising clock edge, no falling-edge enable; two of them
-    # hold 8 stages but only a carry cascade (not built) could chain them
+    # Motorola MC74HC161A/163A data sheet (hc-74.md): the 163 counts on the rising clock edge, no
+    # falling-edge enable; two of them chain through TC -> CEP/CET (a synchronous cascade, built),
+    # three do not (longer cascades are not built)
+    cp = plan_for(tmp_path, 100, {"74HC163": 2})
+    assert [c.part for c in cp.chips] == ["74HC163", "74HC163"] and cp.synchronous
     with pytest.raises(ShortError) as caught:
-        plan_for(tmp_path, 100, {"74HC163": 2})
+        plan_for(tmp_path, 1000, {"74HC163": 3})
     text = str(caught.value)
-    assert "have 8" in text and "cannot be chained" in text and "short" not in text.split("(add")[0]
-    assert "74HC393" in text                    # a falling-edge dual 4-bit counter would do it
+    assert "have 12" in text and "cannot be chained" in text and "two units gives 8 stages" in text
+    assert "short" not in text.split("(add")[0]
 
 
 def test_clock_above_fmax_names_a_faster_part(tmp_path):

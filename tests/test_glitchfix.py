@@ -198,18 +198,24 @@ def _icarus(plan, catalog, folder, period_ps: int, ticks: int):
 
 @needs_iverilog
 def test_fixed_example_cosimulates_without_unreported_spikes(catalog, tmp_path):
-    # The sample-and-hold example: frame and ready are gated with the clock by --fix
-    # glitches (track selects the S/H switch, which gating would throw over every half
-    # tick, so it keeps its decode and a note); Icarus must show, where the plan reports no glitch, at most one change
+    # The sample-and-hold example: frame (one-tick windows) is gated with the clock by --fix
+    # glitches; ready has a 24-tick window, which gating would chop into one pulse per
+    # tick, and the bin has no flip-flop to register it, so it keeps its decode and a note
+    # (track selects the S/H switch, which gating would throw over every half
+    # tick, so it keeps its decode and a note too); Icarus must show, where the plan reports no glitch, at most one change
     # in each half tick of a gated signal and in each tick of the others.
     from synth.inventory import data_path, example_path
 
     design = make_plan(example_path("sample_hold.yaml"), data_path("bins", "sample_hold.yaml"),
                        catalog=catalog, fix=["glitches"])
     plan, spec = design.plan, design.spec
-    assert set(plan.strobed) == {"frame", "ready"}
+    assert set(plan.strobed) == {"frame"}
+    ready, = [r for r in plan.timing_fixes if r["signal"] == "ready"]
+    assert ready["remedy"] == "note"
+    assert any(t["remedy"] == "clock_gating" and "several ticks" in t["result"] for t in ready["tried"])
+    assert any(t["remedy"] == "registered" and "flip-flop" in t["result"] for t in ready["tried"])
     track, = [r for r in plan.timing_fixes if r["signal"] == "track"]
-    assert track["remedy"] == "note" and any("selects switch sh_in" in t["result"] for t in track["tried"])
+    assert track["remedy"] == "note" and any("several ticks" in t["result"] for t in track["tried"])
     period_ps = timing.ps(1e9 / spec.clock.frequency_hz)
     cycle = spec.cycle
     samples, waves = _icarus(plan, catalog, tmp_path, period_ps, 2 * cycle)

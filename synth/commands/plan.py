@@ -159,6 +159,10 @@ def signal_rows(design) -> list[tuple]:
         gated = (getattr(plan, "strobed", None) or {}).get(name)
         if gated:
             expression = f"({expression}) and {gated['still_phase']} (gated with the clock)"
+        registered = (getattr(plan, "registered", None) or {}).get(name)
+        if registered:
+            expression = (f"registered in {registered['flipflop']} ({registered['part']}): its D is "
+                          f"{expression}, one tick early")
         rows.append((name, info.get("polarity"), where, expression))
     return rows
 
@@ -195,27 +199,60 @@ def plan_blocks(design) -> list:
     blocks.append(Table(f"wiring list by net ({len(wires)} wires)", ("net", "from", "to"),
                         [(w.net, _end(plan, w.frm), _end(plan, w.to)) for w in wires]))
     if plan.glitches:
-        blocks.append(Table("glitches (a signal briefly wrong on a tick entry)",
-                            ("signal", "tick", "width ns", "found by", "cause"),
-                            [(g.get("signal"), g.get("at_tick"), g.get("width_ns"),
-                              ", ".join(g.get("models", ())), g.get("cause", ""))
-                             for g in map(_as_dict, plan.glitches)]))
+        blocks.append(Table("glitches (a signal briefly wrong on a tick entry; one line per signal and cause)",
+                            ("signal", "ticks", "widest ns", "found by", "cause (first entry)"),
+                            glitch_rows(plan)))
     blocks += _fix_blocks(plan)
-    if plan.coincident_edges:
-        blocks.append(Table("coincident edges (two signals switch on the same clock edge)",
-                            ("signals", "tick"),
-                            [(" & ".join(e["signals"]), e["at_tick"]) for e in map(_as_dict, plan.coincident_edges)]))
-    for remedy in design.remedies.get("text", []):
+    races = [e for e in map(_as_dict, plan.coincident_edges) if e.get("race", True)]
+    if races:
+        blocks.append(Table("races (one signal gates what the other drives, and both switch on one clock edge)",
+                            ("signals", "tick"), [(" & ".join(e["signals"]), e["at_tick"]) for e in races]))
+    others = len(plan.coincident_edges) - len(races)
+    if others:
+        blocks.append(Text(f"{others} pair(s) of outputs switch on the same clock edge without one gating "
+                           "the other (complementary or independent): no race on this board; see "
+                           "coincident_edges in the plan JSON"))
+    for remedy in remedy_lines(design):
         blocks.append(Text(f"remedy: {remedy}"))
     lacks = getattr(design, "lacks", None)
     if lacks is not None:
         blocks.append(Text(lacks.text()))
     for warning in plan.warnings:
         blocks.append(Text(f"warning: {warning}"))
-    for caution in plan.cautions:
+    for caution in dict.fromkeys(plan.cautions):
         blocks.append(Text(f"caution: {caution}"))
-    blocks.append(Text(SAFETY))
+    if not plan.cautions:
+        blocks.append(Text(SAFETY))
     return blocks
+
+
+def glitch_rows(plan) -> list[tuple]:
+    """The glitches grouped: one row per signal and mechanism (a transient state of the
+    count, or unequal gate paths), its ticks listed together, the widest pulse."""
+    groups: dict[tuple, list[dict]] = {}
+    for g in map(_as_dict, plan.glitches):
+        groups.setdefault((g.get("signal"), g.get("mechanism", "")), []).append(g)
+    rows = []
+    for (signal, _), items in groups.items():
+        ticks = " ".join(str(g.get("at_tick")) for g in sorted(items, key=lambda g: g.get("at_tick")))
+        widest = max(float(g.get("width_max_ns") or g.get("width_ns") or 0) for g in items)
+        models = sorted({m for g in items for m in g.get("models", ())})
+        rows.append((signal, ticks, round(widest, 1), ", ".join(models), items[0].get("cause", "")))
+    return rows
+
+
+def remedy_lines(design) -> list[str]:
+    """Each remedy once per signal, with the ticks it applies to (not once per tick)."""
+    by_glitch = design.remedies.get("by_glitch", {}) if design.remedies else {}
+    lines: dict[tuple[str, str], list[int]] = {}
+    for (signal, tick), texts in sorted(by_glitch.items()):
+        for text in texts:
+            if not text.startswith("note:"):
+                lines.setdefault((signal, text), []).append(tick)
+    if not by_glitch:
+        return list(design.remedies.get("text", [])) if design.remedies else []
+    return [f"{signal} (tick{'s' if len(ticks) > 1 else ''} {', '.join(map(str, ticks))}): {text}"
+            for (signal, text), ticks in lines.items()]
 
 
 def _fix_blocks(plan) -> list:
@@ -225,7 +262,8 @@ def _fix_blocks(plan) -> list:
     blocks = []
     fixes = getattr(plan, "timing_fixes", None) or []
     if fixes:
-        blocks.append(Table("glitch fixes (--fix glitches; glitches re-analysed after the fix)",
+        asked = " or steady: true" if any(r.get("asked_by") for r in fixes) else ""
+        blocks.append(Table(f"glitch fixes (--fix glitches{asked}; glitches re-analysed after the fix)",
                             ("signal", "fix applied", "cost", "glitch ticks before", "after", "how"),
                             [(r["signal"], " + ".join(r.get("remedies_applied") or ["note"]).replace("_", " "),
                               f"+{r['cost']['chips']} chips, +{r['cost']['gates']} gates",
@@ -236,7 +274,7 @@ def _fix_blocks(plan) -> list:
                                              if not r["applied"] else ""))
                              for r in fixes]))
     offers = getattr(plan, "rc_offers", None) or []
-    races = [o for o in offers if o["problem"] == "race" and o.get("applicable")]
+    races = [o for o in offers if o["problem"] in ("race", "coincident") and o.get("applicable")]
     if races:
         blocks.append(Text(_race_offers_text(races)))
     refused: dict[str, list[str]] = {}
@@ -259,10 +297,12 @@ def _race_offers_text(races: list[dict]) -> str:
     first = races[0]
     rise, fall = first["delay_ns"]["rising"], first["delay_ns"]["falling"]
     names = ", ".join(o["delayed"] for o in races)
+    only_if = "" if any(o["problem"] == "race" for o in races) else (
+        "; needed only if your circuit clocks, resets or gates one of these with the other")
     return "\n".join([
         f"offer (not applied): an RC delay of about a quarter tick on {names}, each of which switches "
-        "on the same clock edge as another signal (see coincident edges): its edges then come clear "
-        "of the other's and the level sampled at the end of each tick is unchanged",
+        "on the same clock edge as another signal: its edges then come clear "
+        f"of the other's and the level sampled at the end of each tick is unchanged{only_if}",
         f"  R {first['r']}, C {first['c']} into {_receiver(first)}: {first['formula']}; delay min / typ / "
         f"max rising {rise[0]:g} / {rise[1]:g} / {rise[2]:g} ns, falling {fall[0]:g} / {fall[1]:g} / "
         f"{fall[2]:g} ns",

@@ -113,6 +113,7 @@ def _identifiers(plan: Any, counters: list[CounterModel], gates: list[GateModel]
     nets = [o.net for c in counters for o in c.outputs]
     nets += [n for g in gates for n in (*g.gate.inputs, *g.gate.outputs) if n]
     nets += [c.reset_net for c in counters if c.reset_net]
+    nets += [c.enable_net for c in counters if c.enable_net]
     nets += [plan.signals[n]["net"] for n in spec_signals(plan)]
     for net in dict.fromkeys(nets):
         if net in names or net in RAILS:
@@ -141,6 +142,8 @@ def _counter_comment(plan: Any, c: CounterModel, catalog: Any) -> list[str]:
     for o in c.outputs:
         lines.append(f"  //   {o.pin_name or o.kind} (pin {o.pin}) -> {o.net}: {delay_text(o.delay_ps)} ns "
                      "after the counting edge")
+    if c.enable_net:
+        lines.append(f"  //   counts only while {c.enable_net} is high (count enables on the carry of the unit below)")
     if c.reset_net:
         kind = "synchronous" if c.reset_sync else "asynchronous"
         lines.append(f"  //   reset from {c.reset_net}, active {'high' if c.reset_high else 'low'}, {kind}"
@@ -182,6 +185,11 @@ def _counter_block(plan: Any, c: CounterModel, names: dict[str, str], catalog: A
     condition = f"{was} === {before} && {clock} === {now}"
     if c.reset_net and not c.reset_sync:
         condition += f" && {names[c.reset_net]} !== {active}"
+    if c.enable_net:        # a synchronous cascade: count only while the unit below's TC is high
+        enabled = f"{names[c.enable_net]} === 1'b1"
+        if c.reset_net and c.reset_sync:
+            enabled = f"({enabled} || {names[c.reset_net]} === {active})"
+        condition += f" && {enabled}"
     lines.append(f"  always @({clock}) begin")
     lines.append(f"    if ({condition}) begin")
     step = f"({count} == {c.modulus - 1}) ? {width}'d0 : {count} + {width}'d1"
@@ -225,7 +233,49 @@ def _gate_lines(g: GateModel, names: dict[str, str], taken: set[str]) -> list[st
         return [comment] + _mux_lines(gate, ins, names, delay)
     if gate.op == "decoder":
         return [comment] + _decoder_lines(gate, ins, names, delay)
+    if gate.op == "flipflop":
+        return _flipflop_lines(g, names, label, delay)
     raise ValueError(f"expected a gate op Verilog can model, got {gate.op!r}")
+
+
+def _flipflop_lines(g: GateModel, names: dict[str, str], label: str, delay: str) -> list[str]:
+    """A D flip-flop as the catalog describes it: on its clocking edge D (as it was just
+    before the edge) reaches Q, and its complement Q-bar, after the clock-to-output
+    delay; set and reset are tied inactive.  Only a clean 0->1 (or 1->0) change clocks,
+    as for the counters.  Its output starts at the level the plan gives tick 0."""
+    gate = g.gate
+    d, clock = _ref(names, gate.inputs[0]), _ref(names, gate.inputs[1])
+    was = f"{label}_clk_was"
+    now = "1'b1" if g.edge == "rising" else "1'b0"
+    before = "1'b0" if g.edge == "rising" else "1'b1"
+    outs = [(names[n], invert) for n, invert in zip(gate.outputs, (False, True)) if n]
+    lines = [f"  // {g.name}: {gate.part} D flip-flop, {g.edge} edge of {gate.inputs[1]}, clock to output "
+             f"{delay} ns (gate {gate.id}); set and reset held inactive",
+             f"  reg {was};",
+             f"  always @({clock}) begin",
+             f"    if ({was} === {before} && {clock} === {now}) begin"]
+    lines += [f"      {q} <= #({delay}) {'!' if invert else ''}{d};" for q, invert in outs]
+    lines += ["    end", f"    {was} = {clock};", "  end"]
+    return lines
+
+
+def _flipflop_start(plan: Any, gates: list[GateModel], names: dict[str, str]) -> list[str]:
+    """The flip-flop outputs' levels at time 0 (tick 0), as the simulator starts them."""
+    from ..timing import register_start_levels
+
+    if not any(g.clocked for g in gates):
+        return []
+    clock_level = getattr(plan.counter, "edge", "rising") == "falling"
+    levels = register_start_levels(plan.counter, plan.network, clock_level)
+    lines = ["  initial begin"]
+    for g in gates:
+        if not g.clocked:
+            continue
+        for net, invert in zip(g.gate.outputs, (False, True)):
+            if net:
+                level = levels[g.gate.outputs[0]] if g.gate.outputs[0] else not levels[net]
+                lines.append(f"    {names[net]} = 1'b{int(level != invert)};")
+    return lines + ["  end"]
 
 
 def _select_code(sel: list[str]) -> str:
@@ -355,8 +405,10 @@ def plan_to_verilog(plan: Any, catalog: Any) -> str:
     ]
     head += [f"  output {ports[n]};" for n in signals]
     counter_nets = list(dict.fromkeys(names[o.net] for c in counters for o in c.outputs))
+    counter_nets += [names[n] for g in gates if g.clocked for n in g.gate.outputs
+                     if n and names[n] not in counter_nets]
     port_idents = set(ports.values())
-    wires = list(dict.fromkeys(names[n] for g in gates for n in g.gate.outputs
+    wires = list(dict.fromkeys(names[n] for g in gates if not g.clocked for n in g.gate.outputs
                                if n and names[n] not in port_idents))
     body = []
     if counter_nets:
@@ -369,6 +421,7 @@ def plan_to_verilog(plan: Any, catalog: Any) -> str:
     if gates:
         body.append("")
         body.append("  // decode logic: one primitive per physical gate, named chip_unit")
+    body += _flipflop_start(plan, gates, names)
     for g in gates:
         body += _gate_lines(g, names, taken)
     body.append("")
