@@ -146,6 +146,15 @@ def _fix_glitches(design: Any, exact: str) -> Any:
                 previous = step
             current = best[-1][1]
     _finish_records(records, fixed_by, design, current)
+    unsteady = sorted(s for s in _by_signal(current.plan.glitches)
+                      if getattr(current.spec.signals.get(s), "steady", None))
+    if unsteady:
+        tried = "; ".join(f"{t['remedy'].replace('_', ' ')}: {t['result']}"
+                          for t in records[unsteady[0]]["tried"] if "not applicable" in t["result"])
+        raise ShortError(f"{', '.join(unsteady)} must hold a steady level (steady: true) but still "
+                         f"glitch after every remedy the bin allows ({tried or 'none removed them'})",
+                         hint="add a 74HC74 or 74HC174 (4013 or 40174 at 4000B supplies), or drop "
+                              "steady: true")
     return current
 
 

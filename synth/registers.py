@@ -49,6 +49,7 @@ class FlipFlopOption:
     chips: int
     edge: str
     controls: tuple[str, ...]
+    has_qn: bool = False
 
 
 @dataclass(frozen=True)
@@ -62,6 +63,7 @@ class Registering:
     option: FlipFlopOption
     clock_inverter: tuple[str, str, int] | None     # (part, op, inputs)
     signals: tuple[str, ...]
+    polarity: dict[str, str]                        # each signal's delivered level before
 
 
 def flipflop_options(stock: Any, catalog: Any) -> list[FlipFlopOption]:
@@ -75,7 +77,7 @@ def flipflop_options(stock: Any, catalog: Any) -> list[FlipFlopOption]:
         f = units[0].fields
         controls = tuple(f"{k}:{f[k].get('active', 'high')}" for k in ("set", "reset") if f.get(k))
         out.append(FlipFlopOption(part_type, len(units), stock.count(part_type),
-                                  str(f["clock"].get("edge", "rising")), controls))
+                                  str(f["clock"].get("edge", "rising")), controls, bool(f.get("qn"))))
     return out
 
 
@@ -142,7 +144,7 @@ def _invert_counter_clock(counter: Any, ff_edge: str) -> Any:
 
 
 def _early_spec(spec: Any, delivered: dict[str, frozenset[int]], polarity: dict[str, str],
-                signals: tuple[str, ...]) -> Any:
+                signals: tuple[str, ...], either_way: bool = False) -> Any:
     """The spec with each registered signal asserted one tick sooner (exactly the ticks the
     plan delivered, so its stretch and don't-care choices stay as they were); signals
     with a ``clear_of`` tie to one of them keep their delivered ticks too."""
@@ -161,9 +163,12 @@ def _early_spec(spec: Any, delivered: dict[str, frozenset[int]], polarity: dict[
         ticks = delivered[name]
         if name in signals:
             ticks = frozenset((t - 1) % cycle for t in ticks)
+        level = polarity.get(name, sig.polarity)
+        if name in signals and either_way:
+            level = "free"       # the flip-flop's Q-bar gives the other level for nothing
         new[name] = dataclasses.replace(sig, high=ticks, dont_care=frozenset(), every=None,
                                         windows=windows_of(ticks, cycle), clear_of={}, stretch=0,
-                                        polarity=polarity.get(name, sig.polarity))
+                                        polarity=level)
     return dataclasses.replace(spec, signals=new)
 
 
@@ -175,8 +180,9 @@ def _fresh(base: str, taken: set[str]) -> str:
 
 
 def _with_flipflops(network: Network, signals: tuple[str, ...], option: FlipFlopOption,
-                    clock: str) -> Network:
-    """The decode's signal nets renamed to D nets, each signal now on a flip-flop's Q."""
+                    clock: str, wanted: dict[str, str]) -> Network:
+    """The decode's signal nets renamed to D nets, each signal now on a flip-flop's Q, or
+    on its Q-bar where the early decode came out the other way up from ``wanted``."""
     gates = list(network.gates)
     outs = dict(network.signals)
     taken = {n for g in gates for n in (*g.inputs, *g.outputs)} | {s.net for s in outs.values()}
@@ -200,10 +206,14 @@ def _with_flipflops(network: Network, signals: tuple[str, ...], option: FlipFlop
         else:
             d, q = net, _fresh(names[0], taken)
         taken |= {d, q}
+        level = outs[names[0]].polarity
+        flip = option.has_qn and wanted.get(names[0], level) != level
         gates.append(Gate(_fresh(f"register_{names[0]}", {g.id for g in gates}), option.part, "flipflop",
-                          (d, clock, *inactive), (q,), enables_active=option.controls))
+                          (d, clock, *inactive), ("", q) if flip else (q,), enables_active=option.controls))
+        if flip:
+            level = "high" if level == "low" else "low"
         for name in names:
-            outs[name] = SignalOut(q, outs[name].polarity)
+            outs[name] = SignalOut(q, level)
     return dataclasses.replace(network, gates=gates, signals=outs)
 
 
@@ -228,14 +238,14 @@ def prepare_registering(design: Any, signals) -> Registering:
         inverter = _inverter_part(stock, catalog, plan.supply)
         counter = _invert_counter_clock(counter, option.edge)
     polarity = {n: s["polarity"] for n, s in plan.signals.items()}
-    early = _early_spec(spec, delivered_sets(plan), polarity, names)
-    return Registering(early, counter, option, inverter, names)
+    early = _early_spec(spec, delivered_sets(plan), polarity, names, option.has_qn)
+    return Registering(early, counter, option, inverter, names, polarity)
 
 
 def with_flipflops(network: Network, reg: Registering, catalog: Any) -> Network:
     """The mapped early decode with each registered signal moved onto a flip-flop's Q
     (D on the early decode, clocked by CLK) and, where needed, the counters' clock inverter."""
-    network = _with_flipflops(network, reg.signals, reg.option, CLOCK_NET)
+    network = _with_flipflops(network, reg.signals, reg.option, CLOCK_NET, reg.polarity)
     if reg.clock_inverter is None:
         return network
     part, op, width = reg.clock_inverter

@@ -145,6 +145,25 @@ def test_steady_without_a_flipflop_is_short(catalog, tmp_path):
         make_plan(spec, bin_path, catalog=catalog)
 
 
+def test_steady_with_fix_and_no_flipflop_is_short(catalog, tmp_path):
+    from synth.errors import ShortError
+
+    spec, bin_path = _files(tmp_path, ARM_SPEC % "steady: true",
+                            BIN_74HC.replace("  74HC74: 1\n", ""))
+    with pytest.raises(ShortError, match="still glitch"):
+        make_plan(spec, bin_path, catalog=catalog, fix=("glitches",))
+
+
+def test_q_bar_carries_the_other_level(catalog, tmp_path):
+    """Asked active low, arm may come from the 74HC74's Q-bar: the plan is self-checked
+    tick by tick either way, and the delivered polarity is the one asked for."""
+    spec, bin_path = _files(tmp_path, ARM_SPEC % "steady: true\n    polarity: low", BIN_74HC)
+    plan = make_plan(spec, bin_path, catalog=catalog).plan
+    assert plan.signals["arm"]["polarity"] == "low" and plan.glitches == []
+    chip = next(c for c in plan.chips if c.part == "74HC74")
+    assert plan.signals["arm"]["net"] in (chip.pins.get(5), chip.pins.get(6))
+
+
 def test_steady_must_be_a_boolean(tmp_path):
     from synth.errors import SpecError
     from synth.spec import load_spec
