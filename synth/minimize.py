@@ -15,7 +15,8 @@ Interface:
   and a ``note`` saying why not; ``evaluate``, ``signal_value``, ``cubes``,
   ``literals``, ``term_count``.
 - ``minimize(functions, nvars, var_names=None, *, exact='auto',
-  free_phase=frozenset()) -> Cover``.
+  free_phase=frozenset()) -> Cover``; ``Cover.method`` is ``EXACT_LABEL``
+  or ``HEURISTIC_LABEL``, plain words for output (method names stay here).
 - ``to_text(cover, name, style='trade') -> str``.
 - ``check_cover(cover, functions) -> list[Mismatch]``; ``Mismatch(name,
   minterm, wanted, got)``.
@@ -72,7 +73,13 @@ __all__ = [
     "Cube", "Function", "Cover", "Mismatch", "minimize", "to_text", "check_cover",
     "cube_contains", "cube_literals", "run_cubes", "cube_to_text",
     "AUTO_MAX_VARS", "AUTO_MAX_WORK", "AUTO_MAX_PRIMES", "AUTO_CONFLICT_BUDGET",
+    "EXACT_LABEL", "HEURISTIC_LABEL",
 ]
+
+EXACT_LABEL = "exact cover, proven minimal"
+"""``Cover.method`` when the exact path finished (printed and in the JSON: plain words)."""
+HEURISTIC_LABEL = "heuristic cover"
+"""``Cover.method`` when the heuristic's cover is kept (best found, not proven)."""
 
 Cube = tuple[int, int]
 Phase = Literal["true", "complement"]
@@ -777,12 +784,12 @@ def minimize(functions: Sequence[Function], nvars: int, var_names: Sequence[str]
             raise InternalError(f"exact minimization failed: {exact_result}")
         solution, phases = exact_result
         return _assemble(space, functions, names, solution, phases, proven=True,
-                         method="exact", note="proven minimal over all multi-output primes")
+                         method=EXACT_LABEL, note="proven minimal over all multi-output primes")
 
     solution, phases = _espresso_phases(space, functions, free)
     if exact == "no":
         return _assemble(space, functions, names, solution, phases, proven=False,
-                         method="espresso", note="best found (Espresso; exact search not asked)")
+                         method=HEURISTIC_LABEL, note="best found (heuristic cover; exact search not asked)")
     work = (1 << nvars) * (len(functions) + len(free))
     if nvars > AUTO_MAX_VARS:
         why = f"{nvars} variables exceed the automatic limit of {AUTO_MAX_VARS}"
@@ -794,8 +801,8 @@ def minimize(functions: Sequence[Function], nvars: int, var_names: Sequence[str]
         if not isinstance(exact_result, str):
             exact_solution, exact_phases = exact_result
             return _assemble(space, functions, names, exact_solution, exact_phases,
-                             proven=True, method="espresso+exact",
+                             proven=True, method=EXACT_LABEL,
                              note="proven minimal over all multi-output primes")
         why = exact_result
     return _assemble(space, functions, names, solution, phases, proven=False,
-                     method="espresso", note=f"best found (Espresso; exact search skipped: {why})")
+                     method=HEURISTIC_LABEL, note=f"best found (heuristic cover; exact search skipped: {why})")

@@ -1,7 +1,8 @@
 """Output for people: rich tables in a terminal, plain aligned text when piped.
 
 Interface: ``Table(title, columns, rows)``, ``Text(body)``, ``show(blocks,
-stream=None)``, ``to_plain(blocks) -> str``, ``print_json(obj, stream=None)``.
+stream=None)``, ``to_plain(blocks) -> str``, ``print_json(obj, stream=None)``,
+``progress(what, stream=None, after=PROGRESS_AFTER)`` (a context manager).
 
 Commands build a list of blocks and hand it to ``show``; they never decide
 how a terminal draws.  Plain text is what scripts, files and tests see.
@@ -9,10 +10,15 @@ how a terminal draws.  Plain text is what scripts, files and tests see.
 
 from __future__ import annotations
 
+import contextlib
 import json
 import sys
+import threading
 from dataclasses import dataclass, field
-from typing import IO, Sequence
+from typing import IO, Iterator, Sequence
+
+PROGRESS_AFTER = 1.0
+"""Seconds of work before ``progress`` shows its line (a quick command shows nothing)."""
 
 
 @dataclass
@@ -81,3 +87,42 @@ def show(blocks: Sequence[Block], stream: IO[str] | None = None) -> None:
 def print_json(obj: object, stream: IO[str] | None = None) -> None:
     """JSON for scripts: indented, keys in the order the code built them."""
     (stream or sys.stdout).write(json.dumps(obj, indent=2, ensure_ascii=False) + "\n")
+
+
+@contextlib.contextmanager
+def progress(what: str, stream: IO[str] | None = None,
+             after: float = PROGRESS_AFTER) -> Iterator[None]:
+    """A spinner line on stderr while a long search runs, only when stderr is a terminal.
+
+    Nothing is shown for the first ``after`` seconds, nothing at all when the
+    stream is piped or redirected (scripts and files see no progress text), and
+    the line is erased when the work ends.  It only displays: results never
+    depend on it.
+    """
+    stream = stream or sys.stderr
+    if not (hasattr(stream, "isatty") and stream.isatty()):
+        yield
+        return
+    from rich.console import Console
+
+    status = Console(file=stream, highlight=False).status(f"binsynth: {what} ...", spinner="line")
+    lock = threading.Lock()
+    state = {"shown": False, "done": False}
+
+    def start() -> None:
+        with lock:
+            if not state["done"]:
+                status.start()
+                state["shown"] = True
+
+    timer = threading.Timer(after, start)
+    timer.daemon = True
+    timer.start()
+    try:
+        yield
+    finally:
+        timer.cancel()
+        with lock:
+            state["done"] = True
+            if state["shown"]:
+                status.stop()

@@ -23,7 +23,7 @@ choice open, this module decides as follows.
   ``cycle``.  Windows may be listed in any order; touching windows
   (``[0, 4], [4, 8]``) are fine and merge; overlapping ones are an error
   naming both, on the line of the one listed later.
-- An expression for ``high`` or ``dont_care`` is over t = 0 .. P-1: over the
+- An expression for ``asserted`` or ``dont_care`` is over t = 0 .. P-1: over the
   absolute tick when there is no ``every``, over the tick within one period
   when there is (the result repeats like windows do).
 - Time values (``"40 us"``) are accepted for ``cycle``, window bounds,
@@ -31,7 +31,7 @@ choice open, this module decides as follows.
   A time that is not a whole number of ticks (to one part in 10^9) is an
   error naming the two nearest tick counts.  A plain integer, or a string of
   digits, is ticks.
-- ``dont_care`` repeats with the same ``every`` as ``high`` and wins where
+- ``dont_care`` repeats with the same ``every`` as ``asserted`` and wins where
   both name a tick: ``SignalSpec.high`` and ``.dont_care`` are disjoint.
 - ``SignalSpec.windows`` are the asserted runs of ``high`` over one whole
   cycle, half-open, sorted; a run that wraps the cycle end is split into
@@ -76,7 +76,11 @@ choice open, this module decides as follows.
   ``clock.frequency``; ``clock.tolerance`` is how far the frequency may move
   over the datasheet threshold spread (the plan assumes 10 % and says so
   when it is not given).
-- ``levels``: analog staircases made from counter bits through a resistor
+- ``asserted`` (earlier name ``high``) and ``staircases`` (earlier name
+  ``levels``): the earlier names still read, each with a one-line note in
+  ``Spec.notes``; a mapping with both names is an error; messages name the
+  key as the file spells it.
+- ``staircases``: analog staircases made from counter bits through a resistor
   ladder.  Each entry is named by the net its output gets (an identifier,
   not a signal, switch or power net name; a switch's ``on``/``off`` may
   name it) and has ``bits`` (required: tick bits, least significant first,
@@ -129,7 +133,8 @@ STRETCH_OPTION_LIMIT = 4096
 SEARCH_BUDGET = 200_000
 """Search steps ``clear_of_feasible`` may take before it answers 'unknown'."""
 
-TOP_KEYS = ("name", "supply", "clock", "cycle", "signals", "switches", "levels", "power_on_reset")
+TOP_KEYS = ("name", "supply", "clock", "cycle", "signals", "switches", "staircases",
+            "power_on_reset")
 DEFAULT_POWER_ON_RESET_S = 10e-3
 """``power_on_reset: true`` holds the counter reset this long after power-up (10 ms: longer
 than a bench supply's rise and an RC oscillator's start, common practice)."""
@@ -138,11 +143,13 @@ LEVEL_KEYS = ("bits", "kind", "tolerance", "load")
 LEVEL_KINDS = ("r2r", "binary")
 DEFAULT_LADDER_TOLERANCE = 0.05
 """Resistor tolerance assumed when a ``levels`` entry gives none (5 %, common stock)."""
-SIGNAL_KEYS = ("high", "every", "polarity", "dont_care", "clear_of", "stretch", "steady")
+SIGNAL_KEYS = ("asserted", "every", "polarity", "dont_care", "clear_of", "stretch", "steady")
 SWITCH_KEYS = ("select", "on", "off")
 POLARITIES = ("high", "low", "free")
 CLOCK_SOURCES = ("external", "oscillator")
 POWER_NETS = ("GND", "VDD", "VSS")
+OLD_KEYS = {"high": "asserted", "levels": "staircases"}
+"""Earlier key names still read (each with a one-line note): old name -> current name."""
 
 _IDENTIFIER = re.compile(r"[A-Za-z_][A-Za-z0-9_]*\Z")
 _DIGITS = re.compile(r"[+-]?\d+\Z")
@@ -203,6 +210,8 @@ class LevelSpec:
     load_ohms: float | None
     line: int
     bit_lines: tuple[int, ...]
+    section: str = "staircases"
+    """The spec key the entry was read under (``levels`` is the earlier name), for messages."""
 
 
 @dataclass(frozen=True)
@@ -219,6 +228,8 @@ class Spec:
     levels: dict[str, LevelSpec]
     line_of_signal: dict[str, int]
     power_on_reset: float | None = None    # seconds the counter is held reset after power-up
+    notes: tuple[str, ...] = ()
+    """One-line notes about how the file was read (an earlier key name, ...)."""
 
     def period_of(self, name: str) -> int:
         """The period the signal's windows repeat with (``every`` or the cycle)."""
@@ -670,9 +681,35 @@ class _Reader:
     def __init__(self, path: Path) -> None:
         self.path = path
         self.frequency: float | None = None
+        self.notes: list[str] = []
+        self.written_as: dict[str, str] = {}    # today's key -> the earlier name the file used
 
     def fail(self, message: str, line: int | None, hint: str | None = None):
         raise SpecError(message, file=self.path, line=line, hint=hint)
+
+    def renamed(self, mapping: MarkedDict, known: tuple[str, ...], where: str) -> MarkedDict:
+        """``mapping`` with earlier key names (``OLD_KEYS``) read as today's, noted once each."""
+        old = [key for key in mapping if OLD_KEYS.get(key) in known]
+        if not old:
+            return mapping
+        fixed = MarkedDict()
+        fixed.line = mapping.line
+        fixed.key_lines = {}
+        for key, value in mapping.items():
+            new = OLD_KEYS.get(key) if key in old else key
+            if key in old and new in mapping:
+                self.fail(f"{where}: both {key!r} and {new!r} are given", mapping.line_of(key),
+                          f"{key!r} is the earlier name of {new!r}; keep only {new}:")
+            fixed[new] = value
+            fixed.key_lines[new] = mapping.line_of(key)
+            if key in old:
+                self.written_as[new] = key
+        for key in old:
+            note = (f"{self.path}:{mapping.line_of(key)}: note: '{key}:' is the earlier name of "
+                    f"'{OLD_KEYS[key]}:' and reads the same; write {OLD_KEYS[key]}: from now on")
+            if note not in self.notes:
+                self.notes.append(note)
+        return fixed
 
     def check_keys(self, mapping: dict, known: tuple[str, ...], where: str) -> None:
         for key in mapping:
@@ -727,6 +764,7 @@ class _Reader:
         if not isinstance(data, MarkedDict):
             self.fail(f"expected a mapping of spec keys (cycle, signals, ...), got {_kind(data)}",
                       getattr(data, "line", 1))
+        data = self.renamed(data, TOP_KEYS, "spec")
         self.check_keys(data, TOP_KEYS, "spec")
         name = self.name(data)
         supply = self.supply(data)
@@ -739,7 +777,7 @@ class _Reader:
         spec = Spec(name=name, path=self.path, supply=supply, clock=clock, cycle=cycle,
                     signals=signals, switches=switches, levels=levels,
                     line_of_signal={n: s.line for n, s in signals.items()},
-                    power_on_reset=self.power_on_reset(data))
+                    power_on_reset=self.power_on_reset(data), notes=tuple(self.notes))
         self.check_clear_of(spec, data)
         return spec
 
@@ -756,9 +794,9 @@ class _Reader:
         try:
             seconds = parse_quantity(value, "s")
         except ValueError:
-            self.fail(f"{expected}, got {value!r}", line)
+            self.fail(f"{expected}, got {describe(value)}", line)
         if not 1e-6 <= seconds <= 10.0:
-            self.fail(f"power_on_reset: expected between 1 us and 10 s, got {value!r}", line)
+            self.fail(f"power_on_reset: expected between 1 us and 10 s, got {describe(value)}", line)
         return seconds
 
     def name(self, data: MarkedDict) -> str:
@@ -839,9 +877,9 @@ class _Reader:
     def signals(self, data: MarkedDict, cycle: int) -> dict[str, SignalSpec]:
         if "signals" not in data:
             self.fail("missing required key 'signals'", data.line,
-                      "add signals: {name: {high: [[0, 4]]}}")
+                      "add signals: {name: {asserted: [[0, 4]]}}")
         body = self.mapping(data["signals"], "signals", data.line_of("signals"),
-                            "{sample: {high: [[0, 4]]}}")
+                            "{sample: {asserted: [[0, 4]]}}")
         if not body:
             self.fail("signals: expected at least one signal, got none", data.line_of("signals"))
         self.check_size(len(body), cycle, data.line_of("signals"))
@@ -877,16 +915,18 @@ class _Reader:
     def signal(self, name: str, body: object, line: int, cycle: int,
                names: tuple[str, ...]) -> SignalSpec:
         where = f"signals.{name}"
-        body = self.mapping(body, where, line, "{high: [[0, 4]]}")
+        body = self.mapping(body, where, line, "{asserted: [[0, 4]]}")
+        written = "high" if "high" in body and "asserted" not in body else "asserted"
+        body = self.renamed(body, SIGNAL_KEYS, where)
         self.check_keys(body, SIGNAL_KEYS, where)
         every = None
         if "every" in body:
             every = self.every(body, where, cycle)
         period = every or cycle
-        if "high" not in body:
-            self.fail(f"{where}: missing 'high' (the asserted ticks)", line,
-                      "add high: [[start, end]] or high: \"t % 32 == 0\"")
-        high = self.tick_set(body, "high", where, period, cycle)
+        if "asserted" not in body:
+            self.fail(f"{where}: missing 'asserted' (the ticks the signal is asserted)", line,
+                      "add asserted: [[start, end]], asserted: 9 or asserted: \"t % 32 == 0\"")
+        high = self.tick_set(body, "asserted", where, period, cycle, written)
         dont_care = frozenset()
         if "dont_care" in body:
             dont_care = self.tick_set(body, "dont_care", where, period, cycle)
@@ -923,11 +963,14 @@ class _Reader:
         return every
 
     def tick_set(self, body: MarkedDict, key: str, where: str, period: int,
-                 cycle: int) -> frozenset[int]:
-        """Windows or an expression over 0..period-1, repeated over the cycle."""
+                 cycle: int, written: str | None = None) -> frozenset[int]:
+        """Windows, one tick or an expression over 0..period-1, repeated over the cycle.
+
+        ``written`` is the key as the file spells it (an earlier name), for messages.
+        """
         value = body[key]
         line = body.line_of(key)
-        where = f"{where}.{key}"
+        where = f"{where}.{written or key}"
         if isinstance(value, str):
             check_expression(value, where, error=SpecError, file=self.path, line=line)
             try:
@@ -936,9 +979,12 @@ class _Reader:
                 self.fail(f"{where}: {exc.message}", line, EXPR_HINT)
         elif isinstance(value, MarkedList):
             base = self.windows(value, where, period, cycle)
+        elif isinstance(value, int) and not isinstance(value, bool):
+            start, end = self.window(value, where, line, period, cycle)
+            base = frozenset(range(start, end))
         else:
-            self.fail(f"{where}: expected a list of windows [[start, end], ...] or an expression "
-                      f"over t such as \"t % 32 == 20\", got {_kind(value)}", line)
+            self.fail(f"{where}: expected a list of windows [[start, end], ...], one tick, or an "
+                      f"expression over t such as \"t % 32 == 20\", got {_kind(value)}", line)
         if period == cycle:
             return base
         return frozenset(r + t for r in range(0, cycle, period) for t in base)
@@ -1019,27 +1065,29 @@ class _Reader:
 
     # -- levels (staircases)
     def levels(self, data: MarkedDict, cycle: int, signals: dict) -> dict[str, LevelSpec]:
-        if "levels" not in data or data["levels"] is None:
+        if "staircases" not in data or data["staircases"] is None:
             return {}
         example = "{ramp: {bits: [0, 1, 2, 3]}}"
-        body = self.mapping(data["levels"], "levels", data.line_of("levels"), example)
+        section = self.written_as.get("staircases", "staircases")
+        body = self.mapping(data["staircases"], section, data.line_of("staircases"), example)
         switch_names = set(data.get("switches") or ()) if isinstance(data.get("switches"), dict) else set()
         result = {}
         for name, entry in body.items():
             line = body.line_of(name)
             if not isinstance(name, str) or not _IDENTIFIER.match(name):
-                self.fail(f"levels: expected a net name (letters, digits, _), got {describe(name)}", line)
+                self.fail(f"{section}: expected a net name (letters, digits, _), got {describe(name)}", line)
             if name.upper() in POWER_NETS or name.lower() == "clk":
-                self.fail(f"levels: the name {describe(name)} is taken by a power net or the clock", line,
+                self.fail(f"{section}: the name {describe(name)} is taken by a power net or the clock", line,
                           "name the staircase, e.g. ramp")
             if name in signals or name in switch_names:
-                self.fail(f"levels: the name {describe(name)} is already a signal or a switch", line,
+                self.fail(f"{section}: the name {describe(name)} is already a signal or a switch", line,
                           "a staircase needs a net name of its own, e.g. ramp")
-            result[name] = self.level(name, entry, line, cycle)
+            result[name] = self.level(name, entry, line, cycle, section)
         return result
 
-    def level(self, name: str, entry: object, line: int, cycle: int) -> LevelSpec:
-        where = f"levels.{name}"
+    def level(self, name: str, entry: object, line: int, cycle: int,
+              section: str = "staircases") -> LevelSpec:
+        where = f"{section}.{name}"
         entry = self.mapping(entry, where, line, "{bits: [0, 1, 2, 3], kind: r2r, tolerance: 5 %}")
         self.check_keys(entry, LEVEL_KEYS, where)
         if "bits" not in entry:
@@ -1057,7 +1105,7 @@ class _Reader:
         load = None
         if "load" in entry:
             load = self.resistance(entry["load"], f"{where}.load", entry.line_of("load"))
-        return LevelSpec(name, bits, kind, tolerance, given, load, line, bit_lines)
+        return LevelSpec(name, bits, kind, tolerance, given, load, line, bit_lines, section)
 
     def level_bits(self, entry: MarkedDict, where: str, cycle: int) -> tuple[tuple[int, ...], tuple[int, ...]]:
         value = entry["bits"]

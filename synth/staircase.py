@@ -187,7 +187,7 @@ def _element(plan, name: str, ohms: float, a: str, b: str, how: str, piece: floa
 
 def _wire_r2r(plan, name: str, nets: list[str], r: float, r2: float, construction: str) -> list[str]:
     n, refs = len(nets), []
-    node = [f"{name}_n{k}" if k < n - 1 else name for k in range(n)]
+    node = [f"{name}_tap{k}" if k < n - 1 else name for k in range(n)]
     two_r = ("series", r) if construction == "series" else ("one", r2)
     one_r = ("parallel", r2) if construction == "parallel" else ("one", r)
     _element(plan, name, r2, node[0], "VSS", two_r[0], two_r[1], refs, "2R termination", "t")
@@ -213,11 +213,11 @@ def _wire_binary(plan, name: str, nets: list[str], legs: list[float]) -> list[st
 def _check_names(plan, spec, level, routed: list[str]) -> None:
     taken = set(plan.nets)
     if level.name in taken and not routed:
-        raise SpecError(f"levels.{level.name}: the name is already a net of the plan", file=spec.path,
+        raise SpecError(f"{level.section}.{level.name}: the name is already a net of the plan", file=spec.path,
                         line=level.line, hint="name the staircase e.g. ramp_out")
     clash = [n for n in taken if n.startswith(f"{level.name}_")]
     if clash:
-        raise SpecError(f"levels.{level.name}: the ladder's node names clash with net {clash[0]}",
+        raise SpecError(f"{level.section}.{level.name}: the ladder's node names clash with net {clash[0]}",
                         file=spec.path, line=level.line, hint="rename the staircase")
 
 
@@ -231,7 +231,7 @@ def _driver_nets(plan, spec, level) -> list[str]:
             hint = (f"the counter's pins carry tick bits {have}" if have else
                     "this counter brings out no binary tick bits (a decoded or BCD count); a binary "
                     "counter such as a 4040 does")
-            raise SpecError(f"levels.{level.name}.bits: tick bit {bit} is not brought out by the "
+            raise SpecError(f"{level.section}.{level.name}.bits: tick bit {bit} is not brought out by the "
                             f"counter ({parts})", file=spec.path, line=line, hint=hint)
         nets.append(available[bit])
     return nets
@@ -265,7 +265,7 @@ def _plan_one(plan, spec, bin, catalog, level) -> LadderPlan:
         try:
             choice = choose_ladder_resistors(bin.resistors, n, r_out_driver=r_typ, supply=supply)
         except ShortError as exc:
-            raise ShortError(f"levels.{level.name}: {exc.message}", file=bin.path, hint=exc.hint) from exc
+            raise ShortError(f"{level.section}.{level.name}: {exc.message}", file=bin.path, hint=exc.hint) from exc
         r, r2 = choice.r, choice.r2
         ladder = r2r_ladder(n, r, r2, supply, r_out_driver=r_typ, r_load=level.load_ohms)
         ideal = r2r_ladder(n, r, r2, supply)
@@ -276,6 +276,8 @@ def _plan_one(plan, spec, bin, catalog, level) -> LadderPlan:
             warnings.append(f"staircase {level.name}: each {made}; the tolerance analysis treats "
                             "each such pair as one resistor of the marked tolerance (the worst case "
                             "is the same, the Monte Carlo a little pessimistic)")
+    _refuse_driver_dominated(level, ladder, r, r_typ, n, supply, bin.path,
+                             ", ".join(part.type for part in parts))
     worst = worst_case_linearity(ladder, level.tolerance)
     monte = monte_carlo(ladder, level.tolerance, MONTE_CARLO_TRIALS, MONTE_CARLO_SEED)
     if not routed:
@@ -292,8 +294,8 @@ def _plan_one(plan, spec, bin, catalog, level) -> LadderPlan:
         warnings.append(f"staircase {level.name}: no tolerance given, 5 % resistors assumed")
     if not worst.monotonic:
         warnings.append(f"staircase {level.name}: with {level.tolerance:.0%} resistors the staircase "
-                        "may step backwards at a code change (worst-case DNL below -1 LSB); use "
-                        "1 % resistors or fewer bits")
+                        "may step backwards at a code change (worst-case DNL below -1 LSB); "
+                        + _tolerance_remedy(level, ladder, r, r_typ, n, supply))
     return LadderPlan(
         name=level.name, kind=ladder.kind, bits=tuple(level.bits), drivers=drivers, r=r, r2=r2,
         construction=construction, why=why, tolerance=level.tolerance,
@@ -302,6 +304,70 @@ def _plan_one(plan, spec, bin, catalog, level) -> LadderPlan:
         levels=tuple(ladder.levels), ideal_output_resistance=ideal.ideal_output_resistance,
         output_resistance=ladder.output_resistance, worst=worst, monte=monte,
         nominal=ladder.nominal, passives=refs, routed_by=routed, warnings=warnings)
+
+
+DRIVER_ERROR_LIMIT_LSB = 0.5
+"""The most the drivers' own resistance may move a level (in LSB) before larger values are asked for."""
+
+_DECADE = (1.0, 1.2, 1.5, 1.8, 2.2, 2.7, 3.3, 3.9, 4.7, 5.6, 6.8, 8.2)   # E12 (IEC 60063)
+
+
+def _ladder_with(level, r: float, r_typ: float, bits: int, supply: float):
+    if level.kind == "binary":
+        return binary_weighted_ladder(bits, r, supply, r_out_driver=r_typ, r_load=level.load_ohms)
+    return r2r_ladder(bits, r, 2 * r, supply, r_out_driver=r_typ, r_load=level.load_ohms)
+
+
+def _driver_error_lsb(ladder) -> float:
+    lsb = ladder.ideal_levels[1] - ladder.ideal_levels[0]
+    return max(abs(a - b) for a, b in zip(ladder.levels, ladder.ideal_levels)) / lsb
+
+
+def smallest_r_for_drivers(level, r_typ: float, bits: int, supply: float) -> float | None:
+    """The smallest E12 value of R (1 kΩ .. 1 MΩ) whose ladder the drivers move by at most
+    ``DRIVER_ERROR_LIMIT_LSB`` and which stays monotonic with exact resistors; None if none."""
+    for decade in (1e3, 1e4, 1e5):
+        for step in _DECADE:
+            r = decade * step
+            ladder = _ladder_with(level, r, r_typ, bits, supply)
+            if ladder.nominal.monotonic and _driver_error_lsb(ladder) <= DRIVER_ERROR_LIMIT_LSB:
+                return r
+    return None
+
+
+def _larger_values_text(level, r_typ: float, bits: int, supply: float) -> str:
+    least = smallest_r_for_drivers(level, r_typ, bits, supply)
+    if least is None:
+        return "buffer each bit (a 4050 or 74HC244 between the counter and the ladder)"
+    pair = f"R of {format_si(least, 'Ω')} or more" + ("" if level.kind == "binary" else
+                                                    " with 2R twice that")
+    return f"use larger resistors, {pair}, or buffer each bit"
+
+
+def _refuse_driver_dominated(level, ladder, r: float, r_typ: float, bits: int, supply: float,
+                             bin_path: str, driver_parts: str) -> None:
+    """Exit 3 when the counter outputs' resistance, not the resistors, breaks the staircase.
+
+    With exact resistor values the ladder must still step up at every code;
+    if it does not, better tolerances cannot help: the remedy is larger values
+    (or a buffer per bit), and the bin is short of them.
+    """
+    if ladder.nominal.monotonic:
+        return
+    raise ShortError(
+        f"{level.section}.{level.name}: the counter outputs' own resistance "
+        f"({driver_parts}, {format_si(r_typ, 'Ω')} each) is too large against R = {format_si(r, 'Ω')}: "
+        f"even with exact resistors the staircase steps backwards (DNL {ladder.nominal.worst_dnl:+.2f} "
+        f"LSB, the drivers move a level by {_driver_error_lsb(ladder):.2f} LSB)",
+        file=bin_path, hint=_larger_values_text(level, r_typ, bits, supply))
+
+
+def _tolerance_remedy(level, ladder, r: float, r_typ: float, bits: int, supply: float) -> str:
+    """What helps a ladder that may step backwards with the resistors' tolerance."""
+    if _driver_error_lsb(ladder) > DRIVER_ERROR_LIMIT_LSB:
+        return ("the drivers' own resistance takes most of the margin: "
+                + _larger_values_text(level, r_typ, bits, supply))
+    return "use 1 % resistors or fewer bits"
 
 
 def add_ladders(plan, spec, bin, catalog) -> dict[str, LadderPlan]:

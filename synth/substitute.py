@@ -11,13 +11,14 @@ A target is a gate name -- ``and``, ``nand``, ``or``, ``nor``, ``xor``,
 ``inv``/``not`` -- or a boolean expression over up to 8 named inputs::
 
     ~a      !a      a'         NOT (prefix ~ or !, or a postfix quote)
-    a & b                      AND
+    a & b   a·b   a * b        AND (the middle dot is how decode and plan print it)
     a ^ b                      XOR
     a | b   a + b              OR
     ( ... )   0   1            grouping, constants
 
 NOT binds tightest, then AND, XOR, OR; names are letters, digits and ``_``
-starting with a letter.  Gate targets name their inputs a, b, c, ...
+starting with a letter, or digits then a letter (counter pin names such as
+``1Q3``).  Whatever ``decode`` and ``plan`` print as a decode reads back here.  Gate targets name their inputs a, b, c, ...
 
 Every way is a mapper result (``techmap.map_design``: exact synthesis where
 the size allows) over the whole bin or over one or two of its part types, so
@@ -62,7 +63,10 @@ class Target:
 
 # ---------------------------------------------------------------- parsing
 
-_TOKEN = re.compile(r"\s*(?:(?P<name>[A-Za-z][A-Za-z0-9_]*)|(?P<const>[01])\b|(?P<op>[~!&|^+()'])|(?P<bad>\S))")
+_TOKEN = re.compile(r"\s*(?:(?P<name>[A-Za-z][A-Za-z0-9_]*|\d+[A-Za-z_][A-Za-z0-9_]*)|(?P<const>[01])\b"
+                    r"|(?P<op>[~!&|^+()'\u00b7\u22c5*])|(?P<bad>\S))")
+_AND_SIGNS = ("&", "\u00b7", "\u22c5", "*")
+"""AND as typed (&, *) and as the decode and plan print it (the middle dot ·, or ⋅)."""
 
 
 def _gate_target(text: str) -> Target | None:
@@ -121,7 +125,7 @@ def _tokens(text: str) -> list[tuple[str, str, int]]:
         value = match.group(kind)
         column = match.start(kind) + 1
         if kind == "bad":
-            raise UsageError(f"target {shown(text)}: expected a name, 0, 1, ~ ! ' & | + ^ or parentheses, "
+            raise UsageError(f"target {shown(text)}: expected a name, 0, 1, ~ ! ' & · * | + ^ or parentheses, "
                              f"got {value!r} at column {column}")
         tokens.append((kind, value, column))
     return tokens
@@ -145,7 +149,7 @@ class _Parser:
         else:
             got = "the end of the expression"
         raise UsageError(f"target {shown(self.text)}: expected {expected}, got {got}",
-                         hint="operators: ~ ! ' (not), & (and), ^ (xor), | + (or), parentheses")
+                         hint="operators: ~ ! ' (not), & · * (and), ^ (xor), | + (or), parentheses")
 
     def take(self) -> tuple[str, str, int]:
         token = self.tokens[self.i]
@@ -174,7 +178,7 @@ class _Parser:
 
     def and_(self):
         node = self.unary()
-        while self.peek() == "&":
+        while self.peek() in _AND_SIGNS:
             self.take()
             node = ("and", node, self.unary())
         return node

@@ -268,14 +268,14 @@ def test_bin_diff_command_prints_the_changed_counts(tmp_path, capsys):
     path = _bin(tmp_path)
     take_from_bin(path, {"4011": 2, "4040": 1}, CATALOG)
     backup = f"{path}.bak"
-    assert main(["bin", backup, "--diff", str(path)]) == 0
+    assert main(["bin", str(path), "--diff", backup]) == 0
     assert capsys.readouterr().out == (
-        f"changes from {backup} to {path}\n\n"
+        f"changes in {path} since {backup} (+ added to the bin, - taken out)\n\n"
         "parts\n"
-        "part  before  after  change\n"
-        "----  ------  -----  ------\n"
-        "4011  3       1      -2\n"
-        "4040  2       1      -1\n")
+        "part  before  now  change\n"
+        "----  ------  ---  ------\n"
+        "4011  3       1    -2\n"
+        "4040  2       1    -1\n")
 
 
 def test_bin_diff_json_and_no_change(tmp_path, capsys):
@@ -283,9 +283,9 @@ def test_bin_diff_json_and_no_change(tmp_path, capsys):
 
     path = _bin(tmp_path)
     take_from_bin(path, {"4073": 1}, CATALOG)
-    assert main(["bin", f"{path}.bak", "--diff", str(path), "--json"]) == 0
+    assert main(["bin", str(path), "--diff", f"{path}.bak", "--json"]) == 0
     data = json.loads(capsys.readouterr().out)
     assert data["parts"] == [{"part": "4073", "old": 3, "new": 2, "change": -1}]
-    assert data["other"] == str(path)
+    assert data["other"] == f"{path}.bak"
     assert main(["bin", str(path), "--diff", str(path)]) == 0
     assert capsys.readouterr().out == f"{path} and {path} hold the same parts and passives\n"

@@ -107,7 +107,7 @@ def test_example_json_and_wiring_carry_the_oscillator(example, tmp_path):
     assert {"R1", "C1"} <= refs
     text = wiring_markdown(example.plan)
     assert "## Clock oscillator" in text
-    assert "- [ ] R1 end 1 (47 kΩ) -> U6 pin 2 (1Y) [net CLK]" in text
+    assert "- [ ] U6 pin 2 (1Y) -> R1 end 1 (47 kΩ) [net CLK]" in text
     assert "- [ ] C1 end 2 (2.2 nF) -> VSS rail [net VSS]" in text
 
 

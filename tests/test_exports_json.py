@@ -15,7 +15,7 @@ import pytest
 
 from synth.exports import atomic_write_text
 from synth.exports.plan_json import FORMAT, plan_to_json, write_json
-from synth.exports.wiring import wire_line, wiring_markdown, write_wiring
+from synth.exports.wiring import driver_first, wire_line, wiring_markdown, write_wiring
 from synth.netlist import wire_list
 from test_packing import plan_for
 
@@ -121,11 +121,11 @@ def test_atomic_write_keeps_the_old_file_when_replace_fails(tmp_path, monkeypatc
 
 def test_wiring_has_one_checkbox_per_wire(plan):
     text = wiring_markdown(plan)
-    wires = wire_list(plan)
+    wires = driver_first(wire_list(plan))
     assert text.count("- [ ] ") == len(wires)
     for wire in wires:
         assert wire_line(plan, wire) in text
-    assert "- [ ] U2 pin 1 (1A) -> U1 pin 9 (Q1) [net Q1]" in text
+    assert "- [ ] U1 pin 9 (Q1) -> U2 pin 1 (1A) [net Q1]" in text
 
 
 @pytest.mark.parametrize("phrase", ["ESD", "floating", "supply limits", "mains", "licensed practice"])

@@ -306,14 +306,14 @@ def test_phase_choice_in_a_shared_context():
 def test_small_cases_are_proven_minimal():
     f = Function("f", frozenset({1, 3, 7, 11, 15}), frozenset({0, 2, 5}))
     cover = minimize([f], 4)
-    assert cover.proven_minimal and cover.method == "espresso+exact"
-    assert minimize([f], 4, exact="yes").method == "exact"
+    assert cover.proven_minimal and cover.method == "exact cover, proven minimal"
+    assert minimize([f], 4, exact="yes").method == "exact cover, proven minimal"
 
 
 def test_espresso_only_is_not_claimed_minimal():
     f = Function("f", frozenset({1, 3, 7, 11, 15}), frozenset({0, 2, 5}))
     cover = minimize([f], 4, exact="no")
-    assert not cover.proven_minimal and cover.method == "espresso"
+    assert not cover.proven_minimal and cover.method == "heuristic cover"
     assert "best found" in cover.note
 
 
@@ -361,7 +361,7 @@ def test_trade_and_ascii_notation():
     names = ("Q1", "Q2", "Q3", "Q4", "Q5")
     cover = Cover(nvars=5, var_names=names, terms=((0b01101, 0b01001), (0b10000, 0)),
                   outputs={"x": (0, 1)}, phases={"x": "true"}, proven_minimal=False,
-                  method="espresso", cost=(2, 4, 2))
+                  method="heuristic cover", cost=(2, 4, 2))
     assert to_text(cover, "x") == "Q4·Q3'·Q1 + Q5'"
     assert to_text(cover, "x", style="ascii") == "Q4 & ~Q3 & Q1 | ~Q5"
 

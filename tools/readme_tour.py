@@ -62,7 +62,7 @@ TOUR = [
      "inputs with the chip pin on every arrow, then wired net by net. A target is a gate name "
      "(`and2`..`and8`, `nand..`, `or..`, `nor..`, `xor..`, `xnor..`, `inv`) or an expression over "
      "named inputs: `~a`, `!a` or `a'` (not), `&` (and), `^` (xor), `|` or `+` (or), parentheses, "
-     "`0`/`1`; NOT binds tightest, then AND, XOR, OR. `--either-polarity` accepts the complement, "
+     "`0`/`1`; NOT binds tightest, then AND, XOR, OR. `--free-polarity` (the spec's `polarity: free`) accepts the complement, "
      "`--json` is for scripts; a misspelt gate gets the closest valid name (exit 2), a bin that "
      "cannot build it says what is short (exit 3).",
      "binsynth substitute nand4 --bin inventory/bins/stepper.yaml --limit 2",

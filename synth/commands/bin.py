@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import argparse
 from collections import defaultdict
+from pathlib import Path
 
 from ..limits import check_supply
 
@@ -12,11 +13,15 @@ HELP = "validate a bin file and show the gates, counters, switches and passives 
 
 
 def add_arguments(parser: argparse.ArgumentParser) -> None:
-    parser.add_argument("bin", help="the bin file (YAML)")
+    parser.add_argument("bin", help="the bin file (YAML); with --from-csv, the bin file to write")
     parser.add_argument("--supply", default="5 V", help="supply voltage the circuit will run at (default 5 V)")
     parser.add_argument("--json", action="store_true", help="print JSON for scripts")
     parser.add_argument("--diff", metavar="OTHER",
-                        help="show how the bin file OTHER differs from BIN (e.g. BIN.bak after a take)")
+                        help="show what changed in BIN since the bin file OTHER (e.g. BIN.bak after "
+                             "a take): '+' was added to BIN, '-' taken out")
+    parser.add_argument("--from-csv", metavar="FILE",
+                        help="write BIN from a spreadsheet saved as CSV with the columns part and "
+                             "count (markings as printed), then check it; BIN must not exist yet")
 
 
 def run(args: argparse.Namespace) -> int:
@@ -31,6 +36,8 @@ def run(args: argparse.Namespace) -> int:
         raise UsageError(f"--supply: {exc}") from None
     check_supply(supply, "--supply", error=UsageError)
     catalog = load_catalog()
+    if args.from_csv:
+        return run_from_csv(args, catalog, supply)
     stock = load_bin(args.bin, catalog, supply)
     if args.diff:
         return run_diff(stock, load_bin(args.diff, catalog, supply), args.json)
@@ -42,12 +49,41 @@ def run(args: argparse.Namespace) -> int:
     return 0
 
 
+def run_from_csv(args: argparse.Namespace, catalog, supply: float) -> int:
+    """``--from-csv FILE``: the bin file written from the spreadsheet, then shown as checked."""
+    from ..bincsv import bin_text_from_csv
+    from ..errors import UsageError
+    from ..exports import atomic_write_text
+    from ..inventory import bin_from_yaml
+    from ..render import Text, print_json, show
+    from ..yamlsrc import parse_yaml
+
+    target = Path(args.bin)
+    if target.exists() or target.resolve() == Path(args.from_csv).resolve():
+        raise UsageError(f"{args.bin}: the file exists; --from-csv writes a new bin and never "
+                         "replaces a file", hint="name a new file, or move the old one away first")
+    made = bin_text_from_csv(args.from_csv, catalog)
+    stock = bin_from_yaml(parse_yaml(made.text, args.bin), catalog, supply, args.bin)
+    atomic_write_text(target, made.text)
+    summary = provides(stock, catalog)
+    if args.json:
+        print_json({"written": args.bin, "from_csv": args.from_csv, "rows": made.rows,
+                    "ignored_columns": list(made.ignored), **summary})
+        return 0
+    head = (f"wrote {args.bin} from {args.from_csv}: {made.rows} row{'s' if made.rows != 1 else ''}, "
+            f"{len(made.counts)} marking{'s' if len(made.counts) != 1 else ''}")
+    if made.ignored:
+        head += f" (columns read past: {', '.join(made.ignored)})"
+    show([Text(head)] + summary_blocks(stock, summary))
+    return 0
+
+
 def run_diff(stock, other, as_json: bool) -> int:
-    """``--diff OTHER``: the part counts and passives that differ, BIN -> OTHER."""
+    """``--diff OTHER``: what changed in BIN since OTHER; '+' is added to the bin."""
     from ..bintake import diff_bins
     from ..render import print_json, show
 
-    diff = diff_bins(stock, other)
+    diff = diff_bins(other, stock)
     if as_json:
         print_json({"bin": stock.path, "other": other.path, **diff.as_dict()})
     else:
@@ -61,9 +97,9 @@ def diff_blocks(stock, other, diff) -> list:
 
     if not diff.changed:
         return [Text(f"{stock.path} and {other.path} hold the same parts and passives")]
-    blocks = [Text(f"changes from {stock.path} to {other.path}")]
+    blocks = [Text(f"changes in {stock.path} since {other.path} (+ added to the bin, - taken out)")]
     if diff.parts:
-        blocks.append(Table("parts", ("part", "before", "after", "change"),
+        blocks.append(Table("parts", ("part", "before", "now", "change"),
                             [(p, a, b, f"{b - a:+d}") for p, a, b in diff.parts]))
     passives = [(kind, ", ".join(format_si(v, unit) for v in added) or "-",
                  ", ".join(format_si(v, unit) for v in removed) or "-")
@@ -72,7 +108,7 @@ def diff_blocks(stock, other, diff) -> list:
                     ("capacitors", "F", diff.capacitors_added, diff.capacitors_removed))
                 if added or removed]
     if passives:
-        blocks.append(Table("passives", ("kind", "added", "removed"), passives))
+        blocks.append(Table("passives", ("kind", "added", "taken out"), passives))
     return blocks
 
 

@@ -9,6 +9,7 @@ and ``runs_text``.
 from __future__ import annotations
 
 import argparse
+from pathlib import Path
 
 NAME = "decode"
 HELP = ("show the counter chips and stages chosen for a spec, and each signal's minimized decode "
@@ -30,14 +31,17 @@ def run(args: argparse.Namespace) -> int:
     from ..counter import allocate
     from ..decode import derive
     from ..inventory import load_bin, load_catalog
-    from ..render import print_json, show
+    from ..render import print_json, progress, show
     from ..spec import load_spec
+    from .plan import show_spec_notes
 
     catalog = load_catalog()
     spec = load_spec(args.spec)
+    show_spec_notes(spec)
     stock = load_bin(args.bin, catalog, spec.supply)
     plan = allocate(spec, stock, catalog)
-    decode = derive(spec, plan, exact=args.exact)
+    with progress(f"minimizing the decode of {Path(args.spec).name}"):
+        decode = derive(spec, plan, exact=args.exact)
     if args.json:
         print_json(decode_json(spec, stock, decode))
     else:
@@ -70,10 +74,12 @@ def tick_strip(ticks: frozenset[int], cycle: int, width: int = STRIP_WIDTH) -> s
 
 
 def runs_text(ticks: frozenset[int], cycle: int, shown: int = 4) -> str:
-    """The asserted runs as tick ranges, repeats folded.
+    """The asserted runs as inclusive tick ranges (``28-29`` is ticks 28 and 29), repeats folded.
 
     >>> runs_text(frozenset({0, 1, 2, 3}), 16)
     '0-3'
+    >>> runs_text(frozenset({14, 15, 0, 1}), 16)
+    '14-1 (through 0)'
     >>> runs_text(frozenset(t for t in range(256) if t % 32 < 4), 256)
     '0-3 every 32 (8 times)'
     >>> runs_text(frozenset({0, 5, 9, 12, 20, 30}), 32)
@@ -92,7 +98,10 @@ def runs_text(ticks: frozenset[int], cycle: int, shown: int = 4) -> str:
 
     def one(start: int, end: int) -> str:
         last = (end - 1) % cycle
-        return f"{start}" if end - start == 1 else f"{start}-{last}"
+        if end - start == 1:
+            return f"{start}"
+        through = " (through 0)" if end > cycle else ""
+        return f"{start}-{last}{through}"
 
     if len(runs) >= 3:
         lengths = {end - start for start, end in runs}

@@ -13,6 +13,7 @@ weaker choice (the design says why).
 from __future__ import annotations
 
 import argparse
+import re
 from dataclasses import asdict
 
 from ..errors import UsageError
@@ -33,7 +34,8 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     fixed.add_argument("--r", metavar="OHMS", help="use this resistor (e.g. 10k) and choose C")
     fixed.add_argument("--c", metavar="FARADS", help="use this capacitor (e.g. 6n8) and choose R")
     parser.add_argument("--edge", choices=("rising", "falling"), default="rising",
-                        help="the edge the values are chosen for (default rising: 0 V -> VT+)")
+                        help="the edge the values are chosen for (default rising: from 0 V up to "
+                             "the input's threshold)")
     parser.add_argument("--json", action="store_true", help="print JSON for scripts")
 
 
@@ -42,7 +44,7 @@ def run(args: argparse.Namespace) -> int:
     from ..inventory import load_bin, load_catalog
     from ..render import print_json, show
 
-    wanted = _quantity(args.delay, "s", "delay")
+    wanted = _time(args.delay)
     supply = check_supply(_quantity(args.supply, "V", "--supply"), "--supply", error=UsageError)
     fixed_r = _quantity(args.r, "ohm", "--r") if args.r else None
     fixed_c = _quantity(args.c, "F", "--c") if args.c else None
@@ -59,6 +61,16 @@ def run(args: argparse.Namespace) -> int:
     else:
         show(delay_blocks(design, part_type, thresholds, wiring_hint(design, part), warnings))
     return 0
+
+
+def _time(text: str) -> float:
+    """The wanted delay; a bare number is refused, since 50 could mean 50 s or 50 us."""
+    from ..errors import UsageError
+
+    if re.fullmatch(r"\s*[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?\s*", text):
+        raise UsageError(f"delay: expected a time with its unit, got the bare number {shown(text.strip())}",
+                         hint=f"write the unit: {text.strip()}us, {text.strip()}ms or '{text.strip()} s'")
+    return _quantity(text, "s", "delay")
 
 
 def _quantity(text: str, unit: str, what: str) -> float:
@@ -126,9 +138,12 @@ def delay_blocks(design, part_type, thresholds, wiring, warnings) -> list:
         ("delay", format_si(design.wanted_s, "s"),
          f"{format_si(design.delay_typ, 's')} ({design.error:+.1%})"),
     ])
+    up, down = ("VT+", "VT−") if part_type else ("VDD/2", "VDD/2")   # VT+/VT- name Schmitt thresholds
+    labels = (f"rising  (0 → {up}):", f"falling (VDD → {down}):")
+    width = max(len(label) for label in labels) + 1
     formula = Text("formula (typical thresholds):\n"
-                   f"  rising  (0 → VT+):   {design.formulas['rising']}\n"
-                   f"  falling (VDD → VT−): {design.formulas['falling']}")
+                   f"  {labels[0].ljust(width)}{design.formulas['rising']}\n"
+                   f"  {labels[1].ljust(width)}{design.formulas['falling']}")
     th = design.thresholds
     spread = Table("delay over the threshold spread", ("edge", "threshold min / typ / max",
                                                        "delay min", "typ", "max"), [

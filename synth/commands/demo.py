@@ -51,7 +51,7 @@ def run(args: argparse.Namespace) -> int:
     from ..inventory import data_path, example_path
     from ..pipeline import make_plan
     from ..wishlist import DEFAULT_BUDGET
-    from ..render import Text, show
+    from ..render import Text, progress, show
 
     spec = example_path(f"{EXAMPLE}.yaml")
     stock = data_path("bins", f"{EXAMPLE}.yaml")
@@ -59,7 +59,8 @@ def run(args: argparse.Namespace) -> int:
     requests = [(entry, Output(entry.option, str(out / entry.file_name))) for entry in EXPORTERS]
     if out.is_dir():
         check_outputs([output for _, output in requests])
-    design = make_plan(spec, stock, lacks=DEFAULT_BUDGET)
+    with progress(f"planning {spec.name}"):
+        design = make_plan(spec, stock, lacks=DEFAULT_BUDGET)
     out.mkdir(parents=True, exist_ok=True)
     written = write_outputs(design, requests)
     blocks = [Text(f"demo: {spec.name} planned from the bin {stock.name}")] + plan_blocks(design)

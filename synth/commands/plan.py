@@ -13,6 +13,7 @@ whole run, the take from the bin included, succeeded.
 from __future__ import annotations
 
 import argparse
+import sys
 from pathlib import Path
 
 from ..bintake import take_from_bin
@@ -56,7 +57,7 @@ def add_output_arguments(parser: argparse.ArgumentParser) -> None:
 
 def run(args: argparse.Namespace) -> int:
     from ..pipeline import make_plan
-    from ..render import show
+    from ..render import progress, show
 
     requests = requested_outputs(args)
     bin_path = Path(args.bin)
@@ -64,7 +65,9 @@ def run(args: argparse.Namespace) -> int:
     check_outputs([output for _, output in requests],
                   {"the spec": Path(args.spec), "the bin": bin_path}, protected)
     bin_before = read_bin_bytes(bin_path) if args.take else None
-    design = make_plan(args.spec, args.bin, exact=args.exact, fix=args.fix, lacks=args.lacks)
+    with progress(f"planning {Path(args.spec).name}"):
+        design = make_plan(args.spec, args.bin, exact=args.exact, fix=args.fix, lacks=args.lacks)
+    show_spec_notes(design.spec)
     if not any(output.to_stdout for _, output in requests):
         show(plan_blocks(design))
     write_outputs(design, requests, take=args.take, bin_before=bin_before)
@@ -85,6 +88,12 @@ def read_bin_bytes(path: Path) -> bytes:
     except OSError as exc:
         raise UsageError(f"--bin: cannot read {path}: {os_reason(exc)}",
                          hint="check the path and its permissions") from None
+
+
+def show_spec_notes(spec) -> None:
+    """How the spec was read (an earlier key name, ...), one line each on stderr."""
+    for note in spec.notes:
+        sys.stderr.write(f"binsynth: {note}\n")
 
 
 def seconds(text: str) -> float:
@@ -175,6 +184,7 @@ def _asserted_expression(signal) -> str:
 
 
 def plan_blocks(design) -> list:
+    from ..exports.wiring import driver_first
     from ..netlist import pin_table, wire_list
     from ..render import Table, Text
 
@@ -195,8 +205,8 @@ def plan_blocks(design) -> list:
     if plan.decoupling:
         blocks.append(Table("decoupling (add one per chip, close to its supply pins)", ("chip", "capacitor"),
                             list(plan.decoupling)))
-    wires = wire_list(plan)
-    blocks.append(Table(f"wiring list by net ({len(wires)} wires)", ("net", "from", "to"),
+    wires = driver_first(wire_list(plan))
+    blocks.append(Table(f"wiring list, driver to load ({len(wires)} wires)", ("net", "from", "to"),
                         [(w.net, _end(plan, w.frm), _end(plan, w.to)) for w in wires]))
     if plan.glitches:
         blocks.append(Table("glitches (a signal briefly wrong on a tick entry; one line per signal and cause)",

@@ -22,8 +22,11 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
                                        "or an expression: ~ ! ' not, & and, ^ xor, | + or, parentheses")
     parser.add_argument("--bin", required=True, metavar="BIN", help="the bin file (YAML)")
     parser.add_argument("--supply", default="5", help="supply voltage, e.g. 5 or '10 V' (default 5)")
-    parser.add_argument("--either-polarity", action="store_true",
-                        help="accept the complement of the target (e.g. NAND4 where AND4 was asked)")
+    parser.add_argument("--free-polarity", dest="either_polarity", action="store_true",
+                        help="polarity free, as in the spec: accept the complement of the target "
+                             "(e.g. NAND4 where AND4 was asked)")
+    parser.add_argument("--either-polarity", dest="either_polarity", action="store_true",
+                        help=argparse.SUPPRESS)   # the earlier name, still read
     parser.add_argument("--limit", type=int, default=3, help="how many ways to show (default 3)")
     parser.add_argument("--json", action="store_true", help="print JSON for scripts")
 
@@ -31,7 +34,7 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 def run(args: argparse.Namespace) -> int:
     from ..errors import UsageError
     from ..inventory import load_bin, load_catalog
-    from ..render import print_json, show
+    from ..render import print_json, progress, show
     from ..substitute import parse_target, substitute
     from ..techmap import build_library
     from ..units import parse_quantity
@@ -49,7 +52,8 @@ def run(args: argparse.Namespace) -> int:
     catalog = load_catalog()
     stock = load_bin(args.bin, catalog, supply)
     library = build_library(stock, catalog)
-    ways = substitute(target, library, stock, either_polarity=args.either_polarity, limit=args.limit)
+    with progress(f"searching ways to build {target.text}"):
+        ways = substitute(target, library, stock, either_polarity=args.either_polarity, limit=args.limit)
     if args.json:
         print_json(substitute_json(target, ways))
     else:

@@ -1,11 +1,12 @@
 """The wiring list (``--wiring FILE``): printable Markdown, one checkbox per wire.
 
 Interface: ``wiring_markdown(plan) -> str``; ``wire_line(plan, wire) -> str``;
-``write_wiring(plan, path)`` (atomic).
+``driver_first(wires) -> list[Wire]``; ``write_wiring(plan, path)`` (atomic).
 
 Layout: title, supply, cautions, parts with their decoupling capacitors,
 signals and switches, then every chip in ref order with its pins in pin
-order (a checkbox for each wire that starts at the pin, a plain line for a
+order (a checkbox for each wire that starts at the pin -- a wire runs from the
+net's driver to a load, the way a signal is traced -- a plain line for a
 pin that only receives wires, is left open or is not connected), then every
 net with its pins.  Each wire appears exactly once, so ticking every box
 means the board is built.
@@ -20,12 +21,28 @@ from ..units import format_si
 from .files import atomic_write_text
 
 
+def driver_first(wires: list[Wire]) -> list[Wire]:
+    """Each pin-to-pin wire turned to run from the net's driver to its load, sorted by driver.
+
+    ``netlist.wire_list`` joins every pin of a net to the net's driver (or
+    first pin); a person traces a signal from where it comes from, so the list
+    reads driver -> load.  Rail ties and wires leaving the board keep their ends.
+    """
+    turned = [Wire(w.net, w.to, w.frm) if isinstance(w.to, tuple) else w for w in wires]
+    return sorted(turned, key=lambda w: (ref_key(w.frm[0]), w.frm[1], _end_key(w.to)))
+
+
+def _end_key(end: tuple[str, int] | str) -> tuple:
+    """Loads in chip and pin order (U4 pin 2 before U4 pin 12), outside ends last."""
+    return (0, ref_key(end[0]), end[1], "") if isinstance(end, tuple) else (1, (), 0, end)
+
+
 def _end_text(plan: Plan, end: tuple[str, int] | str) -> str:
     return end if isinstance(end, str) else endpoint_text(plan, *end)
 
 
 def wire_line(plan: Plan, wire: Wire) -> str:
-    """``- [ ] U2 pin 1 (1A) -> U1 pin 9 (Q1) [net Q1]``, with the pin's note if any."""
+    """``- [ ] U1 pin 9 (Q1) -> U2 pin 1 (1A) [net Q1]``, with the pin's note if any."""
     text = f"- [ ] {endpoint_text(plan, *wire.frm)} -> {_end_text(plan, wire.to)} [net {wire.net}]"
     if is_passive(wire.frm[0]):
         return text
@@ -166,7 +183,7 @@ def _nets(plan: Plan) -> list[str]:
 
 def wiring_markdown(plan: Plan) -> str:
     """The whole wiring list as one Markdown document."""
-    wires = wire_list(plan)
+    wires = driver_first(wire_list(plan))
     lines = (_header(plan) + _parts(plan) + _signals(plan) + _analog(plan) + _chips(plan, wires)
              + _passives(plan, wires) + _nets(plan))
     lines += [f"{len(wires)} wires in all."]

@@ -1,0 +1,378 @@
+"""Names a practitioner reads: spec keys, their earlier names, and retired output labels.
+
+Sources: formats.md v2 section 2 (the project's contract: ``asserted:`` replaces
+``high:``, the old name still read with a one-line note, both given is an error;
+a bare integer k is the window [k, k+1], also on its own); the project's
+originality rule (output labels in plain words of our own, never the name of
+an existing minimizer program).
+"""
+
+from __future__ import annotations
+
+import contextlib
+import io
+import json
+import textwrap
+import threading
+import tomllib
+from pathlib import Path
+
+import pytest
+
+from synth.cli import main
+from synth.commands.decode import decode_blocks
+from synth.counter import allocate
+from synth.decode import derive
+from synth.errors import SpecError
+from synth.exports.wiring import driver_first, wiring_markdown
+from synth.inventory import data_path, example_path, load_bin, load_catalog
+from synth.netlist import pin_direction, wire_list
+from synth.pipeline import make_plan
+from synth.render import progress, to_plain
+from synth.spec import OLD_KEYS, SIGNAL_KEYS, TOP_KEYS, load_spec
+from synth.substitute import parse_target
+
+EXAMPLES = ("sample_hold", "stepper", "led_scanner", "ultrasonic_burst", "adc_staircase")
+
+
+def load(text: str, path: str = "bench.yaml"):
+    return load_spec(path, text=textwrap.dedent(text))
+
+
+# ---------------------------------------------------------------- asserted / high
+
+def test_asserted_and_the_earlier_high_read_the_same():
+    new = load("cycle: 16\nsignals:\n  s: {asserted: [[2, 5]], polarity: low}\n")
+    old = load("cycle: 16\nsignals:\n  s: {high: [[2, 5]], polarity: low}\n")
+    assert new.signals["s"].high == old.signals["s"].high == frozenset({2, 3, 4})
+    assert new.notes == ()
+    assert old.notes == ("bench.yaml:3: note: 'high:' is the earlier name of 'asserted:' and reads "
+                         "the same; write asserted: from now on",)
+
+
+def test_the_note_is_given_once_per_line_not_per_signal_set():
+    spec = load("""\
+        cycle: 16
+        signals:
+          a: {high: [0]}
+          b: {high: [1]}
+        """)
+    assert [n.split(": note")[0] for n in spec.notes] == ["bench.yaml:3", "bench.yaml:4"]
+
+
+def test_asserted_and_high_together_are_refused_on_the_line():
+    with pytest.raises(SpecError) as caught:
+        load("cycle: 16\nsignals:\n  s:\n    asserted: [0]\n    high: [1]\n")
+    error = caught.value
+    assert error.line == 5 and error.exit_code == 2
+    assert "signals.s: both 'high' and 'asserted' are given" in error.message
+    assert "keep only asserted:" in error.hint
+
+
+def test_messages_name_the_key_as_the_file_spells_it():
+    with pytest.raises(SpecError) as caught:
+        load("cycle: 8\nsignals:\n  a: {high: [[0, 9]]}\n")
+    assert caught.value.message.startswith("signals.a.high: window [0, 9] goes past")
+    with pytest.raises(SpecError) as caught:
+        load("cycle: 8\nsignals:\n  a: {asserted: [[0, 9]]}\n")
+    assert caught.value.message.startswith("signals.a.asserted: window [0, 9] goes past")
+
+
+@pytest.mark.parametrize("written, ticks", [
+    ("9", {9}),                       # formats.md: `asserted: 9` is `asserted: [9]`
+    ("[9]", {9}),
+    ("[[9, 10]]", {9}),
+    ("[3, [9, 11]]", {3, 9, 10}),
+    ("0", {0}),
+])
+def test_a_bare_integer_is_one_tick(written, ticks):
+    spec = load(f"cycle: 16\nsignals:\n  s: {{asserted: {written}}}\n")
+    assert spec.signals["s"].high == frozenset(ticks)
+
+
+def test_a_bare_integer_repeats_with_every_and_stays_inside_the_period():
+    spec = load("cycle: 32\nsignals:\n  s: {asserted: 3, every: 8}\n")
+    assert spec.signals["s"].high == frozenset({3, 11, 19, 27})
+    with pytest.raises(SpecError) as caught:
+        load("cycle: 32\nsignals:\n  s: {asserted: 8, every: 8}\n")
+    assert "goes past every: 8" in caught.value.message and caught.value.line == 3
+
+
+def test_a_bare_integer_dont_care_is_one_tick():
+    spec = load("cycle: 16\nsignals:\n  s: {asserted: [[0, 4]], dont_care: 3}\n")
+    assert spec.signals["s"].dont_care == frozenset({3})
+    assert spec.signals["s"].high == frozenset({0, 1, 2})
+
+
+# ---------------------------------------------------------------- staircases / levels
+
+LADDER = """\
+cycle: 16
+signals:
+  s: {asserted: [0]}
+%s:
+  ramp: {bits: [0, 1], colour: red}
+"""
+
+
+def test_staircases_is_the_key_and_levels_still_reads():
+    good = LADDER.replace(", colour: red", "")
+    new = load(good % "staircases")
+    old = load(good % "levels")
+    assert set(new.levels) == set(old.levels) == {"ramp"}
+    assert new.levels["ramp"].bits == old.levels["ramp"].bits == (0, 1)
+    assert (new.levels["ramp"].section, old.levels["ramp"].section) == ("staircases", "levels")
+    assert new.notes == ()
+    assert old.notes == ("bench.yaml:4: note: 'levels:' is the earlier name of 'staircases:' and "
+                         "reads the same; write staircases: from now on",)
+
+
+@pytest.mark.parametrize("key", ["staircases", "levels"])
+def test_staircase_messages_name_the_key_as_written(key):
+    with pytest.raises(SpecError) as caught:
+        load(LADDER % key)
+    assert caught.value.message == f"{key}.ramp: unknown key 'colour'"
+
+
+def test_every_earlier_name_maps_to_a_current_key():
+    assert OLD_KEYS == {"high": "asserted", "levels": "staircases"}
+    assert OLD_KEYS["high"] in SIGNAL_KEYS and OLD_KEYS["levels"] in TOP_KEYS
+    assert not set(OLD_KEYS) & (set(SIGNAL_KEYS) | set(TOP_KEYS))
+
+
+def test_the_cli_prints_the_note_once_on_stderr(tmp_path, capsys):
+    spec = tmp_path / "old.yaml"
+    spec.write_text("cycle: 8\nsignals:\n  s: {high: [[0, 4]]}\n")
+    assert main(["decode", str(spec), "--bin", str(data_path("bins", "sample_hold.yaml"))]) == 0
+    err = capsys.readouterr().err
+    assert err == (f"binsynth: {spec}:3: note: 'high:' is the earlier name of 'asserted:' and "
+                   "reads the same; write asserted: from now on\n")
+
+
+def test_shipped_examples_use_the_current_names():
+    for name in EXAMPLES:
+        text = example_path(f"{name}.yaml").read_text()
+        for old in OLD_KEYS:
+            assert f"{old}:" not in text.replace("polarity: high", ""), (name, old)
+        assert load_spec(example_path(f"{name}.yaml")).notes == ()
+
+
+# ---------------------------------------------------------------- retired labels in output
+
+RETIRED = {
+    "espresso": "the name of an existing minimizer program (the method is named in docs only)",
+    "pyeda": "a library name, not a label",
+    "either-polarity": "the spec's word is 'free' (--free-polarity)",
+}
+
+
+@pytest.fixture(scope="module")
+def shipped_outputs(tmp_path_factory) -> dict[str, str]:
+    """Every shipped example through plan (text and JSON) and decode, and the other commands."""
+    out = tmp_path_factory.mktemp("outputs")
+    texts: dict[str, str] = {}
+
+    def run(key: str, argv: list[str], codes=(0,)) -> None:
+        stdout, stderr = io.StringIO(), io.StringIO()
+        with contextlib.redirect_stdout(stdout), contextlib.redirect_stderr(stderr):
+            code = main(argv)
+        assert code in codes, (argv, stderr.getvalue())
+        texts[key] = stdout.getvalue() + stderr.getvalue()
+
+    for name in EXAMPLES:
+        spec, stock = str(example_path(f"{name}.yaml")), str(data_path("bins", f"{name}.yaml"))
+        plan_json = out / f"{name}.json"
+        run(f"plan {name}", ["plan", spec, "--bin", stock, "--lacks", "0", "--json", str(plan_json)],
+            codes=(0, 3, 4))     # a bin that is short still prints what it says
+        if plan_json.exists():
+            texts[f"plan {name} json"] = plan_json.read_text()
+        run(f"decode {name}", ["decode", spec, "--bin", stock])
+        run(f"decode {name} json", ["decode", spec, "--bin", stock, "--json"])
+        run(f"bin {name}", ["bin", stock])
+    sample = str(data_path("bins", "stepper.yaml"))
+    run("substitute", ["substitute", "nand4", "--bin", sample, "--limit", "1"])
+    run("substitute json", ["substitute", "a & ~b", "--bin", sample, "--free-polarity", "--json"])
+    run("delay", ["delay", "50us", "--bin", str(data_path("bins", "sample_hold.yaml"))])
+    run("parts", ["parts", "4040"])
+    run("parts list", ["parts"])
+    return texts
+
+
+@pytest.mark.parametrize("label", sorted(RETIRED))
+def test_no_output_carries_a_retired_label(shipped_outputs, label):
+    found = [key for key, text in shipped_outputs.items() if label in text.lower()]
+    assert not found, f"{label!r} ({RETIRED[label]}) printed by: {', '.join(found)}"
+
+
+def test_cover_method_is_in_plain_words(shipped_outputs):
+    methods = {json.loads(shipped_outputs[f"decode {name} json"])["cover"]["method"]
+               for name in EXAMPLES}
+    assert methods <= {"exact cover, proven minimal", "heuristic cover"}
+    assert "(exact cover, proven minimal;" in shipped_outputs["decode sample_hold"]
+
+
+# ---------------------------------------------------------------- one expression notation
+
+@pytest.mark.parametrize("example", ["sample_hold", "stepper"])
+def test_substitute_reads_back_every_decode_decode_prints(example):
+    """Each printed decode, parsed by substitute, is the cover's own function at every count."""
+    catalog = load_catalog()
+    spec = load_spec(example_path(f"{example}.yaml"))
+    stock = load_bin(data_path("bins", f"{example}.yaml"), catalog, spec.supply)
+    decode = derive(spec, allocate(spec, stock, catalog))
+    cover = decode.cover
+    shown = to_plain(decode_blocks(spec, stock, decode))
+    index = {name: i for i, name in enumerate(cover.var_names)}
+    for name, signal in decode.signals.items():
+        printed = signal.expression if signal.phase == "true" else f"({signal.expression})'"
+        assert printed in shown
+        target = parse_target(printed)
+        for count in range(1 << cover.nvars):
+            code = sum((count >> index[var] & 1) << i for i, var in enumerate(target.inputs))
+            assert (code in target.on) == cover.signal_value(name, count), (name, printed, count)
+
+
+@pytest.mark.parametrize("text, same", [
+    ("a·b + c'", "a & b | ~c"),
+    ("1Q3'·1Q2", "x & ~y"),        # inputs in name order: 1Q2 then 1Q3
+    ("(a·b)'", "~(a & b)"),
+    ("a * b", "a & b"),
+])
+def test_printed_and_typed_notations_mean_the_same(text, same):
+    assert parse_target(text).on == parse_target(same).on
+
+
+# ---------------------------------------------------------------- bin --diff sign
+
+def test_bin_diff_plus_means_added_to_the_bin(tmp_path, capsys):
+    older = tmp_path / "older.yaml"
+    older.write_text("parts:\n  4011: 1\nresistors: [10k]\n")
+    now = tmp_path / "now.yaml"
+    now.write_text("parts:\n  4011: 3\n  4069: 1\nresistors: [10k, 22k]\n")
+    assert main(["bin", str(now), "--diff", str(older)]) == 0
+    out = capsys.readouterr().out
+    assert out.splitlines()[0] == f"changes in {now} since {older} (+ added to the bin, - taken out)"
+    assert "4011  1       3    +2" in out and "4069  0       1    +1" in out
+    assert "resistors  22 kΩ  -" in out
+
+
+# ---------------------------------------------------------------- delay needs units
+
+@pytest.mark.parametrize("bare", ["50", "0.5", "1e-5"])
+def test_delay_refuses_a_bare_number_and_asks_for_units(bare, capsys):
+    stock = str(data_path("bins", "sample_hold.yaml"))
+    assert main(["delay", bare, "--bin", stock]) == 2
+    err = capsys.readouterr().err
+    assert err == (f"binsynth: delay: expected a time with its unit, got the bare number {bare!r} "
+                   f"(write the unit: {bare}us, {bare}ms or '{bare} s')\n")
+
+
+def test_delay_with_units_still_plans():
+    stock = str(data_path("bins", "sample_hold.yaml"))
+    assert main(["delay", "50us", "--bin", stock]) == 0
+    assert main(["delay", "0.05 ms", "--bin", stock]) == 0
+
+
+# ---------------------------------------------------------------- part titles and pin names
+
+def test_part_titles_follow_one_style_of_our_own():
+    """'quad 2-input NAND': count word, what it is, gate names in capitals, no vendor phrasing."""
+    catalog = load_catalog()
+    for part_type, part in catalog.parts.items():
+        title = part.function
+        assert title == title.strip() and title[0].islower() or title[0].isdigit() or \
+            title.startswith("BCD"), (part_type, title)
+        for vendor_phrase in ("demultiplexer", ";", "trigger", "EXCLUSIVE", "bilateral", "converter", "up-counter"):
+            assert vendor_phrase not in title, (part_type, title)
+    assert catalog.parts["4011"].function == catalog.parts["74HC00"].function == "quad 2-input NAND"
+    assert catalog.parts["4093"].function == catalog.parts["74HC132"].function == \
+        "quad 2-input Schmitt NAND"
+    assert catalog.parts["4040"].function == catalog.parts["74HC4040"].function == \
+        "12-stage binary ripple counter"
+
+
+def test_74hc393_pins_are_named_as_the_datasheet_prints_them():
+    """NXP 74HC393 pin description: 1CP 1, 1MR 2, 1Q0-1Q3 3-6, GND 7 (datasheet, from memory)."""
+    part = load_catalog().parts["74HC393"]
+    names = dict(part.pins)
+    assert [names[n] for n in range(1, 8)] == ["1CP", "1MR", "1Q0", "1Q1", "1Q2", "1Q3", "GND"]
+
+
+# ---------------------------------------------------------------- wiring list direction
+
+def test_every_wire_runs_from_the_driver_to_a_load():
+    plan = make_plan(example_path("stepper.yaml"), data_path("bins", "stepper.yaml")).plan
+    wires = driver_first(wire_list(plan))
+    pin_wires = [w for w in wires if isinstance(w.to, tuple)]
+    assert pin_wires
+    for wire in pin_wires:
+        drivers = [p for p in plan.nets[wire.net] if pin_direction(plan, *p) == "out"]
+        if drivers:
+            assert wire.frm == drivers[0] and pin_direction(plan, *wire.to) != "out", wire
+    text = wiring_markdown(plan)
+    assert "- [ ] U1 pin 3 (1Q0) -> " in text     # the counter output starts its wires
+
+
+# ---------------------------------------------------------------- progress line
+
+class _Terminal(io.StringIO):
+    def isatty(self) -> bool:
+        return True
+
+
+def test_progress_shows_nothing_when_piped_and_nothing_for_quick_work():
+    piped = io.StringIO()
+    with progress("planning", stream=piped, after=0.0):
+        pass
+    assert piped.getvalue() == ""
+    quick = _Terminal()
+    with progress("planning", stream=quick, after=60.0):
+        pass
+    assert quick.getvalue() == ""
+
+
+def test_progress_shows_a_line_on_a_terminal_for_long_work():
+    terminal = _Terminal()
+    shown = threading.Event()
+    with progress("planning sh-bench", stream=terminal, after=0.0):
+        for _ in range(200):
+            if "planning sh-bench" in terminal.getvalue():
+                shown.set()
+                break
+            threading.Event().wait(0.01)
+    assert shown.is_set()
+
+
+def test_commands_print_no_progress_text_when_stderr_is_piped(capsys):
+    stock = str(data_path("bins", "sample_hold.yaml"))
+    assert main(["decode", str(example_path("sample_hold.yaml")), "--bin", stock]) == 0
+    assert capsys.readouterr().err == ""
+
+
+# ---------------------------------------------------------------- dependencies
+
+def test_sympy_is_a_test_dependency_only():
+    """sympy is the tests' reference (sympy.logic); the package never imports it."""
+    root = Path(__file__).resolve().parent.parent
+    project = tomllib.loads((root / "pyproject.toml").read_text())["project"]
+    assert not any(d.startswith("sympy") for d in project["dependencies"])
+    assert any(d.startswith("sympy") for d in project["optional-dependencies"]["test"])
+    for source in (root / "synth").rglob("*.py"):
+        assert "sympy" not in source.read_text(encoding="utf-8"), source
+
+
+def test_ladder_nodes_carry_no_inverted_style_suffix():
+    """'_n' marks an inverted net (index_n); a ladder's inner nodes are taps, not inversions."""
+    plan = make_plan(example_path("adc_staircase.yaml"), data_path("bins", "adc_staircase.yaml")).plan
+    ladder_nets = {net for net in plan.nets if net.startswith("ramp")}
+    assert ladder_nets == {"ramp", "ramp_tap0", "ramp_tap1", "ramp_tap2"}
+
+
+def test_vt_plus_is_named_only_for_a_schmitt_input(capsys):
+    """VT+ and VT- are the Schmitt thresholds (74HC14 / 40106 datasheets); a plain input switches
+    near VDD/2 (common practice)."""
+    assert main(["delay", "50us", "--bin", str(data_path("bins", "sample_hold.yaml"))]) == 0
+    plain = capsys.readouterr().out
+    assert "rising  (0 → VDD/2):" in plain and "VT+" not in plain.split("warnings:")[0]
+    assert main(["delay", "50us", "--bin", str(data_path("bins", "adc_staircase.yaml"))]) == 0
+    assert "rising  (0 → VT+):" in capsys.readouterr().out
