@@ -40,8 +40,7 @@ def add_output_arguments(parser: argparse.ArgumentParser) -> None:
     from ..wishlist import DEFAULT_BUDGET
 
     for entry in EXPORTERS:
-        parser.add_argument(entry.option, metavar="FILE",
-                            help=f"{entry.description} ('-' for standard output)")
+        parser.add_argument(entry.option, metavar="FILE", help=entry.description)
     parser.add_argument("--take", action="store_true",
                         help="write the bin back with the parts this plan uses removed (keeps a .bak)")
     parser.add_argument("--fix", action="append", choices=["glitches"], default=[],

@@ -56,7 +56,7 @@ class Exporter:
 
 
 EXPORTERS: tuple[Exporter, ...] = (
-    Exporter("json", ".json", "plan.json", "write the plan as JSON", "plan_json",
+    Exporter("json", ".json", "plan.json", "write the plan as JSON ('-' for standard output)", "plan_json",
              stdout_function="design_stdout_text"),
     Exporter("wiring", ".md", "wiring.md", "write the wiring list as Markdown with checkboxes", "wiring"),
     Exporter("verilog", ".v", "plan.v", "write a structural Verilog model", "verilog"),
