@@ -304,7 +304,7 @@ def test_demo_writes_every_output(tmp_path, capsys):
     folder = tmp_path / "demo"
     names = sorted(p.name for p in folder.iterdir())
     assert names == sorted(entry.file_name for entry in EXPORTERS)
-    assert {"plan.json", "plan.v", "plan.vcd", "timing.svg", "wiring.md"} <= set(names)
+    assert names == ["analog.cir", "plan.json", "plan.v", "plan.vcd", "report.html", "timing.svg", "wiring.md"]
     plan = json.loads((folder / "plan.json").read_text())
     assert plan["name"] == "sh-bench" and plan["counter"]["cycle"] == 64
     assert "files written:" in out

@@ -48,7 +48,7 @@ TOUR = [
      "binsynth decode examples/sample_hold.yaml --bin inventory/bins/sample_hold.yaml",
      ["decode", "examples/sample_hold.yaml", "--bin", "inventory/bins/sample_hold.yaml"], None, ()),
     ("Plan: the whole circuit, chip by chip and wire by wire (shortened here; `--json`, `--wiring`, "
-     "`--verilog`, `--vcd`, `--svg`, `--spice` write files, `--take` takes the parts out of the bin file, "
+     "`--verilog`, `--vcd`, `--svg`, `--spice`, `--report` (the HTML build page) write files, `--take` takes the parts out of the bin file, "
      "`--lacks SECONDS` bounds the re-planning that finds what the bin lacks).",
      "binsynth plan examples/stepper.yaml --bin inventory/bins/stepper.yaml",
      ["plan", "examples/stepper.yaml", "--bin", "inventory/bins/stepper.yaml"], 62,

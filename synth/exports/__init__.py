@@ -64,6 +64,8 @@ EXPORTERS: tuple[Exporter, ...] = (
     Exporter("svg", ".svg", "timing.svg", "write a timing diagram (SVG)", "svg"),
     Exporter("spice", ".cir", "analog.cir", "write the analog parts (oscillator, power-on reset, "
              "staircases, RC delays) as a plain SPICE deck", "spice"),
+    Exporter("report", ".html", "report.html", "write one self-contained HTML page to build from: "
+             "breadboard layout, wiring checklist, pin maps, gate diagrams, timing", "report"),
 )
 
 

@@ -6,7 +6,9 @@ contract, plus ``proven_minimal``, ``lower_bound``, ``method``, ``supply``,
 notes, ``passives`` (every resistor and capacitor: ref, value, the net at
 each end; their ends appear in ``wires`` as pins 1 and 2 of refs R1, C1 ...),
 ``oscillator`` (null unless ``clock.source: oscillator``), ``power_on_reset``
-(null unless the spec asks for one) and ``levels`` (one entry per staircase)); ``plan_to_text(plan) -> str``; ``write_json(plan, path)`` (atomic).
+(null unless the spec asks for one), ``levels`` (one entry per staircase) and ``breadboard`` (where
+each chip, part, jumper and outside lead goes on a solderless board, ``synth.breadboard``));
+``plan_to_text(plan) -> str``; ``write_json(plan, path)`` (atomic).
 """
 
 from __future__ import annotations
@@ -16,6 +18,7 @@ import json
 from pathlib import Path
 from typing import Any
 
+from ..breadboard import plan_breadboard
 from ..netlist import Plan, ref_key, verilog_module_name
 from .files import atomic_write_text
 
@@ -133,6 +136,7 @@ def plan_to_json(plan: Plan) -> dict:
         "power_on_reset": (plan.power_on_reset.as_json()
                            if getattr(plan, "power_on_reset", None) is not None else None),
         "levels": {name: ladder.as_json() for name, ladder in plan.ladders.items()},
+        "breadboard": plan_breadboard(plan),
     }
 
 
