@@ -2,8 +2,12 @@
 
 Interface: ``SynthError`` (base), ``InputError`` (bad user input, exit 2) with
 ``BinError``, ``SpecError``, ``UsageError``; ``CatalogError`` (broken catalog
-data); ``ShortError`` (the bin cannot realise the request, exit 3);
-``InternalError`` (a self-check failed, exit 1).
+data); ``ShortError`` (the bin cannot realise the request, proven, exit 3;
+verdict ``impossible``, with ``short``: every countable shortage as
+``Shortage`` records); ``NotFoundError`` (no design within the search
+effort and no proof that none exists, exit 4; verdict ``not_found``) and its
+``SafetyCapError`` (the wall-clock safety net fired); ``InternalError`` (a
+self-check failed, exit 1).
 
 Every error renders as one line: ``file:line: message (hint)``.  The CLI turns
 them into that line and the exit code; nothing else in the package prints.
@@ -11,6 +15,7 @@ them into that line and the exit code; nothing else in the package prints.
 
 from __future__ import annotations
 
+from dataclasses import dataclass
 from pathlib import Path
 
 
@@ -61,10 +66,52 @@ class CatalogError(SynthError):
     """The shipped or a user-supplied catalog is inconsistent."""
 
 
+@dataclass(frozen=True)
+class Shortage:
+    """One countable thing the bin lacks: what, how many needed and on hand, what fills it."""
+
+    what: str
+    need: int | None = None
+    have: int | None = None
+    fix: str = ""
+
+    def to_json(self) -> dict:
+        return {"what": self.what, "need": self.need, "have": self.have, "fix": self.fix or None}
+
+
 class ShortError(SynthError):
-    """The bin lacks what the request needs: exit 3, saying what is short."""
+    """Proven: the bin cannot realise the request (exit 3, verdict ``impossible``).
+
+    ``message`` is the reason a person can check (a counting argument or a
+    completed exhaustive search); ``short`` lists every countable shortage.
+    """
 
     exit_code = 3
+    verdict = "impossible"
+
+    def __init__(self, message: str, *, file: str | Path | None = None, line: int | None = None,
+                 hint: str | None = None, short: tuple[Shortage, ...] = ()) -> None:
+        super().__init__(message, file=file, line=line, hint=hint)
+        self.short = tuple(short)
+
+
+class NotFoundError(SynthError):
+    """No design within the search effort and no proof that none exists (exit 4).
+
+    The message says what was proven; the hint, how to search further.
+    """
+
+    exit_code = 4
+    verdict = "not_found"
+
+    def __init__(self, message: str, *, file: str | Path | None = None, line: int | None = None,
+                 hint: str | None = None, short: tuple[Shortage, ...] = ()) -> None:
+        super().__init__(message, file=file, line=line, hint=hint)
+        self.short = tuple(short)
+
+
+class SafetyCapError(NotFoundError):
+    """The wall-clock safety cap stopped a search before its work budget ran out (exit 4)."""
 
 
 class InternalError(SynthError):

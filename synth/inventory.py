@@ -18,7 +18,7 @@ import re
 from dataclasses import dataclass, field
 from importlib import resources
 from pathlib import Path
-from typing import Any, Iterable
+from typing import Any, Iterable, Literal
 
 from .errors import BinError, CatalogError
 from .limits import CHIPS_IN_ALL, CHIPS_PER_PART, PASSIVE_VALUES, check_at_most, describe, shown
@@ -56,32 +56,106 @@ def _shipped(package: str, folder: str) -> Path:
 
 # ---------------------------------------------------------------- records
 
+Level = Literal["high", "low"]
+Edge = Literal["rising", "falling"]
+
+
+@dataclass(frozen=True)
+class PinControl:
+    """A control input and the level at which it acts (reset, set, enable)."""
+
+    pin: int
+    active: Level = "high"
+    synchronous: bool = False
+
+
+@dataclass(frozen=True)
+class ClockPin:
+    """A clock input: the edge that advances the unit, and a Schmitt input or not."""
+
+    pin: int
+    edge: Edge
+    schmitt: bool = False
+
+
+@dataclass(frozen=True)
+class SecondOutput:
+    """A gate's second output on the same inputs (the 4068's AND beside its NAND)."""
+
+    op: str
+    output: int
+
+
+@dataclass(frozen=True)
+class OscillatorPins:
+    """The pins of a counter's built-in RC oscillator (4060)."""
+
+    input: int
+    output: int
+    output_inv: int | None = None
+
+
+@dataclass(frozen=True)
+class Throws:
+    """An SPDT section: the throw joined to the common at each control level."""
+
+    low: int
+    high: int
+
+
 @dataclass(frozen=True)
 class Unit:
-    """One functional unit of a part (a gate, a counter, a switch section)."""
+    """One functional unit of a part (a gate, a counter, a switch section).
+
+    The typed fields below are validated when the catalog is loaded (which
+    ones a unit type carries: DEVELOPERS.md, "The catalog schema"); those a
+    type does not use keep their empty defaults.  ``fields`` is the entry as
+    written (plain dicts and lists), for printing it and for looking up a
+    role by its schema name; code that decides anything reads the typed
+    fields (modules not yet moved still read ``fields``).
+    """
 
     id: str
     type: str
-    fields: dict
-
-    @property
-    def op(self) -> str:
-        """The logic function: a gate's op, ``not`` for inverters, ``buf`` for buffers."""
-        return {"inverter": "not", "buffer": "buf"}.get(self.type, self.fields.get("op", self.type))
-
-    @property
-    def inputs(self) -> tuple[int, ...]:
-        if self.type in ("inverter", "buffer"):
-            return (self.fields["input"],)
-        return tuple(self.fields.get("inputs", ()))
-
-    @property
-    def output(self) -> int | None:
-        return self.fields.get("output")
-
-    @property
-    def schmitt(self) -> bool:
-        return bool(self.fields.get("schmitt", False))
+    fields: dict = field(compare=False, repr=False)
+    op: str = ""                              # gate op; 'not' inverter, 'buf' buffer, else the type
+    inputs: tuple[int, ...] = ()              # gate inputs; an inverter's or buffer's one input
+    output: int | None = None                 # gate, inverter, buffer, digital mux
+    schmitt: bool = False
+    unbuffered: bool = False
+    also: SecondOutput | None = None
+    # counters and flip-flops
+    mode: str = ""                            # binary, bcd, johnson
+    modulus: int = 0
+    synchronous: bool = False
+    clock: ClockPin | None = None
+    enable: PinControl | None = None          # counters, digital muxes
+    reset: PinControl | None = None
+    set: PinControl | None = None
+    stages: dict[int, int] = field(default_factory=dict)    # stage k -> pin
+    decoded: dict[int, int] = field(default_factory=dict)   # state n -> pin (johnson)
+    carry: int | None = None
+    carry_out: int | None = None
+    count_enable: tuple[int, ...] = ()        # pins that must all be high to count (CEP, CET)
+    ties: dict[int, str] = field(default_factory=dict)      # pin -> VDD / VSS
+    oscillator: OscillatorPins | None = None
+    kind: str = ""                            # flip-flop kind ('d')
+    d: int | None = None
+    q: int | None = None
+    qn: int | None = None
+    # decoders, muxes, analog switches
+    selects: tuple[int, ...] = ()             # least significant first
+    outputs: tuple[int, ...] = ()             # decoder output for code 0, 1, ...
+    active: Level | None = None               # decoder outputs
+    enables: tuple[PinControl, ...] = ()
+    data: tuple[int, ...] = ()                # digital mux input for code 0, 1, ...
+    output_inv: int | None = None
+    control: int | None = None
+    common: int | None = None
+    throws: Throws | None = None
+    terminals: tuple[int, ...] = ()
+    on_when: Level = "high"
+    channels: tuple[int, ...] = ()
 
     def pins(self) -> list[tuple[int, str]]:
         """Every package pin this unit uses, with the role it plays."""
@@ -135,7 +209,9 @@ class Part:
     r_on: dict = field(default_factory=dict)
     r_out: dict = field(default_factory=dict)   # output resistance, ohms, by supply
     notes: str = ""
-    raw: dict = field(default_factory=dict, compare=False, repr=False)
+    oscillator_k: float | None = None           # f = 1 / (k Rt Ct) of a built-in RC oscillator
+    variant_of: str | None = None               # the part a derived variant copies (74HCT00 <- 74HC00)
+    raw: dict = field(default_factory=dict, compare=False, repr=False)   # the entry as written
 
     def units_of(self, *types: str) -> list[Unit]:
         return [u for u in self.units if u.type in types]
@@ -305,9 +381,7 @@ def load_catalog(paths: Iterable[str | Path] | None = None) -> Catalog:
             if part.type in parts:
                 raise CatalogError(f"part {part.type} defined twice", file=path)
             parts[part.type] = part
-        family, table = _input_levels_of_file(path, doc)
-        if table:
-            levels[family] = table
+        levels.update(_input_levels_of_file(path, doc))
     return Catalog(parts, files, levels)
 
 
@@ -324,18 +398,28 @@ def _band_at(rows: dict[float, dict], supply: float) -> tuple[float, float]:
     return tuple(rows[lo][k] + w * (rows[hi][k] - rows[lo][k]) for k in ("vil", "vih"))
 
 
-def _input_levels_of_file(path: Path, doc: Any) -> tuple[str, dict]:
-    """A family file's ``input_levels``: guaranteed VIL max / VIH min of plain inputs by supply."""
-    family = str(doc.get("family", "")) if isinstance(doc, dict) else ""
-    table = doc.get("input_levels") if isinstance(doc, dict) else None
+def _input_levels_of_file(path: Path, doc: Any) -> dict[str, dict]:
+    """Guaranteed VIL max / VIH min of plain inputs by supply: the file's family's
+    ``input_levels``, and each variant's (the 74HCT twins' TTL levels)."""
+    if not isinstance(doc, dict):
+        return {}
+    family = str(doc.get("family", ""))
+    found = {family: _levels_table(path, doc, "input_levels")}
+    for name, variant in (doc.get("variants") or {}).items():
+        found[str(variant.get("family", name))] = _levels_table(path, variant, "input_levels")
+    return {fam: table for fam, table in found.items() if table}
+
+
+def _levels_table(path: Path, container: Any, key: str) -> dict:
+    table = container.get(key) if isinstance(container, dict) else None
     if not table:
-        return family, {}
+        return {}
     try:
         rows = {float(v): {"vil": float(r["vil"]), "vih": float(r["vih"])} for v, r in table["rows"].items()}
     except (KeyError, TypeError, ValueError, AttributeError) as exc:
-        raise CatalogError(f"input_levels: expected rows of {{vil, vih}} by supply, got {exc!r}",
-                           file=path, line=line_of(doc, "input_levels")) from exc
-    return family, {"rows": rows, "source": str(table.get("source", ""))}
+        raise CatalogError(f"{key}: expected rows of {{vil, vih}} by supply, got {exc!r}",
+                           file=path, line=line_of(container, key)) from exc
+    return {"rows": rows, "source": str(table.get("source", ""))}
 
 
 def _parts_of_file(path: Path, doc: Any) -> list[Part]:
@@ -347,7 +431,7 @@ def _parts_of_file(path: Path, doc: Any) -> list[Part]:
     for name, entry in (doc["parts"] or {}).items():
         where = line_of(doc["parts"], name)
         try:
-            part = _part_from_entry(str(name), family, entry)
+            part = _part_from_entry(str(name), family, entry, path)
         except (KeyError, TypeError, ValueError) as exc:
             raise CatalogError(f"part {name}: expected the schema of DEVELOPERS.md, got {exc!r}",
                                file=path, line=where) from exc
@@ -364,9 +448,218 @@ def _voltage_table(table: Any) -> dict:
     return {float(k): dict(v) if isinstance(v, dict) else v for k, v in table.items()}
 
 
-def _part_from_entry(name: str, family: str, entry: dict) -> Part:
+GATE_OPS = ("and", "nand", "or", "nor", "xor", "xnor")
+UNIT_KEYS: dict[str, tuple[tuple[str, ...], tuple[str, ...]]] = {
+    # unit type: (keys it must have, keys it may have), besides id and type
+    "gate": (("op", "inputs", "output"), ("schmitt", "also")),
+    "inverter": (("input", "output"), ("schmitt", "unbuffered")),
+    "buffer": (("input", "output"), ()),
+    "counter": (("mode", "modulus", "synchronous", "clock"),
+                ("enable", "reset", "stages", "decoded", "carry", "carry_out", "count_enable", "ties",
+                 "oscillator")),
+    "flipflop": (("kind", "clock", "d", "q"), ("qn", "set", "reset")),
+    "decoder": (("selects", "outputs", "active"), ("enables",)),
+    "mux": (("selects", "data", "output"), ("output_inv", "enable")),
+    "spdt": (("control", "common", "throws"), ()),
+    "spst": (("control", "terminals"), ("on_when",)),
+    "analog_mux": (("selects", "common", "channels"), ()),
+}
+PART_KEYS = ("function", "category", "package", "pins", "power", "supply", "units")
+SCHEMA_HINT = "see DEVELOPERS.md, 'The catalog schema'"
+
+
+@dataclass(frozen=True)
+class _Entry:
+    """One mapping of a catalog file being read: where it is, for the errors."""
+
+    path: Path
+    what: str                 # 'part 4011' or 'part 4011 unit B'
+    data: dict
+    pin_count: int = 0
+
+    def fail(self, key: str | None, expected: str, got: object) -> CatalogError:
+        marked = isinstance(self.data, (MarkedDict, MarkedList))
+        line = line_of(self.data, key) if key is not None else (self.data.line if marked else None)
+        where = f"'{key}'" if key is not None else "the entry"
+        return CatalogError(f"{self.what}: expected {expected} for {where}, got {got!r}",
+                            file=self.path, line=line, hint=SCHEMA_HINT)
+
+    def get(self, key: str, required: bool = True) -> Any:
+        if key not in self.data:
+            if required:
+                marked = isinstance(self.data, (MarkedDict, MarkedList))
+                raise CatalogError(f"{self.what}: expected the key '{key}', got none",
+                                   file=self.path, line=self.data.line if marked else None, hint=SCHEMA_HINT)
+            return None
+        return self.data[key]
+
+    def pin(self, key: str, value: Any = None, required: bool = True) -> int | None:
+        value = self.get(key, required) if value is None else value
+        if value is None:
+            return None
+        if isinstance(value, bool) or not isinstance(value, int) or not 1 <= value <= self.pin_count:
+            raise self.fail(key, f"a pin number 1-{self.pin_count}", value)
+        return value
+
+    def pins(self, key: str, required: bool = True) -> tuple[int, ...]:
+        value = self.get(key, required)
+        if value is None:
+            return ()
+        if not isinstance(value, list) or not value:
+            raise self.fail(key, "a list of pin numbers", value)
+        return tuple(self.pin(key, v) for v in value)
+
+    def flag(self, key: str) -> bool:
+        value = self.get(key, required=False)
+        if value is None:
+            return False
+        if not isinstance(value, bool):
+            raise self.fail(key, "true or false", value)
+        return value
+
+    def choice(self, key: str, options: tuple[str, ...], required: bool = True, default: str = "") -> str:
+        value = self.get(key, required)
+        if value is None:
+            return default
+        if value not in options:
+            raise self.fail(key, " or ".join(options), value)
+        return str(value)
+
+    def number(self, key: str, required: bool = True) -> int:
+        value = self.get(key, required)
+        if value is None:
+            return 0
+        if isinstance(value, bool) or not isinstance(value, int) or value < 1:
+            raise self.fail(key, "a positive whole number", value)
+        return value
+
+    def inner(self, key: str, required: bool = True) -> _Entry | None:
+        value = self.get(key, required)
+        if value is None:
+            return None
+        if not isinstance(value, dict):
+            raise self.fail(key, "a mapping", value)
+        return _Entry(self.path, f"{self.what} {key}", value, self.pin_count)
+
+    def control(self, key: str) -> PinControl | None:
+        sub = self.inner(key, required=False)
+        return sub.as_control() if sub is not None else None
+
+    def as_control(self) -> PinControl:
+        return PinControl(self.pin("pin"), self.choice("active", ("high", "low"), False, "high"),
+                          self.flag("synchronous"))
+
+    def pin_map(self, key: str) -> dict[int, int]:
+        value = self.get(key, required=False)
+        if value is None:
+            return {}
+        if not isinstance(value, dict) or not value or \
+                not all(isinstance(k, int) and not isinstance(k, bool) for k in value):
+            raise self.fail(key, "a mapping of numbers to pins", value)
+        return {int(k): self.pin(key, v) for k, v in value.items()}
+
+
+def _unit_from_entry(part: _Entry, index: int, raw: Any) -> Unit:
+    """One unit, every field checked against its type's schema."""
+    if not isinstance(raw, dict) or "id" not in raw or "type" not in raw:
+        raise CatalogError(f"{part.what}: expected units with 'id' and 'type', got {raw!r}",
+                           file=part.path, line=line_of(part.data.get("units"), index), hint=SCHEMA_HINT)
+    unit = _Entry(part.path, f"{part.what} unit {raw['id']}", raw, part.pin_count)
+    kind = unit.choice("type", UNIT_TYPES)
+    required, optional = UNIT_KEYS[kind]
+    for key in raw:
+        if key not in ("id", "type", *required, *optional):
+            raise unit.fail(key, f"one of the {kind} keys {', '.join(required + optional)}", key)
+    for key in required:
+        unit.get(key)
+    typed: dict[str, Any] = {}
+    if kind == "gate":
+        also = unit.inner("also", required=False)
+        typed = dict(op=unit.choice("op", GATE_OPS), inputs=unit.pins("inputs"), output=unit.pin("output"),
+                     schmitt=unit.flag("schmitt"),
+                     also=SecondOutput(also.choice("op", GATE_OPS), also.pin("output")) if also else None)
+    elif kind in ("inverter", "buffer"):
+        typed = dict(op="not" if kind == "inverter" else "buf", inputs=(unit.pin("input"),),
+                     output=unit.pin("output"), schmitt=unit.flag("schmitt"), unbuffered=unit.flag("unbuffered"))
+    elif kind in ("counter", "flipflop"):
+        clock = unit.inner("clock")
+        typed = dict(clock=ClockPin(clock.pin("pin"), clock.choice("edge", ("rising", "falling")),
+                                    clock.flag("schmitt")),
+                     reset=unit.control("reset"))
+        if kind == "counter":
+            osc = unit.inner("oscillator", required=False)
+            typed.update(mode=unit.choice("mode", ("binary", "bcd", "johnson")), modulus=unit.number("modulus"),
+                         synchronous=unit.flag("synchronous"), enable=unit.control("enable"),
+                         stages=unit.pin_map("stages"), decoded=unit.pin_map("decoded"),
+                         carry=unit.pin("carry", required=False), carry_out=unit.pin("carry_out", required=False),
+                         count_enable=unit.pins("count_enable", required=False),
+                         ties=_ties(unit), oscillator=OscillatorPins(
+                             osc.pin("input"), osc.pin("output"), osc.pin("output_inv", required=False))
+                         if osc else None)
+            if not typed["stages"] and not typed["decoded"]:
+                raise unit.fail(None, "'stages' or 'decoded' (the outputs pinned out)", "neither")
+        else:
+            typed.update(kind=unit.choice("kind", ("d",)), d=unit.pin("d"), q=unit.pin("q"),
+                         qn=unit.pin("qn", required=False), set=unit.control("set"))
+    elif kind == "decoder":
+        enables = unit.get("enables", required=False) or []
+        if not isinstance(enables, list) or not all(isinstance(e, dict) for e in enables):
+            raise unit.fail("enables", "a list of {pin, active}", enables)
+        typed = dict(selects=unit.pins("selects"), outputs=unit.pins("outputs"),
+                     active=unit.choice("active", ("high", "low")),
+                     enables=tuple(_Entry(unit.path, f"{unit.what} enables", e, unit.pin_count).as_control()
+                                   for e in enables))
+    elif kind == "mux":
+        typed = dict(selects=unit.pins("selects"), data=unit.pins("data"), output=unit.pin("output"),
+                     output_inv=unit.pin("output_inv", required=False), enable=unit.control("enable"))
+    elif kind == "spdt":
+        throws = unit.inner("throws")
+        typed = dict(control=unit.pin("control"), common=unit.pin("common"),
+                     throws=Throws(throws.pin("low"), throws.pin("high")))
+    elif kind == "spst":
+        typed = dict(control=unit.pin("control"), terminals=unit.pins("terminals"),
+                     on_when=unit.choice("on_when", ("high", "low"), False, "high"))
+        if len(typed["terminals"]) != 2:
+            raise unit.fail("terminals", "two pins", list(typed["terminals"]))
+    elif kind == "analog_mux":
+        typed = dict(selects=unit.pins("selects"), common=unit.pin("common"), channels=unit.pins("channels"))
+    typed.setdefault("op", kind)
+    return Unit(str(raw["id"]), kind, _plain(raw), **typed)
+
+
+def _ties(unit: _Entry) -> dict[int, str]:
+    value = unit.get("ties", required=False)
+    if value is None:
+        return {}
+    if not isinstance(value, dict) or any(level not in ("VDD", "VSS") for level in value.values()):
+        raise unit.fail("ties", "a mapping of pins to VDD or VSS", value)
+    return {unit.pin("ties", int(pin)): str(level) for pin, level in value.items()}
+
+
+def _check_part(part: _Entry) -> None:
+    """The part-level keys every entry needs, before any is read."""
+    for key in PART_KEYS:
+        part.get(key)
+    part.choice("category", CATEGORIES)
+    package = part.inner("package")
+    package.number("pins")
+    supply = part.inner("supply")
+    low, high = supply.get("min"), supply.get("max")
+    if not all(isinstance(v, (int, float)) and not isinstance(v, bool) for v in (low, high)) or not 0 < low < high:
+        raise part.fail("supply", "{min: V, max: V} with 0 < min < max", dict(part.data["supply"]))
+    if not isinstance(part.data["units"], list) or not part.data["units"]:
+        raise part.fail("units", "a list of units", part.data["units"])
+
+
+def _part_from_entry(name: str, family: str, entry: Any, path: Path = Path("<catalog>")) -> Part:
+    if not isinstance(entry, dict):
+        raise CatalogError(f"part {name}: expected a mapping of the part's facts, got {entry!r}",
+                           file=path, hint=SCHEMA_HINT)
+    checked = _Entry(path, f"part {name}", entry)
+    _check_part(checked)
     package = entry["package"]
-    units = tuple(Unit(str(u["id"]), str(u["type"]), _plain(u)) for u in entry["units"])
+    checked = _Entry(path, f"part {name}", entry, int(package["pins"]))
+    units = tuple(_unit_from_entry(checked, i, u) for i, u in enumerate(entry["units"]))
     timing = {key: (_voltage_table(tab) if key != "notes" else tab)
               for key, tab in (entry.get("timing") or {}).items()}
     supply = entry["supply"]
@@ -375,7 +668,7 @@ def _part_from_entry(name: str, family: str, entry: dict) -> Part:
         category=str(entry["category"]), pin_count=int(package["pins"]),
         package=str(package.get("type", "DIP")),
         pins={int(k): str(v) for k, v in entry["pins"].items()},
-        power={str(k): int(v) for k, v in entry["power"].items()},
+        power={str(k): checked.pin("power", v) for k, v in entry["power"].items()},
         units=units, supply=(float(supply["min"]), float(supply["max"])),
         timing=timing, source=_plain(entry.get("source") or {}),
         nc=tuple(int(p) for p in entry.get("nc") or ()),
@@ -384,7 +677,9 @@ def _part_from_entry(name: str, family: str, entry: dict) -> Part:
         thresholds=_voltage_table(entry.get("thresholds")),
         r_on=_voltage_table(entry.get("r_on")),
         r_out=_voltage_table(entry.get("r_out")),
-        notes=str(entry.get("notes") or ""), raw=_plain(entry),
+        notes=str(entry.get("notes") or ""),
+        oscillator_k=float(entry["oscillator_k"]) if entry.get("oscillator_k") is not None else None,
+        raw=_plain(entry),
     )
 
 
@@ -400,16 +695,18 @@ def _plain(value: Any) -> Any:
 def _hct_twin(part: Part, variant: dict) -> Part:
     """The 74HCT part that shares a 74HC part's pins and function."""
     supply = variant.get("supply", {"min": 4.5, "max": 5.5})
+    family = str(variant.get("family", "74HCT"))
     source = dict(part.source)
     source["hct"] = str(variant.get("source", "from memory"))
     return Part(
-        type=part.type.replace("74HC", "74HCT", 1), family="74HCT", function=part.function,
+        type=part.type.replace(part.family, family, 1), family=family, function=part.function,
         category=part.category, pin_count=part.pin_count, package=part.package, pins=part.pins,
         power=part.power, units=part.units,
         supply=(float(supply["min"]), float(supply["max"])), timing=part.timing,
         source=source, nc=part.nc, ties=part.ties, shared=part.shared,
         thresholds={}, r_on=part.r_on, r_out=part.r_out,  # HCT Schmitt levels differ: not in the catalog
-        notes=(part.notes + " " if part.notes else "") + f"HCT: {variant.get('input_levels', 'TTL input levels')}",
+        notes=(part.notes + " " if part.notes else "") + f"HCT: {variant.get('note', 'TTL input levels')}",
+        oscillator_k=part.oscillator_k, variant_of=part.type,
         raw=part.raw,
     )
 

@@ -46,25 +46,24 @@ def unit_logic_pins(unit: Unit) -> tuple[list[int], list[int], dict[int, str]]:
     """A logic unit's input pins and output pins in the order ``Gate`` lists
     its nets, and the pins that must be held (a mux enable at its active level).
     """
-    f = unit.fields
     held: dict[int, str] = {}
     if unit.type in ("inverter", "buffer"):
-        return [f["input"]], [f["output"]], held
+        return list(unit.inputs), [unit.output], held
     if unit.type == "gate":
-        outs = [f["output"]] + ([f["also"]["output"]] if f.get("also") else [])
-        return list(f["inputs"]), outs, held
+        outs = [unit.output] + ([unit.also.output] if unit.also else [])
+        return list(unit.inputs), outs, held
     if unit.type == "mux":
-        if f.get("enable"):
-            held[f["enable"]["pin"]] = _level(f["enable"].get("active", "high"))
-        outs = [f["output"]] + ([f["output_inv"]] if f.get("output_inv") else [])
-        return list(f["data"]) + list(f["selects"]), outs, held
+        if unit.enable:
+            held[unit.enable.pin] = _level(unit.enable.active)
+        outs = [unit.output] + ([unit.output_inv] if unit.output_inv else [])
+        return list(unit.data) + list(unit.selects), outs, held
     if unit.type == "decoder":
-        enables = [e["pin"] for e in f.get("enables") or ()]
-        return list(f["selects"]) + enables, list(f["outputs"]), held
+        enables = [e.pin for e in unit.enables]
+        return list(unit.selects) + enables, list(unit.outputs), held
     if unit.type == "flipflop":
-        controls = [f[k]["pin"] for k in ("set", "reset") if f.get(k)]
-        outs = [f["q"]] + ([f["qn"]] if f.get("qn") else [])
-        return [f["d"], f["clock"]["pin"]] + controls, outs, held
+        controls = [c.pin for c in (unit.set, unit.reset) if c]
+        outs = [unit.q] + ([unit.qn] if unit.qn else [])
+        return [unit.d, unit.clock.pin] + controls, outs, held
     return [], [], held
 
 
@@ -172,13 +171,13 @@ def _place_counters(board: _Board, counter_plan: Any, network: Network) -> None:
             chip = by_ref[cc.ref] = board.open(part, "counter", cc.ref)
         chip.units_used[str(cc.unit)] = "counter"
         chip.set_pin(int(cc.clock_pin), str(cc.clock_net), "counter clock input")
-        if getattr(cc, "reset_pin", None) is not None:
+        if cc.reset_pin is not None:
             net = str(cc.reset_net or "VSS")
             if net in RAIL_NETS:
                 chip.set_pin(int(cc.reset_pin), net, "reset held inactive (the count runs freely)")
             else:
                 chip.set_pin(int(cc.reset_pin), reset_net.get(net, net), "counter reset")
-        enable_pin, enable_net = getattr(cc, "enable_pin", None), getattr(cc, "enable_net", None)
+        enable_pin, enable_net = cc.enable_pin, cc.enable_net
         carried = tuple(getattr(cc, "count_enable_pins", ()) or ())
         if enable_pin is not None and enable_net:
             note = ("enable held active for plain counting" if enable_net in RAIL_NETS
@@ -191,18 +190,18 @@ def _place_counters(board: _Board, counter_plan: Any, network: Network) -> None:
         carry_net = getattr(cc, "carry_net", None)
         if carry_net:
             unit = next(u for u in part.units if str(u.id) == str(cc.unit))
-            chip.set_pin(int(unit.fields["carry_out"]), str(carry_net),
+            chip.set_pin(int(unit.carry_out), str(carry_net),
                          "carry out (TC) to the next unit's count enables")
-        for pin, level in (getattr(cc, "ties", None) or {}).items():
+        for pin, level in cc.ties.items():
             chip.set_pin(int(pin), str(level), f"held at {level} for plain counting")
     for var in counter_plan.vars:
         chip = by_ref.get(_chip_ref(counter_plan, var.chip))
         if chip is None:
             raise InternalError(f"counter variable {var.net} names chip {var.chip}, "
                                 "which the counter plan does not list")
-        chip.set_pin(int(var.pin), str(var.net), f"counter output {getattr(var, 'pin_name', '')}".strip())
-    reset = getattr(counter_plan, "reset", None)
-    direct = getattr(reset, "direct_pin", None) if reset is not None and getattr(reset, "direct", False) else None
+        chip.set_pin(int(var.pin), str(var.net), f"counter output {var.pin_name}".strip())
+    reset = counter_plan.reset
+    direct = reset.direct_pin if reset is not None and reset.direct else None
     if direct is not None:
         chip = by_ref[direct[0]]
         chip.set_pin(int(direct[1]), reset_net.get(reset.net, reset.net), "drives the counter reset")
@@ -225,16 +224,16 @@ def _chip_ref(counter_plan: Any, chip: Any) -> str:
 def _reset_net(counter_plan: Any, network: Network) -> dict[str, str]:
     """The board net of the counter reset: the mapped reset decode's net, or the
     counter output that drives the reset pins directly."""
-    reset = getattr(counter_plan, "reset", None)
+    reset = counter_plan.reset
     if reset is None:
         return {}
-    if getattr(reset, "direct", False) and getattr(reset, "direct_pin", None):
+    if reset.direct and reset.direct_pin:
         ref, pin = reset.direct_pin
         for var in counter_plan.vars:
             if _chip_ref(counter_plan, var.chip) == ref and int(var.pin) == int(pin):
                 return {reset.net: var.net}
         return {}
-    decoded = network.signals.get(getattr(reset, "name", ""))
+    decoded = network.signals.get(reset.name)
     if decoded is None:
         return {}
     if decoded.polarity != reset.active:
@@ -366,17 +365,16 @@ def _route_spdt(board: _Board, name: str, sw: Any, select: Any) -> _Route | None
     high, low = _throw_nets(sw, select.polarity == "high")
 
     def assignment(unit: Unit) -> dict[int, str]:
-        throws = unit.fields["throws"]
-        return {unit.fields["control"]: select.net, unit.fields["common"]: name,
-                throws["high"]: board.net_for(high), throws["low"]: board.net_for(low)}
+        return {unit.control: select.net, unit.common: name,
+                unit.throws.high: board.net_for(high), unit.throws.low: board.net_for(low)}
 
     placed = _place_section(board, ("spdt",), name, assignment)
     if placed is None:
         return None
     unit = _unit(*placed)
-    _note(placed[0], {unit.fields["throws"]["high"]: f"switch {name}: joins the common while the control is high ({high})",
-                      unit.fields["throws"]["low"]: f"switch {name}: joins the common while the control is low ({low})",
-                      unit.fields["common"]: f"switch {name} common"})
+    _note(placed[0], {unit.throws.high: f"switch {name}: joins the common while the control is high ({high})",
+                      unit.throws.low: f"switch {name}: joins the common while the control is low ({low})",
+                      unit.common: f"switch {name} common"})
     paths = [{"control_net": select.net, "closed_when": True, "joins": high},
              {"control_net": select.net, "closed_when": False, "joins": low}]
     return _Route(name, sw, "spdt", [placed], select.net, name, high, paths)
@@ -391,23 +389,23 @@ def _route_spst_pair(board: _Board, network: Network, name: str, sw: Any,
     sections, paths = [], []
     for joins, closed_while_asserted in ((sw.on, True), (sw.off, False)):
         def assignment(unit: Unit, joins: str = joins, closed: bool = closed_while_asserted) -> dict[int, str]:
-            closes_high = unit.fields.get("on_when", "high") == "high"
+            closes_high = unit.on_when == "high"
             # The section must close exactly while (select asserted) == closed.
             follow_select = closes_high == (active_high == closed)
             control = select.net if follow_select else complement
-            first, second = unit.fields["terminals"]
-            return {unit.fields["control"]: control, first: name, second: board.net_for(joins)}
+            first, second = unit.terminals
+            return {unit.control: control, first: name, second: board.net_for(joins)}
 
         placed = _place_section(board, ("spst",), name, assignment)
         if placed is None:
             raise InternalError(f"switch {name}: counted two free SPST sections but found one")
         chip, unit_id = placed
         unit = _unit(*placed)
-        control = chip.pins[unit.fields["control"]]
-        _note(chip, {unit.fields["terminals"][1]: f"switch {name}: joins the common while "
-                                                  f"{'asserted' if closed_while_asserted else 'not asserted'} ({joins})",
-                     unit.fields["terminals"][0]: f"switch {name} common"})
-        paths.append({"control_net": control, "closed_when": unit.fields.get("on_when", "high") == "high",
+        control = chip.pins[unit.control]
+        _note(chip, {unit.terminals[1]: f"switch {name}: joins the common while "
+                                        f"{'asserted' if closed_while_asserted else 'not asserted'} ({joins})",
+                     unit.terminals[0]: f"switch {name} common"})
+        paths.append({"control_net": control, "closed_when": unit.on_when == "high",
                       "joins": joins})
         sections.append(placed)
     high, _ = _throw_nets(sw, active_high)
@@ -422,8 +420,8 @@ def _route_mux(board: _Board, name: str, sw: Any, select: Any) -> _Route | None:
     high, low = _throw_nets(sw, select.polarity == "high")
 
     def assignment(unit: Unit) -> dict[int, str]:
-        selects, channels = unit.fields["selects"], unit.fields["channels"]
-        pins = {selects[0]: select.net, unit.fields["common"]: name,
+        selects, channels = unit.selects, unit.channels
+        pins = {selects[0]: select.net, unit.common: name,
                 channels[0]: board.net_for(low), channels[1]: board.net_for(high)}
         pins.update({pin: "VSS" for pin in selects[1:]})
         pins.update({pin: "VSS" for pin in channels[2:]})
@@ -433,11 +431,11 @@ def _route_mux(board: _Board, name: str, sw: Any, select: Any) -> _Route | None:
     if placed is None:
         return None
     unit = _unit(*placed)
-    channels = unit.fields["channels"]
+    channels = unit.channels
     _note(placed[0], {channels[1]: f"switch {name}: joins the common while the select is high ({high})",
                       channels[0]: f"switch {name}: joins the common while the select is low ({low})",
-                      unit.fields["common"]: f"switch {name} common"})
-    _note(placed[0], {pin: "select held at VSS: only channels 0 and 1 are used" for pin in unit.fields["selects"][1:]})
+                      unit.common: f"switch {name} common"})
+    _note(placed[0], {pin: "select held at VSS: only channels 0 and 1 are used" for pin in unit.selects[1:]})
     paths = [{"control_net": select.net, "closed_when": True, "joins": high},
              {"control_net": select.net, "closed_when": False, "joins": low}]
     board.warnings.append(f"switch {name} uses channels 0 and 1 of an analog mux "
@@ -476,7 +474,7 @@ def _try_section(chip: _Chip, types: tuple[str, ...], purpose: str,
     for unit in chip.part.units_of(*types):
         if unit.id in chip.units_used:
             continue
-        if unit.type == "analog_mux" and len(unit.fields["channels"]) < 2:
+        if unit.type == "analog_mux" and len(unit.channels) < 2:
             continue
         assignment = assignment_of(unit)
         if chip.fits(assignment):
@@ -577,10 +575,10 @@ def _finish_chip(chip: _Chip) -> None:
     dirs = pin_directions(part)
     for unit in part.units:
         used = unit.id in chip.units_used
-        for pin, level in (unit.fields.get("ties") or {}).items():
-            if chip.role == "counter" and int(pin) in chip.pins:
+        for pin, level in unit.ties.items():
+            if chip.role == "counter" and pin in chip.pins:
                 continue        # the counter plan wired it (a count enable on a carry net)
-            chip.set_pin(int(pin), str(level), f"held at {level} for plain use (datasheet)")
+            chip.set_pin(pin, level, f"held at {level} for plain use (datasheet)")
         for pin, role in unit.pins():
             if pin in chip.pins:
                 continue
@@ -729,8 +727,8 @@ def _signals(plan: Plan, network: Network, spec: Any) -> dict[str, dict]:
 def _switch_record(route: _Route, net_for: Any) -> dict:
     chip, unit_id = route.sections[0]
     unit = _unit(chip, unit_id)
-    common = unit.fields["common"] if "common" in unit.fields else unit.fields["terminals"][0]
-    control = unit.fields["control"] if "control" in unit.fields else unit.fields["selects"][0]
+    common = unit.common if unit.common is not None else unit.terminals[0]
+    control = unit.control if unit.control is not None else unit.selects[0]
     return {
         "ref": chip.ref, "unit": unit_id, "part": chip.part.type, "kind": route.kind,
         "when_control_high": route.when_control_high, "control_net": route.control_net,
@@ -781,7 +779,7 @@ def _cautions(plan: Plan, counter_plan: Any) -> list[str]:
     if any(c.role == "switch" for c in plan.chips):
         cautions.append("Analog switch signals must stay between VSS and VDD (VEE is tied to VSS "
                         "for a single supply).")
-    if all(getattr(c, "reset_net", "VSS") in RAIL_NETS for c in counter_plan.chips):
+    if all(c.reset_net in RAIL_NETS for c in counter_plan.chips):
         cautions.append("At power-up the counter starts at an arbitrary count: tick 0 is the "
                         "all-zero count, and the sequence repeats from wherever it starts.")
     return cautions

@@ -1,8 +1,11 @@
 """The main job, stage by stage: spec + bin -> a checked plan.
 
 Interface: ``Design`` (the plan and what led to it), ``make_plan(spec_path,
-bin_path, *, catalog=None, exact='auto', fix=()) -> Design``, and
-``switch_polarity(spec)`` (which signals may be delivered either way up).
+bin_path, *, catalog=None, exact='auto', fix=(), effort=None, lacks=False)
+-> Design``, ``switch_polarity(spec)`` (which signals may be delivered
+either way up) and ``async_reset_names(counter_plan)``.  No plan: the
+stages raise ``ShortError`` (exit 3, proven, with ``short``) or
+``NotFoundError`` (exit 4, the effort ran out).
 After packing, ``clocksource.add_oscillator`` (``clock.source: oscillator``),
 ``poweron.add_power_on_reset`` (``power_on_reset``) and
 ``staircase.add_ladders`` (``levels``) add their parts to the plan, and
@@ -21,6 +24,9 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any, Iterable
 
+from .effort import effort_named
+from .errors import Shortage, ShortError
+
 
 @dataclass
 class Design:
@@ -35,7 +41,7 @@ class Design:
     network: Any
     trace: Any = None
     remedies: dict = field(default_factory=dict)
-    lacks: Any = None          # wishlist.BinLacks when make_plan(lacks=...) searched
+    lacks: Any = None          # wishlist.BinLacks when make_plan(lacks=True) searched
 
 
 def switch_polarity(spec) -> dict[str, str]:
@@ -80,12 +86,13 @@ def _switch_chips(spec, stock, catalog) -> dict[str, int]:
 
 
 def make_plan(spec_path: str | Path, bin_path: str | Path, *, catalog=None, exact: str = "auto",
-              fix: Iterable[str] = (), lacks: float = 0.0) -> Design:
+              fix: Iterable[str] = (), effort=None, lacks: bool = False) -> Design:
     """Run every stage; raise SynthError subclasses for the user's problems.
 
-    ``lacks`` > 0: also find what the bin lacks (wishlist), searching for that
-    many seconds beside the plan's own mapping; the answer is ``design.lacks``
-    and the plan's ``bin_lacks``.
+    ``effort``: an ``effort.EFFORTS`` level name (work budgets, never
+    seconds).  ``lacks``: also find what the bin lacks (wishlist) beside the
+    plan's own mapping, at that effort (the quick level skips it); the answer
+    is ``design.lacks`` and the plan's ``bin_lacks``.
     """
     from .counter import allocate
     from .decode import derive
@@ -96,12 +103,12 @@ def make_plan(spec_path: str | Path, bin_path: str | Path, *, catalog=None, exac
     catalog = catalog or load_catalog()
     spec = load_spec(spec_path)
     stock = load_bin(bin_path, catalog, spec.supply)
-    counter_plan = allocate(spec, stock, catalog)
+    counter_plan = _counted_first(spec, stock, catalog, allocate)
     decode = derive(spec, counter_plan, exact=exact)
     library, polarity = mapping_inputs(spec, stock, catalog, counter_plan, decode)
-    search = _start_lacks(lacks, decode, counter_plan, library, polarity, stock, catalog)
+    search = _start_lacks(lacks, effort, decode, counter_plan, library, polarity, stock, catalog)
     try:
-        network = map_decode(decode, counter_plan, library, polarity, exact)
+        network = map_decode(decode, counter_plan, library, polarity, exact, effort)
         plan = pack(network, counter_plan, spec, stock, catalog)
         plan.warnings[:0] = list(stock.warnings) + list(getattr(counter_plan, "warnings", []))
         _analog_parts(plan, spec, stock, catalog)
@@ -118,9 +125,67 @@ def make_plan(spec_path: str | Path, bin_path: str | Path, *, catalog=None, exac
     return design
 
 
+def _counted_first(spec, stock, catalog, allocate):
+    """Every shortage that can be counted before mapping, reported at once.
+
+    Counter stages (the counter allocation), analog switch sections, resistors
+    for the staircases, and resistors and capacitors for the clock oscillator:
+    one ``ShortError`` naming each missing item and what fills it, so a user
+    does not fix one and meet the next.  Returns the counter plan.
+    """
+    found: list[tuple[str, Shortage]] = []
+    counter_plan = None
+    try:
+        counter_plan = allocate(spec, stock, catalog)
+    except ShortError as exc:
+        if not _other_shortages(spec, stock, catalog):
+            raise
+        found.append((exc.message, Shortage("counter stages", None, None, exc.hint or "")))
+    found += _other_shortages(spec, stock, catalog)
+    if not found:
+        return counter_plan
+    message = "; ".join(text for text, _ in found)
+    fixes = "; ".join(item.fix for _, item in found if item.fix)
+    raise ShortError(f"the bin lacks {len(found)} thing(s) this spec needs: {message}" if len(found) > 1
+                     else message, file=stock.path, hint=fixes or None,
+                     short=tuple(item for _, item in found))
+
+
+def _other_shortages(spec, stock, catalog) -> list:
+    """Switch sections, ladder resistors, oscillator R and C: (text, Shortage) each."""
+    found = []
+    wanted = len(spec.switches)
+    if wanted:
+        have = _switch_sections(stock, catalog)
+        if have < wanted:
+            found.append((f"{wanted} switch(es) need {wanted} analog switch section(s) and the bin has "
+                          f"{have}", Shortage("analog switch section", wanted, have,
+                                              f"{-(-(wanted - have) // 3)} x 4053 (triple SPDT)")))
+    users = [f"the staircase(s) {', '.join(sorted(spec.levels))}"] if spec.levels else []
+    if getattr(spec.clock, "source", None) == "oscillator":
+        users.append("the clock oscillator")
+        if not stock.capacitors:
+            found.append(("the clock oscillator needs a capacitor and the bin lists none",
+                          Shortage("capacitor", 1, 0, "capacitors such as 'capacitors: [1n, 10n]'")))
+    if users and not stock.resistors:
+        found.append((f"{' and '.join(users)} need resistors and the bin lists none",
+                      Shortage("resistor", None, 0, "resistors such as 'resistors: [10k, 22k, 47k, 100k]'")))
+    return found
+
+
+def _switch_sections(stock, catalog) -> int:
+    """Spec switches the bin's analog switch chips can serve (SPDT, SPST pairs, muxes)."""
+    total = 0
+    for part_type, count in stock.parts.items():
+        part = catalog.parts[part_type]
+        total += count * (len(part.units_of("spdt")) + len(part.units_of("spst")) // 2
+                          + len(part.units_of("analog_mux")))
+    return total
+
+
 def mapping_inputs(spec, stock, catalog, counter_plan, decode):
     """The library (counter and switch chips reserved) and polarities the mapper sees."""
-    from .techmap import build_library
+    from .mapper import build_library
 
     library = build_library(stock, catalog, reserved=reserved_chips(counter_plan, spec, stock, catalog))
     polarity = switch_polarity(spec)
@@ -129,23 +194,23 @@ def mapping_inputs(spec, stock, catalog, counter_plan, decode):
     return library, polarity
 
 
-def map_decode(decode, counter_plan, library, polarity, exact: str):
+def map_decode(decode, counter_plan, library, polarity, exact: str, effort=None):
     """The decode mapped onto the library; an async reset decode must be hazard-free."""
-    from .techmap import map_design
+    from .mapper import map_design
 
     return map_design(decode.functions, len(counter_plan.vars), [v.net for v in counter_plan.vars],
-                      library, polarity=polarity, cover=decode.cover, exact=exact,
-                      glitch_free=_async_reset_names(counter_plan))
+                      library, polarity=polarity, cover=decode.cover, exact=exact, effort=effort,
+                      glitch_free=async_reset_names(counter_plan))
 
 
-def _start_lacks(budget: float, decode, counter_plan, library, polarity, stock, catalog):
+def _start_lacks(wanted: bool, effort, decode, counter_plan, library, polarity, stock, catalog):
     """The what-the-bin-lacks search, begun before the mapping so the two overlap."""
-    if budget <= 0:
+    if not wanted or not effort_named(effort).lacks_steps:
         return None
     from .wishlist import start_search
 
     return start_search(decode, counter_plan, library, polarity, stock, catalog,
-                        glitch_free=_async_reset_names(counter_plan), budget=budget)
+                        glitch_free=async_reset_names(counter_plan), effort=effort)
 
 
 def _analog_parts(plan, spec, stock, catalog) -> None:
@@ -185,7 +250,7 @@ def _analog_parts(plan, spec, stock, catalog) -> None:
     check_nets(plan)
 
 
-def _async_reset_names(counter_plan) -> tuple[str, ...]:
+def async_reset_names(counter_plan) -> tuple[str, ...]:
     """A decoded asynchronous reset must not pulse on a counter step (it would clear the count)."""
     reset = getattr(counter_plan, "reset", None)
     if reset is None or getattr(reset, "synchronous", False) or getattr(reset, "direct", False):
@@ -209,7 +274,8 @@ def _timing_checks(design: Design, fix: set[str]) -> None:
 
 
 def _timing_fixes(design: Design, fix: set[str], exact: str) -> Design:
-    """``--fix glitches`` and the RC-delay offers, from the glitch-fix module."""
+    """``--fix glitches`` and the RC-delay offers, from the glitch-fix module (its
+    re-mappings run at the default effort)."""
     from .glitchfix import apply_fixes
 
     return apply_fixes(design, fix, exact=exact)

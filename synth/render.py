@@ -63,7 +63,7 @@ def to_plain(blocks: Sequence[Block]) -> str:
 def show(blocks: Sequence[Block], stream: IO[str] | None = None) -> None:
     """Print blocks: rich when ``stream`` is a terminal, plain text otherwise."""
     stream = stream or sys.stdout
-    if not (hasattr(stream, "isatty") and stream.isatty()):
+    if not stream.isatty():
         stream.write(to_plain(blocks))
         return
     from rich.console import Console

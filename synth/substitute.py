@@ -2,7 +2,7 @@
 
 Interface: ``Target`` and ``parse_target(text) -> Target``; ``Way`` (one
 construction, packed onto chips with pin numbers); ``substitute(target,
-library, bin, *, either_polarity=False, limit=5, time_limit=8.0) ->
+library, bin, *, either_polarity=False, limit=5, effort=None) ->
 list[Way]`` ranked by chips, then gates, then depth; ``draw_way(way)`` (the
 text cascade a person reads); ``way_json(way)``.
 
@@ -20,7 +20,7 @@ NOT binds tightest, then AND, XOR, OR; names are letters, digits and ``_``
 starting with a letter, or digits then a letter (counter pin names such as
 ``1Q3``).  Whatever ``decode`` and ``plan`` print as a decode reads back here.  Gate targets name their inputs a, b, c, ...
 
-Every way is a mapper result (``techmap.map_design``: exact synthesis where
+Every way is a mapper result (``mapper.map_design``: exact synthesis where
 the size allows) over the whole bin or over one or two of its part types, so
 the list shows genuinely different builds: the mapper's best first, then
 cheaper-to-stock alternatives.  The first way carries the mapper's proof
@@ -33,9 +33,10 @@ from __future__ import annotations
 import difflib
 import itertools
 import re
-import time
 from dataclasses import dataclass, field
 
+from .effort import effort_named
+from .errors import NotFoundError, SafetyCapError, ShortError, UsageError
 from .errors import ShortError, UsageError
 from .limits import shown
 from .minimize import Function
@@ -271,25 +272,32 @@ def _part_groups(library) -> list[tuple[str, ...]]:
 
 
 def substitute(target: Target, library, bin, *, either_polarity: bool = False, limit: int = 5,
-               time_limit: float = 8.0) -> list[Way]:
-    """The cheapest ways to build ``target`` from the bin; ``ShortError`` when there is none."""
-    from .techmap import map_design
+               effort: str | None = None) -> list[Way]:
+    """The cheapest ways to build ``target`` from the bin; ``ShortError`` when there is none.
 
-    start = time.monotonic()
+    The whole bin gets half of the effort level's work, each smaller group of
+    part types a twentieth, until the work is spent (work, not seconds, so the
+    answer is the same on a busy machine)."""
+    from .mapper import map_design
+
+    total = effort_named(effort).steps
+    left = total
     function = Function("y", target.on)
     polarity = {"y": "free" if either_polarity else "high"}
     inputs = list(target.inputs)
     ways: dict[tuple, Way] = {}
-    first_error: ShortError | None = None
+    first_error: ShortError | NotFoundError | None = None
     for index, group in enumerate(_part_groups(library)):
-        left = time_limit - (time.monotonic() - start)
-        if index and left <= 0.2:
+        share = total // 2 if index == 0 else total // 20
+        if index and left < share:
             break
-        share = time_limit * 0.5 if index == 0 else min(2.0, left)
+        left -= share
         try:
             network = map_design([function], target.nvars, inputs, library.restricted(group),
-                                 polarity=polarity, exact="auto", time_limit=share)
-        except ShortError as exc:
+                                 polarity=polarity, exact="auto", effort=effort, steps=share)
+        except SafetyCapError:
+            raise
+        except (ShortError, NotFoundError) as exc:
             if index == 0:
                 first_error = exc
                 break
@@ -299,8 +307,10 @@ def substitute(target: Target, library, bin, *, either_polarity: bool = False, l
         if key not in ways or way.rank_key() < ways[key].rank_key():
             ways[key] = way
     if first_error is not None:
-        raise ShortError(f"the bin cannot build {target.text}: {first_error.message}",
-                         file=getattr(first_error, "file", None), hint=getattr(first_error, "hint", None))
+        raise type(first_error)(f"the bin cannot build {target.text}: {first_error.message}"
+                                if isinstance(first_error, ShortError) else
+                                f"no way to build {target.text} found: {first_error.message}",
+                                file=first_error.file, hint=first_error.hint, short=first_error.short)
     ranked = sorted(ways.values(), key=Way.rank_key)[:limit]
     best_cost = ranked[0].rank_key()[:2] if ranked else None
     for way in ranked:

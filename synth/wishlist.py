@@ -1,9 +1,9 @@
 """What the bin lacks: the one extra chip type that would shrink a finished plan.
 
 Interface: ``Suggestion`` (one re-planned alternative), ``BinLacks`` (the
-answer and how far the search went), ``start_search(...) -> Search`` (begun
-before the plan's own mapping, on the machine's other core) with
-``Search.finish(design) -> BinLacks``, and ``bin_lacks(design, *, budget)``
+answer and how far the search went), ``start_search(..., steps) -> Search``
+(begun before the plan's own mapping, on the machine's other core) with
+``Search.finish(design) -> BinLacks``, and ``bin_lacks(design, *, effort)``
 (the same search run in this process, after the fact).
 
 The answer is never guessed from part names: every candidate part type is
@@ -18,11 +18,15 @@ Candidates are the logic part types (gates, inverters, muxes, decoders) of
 the bin's own families that suit the supply, one per distinct set of units
 (a 4011 and a 74HC00 offer the same four NAND2 at 5 V), kinds the bin lacks
 first; types the plan leaves chips of unused cannot help and are not judged.
-The search stops at ``budget`` seconds and says how many candidate types it
-re-planned; a candidate's mapping is a quick one (no exact search), so a
-reported saving is real but a missed one is possible.  Where the platform can
-fork, the search runs in a child process started before the plan's own
-mapping, so on two cores it costs little wall time.
+Every candidate gets the same work budget (the effort level's
+``lacks_steps``: solver conflicts and search steps, never seconds), and the
+whole candidate list is always re-planned, so the advice is the same on an
+idle or a busy machine.  A candidate's mapping is a quick one (no exact
+search), so a reported saving is real but a missed one is possible.  Where
+the platform can fork, the search runs in a child process started before the
+plan's own mapping, so on two cores it costs little wall time; the effort's
+wall-clock safety cap stops it (said plainly) on a machine far slower than
+expected.
 """
 
 from __future__ import annotations
@@ -31,9 +35,10 @@ import time
 from dataclasses import dataclass, field
 from typing import Any
 
+from .effort import Effort, effort_named
+from .errors import SafetyCapError, SynthError
+
 LOGIC_CATEGORIES = ("gate", "inverter", "mux", "decoder")
-DEFAULT_BUDGET = 1.0     # seconds from the search's start (plan's default)
-PER_TRY = 0.35           # seconds of structure search per candidate
 
 
 @dataclass(frozen=True)
@@ -89,15 +94,15 @@ class BinLacks:
     def text(self) -> str:
         if self.skipped:
             return f"what the bin lacks: {self.skipped}"
-        more = "; --lacks SECONDS searches longer"
+        cut = (f"{self.tried} of {self.candidates} candidate part types re-planned before the "
+               f"safety time cap stopped the search (the machine is much slower or busier than "
+               f"expected)")
         if self.best is None and self.complete:
             return ("what the bin lacks: no single extra chip type would shrink this plan "
                     f"(all {self.candidates} candidate part types re-planned)")
         if self.best is None:
-            return (f"what the bin lacks: no saving found in the time budget ({self.tried} of "
-                    f"{self.candidates} candidate part types re-planned{more})")
-        reach = (f"all {self.candidates} candidate part types re-planned" if self.complete
-                 else f"{self.tried} of {self.candidates} candidate part types re-planned{more}")
+            return f"what the bin lacks: no saving found ({cut})"
+        reach = f"all {self.candidates} candidate part types re-planned" if self.complete else cut
         return f"what the bin lacks: {self.best.sentence(self.total_chips)} ({reach})"
 
     def to_json(self) -> dict:
@@ -121,26 +126,31 @@ class _Inputs:
     candidates: tuple
 
 
-def _remap(inputs: _Inputs, part: str, per_try: float) -> tuple[dict, int] | None:
+class _SafetyCap(Exception):
+    """The wall-clock safety cap stopped a candidate's mapping."""
+
+
+def _remap(inputs: _Inputs, part: str, effort: Effort) -> tuple[dict, int] | None:
     """(logic chips by part, gates) with one more ``part`` chip; None if it cannot map."""
-    from .errors import SynthError
-    from .techmap import map_design
+    from .mapper import map_design
 
     try:
         network = map_design(inputs.functions, inputs.nvars, list(inputs.var_nets),
                              inputs.library.with_extra(part), polarity=inputs.polarity,
-                             cover=inputs.cover, exact="no", time_limit=per_try,
+                             cover=inputs.cover, exact="no", effort=effort, steps=effort.lacks_steps,
                              glitch_free=inputs.glitch_free)
+    except SafetyCapError:
+        raise _SafetyCap(part) from None
     except SynthError:
         return None
     return dict(network.chips), len(network.gates)
 
 
-def _child(conn, inputs: _Inputs, per_try: float) -> None:
+def _child(conn, inputs: _Inputs, effort: Effort) -> None:
     """The forked worker: one message per candidate, then None."""
     try:
         for part in inputs.candidates:
-            conn.send((part, _remap(inputs, part, per_try)))
+            conn.send((part, _remap(inputs, part, effort)))
     except Exception:          # the parent treats a dead worker as the end of the search
         pass
     finally:
@@ -153,8 +163,8 @@ def _child(conn, inputs: _Inputs, per_try: float) -> None:
 class Search:
     """A what-the-bin-lacks search under way (in a child process, or deferred)."""
 
-    def __init__(self, inputs: _Inputs, decode: Any, budget: float, per_try: float) -> None:
-        self.inputs, self.decode, self.budget, self.per_try = inputs, decode, budget, per_try
+    def __init__(self, inputs: _Inputs, decode: Any, effort: Effort) -> None:
+        self.inputs, self.decode, self.effort = inputs, decode, effort
         self.start = time.monotonic()
         self.results: list[tuple[str, tuple[dict, int] | None]] = []
         self.process = self.conn = None
@@ -165,18 +175,22 @@ class Search:
         except (ValueError, ImportError):
             return                          # no fork here: run in finish()
         receiver, sender = ctx.Pipe(duplex=False)
-        self.process = ctx.Process(target=_child, args=(sender, inputs, per_try), daemon=True)
+        self.process = ctx.Process(target=_child, args=(sender, inputs, effort), daemon=True)
         self.process.start()
         sender.close()
         self.conn = receiver
 
     def _collect(self) -> None:
-        deadline = self.start + self.budget
+        """Every candidate's result; only the wall-clock safety cap cuts the list short."""
+        deadline = self.start + self.effort.wall_cap
         if self.process is None:
-            for part in self.inputs.candidates:
-                if time.monotonic() >= deadline:
-                    break
-                self.results.append((part, _remap(self.inputs, part, self.per_try)))
+            try:
+                for part in self.inputs.candidates:
+                    if time.monotonic() >= deadline:
+                        break
+                    self.results.append((part, _remap(self.inputs, part, self.effort)))
+            except _SafetyCap:
+                pass
             return
         try:
             while True:
@@ -217,23 +231,22 @@ class Search:
 
 
 def start_search(decode: Any, counter_plan: Any, library: Any, polarity: dict, stock: Any,
-                 catalog: Any, *, glitch_free: tuple = (), budget: float = DEFAULT_BUDGET,
-                 per_try: float = PER_TRY) -> Search:
+                 catalog: Any, *, glitch_free: tuple = (), effort: str | Effort | None = None) -> Search:
     """Begin re-mapping the decode with each candidate part added (see the module text)."""
     inputs = _Inputs(decode.functions, len(counter_plan.vars), tuple(v.net for v in counter_plan.vars),
                      library, dict(polarity), decode.cover, tuple(glitch_free),
                      tuple(candidate_parts(stock, catalog, library)))
-    return Search(inputs, decode, budget, per_try)
+    return Search(inputs, decode, effort_named(effort))
 
 
-def bin_lacks(design, *, budget: float = DEFAULT_BUDGET, per_try: float = PER_TRY) -> BinLacks:
+def bin_lacks(design, *, effort: str | Effort | None = None) -> BinLacks:
     """The same search for a finished design, run here and now (tests, scripts)."""
-    from .pipeline import _async_reset_names
+    from .pipeline import async_reset_names
 
     library, polarity = _mapping_inputs(design)
     search = start_search(design.decode, design.counter, library, polarity, design.stock,
-                          design.catalog, glitch_free=_async_reset_names(design.counter),
-                          budget=budget, per_try=per_try)
+                          design.catalog, glitch_free=async_reset_names(design.counter),
+                          effort=effort)
     return search.finish(design)
 
 
@@ -267,7 +280,7 @@ def _mapping_inputs(design):
 
 def candidate_parts(stock, catalog, library) -> list[str]:
     """Logic part types worth adding: one per distinct unit set, kinds the bin lacks first."""
-    from .techmap import cells_of_part
+    from .mapper import cells_of_part
 
     supply = stock.supply
     families = {catalog.parts[p].family for p in stock.parts} or {"4000B"}

@@ -61,6 +61,8 @@ class Chip:
     clock_edge: str
     reset_pin: int | None
     reset_net: str
+    enable_pin: int | None = None
+    enable_net: str | None = None
     ties: dict = field(default_factory=dict)
 
 

@@ -32,7 +32,9 @@ def plan(tmp_path):
 def test_json_has_every_contract_key_with_its_shape(plan):
     doc = plan_to_json(plan)
     assert CONTRACT_KEYS <= set(doc)
-    assert doc["format"] == FORMAT == "binsynth-plan/1"
+    assert doc["format"] == FORMAT == "binsynth-plan/2"
+    assert doc["verdict"] == "planned" and doc["short"] == []
+    assert doc["reason"] == "proven minimum" or doc["reason"].startswith("best found")
     assert (doc["name"], doc["verilog_module"], doc["clock_edge"]) == ("led-scan", "led_scan", "falling")
     for sig in doc["signals"].values():
         assert sig["polarity"] in ("high", "low") and set(sig["source"]) == {"ref", "pin"}

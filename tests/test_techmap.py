@@ -31,7 +31,7 @@ from hypothesis import strategies as st
 from synth.cli import main
 from synth.inventory import Bin, load_catalog
 from synth.minimize import Function
-from synth.techmap import build_library, map_design
+from synth.mapper import build_library, map_design
 
 ROOT = Path(__file__).resolve().parent.parent
 CATALOG = load_catalog()
@@ -412,6 +412,11 @@ def test_random_specs_plan_tick_by_tick(case, tmp_path, capsys):
     assert "Traceback" not in err
     if code == 3:
         assert "cannot" in err or "short" in err, err
+        assert json.loads(out.read_text())["verdict"] == "impossible"
+        return
+    if code == 4:                        # the effort ran out: no plan, nothing claimed
+        assert "no design" in err and "proven" in err, err
+        assert json.loads(out.read_text())["verdict"] == "not_found"
         return
     assert code == 0, err
     plan = json.loads(out.read_text())
@@ -436,7 +441,7 @@ def test_bin_without_inverting_gate_exits_3_naming_a_fix(tmp_path, capsys):
     bin_path = write(tmp_path, "b.yaml", {"parts": {"4040": 1, "4081": 4}})
     code, err = run_cli(["plan", str(spec), "--bin", str(bin_path)], capsys)
     assert code == 3 and "Traceback" not in err
-    assert "invert" in err and "would do it" in err
+    assert "invert" in err and "(add one 40" in err
 
 
 def test_bin_with_too_few_gates_exits_3(tmp_path, capsys):
@@ -444,7 +449,8 @@ def test_bin_with_too_few_gates_exits_3(tmp_path, capsys):
     spec_path = write(tmp_path, "s.yaml", spec)
     bin_path = write(tmp_path, "b.yaml", {"parts": {"4040": 1, "4011": 1}})
     code, err = run_cli(["plan", str(spec_path), "--bin", str(bin_path)], capsys)
-    assert code == 3 and "too few" in err and "Traceback" not in err
+    # six distinct signals need six distinct output gates; one 4011 holds four (counting)
+    assert code == 3 and "needs at least 6 gates" in err and "has 4" in err and "Traceback" not in err
 
 
 def test_bin_without_logic_exits_3(tmp_path, capsys):

@@ -47,7 +47,7 @@ def test_nand_only_plan_needs_two_logic_chips(nand_only):
 
 
 def test_a_wide_and_is_what_the_bin_lacks(nand_only):
-    lacks = bin_lacks(nand_only, budget=60)
+    lacks = bin_lacks(nand_only)
     assert lacks.complete
     best = lacks.best
     assert best is not None
@@ -59,7 +59,7 @@ def test_a_wide_and_is_what_the_bin_lacks(nand_only):
 
 
 def test_the_4012_is_also_offered_with_its_own_cost(nand_only):
-    lacks = bin_lacks(nand_only, budget=60)
+    lacks = bin_lacks(nand_only)
     offered = {s.part: s for s in [lacks.best, *lacks.others]}
     assert "4012" in offered
     # NAND4 then the other NAND4 with joined inputs as the inverter (common practice)
@@ -80,7 +80,7 @@ def test_candidates_are_one_per_unit_set_kinds_the_bin_lacks_first(nand_only):
 def test_a_plan_with_nothing_to_gain_says_so(tmp_path):
     spec = write(tmp_path, "count15.yaml", SPEC)
     stock = write(tmp_path, "and4.yaml", "parts:\n  4520: 1\n  4082: 1\n")
-    lacks = bin_lacks(make_plan(spec, stock), budget=60)
+    lacks = bin_lacks(make_plan(spec, stock))
     assert lacks.best is None
     assert "no single extra chip type would shrink" in lacks.text()
 
@@ -88,17 +88,17 @@ def test_a_plan_with_nothing_to_gain_says_so(tmp_path):
 def test_plan_json_carries_the_answer(tmp_path, capsys):
     spec = write(tmp_path, "count15.yaml", SPEC)
     stock = write(tmp_path, "nands.yaml", "parts:\n  4520: 1\n  4011: 2\n")
-    assert main(["plan", str(spec), "--bin", str(stock), "--json", "-", "--lacks", "30"]) == 0
+    assert main(["plan", str(spec), "--bin", str(stock), "--json", "-"]) == 0
     data = json.loads(capsys.readouterr().out)
     assert data["bin_lacks"]["best"]["part"] == "4082"
     assert data["bin_lacks"]["best"]["chips_with"] == 2
 
 
 def test_the_search_beside_the_plan_finds_the_same_answer(tmp_path):
-    # the forked search started before the plan's own mapping, given time to finish
+    # the forked search started before the plan's own mapping; it always finishes its list
     spec = write(tmp_path, "count15.yaml", SPEC)
     stock = write(tmp_path, "nands.yaml", "parts:\n  4520: 1\n  4011: 2\n")
-    design = make_plan(spec, stock, lacks=60)
+    design = make_plan(spec, stock, lacks=True)
     assert design.lacks.complete and design.lacks.best.part == "4082"
     assert design.plan.bin_lacks["best"]["logic_chips_with"] == 1
 
@@ -107,15 +107,25 @@ def test_a_spare_chip_type_is_never_the_answer(tmp_path):
     # a third 4011 is left unused by the plan: one more 4011 cannot help and is not judged
     spec = write(tmp_path, "count15.yaml", SPEC)
     stock = write(tmp_path, "nands.yaml", "parts:\n  4520: 1\n  4011: 3\n")
-    lacks = bin_lacks(make_plan(spec, stock), budget=60)
+    lacks = bin_lacks(make_plan(spec, stock))
     assert all(s.part != "4011" for s in [lacks.best, *lacks.others] if s)
 
 
-def test_lacks_zero_skips_the_search(tmp_path, capsys):
+@pytest.mark.parametrize("argv", [["--lacks", "0"], ["--effort", "quick"]])
+def test_lacks_zero_or_quick_effort_skips_the_search(tmp_path, capsys, argv):
     spec = write(tmp_path, "count15.yaml", SPEC)
     stock = write(tmp_path, "nands.yaml", "parts:\n  4520: 1\n  4011: 2\n")
-    assert main(["plan", str(spec), "--bin", str(stock), "--json", "-", "--lacks", "0"]) == 0
+    assert main(["plan", str(spec), "--bin", str(stock), "--json", "-", *argv]) == 0
     assert json.loads(capsys.readouterr().out)["bin_lacks"] is None
+
+
+def test_the_old_seconds_option_still_reads_with_a_note(tmp_path, capsys):
+    spec = write(tmp_path, "count15.yaml", SPEC)
+    stock = write(tmp_path, "nands.yaml", "parts:\n  4520: 1\n  4011: 2\n")
+    assert main(["plan", str(spec), "--bin", str(stock), "--json", "-", "--lacks", "5"]) == 0
+    data = json.loads(capsys.readouterr().out)
+    assert any("--lacks no longer takes seconds" in w for w in data["warnings"])
+    assert data["bin_lacks"]["complete"]
 
 
 def test_a_negative_budget_is_a_usage_error(tmp_path, capsys):

@@ -49,7 +49,8 @@ TOUR = [
      ["decode", "examples/sample_hold.yaml", "--bin", "inventory/bins/sample_hold.yaml"], None, ()),
     ("Plan: the whole circuit, chip by chip and wire by wire (shortened here; `--json`, `--wiring`, "
      "`--verilog`, `--vcd`, `--svg`, `--spice`, `--report` (the HTML build page) write files, `--take` takes the parts out of the bin file, "
-     "`--lacks SECONDS` bounds the re-planning that finds what the bin lacks).",
+     "`--effort quick|normal|thorough` sets how much search work (counted, never timed) goes into the mapping "
+     "and the re-planning that finds what the bin lacks).",
      "binsynth plan examples/stepper.yaml --bin inventory/bins/stepper.yaml",
      ["plan", "examples/stepper.yaml", "--bin", "inventory/bins/stepper.yaml"], 62,
      ("what the bin lacks", "warning:", "remedy:")),

@@ -6,7 +6,12 @@ import argparse
 from collections import defaultdict
 from pathlib import Path
 
+from ..bintake import diff_bins
+from ..errors import UsageError
+from ..inventory import load_bin, load_catalog
 from ..limits import check_supply
+from ..render import print_json, show, Table, Text
+from ..units import format_si, parse_quantity
 
 NAME = "bin"
 HELP = "validate a bin file and show the gates, counters, switches and passives it provides"
@@ -25,10 +30,6 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
-    from ..errors import UsageError
-    from ..inventory import load_bin, load_catalog
-    from ..render import print_json, show
-    from ..units import parse_quantity
 
     try:
         supply = parse_quantity(args.supply, "V")
@@ -80,8 +81,6 @@ def run_from_csv(args: argparse.Namespace, catalog, supply: float) -> int:
 
 def run_diff(stock, other, as_json: bool) -> int:
     """``--diff OTHER``: what changed in BIN since OTHER; '+' is added to the bin."""
-    from ..bintake import diff_bins
-    from ..render import print_json, show
 
     diff = diff_bins(other, stock)
     if as_json:
@@ -92,8 +91,6 @@ def run_diff(stock, other, as_json: bool) -> int:
 
 
 def diff_blocks(stock, other, diff) -> list:
-    from ..render import Table, Text
-    from ..units import format_si
 
     if not diff.changed:
         return [Text(f"{stock.path} and {other.path} hold the same parts and passives")]
@@ -134,7 +131,7 @@ def provides(stock, catalog) -> dict:
             if units:
                 programmable.append({"part": part_type, "chips": count, "kind": unit_type,
                                      "units": len(units) * count,
-                                     "width": len(units[0].fields.get("selects", []))})
+                                     "width": len(units[0].selects)})
         if part.units_of("flipflop"):
             flipflops.append({"part": part_type, "chips": count,
                               "units": len(part.units_of("flipflop")) * count})
@@ -164,14 +161,11 @@ def _kind_name(kind: tuple) -> str:
 
 
 def _counter_row(part, unit, count: int) -> dict:
-    fields = unit.fields
-    stages = sorted(int(k) for k in fields.get("stages", {}))
-    decoded = sorted(int(k) for k in fields.get("decoded", {}))
-    return {"part": part.type, "unit": unit.id, "chips": count, "mode": fields.get("mode"),
-            "modulus": fields.get("modulus"), "synchronous": bool(fields.get("synchronous")),
-            "edge": fields.get("clock", {}).get("edge"),
-            "stages_pinned": stages, "decoded_outputs": decoded,
-            "reset": fields.get("reset", {}).get("active")}
+    return {"part": part.type, "unit": unit.id, "chips": count, "mode": unit.mode,
+            "modulus": unit.modulus, "synchronous": unit.synchronous,
+            "edge": unit.clock.edge if unit.clock else None,
+            "stages_pinned": sorted(unit.stages), "decoded_outputs": sorted(unit.decoded),
+            "reset": unit.reset.active if unit.reset else None}
 
 
 def _stage_text(stages: list[int]) -> str:
@@ -187,8 +181,6 @@ def _stage_text(stages: list[int]) -> str:
 
 
 def summary_blocks(stock, summary: dict) -> list:
-    from ..render import Table, Text
-    from ..units import format_si
 
     blocks = [Text(f"bin {stock.path}: {sum(stock.parts.values())} usable chips at {stock.supply:g} V")]
     blocks.append(Table("gates, inverters and buffers", ("kind", "units", "from"),

@@ -11,6 +11,13 @@ from __future__ import annotations
 import argparse
 from pathlib import Path
 
+from ..counter import allocate
+from ..decode import derive
+from ..inventory import load_bin, load_catalog
+from ..render import print_json, progress, show, Table, Text
+from ..spec import cyclic_runs, load_spec, windows_of
+from .plan import show_spec_notes
+
 NAME = "decode"
 HELP = ("show the counter chips and stages chosen for a spec, and each signal's minimized decode "
         "in counter-pin names")
@@ -28,12 +35,6 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
-    from ..counter import allocate
-    from ..decode import derive
-    from ..inventory import load_bin, load_catalog
-    from ..render import print_json, progress, show
-    from ..spec import load_spec
-    from .plan import show_spec_notes
 
     catalog = load_catalog()
     spec = load_spec(args.spec)
@@ -87,7 +88,6 @@ def runs_text(ticks: frozenset[int], cycle: int, shown: int = 4) -> str:
     >>> runs_text(frozenset(), 8), runs_text(frozenset(range(8)), 8)
     ('never', 'always')
     """
-    from ..spec import cyclic_runs
 
     if not ticks:
         return "never"
@@ -154,7 +154,6 @@ def _dc_text(decode, name: str) -> str:
 
 
 def decode_blocks(spec, stock, decode) -> list:
-    from ..render import Table, Text
 
     plan, cover = decode.plan, decode.cover
     head = (f"{spec.name}: cycle {plan.cycle} ticks, counting on the {plan.edge} edge of CLK, "
@@ -190,7 +189,6 @@ def decode_blocks(spec, stock, decode) -> list:
 # ---------------------------------------------------------------- for scripts
 
 def decode_json(spec, stock, decode) -> dict:
-    from ..spec import windows_of
 
     plan, cover = decode.plan, decode.cover
     reset = plan.reset

@@ -16,8 +16,12 @@ import argparse
 import re
 from dataclasses import asdict
 
+from ..analog import choose_receiver, rc_delay_design
 from ..errors import UsageError
+from ..inventory import load_bin, load_catalog
 from ..limits import check_supply, shown
+from ..render import print_json, show, Table, Text
+from ..units import format_si, parse_quantity
 
 NAME = "delay"
 HELP = ("choose R and C from the bin for an RC delay between two logic stages, "
@@ -40,9 +44,6 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
-    from ..analog import choose_receiver, rc_delay_design
-    from ..inventory import load_bin, load_catalog
-    from ..render import print_json, show
 
     wanted = _time(args.delay)
     supply = check_supply(_quantity(args.supply, "V", "--supply"), "--supply", error=UsageError)
@@ -74,8 +75,6 @@ def _time(text: str) -> float:
 
 
 def _quantity(text: str, unit: str, what: str) -> float:
-    from ..errors import UsageError
-    from ..units import parse_quantity
 
     try:
         value = parse_quantity(text, unit)
@@ -97,7 +96,6 @@ def _unit_pins(part, index: int):
 
 def wiring_hint(design, part) -> list[str]:
     """Where R and C go, with real pins when the receiving part is known."""
-    from ..units import format_si
 
     r, c = format_si(design.r, "Ω"), format_si(design.c, "F")
     lines = [f"stage 1 output → R ({r}) → delay node",
@@ -124,8 +122,6 @@ def wiring_hint(design, part) -> list[str]:
 
 def delay_blocks(design, part_type, thresholds, wiring, warnings) -> list:
     """The design as render blocks: values, formula, spread, wiring, warnings."""
-    from ..render import Table, Text
-    from ..units import format_si
 
     receiver = part_type or "a plain CMOS input"
     head = Text(f"RC delay of {format_si(design.wanted_s, 's')} into {receiver} at "

@@ -50,7 +50,6 @@ def check_folder(text: str) -> Path:
 def run(args: argparse.Namespace) -> int:
     from ..inventory import data_path, example_path
     from ..pipeline import make_plan
-    from ..wishlist import DEFAULT_BUDGET
     from ..render import Text, progress, show
 
     spec = example_path(f"{EXAMPLE}.yaml")
@@ -60,7 +59,7 @@ def run(args: argparse.Namespace) -> int:
     if out.is_dir():
         check_outputs([output for _, output in requests])
     with progress(f"planning {spec.name}"):
-        design = make_plan(spec, stock, lacks=DEFAULT_BUDGET)
+        design = make_plan(spec, stock, lacks=True)
     out.mkdir(parents=True, exist_ok=True)
     written = write_outputs(design, requests)
     blocks = [Text(f"demo: {spec.name} planned from the bin {stock.name}")] + plan_blocks(design)

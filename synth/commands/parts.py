@@ -4,7 +4,10 @@ from __future__ import annotations
 
 import argparse
 
+from ..errors import UsageError
+from ..inventory import load_catalog
 from ..limits import shown
+from ..render import print_json, show, Table, Text
 
 NAME = "parts"
 HELP = "list the part catalog, or show one part's package, pins and datasheet facts"
@@ -19,9 +22,6 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
-    from ..errors import UsageError
-    from ..inventory import load_catalog
-    from ..render import print_json, show
 
     catalog = load_catalog()
     if args.type:
@@ -63,7 +63,6 @@ def _type_key(part_type: str) -> tuple:
 
 
 def list_blocks(parts) -> list:
-    from ..render import Table
 
     rows = [(p.type, p.family, p.category, p.function, p.pin_count,
              f"{p.supply[0]:g}-{p.supply[1]:g} V") for p in parts]
@@ -153,7 +152,6 @@ def _facts(part) -> list[tuple]:
 
 
 def part_blocks(part) -> list:
-    from ..render import Table, Text
 
     return [Text(f"{part.type}: {part.function} ({part.family}, {part.package}-{part.pin_count}, top view)"),
             Text(package_drawing(part)),

@@ -17,7 +17,7 @@ import sys
 from pathlib import Path
 
 from ..bintake import take_from_bin
-from ..errors import UsageError
+from ..errors import NotFoundError, ShortError, UsageError
 from ..exports import EXPORTERS, Exporter, Output, OutputTransaction, check_outputs
 from ..limits import check_seconds, os_reason
 
@@ -37,7 +37,7 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 
 
 def add_output_arguments(parser: argparse.ArgumentParser) -> None:
-    from ..wishlist import DEFAULT_BUDGET
+    from .substitute import add_effort_argument
 
     for entry in EXPORTERS:
         parser.add_argument(entry.option, metavar="FILE", help=entry.description)
@@ -47,11 +47,15 @@ def add_output_arguments(parser: argparse.ArgumentParser) -> None:
                         help="apply remedies: 'glitches' tries another decode choice, a synchronous "
                              "counter, then gating with the clock's still half (the signal is then "
                              "asserted only in the second half of each tick), and says what it did")
-    parser.add_argument("--lacks", type=seconds, default=DEFAULT_BUDGET, metavar="SECONDS",
-                        help="time for re-planning with one extra chip type to find what the bin "
-                             "lacks, beside the plan's own search (default 1; 0 skips it)")
+    add_effort_argument(parser)
+    # the former seconds option: 0 still skips what-the-bin-lacks, other values only warn
+    parser.add_argument("--lacks", type=seconds, default=None, metavar="SECONDS", help=argparse.SUPPRESS)
     parser.add_argument("--exact", choices=["auto", "yes", "no"], default="auto",
                         help="exact (proven) search where sizes allow (auto), always, or never")
+
+
+LACKS_NOTE = ("--lacks no longer takes seconds: what the bin lacks is searched by work, "
+              "at the --effort level (quick skips it, so does --lacks 0)")
 
 
 def run(args: argparse.Namespace) -> int:
@@ -64,8 +68,15 @@ def run(args: argparse.Namespace) -> int:
     check_outputs([output for _, output in requests],
                   {"the spec": Path(args.spec), "the bin": bin_path}, protected)
     bin_before = read_bin_bytes(bin_path) if args.take else None
-    with progress(f"planning {Path(args.spec).name}"):
-        design = make_plan(args.spec, args.bin, exact=args.exact, fix=args.fix, lacks=args.lacks)
+    try:
+        with progress(f"planning {Path(args.spec).name}"):
+            design = make_plan(args.spec, args.bin, exact=args.exact, fix=args.fix, effort=args.effort,
+                               lacks=args.lacks != 0)
+    except (ShortError, NotFoundError) as exc:
+        _write_verdict(exc, args.json)
+        raise
+    if args.lacks:
+        design.plan.warnings.append(LACKS_NOTE)
     show_spec_notes(design.spec)
     if not any(output.to_stdout for _, output in requests):
         show(plan_blocks(design))
@@ -87,6 +98,19 @@ def read_bin_bytes(path: Path) -> bytes:
     except OSError as exc:
         raise UsageError(f"--bin: cannot read {path}: {os_reason(exc)}",
                          hint="check the path and its permissions") from None
+
+
+def _write_verdict(error, target: str | None) -> None:
+    """``--json`` when no plan was made: the verdict, the reason and everything short."""
+    if not target:
+        return
+    from ..exports.plan_json import failure_to_json, write_failure_json
+    from ..render import print_json
+
+    if target == "-":
+        print_json(failure_to_json(error))
+    else:
+        write_failure_json(error, target)
 
 
 def show_spec_notes(spec) -> None:
@@ -136,15 +160,14 @@ def summary_text(design) -> str:
     for chip in plan.chips:
         roles[chip.role] = roles.get(chip.role, 0) + 1
     parts = ", ".join(f"{n} {role}" for role, n in sorted(roles.items()))
-    if plan.proven_minimal:
-        proof = "proven minimal"
-    elif plan.lower_bound is not None and plan.lower_bound == roles.get("logic"):
-        proof = "proven minimal (the lower bound is met), gates best found"
+    from ..exports.plan_json import verdict_reason
+
+    if not plan.proven_minimal and plan.lower_bound is not None and plan.lower_bound == roles.get("logic"):
+        proof = "proven minimum (the lower bound is met), gates best found"
     else:
-        bound = f", lower bound {plan.lower_bound} chips" if plan.lower_bound is not None else ""
-        proof = f"best found{bound}"
+        proof = verdict_reason(plan)
     return (f"plan {plan.name}: {len(plan.chips)} chips ({parts}), {_gate_count(plan)} gates, "
-            f"logic chips {proof} [{plan.method}]; supply {plan.supply:g} V, "
+            f"logic chips: {proof} [{plan.method}]; supply {plan.supply:g} V, "
             f"counting on the {plan.clock_edge} edge of CLK")
 
 

@@ -10,7 +10,14 @@ from __future__ import annotations
 
 import argparse
 
+from ..effort import DEFAULT_EFFORT, EFFORTS
+from ..errors import UsageError
+from ..inventory import load_bin, load_catalog
 from ..limits import check_expression, check_supply
+from ..mapper import build_library
+from ..render import print_json, progress, show, Table, Text
+from ..substitute import draw_way, parse_target, substitute, way_json, wiring_rows
+from ..units import parse_quantity
 
 NAME = "substitute"
 HELP = ("the cheapest ways to build a gate the bin lacks (nand4, and8, xor2, nor3, inv) or a "
@@ -29,15 +36,18 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
                         help=argparse.SUPPRESS)   # the earlier name, still read
     parser.add_argument("--limit", type=int, default=3, help="how many ways to show (default 3)")
     parser.add_argument("--json", action="store_true", help="print JSON for scripts")
+    add_effort_argument(parser)
+
+
+def add_effort_argument(parser: argparse.ArgumentParser) -> None:
+    """``--effort LEVEL``: how much search work (counted, never timed) the mapper may spend."""
+    levels = "; ".join(f"{e.name}: {e.summary}" for e in EFFORTS.values())
+    parser.add_argument("--effort", choices=list(EFFORTS), default=DEFAULT_EFFORT,
+                        help=f"how hard the search tries, counted in work so every run gives the same "
+                             f"answer ({levels}; default {DEFAULT_EFFORT})")
 
 
 def run(args: argparse.Namespace) -> int:
-    from ..errors import UsageError
-    from ..inventory import load_bin, load_catalog
-    from ..render import print_json, progress, show
-    from ..substitute import parse_target, substitute
-    from ..techmap import build_library
-    from ..units import parse_quantity
 
     check_expression(args.target, "target", error=UsageError,
                      fix="a gate of at most 8 inputs needs a short expression; write a shorter one")
@@ -53,7 +63,8 @@ def run(args: argparse.Namespace) -> int:
     stock = load_bin(args.bin, catalog, supply)
     library = build_library(stock, catalog)
     with progress(f"searching ways to build {target.text}"):
-        ways = substitute(target, library, stock, either_polarity=args.either_polarity, limit=args.limit)
+        ways = substitute(target, library, stock, either_polarity=args.either_polarity, limit=args.limit,
+                          effort=args.effort)
     if args.json:
         print_json(substitute_json(target, ways))
     else:
@@ -62,8 +73,6 @@ def run(args: argparse.Namespace) -> int:
 
 
 def substitute_blocks(target, ways, bin_path: str) -> list:
-    from ..render import Table, Text
-    from ..substitute import draw_way, wiring_rows
 
     inputs = ", ".join(f"{name} = bit {i}" for i, name in enumerate(target.inputs))
     blocks: list = [Text(f"{target.text} from {bin_path}: {len(ways)} way(s), cheapest first "
@@ -83,7 +92,6 @@ def substitute_blocks(target, ways, bin_path: str) -> list:
 
 
 def substitute_json(target, ways) -> dict:
-    from ..substitute import way_json
 
     return {"format": "binsynth-substitute/1", "target": target.text, "inputs": list(target.inputs),
             "ways": [way_json(way, target, rank) for rank, way in enumerate(ways, start=1)]}

@@ -1,6 +1,11 @@
-"""The plan as JSON (``--json``): formats.md section 3, format ``binsynth-plan/1``.
+"""The plan as JSON (``--json``): formats.md section 3, format ``binsynth-plan/2``.
 
-Interface: ``FORMAT``; ``plan_to_json(plan) -> dict`` (every key of the
+Interface: ``FORMAT``; ``verdict_reason(plan) -> str`` ("proven minimum" or
+"best found, at least N logic chips needed"); ``failure_to_json(error) ->
+dict`` and ``write_failure_json(error, path)`` (the file written when no plan
+was made: ``verdict`` impossible or not_found, ``reason``, ``short``);
+``plan_to_json(plan) -> dict`` (``verdict`` planned, ``reason``, ``short``
+empty, every key of the
 contract, plus ``proven_minimal``, ``lower_bound``, ``method``, ``supply``,
 ``decoupling``, ``cautions``, ``counter``, ``nets_external``, per-chip pin
 notes, ``passives`` (every resistor and capacitor: ref, value, the net at
@@ -22,7 +27,7 @@ from ..breadboard import plan_breadboard
 from ..netlist import Plan, ref_key, verilog_module_name
 from .files import atomic_write_text
 
-FORMAT = "binsynth-plan/1"
+FORMAT = "binsynth-plan/2"
 
 
 def _endpoint(ref_pin: tuple[str, int] | None) -> dict | None:
@@ -91,11 +96,35 @@ def _glitches_by_model(glitches) -> dict:
             for model in MODELS}
 
 
+def verdict_reason(plan: Plan) -> str:
+    """What is known about the plan's logic chips: the minimum, or a bound."""
+    if plan.proven_minimal:
+        return "proven minimum"
+    if plan.lower_bound is not None:
+        return f"best found, at least {plan.lower_bound} logic chip(s) needed"
+    return "best found"
+
+
+def failure_to_json(error) -> dict:
+    """No plan: the verdict (``impossible`` exit 3, ``not_found`` exit 4), why, what is short."""
+    reason = error.message + (f" ({error.hint})" if getattr(error, "hint", None) else "")
+    return {"format": FORMAT, "verdict": getattr(error, "verdict", "impossible"), "reason": reason,
+            "short": [s.to_json() for s in getattr(error, "short", ())]}
+
+
+def write_failure_json(error, path: str | Path) -> Path:
+    """Write the no-plan verdict file, replacing any old file in one step."""
+    return atomic_write_text(path, json.dumps(failure_to_json(error), indent=2) + "\n")
+
+
 def plan_to_json(plan: Plan) -> dict:
     """The plan as a JSON-ready dict, keys as formats.md section 3 names them."""
     chips = sorted(plan.chips, key=lambda c: ref_key(c.ref))
     return {
         "format": FORMAT,
+        "verdict": "planned",
+        "reason": verdict_reason(plan),
+        "short": [],
         "name": plan.name,
         "clock_edge": plan.clock_edge,
         "verilog_module": verilog_module_name(plan.name),
