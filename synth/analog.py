@@ -43,6 +43,7 @@ from typing import NamedTuple
 
 from .errors import CatalogError, InputError, ShortError, UsageError
 from .inventory import Bin, Catalog
+from .limits import shown
 from .units import format_si
 
 __all__ = [
@@ -272,7 +273,7 @@ def choose_receiver(bin_: Bin, catalog: Catalog, wanted: str | None, supply: flo
         part_type = catalog.normalise(wanted)
         if part_type is None:
             close = catalog.closest(wanted)
-            raise UsageError(f"--part: unknown part {wanted!r}",
+            raise UsageError(f"--part: unknown part {shown(wanted)}",
                              hint=f"closest known types: {', '.join(close)}" if close else None)
         if bin_.count(part_type) == 0:
             raise ShortError(f"the bin {bin_.path} has no usable {part_type} at {supply:g} V",

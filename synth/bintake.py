@@ -30,22 +30,32 @@ Decisions:
 - Counts only come from the parts usable at ``supply`` (as ``load_bin``
   reports them); taking more than that is a ``ShortError`` and nothing is
   written.
-- Writing: the old bytes go to ``<file>.bak`` (atomically), then the new text
-  replaces the bin atomically (``synth.exports.atomic_write_text``: temp file
-  in the same folder, fsync, ``os.replace``).  A crash at any point leaves
-  either the old bin or the new one, never half of one.
+- Writing: under an exclusive lock on the bin (``fcntl.flock``, taken again
+  if another take replaced the file while this one waited), the bin is read
+  afresh; if ``expect`` (the bytes the plan was made from) is given and the
+  bin differs, nothing is written.  The old bytes go to ``<file>.bak``
+  (atomically), then the new text replaces the bin atomically
+  (``synth.exports.files.atomic_write_text``: temp file in the same folder,
+  fsync, ``os.replace``).  A crash at any point leaves either the old bin or
+  the new one, never half of one; temporaries a killed take left behind are
+  removed by the next take, inside the lock.
 """
 
 from __future__ import annotations
 
+import fcntl
+import os
 import re
+from contextlib import contextmanager
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Mapping
 
 from .errors import BinError, InputError, InternalError, ShortError, SynthError
+from .exports.files import atomic_write_text, remove_stray_temps
 from .inventory import Bin, Catalog, bin_from_yaml
-from .yamlsrc import MarkedDict, parse_yaml
+from .limits import os_reason
+from .yamlsrc import MarkedDict, parse_yaml, read_source
 
 __all__ = ["take_from_bin", "TakeResult", "EntryChange", "diff_bins", "BinDiff"]
 
@@ -351,17 +361,29 @@ def _empty_parts(line: str) -> str:
 
 # ---------------------------------------------------------------- the take
 
-def _read(path: Path) -> tuple[bytes, str]:
+@contextmanager
+def _locked(path: Path):
+    """Hold an exclusive lock on the bin file itself (the file at ``path`` now, not a replaced one)."""
+    while True:
+        try:
+            fd = os.open(path, os.O_RDONLY)
+        except FileNotFoundError:
+            raise InputError("no such file", file=path, hint="check the path") from None
+        except OSError as exc:
+            raise InputError(f"cannot open it to take parts: {os_reason(exc)}", file=path,
+                             hint="check the path and its permissions") from None
+        try:
+            fcntl.flock(fd, fcntl.LOCK_EX)
+            if os.path.exists(path) and os.path.samestat(os.fstat(fd), os.stat(path)):
+                break
+        except BaseException:
+            os.close(fd)
+            raise
+        os.close(fd)            # another take replaced the file while we waited: lock the new one
     try:
-        data = path.read_bytes()
-    except FileNotFoundError:
-        raise InputError("no such file", file=path, hint="check the path") from None
-    except OSError as exc:
-        raise InputError(f"cannot read: {exc.strerror or exc}", file=path) from exc
-    try:
-        return data, data.decode("utf-8")
-    except UnicodeDecodeError as exc:
-        raise InputError(f"cannot read: {exc}", file=path, hint="save the bin as UTF-8") from exc
+        yield
+    finally:
+        os.close(fd)            # closing releases the lock
 
 
 def _expected_markings(entries: list[_Entry], new_counts: dict[int, int]) -> dict[str, int]:
@@ -393,17 +415,32 @@ def _verify(text: str, old: Bin, expected: dict[str, int], bom_types: dict[str, 
 
 
 def take_from_bin(path: str | Path, bom: Mapping[str, int], catalog: Catalog, *,
-                  supply: float = 5.0, note: str | None = None, dry_run: bool = False) -> TakeResult:
+                  supply: float = 5.0, note: str | None = None, dry_run: bool = False,
+                  expect: bytes | None = None) -> TakeResult:
     """Remove a plan's chips (``bom``: generic type or marking -> count) from the bin file.
 
     ``note`` (e.g. the plan's name) is written beside entries used up.
     ``dry_run`` computes and checks the new text but writes nothing.
+    ``expect``: the bin's bytes when the plan was made; a bin changed since
+    then (another take, an edit) is refused and left as it is.
     """
-    from .exports import atomic_write_text
-
     path = Path(path)
+    if dry_run:
+        return _take(path, bom, catalog, supply, note, True, expect)
+    with _locked(path):
+        remove_stray_temps(path)
+        remove_stray_temps(path.with_name(path.name + ".bak"))
+        return _take(path, bom, catalog, supply, note, False, expect)
+
+
+def _take(path: Path, bom: Mapping[str, int], catalog: Catalog, supply: float, note: str | None,
+          dry_run: bool, expect: bytes | None) -> TakeResult:
+    """The take itself (inside the lock unless it is a dry run)."""
     where = str(path)
-    data, text = _read(path)
+    data, text = read_source(path)
+    if expect is not None and data != expect:
+        raise InputError("the bin changed after the plan read it (another take or an edit); "
+                         "nothing was written", file=path, hint="plan again from the bin as it is now")
     doc = parse_yaml(text, path)
     old = bin_from_yaml(doc, catalog, supply, where)
     lines = split_lines(text)
@@ -429,6 +466,6 @@ def take_from_bin(path: str | Path, bom: Mapping[str, int], catalog: Catalog, *,
                              file=path, hint="run the take again")
         atomic_write_text(path.resolve(), new_text)
     except OSError as exc:
-        raise InputError(f"cannot write: {exc.strerror or exc}; the bin is unchanged", file=path,
-                         hint="check that the folder is writable") from exc
+        raise InputError(f"cannot write: {os_reason(exc)}; the bin is unchanged", file=path,
+                         hint="check that the folder is writable") from None
     return TakeResult(path, backup, old, new, changes, new_text, True)

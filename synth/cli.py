@@ -15,6 +15,7 @@ import argparse
 import importlib
 import os
 import platform
+import re
 import sys
 import tempfile
 import traceback
@@ -24,6 +25,7 @@ from types import ModuleType
 from . import __version__
 from .commands import COMMANDS
 from .errors import SynthError
+from .limits import ECHO_CHARS, shown
 
 EXIT_INTERNAL = 70
 """Exit code of an unexpected exception (format contract section 5)."""
@@ -31,11 +33,18 @@ EXIT_INTERNAL = 70
 DEBUG_HELP = "on an internal error, show the Python traceback instead of saving it to a file"
 
 
+_LONG_QUOTE = re.compile("'([^']{%d,})'" % (ECHO_CHARS + 1))
+_LONG_WORD = re.compile("[^\\s']{%d,}" % (ECHO_CHARS + 1))
+"""A value argparse quotes (or lists bare) whole in its message; cut to what ``limits.shown`` repeats."""
+
+
 class _Parser(argparse.ArgumentParser):
     """argparse that reports usage errors as InputError-style exit 2 lines."""
 
     def error(self, message: str) -> None:  # noqa: D401 - argparse API
         self.print_usage(sys.stderr)
+        message = _LONG_QUOTE.sub(lambda match: shown(match.group(1)), message)
+        message = _LONG_WORD.sub(lambda match: match.group()[:ECHO_CHARS] + "...", message)
         sys.stderr.write(f"binsynth: error: {message}\n")
         raise SystemExit(2)
 

@@ -40,9 +40,10 @@ from typing import Literal
 
 from .errors import ShortError, SpecError
 from .inventory import Bin, Catalog, Part, Unit
+from .limits import CYCLE_BITS
 
 Edge = Literal["rising", "falling"]
-MAX_VARIABLES = 20          # 1M minterms: the largest function the decode handles
+MAX_VARIABLES = CYCLE_BITS  # 1M minterms: the largest decode (the one cycle limit, limits.CYCLE_TICKS)
 MAX_CHIPS = 6
 RESET_NAME = "_reset"
 

@@ -21,6 +21,7 @@ from pathlib import Path
 from typing import Any, Iterable, Literal
 
 from .errors import BinError, CatalogError
+from .limits import CHIPS_IN_ALL, CHIPS_PER_PART, PASSIVE_VALUES, check_at_most, describe, shown
 from .units import parse_si
 from .yamlsrc import MarkedDict, MarkedList, line_of, load_yaml
 
@@ -743,21 +744,21 @@ def bin_from_yaml(doc: object, catalog: Catalog, supply: float, path: str) -> Bi
     """Validate a parsed bin document (split from ``load_bin`` for tests)."""
     if not isinstance(doc, MarkedDict):
         raise BinError("expected a mapping with a 'parts:' key, got "
-                       f"{type(doc).__name__ if doc is not None else 'an empty file'}",
+                       f"{describe(doc) if doc is not None else 'an empty file'}",
                        file=path, line=getattr(doc, "line", 1),
                        hint="start the file with 'parts:' and one 'MARKING: COUNT' line per chip type")
     for key in doc:
         if key not in BIN_KEYS:
             close = difflib.get_close_matches(str(key), BIN_KEYS, n=1)
             hint = f"did you mean '{close[0]}'?" if close else f"known keys: {', '.join(BIN_KEYS)}"
-            raise BinError(f"unknown top-level key {key!r}", file=path, line=doc.line_of(key), hint=hint)
+            raise BinError(f"unknown top-level key {describe(key)}", file=path, line=doc.line_of(key), hint=hint)
     if "parts" not in doc:
         raise BinError("expected a 'parts:' mapping, got none", file=path, line=doc.line,
                        hint="add 'parts:' with one 'MARKING: COUNT' line per chip type")
     raw_parts = doc["parts"]
     if not isinstance(raw_parts, MarkedDict):
         raise BinError("expected 'parts' to be a mapping of marking -> count, got "
-                       f"{type(raw_parts).__name__}", file=path, line=doc.line_of("parts"),
+                       f"{describe(raw_parts)}", file=path, line=doc.line_of("parts"),
                        hint="write e.g. 'CD4011BE: 2' on its own line under 'parts:'")
     counts: dict[str, int] = {}
     markings: dict[str, list[str]] = {}
@@ -768,10 +769,14 @@ def bin_from_yaml(doc: object, catalog: Catalog, supply: float, path: str) -> Bi
         if part_type is None:
             close = catalog.closest(str(marking))
             hint = f"closest known types: {', '.join(close)}" if close else "see 'binsynth parts'"
-            raise BinError(f"unknown part marking {marking!r}", file=path, line=line, hint=hint)
+            raise BinError(f"unknown part marking {describe(marking)}", file=path, line=line, hint=hint)
         counts[part_type] = counts.get(part_type, 0) + _count_of(value, marking, path, line)
+        check_at_most(counts[part_type], CHIPS_PER_PART, f"chips of {part_type}", where="parts",
+                      error=BinError, file=path, line=line)
         markings.setdefault(part_type, []).append(str(marking))
         lines.setdefault(part_type, line)
+    check_at_most(sum(counts.values()), CHIPS_IN_ALL, "chips in all", where="parts", error=BinError,
+                  file=path, line=doc.line_of("parts"))
     resistors = _passives(doc, "resistors", "ohm", path)
     capacitors = _passives(doc, "capacitors", "F", path)
     usable, excluded, warnings = {}, {}, []
@@ -792,14 +797,15 @@ def _count_of(value: object, marking: object, path: str, line: int) -> int:
     if isinstance(value, MarkedDict):
         unknown = [k for k in value if k != "count"]
         if unknown:
-            raise BinError(f"unknown key {unknown[0]!r} for {marking}", file=path,
+            raise BinError(f"unknown key {describe(unknown[0])} for {shown(marking)}", file=path,
                            line=value.line_of(unknown[0]), hint="the long form is '{count: N}'")
         if "count" not in value:
-            raise BinError(f"expected 'count' for {marking}, got none", file=path, line=line,
+            raise BinError(f"expected 'count' for {shown(marking)}, got none", file=path, line=line,
                            hint="write '{count: 2}' or just '2'")
         line, value = value.line_of("count"), value["count"]
     if isinstance(value, bool) or not isinstance(value, int) or value <= 0:
-        raise BinError(f"expected a positive whole number of chips for {marking}, got {value!r}",
+        raise BinError(f"expected a positive whole number of chips for {shown(marking)}, got "
+                       f"{describe(value)}",
                        file=path, line=line, hint="write how many chips are on hand, e.g. '2'")
     return value
 
@@ -810,8 +816,10 @@ def _passives(doc: MarkedDict, key: str, unit: str, path: str) -> list[float]:
         return []
     values = doc[key]
     if not isinstance(values, MarkedList):
-        raise BinError(f"expected '{key}' to be a list such as [1k, 4k7, 10k], got {values!r}",
+        raise BinError(f"expected '{key}' to be a list such as [1k, 4k7, 10k], got {describe(values)}",
                        file=path, line=doc.line_of(key), hint=f"write {key}: [value, value, ...]")
+    check_at_most(len(values), PASSIVE_VALUES, "values", where=key, error=BinError, file=path,
+                  line=doc.line_of(key))
     result = []
     for i, text in enumerate(values):
         try:
@@ -819,8 +827,8 @@ def _passives(doc: MarkedDict, key: str, unit: str, path: str) -> list[float]:
         except ValueError as exc:
             raise BinError(f"{key}: {exc}", file=path, line=values.line_of(i),
                            hint="values are written like 4k7, 10k, 6n8, 100n or 4.7nF") from None
-        if number <= 0:
-            raise BinError(f"{key}: expected a positive value, got {text!r}", file=path,
+        if not 0 < number < float("inf"):
+            raise BinError(f"{key}: expected a positive value, got {describe(text)}", file=path,
                            line=values.line_of(i))
         result.append(number)
     return sorted(set(result))

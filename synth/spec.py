@@ -111,6 +111,8 @@ from typing import Iterator, NamedTuple
 
 from .errors import InputError, SpecError
 from .expr import ExprError, ticks_where
+from .limits import (CYCLE_TICKS, NAME_CHARS, SIGNALS, TICK_CELLS, check_at_most, check_expression,
+                     check_supply, describe, listed)
 from .units import format_si, parse_quantity
 from .verilog_names import VERILOG_KEYWORDS
 from .yamlsrc import MarkedDict, MarkedList, load_yaml, parse_yaml
@@ -122,7 +124,7 @@ __all__ = [
     "clear_of_feasible", "stretch_needed", "MAX_CYCLE", "STRETCH_OPTION_LIMIT",
 ]
 
-MAX_CYCLE = 1 << 24
+MAX_CYCLE = CYCLE_TICKS.most
 """The longest cycle accepted, in ticks (tick sets are held in memory)."""
 
 STRETCH_OPTION_LIMIT = 4096
@@ -669,20 +671,8 @@ def _closest(word: object, known: tuple[str, ...]) -> str:
 
 
 def _kind(value: object) -> str:
-    """How a YAML value reads to a person, for 'got ...' messages."""
-    if value is None:
-        return "nothing"
-    if isinstance(value, dict):
-        return "a mapping"
-    if isinstance(value, list):
-        return f"a list {_flow(value)}"
-    return repr(value)
-
-
-def _flow(value: object) -> str:
-    if isinstance(value, list):
-        return "[" + ", ".join(_flow(item) for item in value) + "]"
-    return str(value)
+    """How a YAML value reads to a person, for 'got ...' messages (``limits.describe``)."""
+    return describe(value)
 
 
 class _Reader:
@@ -724,7 +714,7 @@ class _Reader:
     def check_keys(self, mapping: dict, known: tuple[str, ...], where: str) -> None:
         for key in mapping:
             if key not in known:
-                self.fail(f"{where}: unknown key {key!r}", mapping.line_of(key),
+                self.fail(f"{where}: unknown key {describe(key)}", mapping.line_of(key),
                           _closest(key, known))
 
     def mapping(self, value: object, where: str, line: int, example: str) -> MarkedDict:
@@ -752,14 +742,14 @@ class _Reader:
     def time(self, text: str, where: str, line: int, minimum: int) -> int:
         if not _TIME.match(text.strip()):
             self.fail(f"{where}: expected a whole number of ticks or a time such as '40 us', "
-                      f"got {text!r}", line)
+                      f"got {describe(text)}", line)
         try:
             seconds = parse_quantity(text, "s")
         except ValueError:
             self.fail(f"{where}: expected a whole number of ticks or a time such as '40 us', "
-                      f"got {text!r}", line)
+                      f"got {describe(text)}", line)
         if self.frequency is None:
-            self.fail(f"{where}: {text!r} is a time, but the spec gives no clock frequency", line,
+            self.fail(f"{where}: {describe(text)} is a time, but the spec gives no clock frequency", line,
                       "add clock: {frequency: 50 kHz}, or write the value in ticks")
         try:
             return time_to_ticks(seconds, self.frequency, text.strip(), minimum)
@@ -804,9 +794,9 @@ class _Reader:
         try:
             seconds = parse_quantity(value, "s")
         except ValueError:
-            self.fail(f"{expected}, got {value!r}", line)
+            self.fail(f"{expected}, got {describe(value)}", line)
         if not 1e-6 <= seconds <= 10.0:
-            self.fail(f"power_on_reset: expected between 1 us and 10 s, got {value!r}", line)
+            self.fail(f"power_on_reset: expected between 1 us and 10 s, got {describe(value)}", line)
         return seconds
 
     def name(self, data: MarkedDict) -> str:
@@ -827,9 +817,9 @@ class _Reader:
         except ValueError:
             self.fail(f"supply: expected a voltage such as '5 V', got {_kind(data['supply'])}", line)
         if not math.isfinite(volts) or volts <= 0:
-            self.fail(f"supply: expected a positive voltage such as '5 V', got {data['supply']!r}",
+            self.fail(f"supply: expected a positive voltage such as '5 V', got {describe(data['supply'])}",
                       line)
-        return volts
+        return check_supply(volts, "supply", error=SpecError, file=self.path, line=line)
 
     def clock(self, data: MarkedDict) -> ClockSpec:
         if "clock" not in data:
@@ -846,7 +836,7 @@ class _Reader:
                           f"{_kind(body['frequency'])}", line)
             if not math.isfinite(frequency) or frequency <= 0:
                 self.fail(f"clock.frequency: expected a positive frequency, got "
-                          f"{body['frequency']!r}", line)
+                          f"{describe(body['frequency'])}", line)
         source = body.get("source", "external")
         if source not in CLOCK_SOURCES:
             self.fail(f"clock.source: expected external or oscillator, got {_kind(source)}",
@@ -868,7 +858,7 @@ class _Reader:
                       line, "write it with a % sign")
         fraction = float(match.group(1)) / 100
         if fraction >= 1:
-            self.fail(f"clock.tolerance: expected less than 100 %, got {value!r}", line)
+            self.fail(f"clock.tolerance: expected less than 100 %, got {describe(value)}", line)
         if frequency is None:
             self.fail("clock.tolerance: a tolerance needs clock.frequency", line,
                       "add frequency: 50 kHz")
@@ -880,8 +870,7 @@ class _Reader:
                       "add cycle: N, the clock ticks in one full sequence, e.g. cycle: 256")
         line = data.line_of("cycle")
         cycle = self.ticks(data["cycle"], "cycle", line, minimum=1, what="a cycle")
-        if cycle > MAX_CYCLE:
-            self.fail(f"cycle: expected at most {MAX_CYCLE} ticks, got {cycle}", line)
+        check_at_most(cycle, CYCLE_TICKS, "ticks", where="cycle", error=SpecError, file=self.path, line=line)
         return cycle
 
     # -- signals
@@ -893,23 +882,34 @@ class _Reader:
                             "{sample: {asserted: [[0, 4]]}}")
         if not body:
             self.fail("signals: expected at least one signal, got none", data.line_of("signals"))
+        self.check_size(len(body), cycle, data.line_of("signals"))
         for name in body:
             self.signal_name(name, body.line_of(name))
         return {name: self.signal(name, body[name], body.line_of(name), cycle, tuple(body))
                 for name in body}
 
+    def check_size(self, count: int, cycle: int, line: int) -> None:
+        """The signal count and the ticks held in memory, before any tick set is built."""
+        check_at_most(count, SIGNALS, "signals", where="signals", error=SpecError, file=self.path, line=line)
+        check_at_most(count * cycle, TICK_CELLS, f"signal ticks in all ({count} signals x cycle {cycle})",
+                      where="signals", error=SpecError, file=self.path, line=line)
+
     def signal_name(self, name: object, line: int) -> None:
+        if isinstance(name, str):
+            check_at_most(len(name), NAME_CHARS, "characters in a signal name", where="signals",
+                          error=SpecError,
+                          file=self.path, line=line)
         if not isinstance(name, str) or not _IDENTIFIER.match(name):
-            self.fail(f"signals: expected a signal name usable as a Verilog port, got {name!r}",
+            self.fail(f"signals: expected a signal name usable as a Verilog port, got {describe(name)}",
                       line, "letters, digits and _, not starting with a digit, e.g. sample_gate")
         if name.lower() == "clk":
-            self.fail(f"signals: the name {name!r} is taken by the clock input", line,
+            self.fail(f"signals: the name {describe(name)} is taken by the clock input", line,
                       "rename the signal, e.g. clk_out")
         if name.upper() in POWER_NETS:
-            self.fail(f"signals: the name {name!r} is taken by a power net", line,
+            self.fail(f"signals: the name {describe(name)} is taken by a power net", line,
                       "rename the signal")
         if name in VERILOG_KEYWORDS:
-            self.fail(f"signals: the name {name!r} is a Verilog keyword", line,
+            self.fail(f"signals: the name {describe(name)} is a Verilog keyword", line,
                       f"rename it, e.g. {name}_sig")
 
     def signal(self, name: str, body: object, line: int, cycle: int,
@@ -972,6 +972,7 @@ class _Reader:
         line = body.line_of(key)
         where = f"{where}.{written or key}"
         if isinstance(value, str):
+            check_expression(value, where, error=SpecError, file=self.path, line=line)
             try:
                 base = ticks_where(value, period)
             except ExprError as exc:
@@ -1041,10 +1042,10 @@ class _Reader:
         for other, distance in value.items():
             line = value.line_of(other)
             if other == name:
-                self.fail(f"{where}: a signal cannot be clear of itself ({name!r})", line)
+                self.fail(f"{where}: a signal cannot be clear of itself ({describe(name)})", line)
             if other not in names:
-                others = ", ".join(n for n in names if n != name)
-                self.fail(f"{where}: unknown signal {other!r}", line,
+                others = listed(n for n in names if n != name)
+                self.fail(f"{where}: unknown signal {describe(other)}", line,
                           f"known signals: {others}")
             result[other] = self.ticks(distance, f"{where}.{other}", line, minimum=1,
                                        what="a distance")
@@ -1074,12 +1075,12 @@ class _Reader:
         for name, entry in body.items():
             line = body.line_of(name)
             if not isinstance(name, str) or not _IDENTIFIER.match(name):
-                self.fail(f"{section}: expected a net name (letters, digits, _), got {name!r}", line)
+                self.fail(f"{section}: expected a net name (letters, digits, _), got {describe(name)}", line)
             if name.upper() in POWER_NETS or name.lower() == "clk":
-                self.fail(f"{section}: the name {name!r} is taken by a power net or the clock", line,
+                self.fail(f"{section}: the name {describe(name)} is taken by a power net or the clock", line,
                           "name the staircase, e.g. ramp")
             if name in signals or name in switch_names:
-                self.fail(f"{section}: the name {name!r} is already a signal or a switch", line,
+                self.fail(f"{section}: the name {describe(name)} is already a signal or a switch", line,
                           "a staircase needs a net name of its own, e.g. ramp")
             result[name] = self.level(name, entry, line, cycle, section)
         return result
@@ -1136,7 +1137,7 @@ class _Reader:
                       "write it with a % sign")
         fraction = float(match.group(1)) / 100
         if not 0 < fraction < 0.5:
-            self.fail(f"{where}: expected a tolerance above 0 % and below 50 %, got {value!r}", line,
+            self.fail(f"{where}: expected a tolerance above 0 % and below 50 %, got {describe(value)}", line,
                       "resistors are marked 1 %, 2 %, 5 %, 10 % or 20 %")
         return fraction
 
@@ -1159,7 +1160,7 @@ class _Reader:
         for name, entry in body.items():
             line = body.line_of(name)
             if not isinstance(name, str) or not _IDENTIFIER.match(name):
-                self.fail(f"switches: expected a switch name (letters, digits, _), got {name!r}",
+                self.fail(f"switches: expected a switch name (letters, digits, _), got {describe(name)}",
                           line)
             result[name] = self.switch(name, entry, line, signals)
         return result
@@ -1175,25 +1176,28 @@ class _Reader:
                 self.fail(f"{where}: missing {key!r}", line,
                           "a switch needs select (a signal), on and off (net names)")
         select = entry["select"]
+        if not isinstance(select, str):
+            self.fail(f"{where}.select: expected the name of one signal, got {describe(select)}",
+                      entry.line_of("select"), f"known signals: {listed(signals)}")
         if select not in signals:
-            self.fail(f"{where}.select: unknown signal {select!r}", entry.line_of("select"),
-                      f"known signals: {', '.join(signals)}")
+            self.fail(f"{where}.select: unknown signal {describe(select)}", entry.line_of("select"),
+                      f"known signals: {listed(signals)}")
         nets = {key: self.net_name(entry[key], f"{where}.{key}", entry.line_of(key))
                 for key in ("on", "off")}
         if nets["on"] == nets["off"]:
-            self.fail(f"{where}: on and off are the same net {nets['on']!r}",
+            self.fail(f"{where}: on and off are the same net {describe(nets['on'])}",
                       entry.line_of("off"))
         return SwitchSpec(name=name, select=select, on=nets["on"], off=nets["off"], line=line)
 
     def net_name(self, value: object, where: str, line: int) -> str:
         if isinstance(value, bool):
-            self.fail(f"{where}: expected a net name, got the YAML boolean {value!r}", line,
+            self.fail(f"{where}: expected a net name, got {describe(value)}", line,
                       "quote words such as 'on', 'off', 'yes', 'no'")
         if not isinstance(value, str) or not _IDENTIFIER.match(value):
             self.fail(f"{where}: expected a net name (letters, digits, _) or GND, got "
                       f"{_kind(value)}", line)
         if value.upper() in POWER_NETS and value != value.upper():
-            self.fail(f"{where}: power nets are written in capitals, got {value!r}", line,
+            self.fail(f"{where}: power nets are written in capitals, got {describe(value)}", line,
                       f"write {value.upper()}")
         return value
 

@@ -37,6 +37,8 @@ from dataclasses import dataclass, field
 
 from .effort import effort_named
 from .errors import NotFoundError, SafetyCapError, ShortError, UsageError
+from .errors import ShortError, UsageError
+from .limits import shown
 from .minimize import Function
 from .network import Network, SignalOut
 
@@ -78,7 +80,7 @@ def _gate_target(text: str) -> Target | None:
         return None
     op, width = match.group(1), int(match.group(2))
     if not 2 <= width <= MAX_INPUTS:
-        raise UsageError(f"target {text!r}: expected a width from 2 to {MAX_INPUTS}, got {width}",
+        raise UsageError(f"target {shown(text)}: expected a width from 2 to {MAX_INPUTS}, got {width}",
                          hint=f"try {op}{min(max(width, 2), MAX_INPUTS)}")
     inputs = tuple("abcdefgh"[:width])
     full = (1 << width) - 1
@@ -102,14 +104,14 @@ def parse_target(text: str) -> Target:
         close = difflib.get_close_matches(text.strip().lower(), GATE_NAMES, n=1, cutoff=0.5)
         hint = f"did you mean {close[0]}?" if close else \
             "gate names: and2..and8, nand2..nand8, or2.., nor2.., xor2.., xnor2.., inv; or an expression such as 'a & ~b'"
-        raise UsageError(f"target {text!r}: expected a gate name or an expression, got a single name", hint=hint)
+        raise UsageError(f"target {shown(text)}: expected a gate name or an expression, got a single name", hint=hint)
     parser = _Parser(text, tokens)
     tree = parser.parse()
     names = tuple(sorted(parser.names))
     if len(names) > MAX_INPUTS:
-        raise UsageError(f"target {text!r}: expected at most {MAX_INPUTS} inputs, got {len(names)}")
+        raise UsageError(f"target {shown(text)}: expected at most {MAX_INPUTS} inputs, got {len(names)}")
     if not names:
-        raise UsageError(f"target {text!r}: expected at least one input name, got only constants")
+        raise UsageError(f"target {shown(text)}: expected at least one input name, got only constants")
     on = frozenset(m for m in range(1 << len(names))
                    if _value(tree, {n: bool(m >> i & 1) for i, n in enumerate(names)}))
     return Target(text.strip(), names, on)
@@ -124,7 +126,7 @@ def _tokens(text: str) -> list[tuple[str, str, int]]:
         value = match.group(kind)
         column = match.start(kind) + 1
         if kind == "bad":
-            raise UsageError(f"target {text!r}: expected a name, 0, 1, ~ ! ' & · * | + ^ or parentheses, "
+            raise UsageError(f"target {shown(text)}: expected a name, 0, 1, ~ ! ' & · * | + ^ or parentheses, "
                              f"got {value!r} at column {column}")
         tokens.append((kind, value, column))
     return tokens
@@ -144,10 +146,10 @@ class _Parser:
     def fail(self, expected: str):
         if self.i < len(self.tokens):
             _, value, column = self.tokens[self.i]
-            got = f"{value!r} at column {column}"
+            got = f"{shown(value)} at column {column}"
         else:
             got = "the end of the expression"
-        raise UsageError(f"target {self.text!r}: expected {expected}, got {got}",
+        raise UsageError(f"target {shown(self.text)}: expected {expected}, got {got}",
                          hint="operators: ~ ! ' (not), & · * (and), ^ (xor), | + (or), parentheses")
 
     def take(self) -> tuple[str, str, int]:

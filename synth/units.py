@@ -30,6 +30,8 @@ from __future__ import annotations
 import math
 import re
 
+from .limits import describe, shown
+
 PREFIX_EXPONENTS = {"p": -12, "n": -9, "u": -6, "µ": -6, "μ": -6, "m": -3,
                     "": 0, "R": 0, "r": 0, "k": 3, "K": 3, "M": 6, "G": 9}
 
@@ -88,7 +90,7 @@ def parse_si(text: str, unit: str | None = None) -> float:
     if match:
         number, prefix = match.groups()
         return _scaled(number, prefix)
-    raise ValueError(f"expected {_EXPECTED}, got {raw!r}")
+    raise ValueError(f"expected {_EXPECTED}, got {shown(raw)}")
 
 
 def parse_quantity(value: object, unit: str) -> float:
@@ -103,14 +105,14 @@ def parse_quantity(value: object, unit: str) -> float:
     ValueError: expected a value in Hz such as '50 kHz', got 'fast'
     """
     if isinstance(value, bool):
-        raise ValueError(f"expected a value in {unit}, got {value!r}")
+        raise ValueError(f"expected a value in {unit}, got {describe(value)}")
     if isinstance(value, (int, float)):
         return float(value)
     try:
         return parse_si(str(value), unit)
     except ValueError:
         example = {"Hz": "50 kHz", "s": "40 us", "V": "5 V", "F": "6n8", "ohm": "4k7"}.get(unit, "1k")
-        raise ValueError(f"expected a value in {unit} such as {example!r}, got {value!r}") from None
+        raise ValueError(f"expected a value in {unit} such as {example!r}, got {describe(value)}") from None
 
 
 def format_si(value: float, unit: str = "", digits: int = 3) -> str:

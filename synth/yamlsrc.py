@@ -2,17 +2,32 @@
 
 Interface: ``load_yaml(path) -> object`` whose mappings are ``MarkedDict`` and
 sequences ``MarkedList``; ``line_of(container, key_or_index)`` gives the
-1-based line of an entry.  Errors in the YAML itself become ``InputError``
-with file and line.  Only the safe loader is used: a spec or bin is data.
+1-based line of an entry; ``read_source(path) -> (bytes, text)`` (the checked
+reading shared with the bin rewriter).  Errors in the YAML itself become
+``InputError`` with file and line.  Only the safe loader is used: a spec or
+bin is data.
+
+Decisions:
+
+- Aliases (``*name``) and merge keys (``<<``) are refused with the line of
+  the anchored value.  A few hundred bytes of nested aliases expand to
+  gigabytes once walked, and no spec or bin needs them; refusing them means
+  no message and no check ever walks an expansion.
+- A file is checked against ``limits.FILE_BYTES`` before it is read; bytes
+  that are not UTF-8 and control characters YAML cannot hold are reported at
+  their line, with the fix, never as codec text.
 """
 
 from __future__ import annotations
 
 from pathlib import Path
 
+import re
+
 import yaml
 
 from .errors import InputError
+from .limits import check_file_size, os_reason, shown
 
 
 class MarkedDict(dict):
@@ -41,11 +56,26 @@ _SafeBase = getattr(yaml, "CSafeLoader", yaml.SafeLoader)
 
 
 class _MarkedLoader(_SafeBase):
-    """SafeLoader that builds Marked containers."""
+    """SafeLoader that builds Marked containers and refuses aliases."""
+
+    def construct_object(self, node, deep=False):
+        """A node met a second time was reached through an alias: refuse it."""
+        if node in self.constructed_objects or node in self.recursive_objects:
+            raise yaml.constructor.ConstructorError(
+                None, None, "this value is used again through an alias (*name), which binsynth "
+                "does not read", node.start_mark)
+        return super().construct_object(node, deep)
+
+
+_MERGE_TAG = "tag:yaml.org,2002:merge"
 
 
 def _construct_mapping(loader: _MarkedLoader, node: yaml.MappingNode) -> MarkedDict:
-    loader.flatten_mapping(node)
+    for key_node, _ in node.value:
+        if key_node.tag == _MERGE_TAG:
+            raise yaml.constructor.ConstructorError(
+                None, None, "a merge key (<<) copies another mapping, which binsynth does not read",
+                key_node.start_mark)
     result = MarkedDict()
     result.line = node.start_mark.line + 1
     result.key_lines = {}
@@ -58,7 +88,7 @@ def _construct_mapping(loader: _MarkedLoader, node: yaml.MappingNode) -> MarkedD
                 None, None, "expected a plain key, got a list or mapping", key_node.start_mark)
         if key in result:
             raise yaml.constructor.ConstructorError(
-                None, None, f"duplicate key {key!r}", key_node.start_mark)
+                None, None, f"duplicate key {shown(key)}", key_node.start_mark)
         result[key] = loader.construct_object(value_node, deep=True)
         result.key_lines[key] = key_node.start_mark.line + 1
     return result
@@ -77,28 +107,63 @@ _MarkedLoader.add_constructor(yaml.resolver.BaseResolver.DEFAULT_SEQUENCE_TAG, _
 
 def parse_yaml(text: str, source: str | Path = "<string>") -> object:
     """Parse YAML text; syntax errors name the source and line."""
+    _check_characters(text, source)
     try:
         return yaml.load(text, Loader=_MarkedLoader)  # noqa: S506 - a SafeLoader subclass
     except yaml.MarkedYAMLError as exc:
         mark = exc.problem_mark or exc.context_mark
         line = mark.line + 1 if mark is not None else None
         problem = exc.problem or exc.context or "cannot be read"
+        if "alias" in problem or "merge key" in problem:
+            raise InputError(problem, file=source, line=line,
+                             hint="write the value out in full where it is used") from None
         raise InputError(f"YAML syntax: {problem}", file=source, line=line,
-                         hint="check indentation, colons and brackets") from exc
+                         hint="check indentation, colons and brackets") from None
+    except RecursionError:
+        raise InputError("YAML nested too deeply to read", file=source,
+                         hint="a spec or bin needs a few levels of nesting; remove extra brackets") from None
     except yaml.YAMLError as exc:
-        raise InputError(f"YAML syntax: {exc}", file=source) from exc
+        raise InputError("YAML that cannot be read", file=source,
+                         hint="check indentation, colons and brackets") from exc
+
+
+# YAML's printable set (YAML 1.1, 5.1): anything else cannot appear in a file.
+_UNPRINTABLE = re.compile("[^\x09\x0A\x0D\x20-\x7E\x85\xA0-\uD7FF\uE000-\uFFFD\U00010000-\U0010FFFF]")
+
+
+def _check_characters(text: str, source: str | Path) -> None:
+    """A control character is named with its line, not as a position in a stream."""
+    bad = _UNPRINTABLE.search(text)
+    if bad:
+        line = text.count("\n", 0, bad.start()) + 1
+        raise InputError(f"a control character (code {ord(bad.group()):#04x}) that a YAML file "
+                         "cannot hold", file=source, line=line,
+                         hint="delete it, or retype the line in a plain text editor")
+
+
+def read_source(path: str | Path) -> tuple[bytes, str]:
+    """A spec or bin file's bytes and text; every failure is one InputError in words."""
+    path = Path(path)
+    check_file_size(path)
+    try:
+        data = path.read_bytes()
+    except FileNotFoundError:
+        raise InputError("no such file", file=path, hint="check the path") from None
+    except OSError as exc:
+        raise InputError(f"cannot read it: {os_reason(exc)}", file=path,
+                         hint="check the path and its permissions") from None
+    try:
+        return data, data.decode("utf-8")
+    except UnicodeDecodeError as exc:
+        line = data.count(b"\n", 0, exc.start) + 1
+        raise InputError(f"holds bytes that are not UTF-8 text (byte {data[exc.start]:#04x})",
+                         file=path, line=line, hint="save the file as UTF-8") from None
 
 
 def load_yaml(path: str | Path) -> object:
     """Read and parse a YAML file; a missing file is an InputError."""
     path = Path(path)
-    try:
-        text = path.read_text(encoding="utf-8")
-    except FileNotFoundError:
-        raise InputError("no such file", file=path, hint="check the path") from None
-    except (OSError, UnicodeDecodeError) as exc:
-        raise InputError(f"cannot read: {exc}", file=path) from exc
-    return parse_yaml(text, path)
+    return parse_yaml(read_source(path)[1], path)
 
 
 def line_of(container: object, key: object) -> int | None:

@@ -246,7 +246,7 @@ def test_write_failure_is_a_one_line_input_error(tmp_path, monkeypatch):
     monkeypatch.setattr(os, "replace", _fail_on(os.replace, 2, OSError(28, "No space left on device")))
     with pytest.raises(InputError) as caught:
         take_from_bin(path, {"4011": 1}, CATALOG)
-    assert str(caught.value) == (f"{path}: cannot write: No space left on device; the bin is unchanged "
+    assert str(caught.value) == (f"{path}: cannot write: no space left on device; the bin is unchanged "
                                  "(check that the folder is writable)")
     assert caught.value.exit_code == 2
 

@@ -29,6 +29,7 @@ from sympy.logic.boolalg import And, Not, Or
 
 from synth import cli
 from synth.commands import COMMANDS
+from synth.exports import EXPORTERS
 from synth.inventory import data_path, example_path
 
 # (inputs, output) of each gate, by datasheet pinout (reference notes, see above)
@@ -305,7 +306,8 @@ def test_demo_writes_every_output(tmp_path, capsys):
     assert code == 0
     folder = tmp_path / "demo"
     names = sorted(p.name for p in folder.iterdir())
-    assert names == ["plan.json", "plan.v", "plan.vcd", "report.html", "timing.svg", "wiring.md"]
+    assert names == sorted(entry.file_name for entry in EXPORTERS)
+    assert names == ["analog.cir", "plan.json", "plan.v", "plan.vcd", "report.html", "timing.svg", "wiring.md"]
     plan = json.loads((folder / "plan.json").read_text())
     assert plan["name"] == "sh-bench" and plan["counter"]["cycle"] == 64
     assert "files written:" in out

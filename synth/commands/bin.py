@@ -9,6 +9,7 @@ from pathlib import Path
 from ..bintake import diff_bins
 from ..errors import UsageError
 from ..inventory import load_bin, load_catalog
+from ..limits import check_supply
 from ..render import print_json, show, Table, Text
 from ..units import format_si, parse_quantity
 
@@ -34,6 +35,7 @@ def run(args: argparse.Namespace) -> int:
         supply = parse_quantity(args.supply, "V")
     except ValueError as exc:
         raise UsageError(f"--supply: {exc}") from None
+    check_supply(supply, "--supply", error=UsageError)
     catalog = load_catalog()
     if args.from_csv:
         return run_from_csv(args, catalog, supply)

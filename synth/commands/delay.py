@@ -19,6 +19,7 @@ from dataclasses import asdict
 from ..analog import choose_receiver, rc_delay_design
 from ..errors import UsageError
 from ..inventory import load_bin, load_catalog
+from ..limits import check_supply, shown
 from ..render import print_json, show, Table, Text
 from ..units import format_si, parse_quantity
 
@@ -45,7 +46,7 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 def run(args: argparse.Namespace) -> int:
 
     wanted = _time(args.delay)
-    supply = _quantity(args.supply, "V", "--supply")
+    supply = check_supply(_quantity(args.supply, "V", "--supply"), "--supply", error=UsageError)
     fixed_r = _quantity(args.r, "ohm", "--r") if args.r else None
     fixed_c = _quantity(args.c, "F", "--c") if args.c else None
     catalog = load_catalog()
@@ -68,7 +69,7 @@ def _time(text: str) -> float:
     from ..errors import UsageError
 
     if re.fullmatch(r"\s*[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?\s*", text):
-        raise UsageError(f"delay: expected a time with its unit, got the bare number {text.strip()!r}",
+        raise UsageError(f"delay: expected a time with its unit, got the bare number {shown(text.strip())}",
                          hint=f"write the unit: {text.strip()}us, {text.strip()}ms or '{text.strip()} s'")
     return _quantity(text, "s", "delay")
 
@@ -79,8 +80,8 @@ def _quantity(text: str, unit: str, what: str) -> float:
         value = parse_quantity(text, unit)
     except ValueError as exc:
         raise UsageError(f"{what}: {exc}") from None
-    if value <= 0:
-        raise UsageError(f"{what}: expected a positive value, got {text!r}")
+    if not 0 < value < float("inf"):
+        raise UsageError(f"{what}: expected a positive value, got {shown(text)}")
     return value
 
 

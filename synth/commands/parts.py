@@ -6,6 +6,7 @@ import argparse
 
 from ..errors import UsageError
 from ..inventory import load_catalog
+from ..limits import shown
 from ..render import print_json, show, Table, Text
 
 NAME = "parts"
@@ -27,7 +28,7 @@ def run(args: argparse.Namespace) -> int:
         part_type = catalog.normalise(args.type)
         if part_type is None:
             close = catalog.closest(args.type)
-            raise UsageError(f"unknown part {args.type!r}",
+            raise UsageError(f"unknown part {shown(args.type)}",
                              hint=f"closest known types: {', '.join(close)}" if close else None)
         part = catalog.parts[part_type]
         if args.json:

@@ -1,8 +1,13 @@
 """``binsynth plan SPEC --bin BIN``: the main job, printed for a person.
 
 Interface: ``NAME``, ``HELP``, ``add_arguments(parser)``, ``run(args) -> int``,
-``plan_blocks(design)`` (what the terminal shows) and ``write_outputs(design,
-args)`` (the files asked for), shared with ``binsynth demo``.
+``plan_blocks(design)`` (what the terminal shows), ``requested_outputs(args)``
+and ``write_outputs(design, requests, take=..., bin_before=...)`` (the files
+asked for, as one transaction), shared with ``binsynth demo``.
+
+The output options come from the exporter registry (``synth.exports``); every
+path is checked before the plan is made, and nothing is written unless the
+whole run, the take from the bin included, succeeded.
 """
 
 from __future__ import annotations
@@ -11,7 +16,10 @@ import argparse
 import sys
 from pathlib import Path
 
-from ..errors import NotFoundError, ShortError
+from ..bintake import take_from_bin
+from ..errors import NotFoundError, ShortError, UsageError
+from ..exports import EXPORTERS, Exporter, Output, OutputTransaction, check_outputs
+from ..limits import check_seconds, os_reason
 
 NAME = "plan"
 HELP = "plan the circuit for a spec from the chips in a bin: chips, pins, wiring list and checks"
@@ -31,17 +39,8 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 def add_output_arguments(parser: argparse.ArgumentParser) -> None:
     from .substitute import add_effort_argument
 
-    parser.add_argument("--json", metavar="FILE", help="write the plan as JSON ('-' for standard output)")
-    parser.add_argument("--wiring", metavar="FILE", help="write the wiring list as Markdown with checkboxes")
-    parser.add_argument("--verilog", metavar="FILE", help="write a structural Verilog model")
-    parser.add_argument("--vcd", metavar="FILE", help="write the simulated cycle as a VCD file")
-    parser.add_argument("--svg", metavar="FILE", help="write a timing diagram (SVG)")
-    parser.add_argument("--spice", metavar="FILE",
-                        help="write the analog parts (oscillator, power-on reset, staircases, RC delays) as a plain "
-                             "SPICE deck")
-    parser.add_argument("--report", metavar="FILE",
-                        help="write one self-contained HTML page to build from: breadboard layout, "
-                             "wiring checklist, pin maps, gate diagrams, timing")
+    for entry in EXPORTERS:
+        parser.add_argument(entry.option, metavar="FILE", help=entry.description)
     parser.add_argument("--take", action="store_true",
                         help="write the bin back with the parts this plan uses removed (keeps a .bak)")
     parser.add_argument("--fix", action="append", choices=["glitches"], default=[],
@@ -63,6 +62,12 @@ def run(args: argparse.Namespace) -> int:
     from ..pipeline import make_plan
     from ..render import progress, show
 
+    requests = requested_outputs(args)
+    bin_path = Path(args.bin)
+    protected = {"the bin's backup": bin_path.with_name(bin_path.name + ".bak")} if args.take else {}
+    check_outputs([output for _, output in requests],
+                  {"the spec": Path(args.spec), "the bin": bin_path}, protected)
+    bin_before = read_bin_bytes(bin_path) if args.take else None
     try:
         with progress(f"planning {Path(args.spec).name}"):
             design = make_plan(args.spec, args.bin, exact=args.exact, fix=args.fix, effort=args.effort,
@@ -73,11 +78,26 @@ def run(args: argparse.Namespace) -> int:
     if args.lacks:
         design.plan.warnings.append(LACKS_NOTE)
     show_spec_notes(design.spec)
-    to_stdout = args.json == "-"
-    if not to_stdout:
+    if not any(output.to_stdout for _, output in requests):
         show(plan_blocks(design))
-    write_outputs(design, args)
+    write_outputs(design, requests, take=args.take, bin_before=bin_before)
     return 0
+
+
+def requested_outputs(args: argparse.Namespace) -> list[tuple[Exporter, Output]]:
+    """The registered outputs the command line asked for, in registry order."""
+    given = vars(args)
+    return [(entry, Output(entry.option, given[entry.name])) for entry in EXPORTERS
+            if given.get(entry.name) is not None]
+
+
+def read_bin_bytes(path: Path) -> bytes:
+    """The bin as the plan reads it, so the take can tell whether it changed meanwhile."""
+    try:
+        return path.read_bytes()
+    except OSError as exc:
+        raise UsageError(f"--bin: cannot read {path}: {os_reason(exc)}",
+                         hint="check the path and its permissions") from None
 
 
 def _write_verdict(error, target: str | None) -> None:
@@ -100,55 +120,33 @@ def show_spec_notes(spec) -> None:
 
 
 def seconds(text: str) -> float:
-    """A non-negative number of seconds (argparse turns the ValueError into exit 2)."""
-    value = float(text)
-    if value < 0 or value != value:
-        raise ValueError(text)
-    return value
+    """A number of seconds from 0 to ``limits.SEARCH_SECONDS`` (argparse turns the ValueError
+    into exit 2)."""
+    try:
+        return check_seconds(text)
+    except ValueError as exc:
+        raise argparse.ArgumentTypeError(f"{exc}, got {text[:40]!r}") from None
 
 
-def write_outputs(design, args) -> list[str]:
-    """Write every file asked for; return the paths written."""
-    written = []
+def write_outputs(design, requests: list[tuple[Exporter, Output]], *, take: bool = False,
+                  bin_before: bytes | None = None) -> list[str]:
+    """Every output asked for, as one transaction; the paths written.
+
+    Texts are staged as temporary files first; the take from the bin (under
+    its lock, refused if the bin changed since ``bin_before`` was read) comes
+    next; only then are the files put in place.  Any failure writes nothing.
+    """
     plan = design.plan
-    if args.json:
-        from ..exports.plan_json import plan_to_json, write_json
-        from ..render import print_json
-
-        if args.json == "-":
-            print_json(plan_to_json(plan))
-        else:
-            written.append(str(write_json(plan, args.json)))
-    if args.wiring:
-        from ..exports.wiring import write_wiring
-
-        written.append(str(write_wiring(plan, args.wiring)))
-    if args.verilog:
-        from ..exports.verilog import write_verilog
-
-        written.append(str(write_verilog(plan, design.catalog, args.verilog)))
-    if args.vcd:
-        from ..exports.vcd import write_vcd
-
-        written.append(str(write_vcd(design.trace, plan, args.vcd)))
-    if args.svg:
-        from ..exports.svg import write_svg
-
-        written.append(str(write_svg(design.trace, plan, args.svg)))
-    if getattr(args, "spice", None):
-        from ..exports.spice import write_spice
-
-        tick_ns = getattr(design.trace, "period_ns", None)
-        written.append(str(write_spice(plan, design.catalog, args.spice, tick_ns=tick_ns)))
-    if getattr(args, "report", None):
-        from ..exports.report import write_report
-
-        written.append(str(write_report(design, args.report)))
-    if args.take:
-        from ..bintake import take_from_bin
-
-        result = take_from_bin(plan.bin_path, plan.bom, design.catalog, supply=plan.supply, note=plan.name)
-        written.append(str(getattr(result, "path", plan.bin_path)))
+    with OutputTransaction() as transaction:
+        for entry, output in requests:
+            transaction.stage(output, entry.stdout_text(design) if output.to_stdout else entry.text(design))
+        taken = None
+        if take:
+            taken = take_from_bin(plan.bin_path, plan.bom, design.catalog, supply=plan.supply,
+                                  note=plan.name, expect=bin_before)
+        written = transaction.commit()
+    if taken is not None:
+        written.append(str(taken.path))
     return written
 
 

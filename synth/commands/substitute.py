@@ -13,6 +13,7 @@ import argparse
 from ..effort import DEFAULT_EFFORT, EFFORTS
 from ..errors import UsageError
 from ..inventory import load_bin, load_catalog
+from ..limits import check_expression, check_supply
 from ..mapper import build_library
 from ..render import print_json, progress, show, Table, Text
 from ..substitute import draw_way, parse_target, substitute, way_json, wiring_rows
@@ -48,13 +49,14 @@ def add_effort_argument(parser: argparse.ArgumentParser) -> None:
 
 def run(args: argparse.Namespace) -> int:
 
+    check_expression(args.target, "target", error=UsageError,
+                     fix="a gate of at most 8 inputs needs a short expression; write a shorter one")
     target = parse_target(args.target)
     try:
         supply = parse_quantity(args.supply, "V")
     except ValueError as exc:
         raise UsageError(f"--supply: {exc}") from None
-    if supply <= 0:
-        raise UsageError(f"--supply: expected a positive voltage, got {args.supply!r}")
+    check_supply(supply, "--supply", error=UsageError)
     if args.limit < 1:
         raise UsageError(f"--limit: expected at least 1, got {args.limit}")
     catalog = load_catalog()

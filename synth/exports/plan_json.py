@@ -25,7 +25,7 @@ from typing import Any
 
 from ..breadboard import plan_breadboard
 from ..netlist import Plan, ref_key, verilog_module_name
-from . import atomic_write_text
+from .files import atomic_write_text
 
 FORMAT = "binsynth-plan/2"
 
@@ -176,3 +176,13 @@ def plan_to_text(plan: Plan) -> str:
 def write_json(plan: Plan, path: str | Path) -> Path:
     """Write the plan JSON, replacing any old file in one step."""
     return atomic_write_text(path, plan_to_text(plan))
+
+
+def design_text(design) -> str:
+    """The ``--json FILE`` text of a finished design (the exporter interface)."""
+    return plan_to_text(design.plan)
+
+
+def design_stdout_text(design) -> str:
+    """``--json -``: the same plan, non-ASCII characters kept as they are."""
+    return json.dumps(plan_to_json(design.plan), indent=2, ensure_ascii=False) + "\n"

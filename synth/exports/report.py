@@ -31,7 +31,7 @@ from ..breadboard import BOARD_GAP, RAILS, Y, hole_xy, method_text, strip_of
 from ..netlist import RAIL_NETS, ref_key
 from ..packing import unit_logic_pins
 from .plan_json import plan_to_json
-from . import atomic_write_text
+from .files import atomic_write_text
 
 __all__ = ["report_html", "write_report", "plan_hash"]
 
@@ -926,3 +926,8 @@ JS = r"""
   refresh();
 })();
 """
+
+
+def design_text(design) -> str:
+    """The ``--report`` page of a finished design (the exporter interface)."""
+    return report_html(design)

@@ -42,7 +42,7 @@ from .. import __version__
 from ..analog import thresholds_at
 from ..netlist import simulate_nets
 from ..units import format_si
-from . import atomic_write_text
+from .files import atomic_write_text
 
 __all__ = ["SpiceCheck", "plan_to_spice", "write_spice", "spice_checks", "measure_lines"]
 
@@ -430,3 +430,9 @@ def plan_to_spice(plan: Any, catalog: Any, *, tick_ns: float | None = None) -> s
 def write_spice(plan: Any, catalog: Any, path: str | Path, *, tick_ns: float | None = None) -> Path:
     """Write ``plan_to_spice`` to ``path`` atomically."""
     return atomic_write_text(path, plan_to_spice(plan, catalog, tick_ns=tick_ns))
+
+
+def design_text(design) -> str:
+    """The ``--spice`` deck of a finished design (the exporter interface)."""
+    tick_ns = design.trace.period_ns if design.trace is not None else None
+    return plan_to_spice(design.plan, design.catalog, tick_ns=tick_ns)

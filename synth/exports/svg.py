@@ -30,7 +30,7 @@ from xml.sax.saxutils import escape, quoteattr
 from ..analogwave import analog_waves
 from ..timing import Trace, nice_period_ns
 from ..units import format_si
-from . import atomic_write_text
+from .files import atomic_write_text
 
 __all__ = ["trace_to_svg", "write_svg"]
 
@@ -385,3 +385,8 @@ def write_svg(trace: Trace, plan: Any, path: str | Path, glitches: list | None =
               coincident: list | None = None) -> Path:
     """Write ``trace_to_svg`` to ``path`` atomically."""
     return atomic_write_text(path, trace_to_svg(trace, plan, glitches, coincident))
+
+
+def design_text(design) -> str:
+    """The ``--svg`` text of a finished design (the exporter interface)."""
+    return trace_to_svg(design.trace, design.plan)

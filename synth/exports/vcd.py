@@ -29,7 +29,7 @@ from .. import __version__
 from ..analogwave import analog_waves
 from ..netlist import verilog_module_name
 from ..timing import Trace, ps
-from . import atomic_write_text
+from .files import atomic_write_text
 
 __all__ = ["trace_to_vcd", "write_vcd", "vcd_scopes", "vcd_name", "identifier_code"]
 
@@ -160,3 +160,8 @@ def _initial(trace: Trace, net: str) -> bool:
 def write_vcd(trace: Trace, plan: Any, path: str | Path) -> Path:
     """Write ``trace_to_vcd`` to ``path`` atomically."""
     return atomic_write_text(path, trace_to_vcd(trace, plan))
+
+
+def design_text(design) -> str:
+    """The ``--vcd`` text of a finished design (the exporter interface)."""
+    return trace_to_vcd(design.trace, design.plan)

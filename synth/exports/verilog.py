@@ -37,7 +37,7 @@ from typing import Any
 from ..netlist import verilog_module_name, VERILOG_KEYWORDS
 from ..network import RAILS
 from ..timing import CounterModel, GateModel, counter_models, gate_models, gate_names_of
-from . import atomic_write_text
+from .files import atomic_write_text
 
 __all__ = ["plan_to_verilog", "write_verilog", "verilog_names", "spec_signals", "delay_text"]
 
@@ -445,3 +445,8 @@ def plan_to_verilog(plan: Any, catalog: Any) -> str:
 def write_verilog(plan: Any, catalog: Any, path: str | Path) -> Path:
     """Write ``plan_to_verilog`` to ``path`` atomically."""
     return atomic_write_text(path, plan_to_verilog(plan, catalog))
+
+
+def design_text(design) -> str:
+    """The ``--verilog`` text of a finished design (the exporter interface)."""
+    return plan_to_verilog(design.plan, design.catalog)

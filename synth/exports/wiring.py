@@ -18,7 +18,7 @@ from pathlib import Path
 
 from ..netlist import Plan, Wire, endpoint_text, is_passive, pin_table, ref_key, wire_list
 from ..units import format_si
-from . import atomic_write_text
+from .files import atomic_write_text
 
 
 def driver_first(wires: list[Wire]) -> list[Wire]:
@@ -193,3 +193,8 @@ def wiring_markdown(plan: Plan) -> str:
 def write_wiring(plan: Plan, path: str | Path) -> Path:
     """Write the wiring list, replacing any old file in one step."""
     return atomic_write_text(path, wiring_markdown(plan))
+
+
+def design_text(design) -> str:
+    """The ``--wiring`` text of a finished design (the exporter interface)."""
+    return wiring_markdown(design.plan)
