@@ -20,7 +20,6 @@ levels at time 0; then one ``#time`` line per instant something changes.
 
 from __future__ import annotations
 
-import datetime as _dt
 import re
 from pathlib import Path
 from typing import Any
@@ -82,7 +81,8 @@ def _unique(rows: list[tuple[str, str]]) -> list[tuple[str, str]]:
 
 def trace_to_vcd(trace: Trace, plan: Any, *, date: str | None = None) -> str:
     """The trace as VCD text (times in picoseconds)."""
-    when = date or _dt.datetime.now(_dt.timezone.utc).strftime("%Y-%m-%d %H:%M:%S UTC")
+    # No wall-clock date: the same inputs must give the same file on any machine.
+    when = date or "not recorded (the file depends only on the spec and the bin)"
     module = verilog_module_name(getattr(plan, "name", "") or "binsynth_plan")
     lines = [
         f"$date {when} $end",
