@@ -28,10 +28,12 @@ GLITCH_PROSE = (
     'the analyses that found it (`found by`: the event simulation with transport delays at '
     'typical and worst-case catalog delays, with inertial delays, and the enumeration of the '
     'states the count passes through).  `--fix glitches` applies the remedies in order '
-    "(another decode choice where a passed-through state is a don't-care, a synchronous "
-    "counter from the bin, gating with the clock's still half; never for a switch select, "
-    'which gating would throw over twice a tick), re-checks the plan tick by tick, '
-    're-analyses it, and says per signal what it did and what it cost; what no remedy removes'
+    "(another decode choice where a passed-through state is a don't-care, registering the "
+    "signal in a D flip-flop from the bin (decoded one tick early, so it changes once per "
+    "edge), a synchronous counter from the bin, and gating with the clock's still half only "
+    "where a pulse per tick is acceptable: `steady: false` or one-tick windows; never for a "
+    'switch select), re-checks the plan tick by tick, re-analyses it, and says per signal '
+    'what it did and what it cost; what no remedy removes'
     ' gets a note.  RC delays between two stages are offered, never applied (shortened here):')
 
 # (prose, shown command, argv after 'binsynth', head lines kept or None (or the titles of

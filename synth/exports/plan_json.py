@@ -101,7 +101,8 @@ def verdict_reason(plan: Plan) -> str:
     if plan.proven_minimal:
         return "proven minimum"
     if plan.lower_bound is not None:
-        return f"best found, at least {plan.lower_bound} logic chip(s) needed"
+        chips = "chip" if plan.lower_bound == 1 else "chips"
+        return f"best found, at least {plan.lower_bound} logic {chips} needed"
     return "best found"
 
 
