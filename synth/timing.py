@@ -1450,7 +1450,7 @@ def remedies(glitch: Glitch, plan: Any, *, catalog: Any = None, stock: Any = Non
             parts = _synchronous_parts(catalog, stock)
             if parts:
                 shown = (glitch.transient_count if glitch.transient_count is not None
-                         else f"minterm {state}")
+                         else f"count {state}")
                 out.append(f"a synchronous counter: the bin has {', '.join(parts)}, whose outputs change "
                            "together on the clock edge, so the count never shows "
                            f"{shown} on the way")
@@ -1654,7 +1654,7 @@ def merge_glitches(plan: Any, expected: Mapping[str, Sequence[bool]], typ: Trace
         if key not in merged:
             lasts = _state_duration(typ, h.at_tick or typ.cycle, h.transient)
             merged[key] = Glitch(h.signal, h.at_tick, lasts,
-                                 f"the counter outputs pass through minterm {h.transient} for {lasts:g} ns "
+                                 f"the counter outputs pass through count {h.transient} for {lasts:g} ns "
                                  f"({h.order}); at the catalog's delays the gate paths smooth it away, "
                                  "a faster part may not", "", wrong_level=h.wrong_level,
                                  transient_state=h.transient, seen_inertial=False)

@@ -23,7 +23,7 @@ from synth.exports.plan_json import plan_to_json
 from synth.inventory import data_path, example_path
 from synth.pipeline import make_plan
 
-PLANNED_EXAMPLES = ["sample_hold", "stepper", "adc_staircase", "ultrasonic_burst"]
+PLANNED_EXAMPLES = ["sample_hold", "stepper", "adc_staircase", "ultrasonic_burst", "led_scanner"]
 
 TERMINAL = re.compile(r"([a-j])(\d+)")
 RAIL = re.compile(r"([TB][+-])(\d+)")

@@ -26,7 +26,7 @@ from synth.pipeline import make_plan
 
 CHROMIUM = "/usr/bin/chromium"
 DRIVER = "/usr/bin/chromedriver"
-EXAMPLES = ["sample_hold", "stepper", "adc_staircase", "ultrasonic_burst"]
+EXAMPLES = ["sample_hold", "stepper", "adc_staircase", "ultrasonic_burst", "led_scanner"]
 ARTIFACTS = Path(os.environ.get("BINSYNTH_ARTIFACTS", Path(__file__).resolve().parent.parent / "tmp" / "artifacts"))
 
 pytestmark = pytest.mark.skipif(not (os.access(CHROMIUM, os.X_OK) and os.access(DRIVER, os.X_OK)),
