@@ -91,5 +91,6 @@ def test_missing_and_unreadable_files(tmp_path):
         load_yaml(tmp_path / "absent.yaml")
     latin = tmp_path / "latin.yaml"
     latin.write_bytes(b"name: caf\xe9\n")
-    with pytest.raises(InputError, match="cannot read"):
+    with pytest.raises(InputError, match="not UTF-8 text .byte 0xe9.") as caught:
         load_yaml(latin)
+    assert caught.value.line == 1 and "save the file as UTF-8" in str(caught.value)
