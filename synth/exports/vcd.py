@@ -66,8 +66,9 @@ def vcd_scopes(trace: Trace, plan: Any) -> dict[str, list[tuple[str, str]]]:
     return {"counter": _unique(counter), "signals": _unique(signals), "internal": _unique(internal)}
 
 
-def _unique(rows: list[tuple[str, str]]) -> list[tuple[str, str]]:
-    seen: set[str] = set()
+def _unique(rows: list[tuple[str, str]], seen: set[str] | None = None) -> list[tuple[str, str]]:
+    """The rows with a ``_2``, ``_3`` ... suffix on each name already in ``seen`` or earlier."""
+    seen = set() if seen is None else set(seen)
     out = []
     for name, net in rows:
         base, k = name, 2
@@ -141,15 +142,7 @@ def _value(wave, value: float, code: str) -> str:
 def _unique_names(waves, codes, trace, plan) -> list[str]:
     taken = {name for rows in vcd_scopes(trace, plan).values() for name, _ in rows}
     rows = _unique([(vcd_name(w.name), w.name) for w in waves])
-    out = []
-    for name, _ in rows:
-        base, k = name, 2
-        while name in taken:
-            name = f"{base}_{k}"
-            k += 1
-        taken.add(name)
-        out.append(name)
-    return out
+    return [name for name, _ in _unique(rows, taken)]
 
 
 def _initial(trace: Trace, net: str) -> bool:
