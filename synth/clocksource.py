@@ -102,14 +102,15 @@ class OscillatorPlan:
     def as_json(self) -> dict:
         return {
             "part": self.site.part, "ref": self.ref, "unit": self.site.unit, "kind": self.site.kind,
-            "new_chip": self.opened, "R": self.r, "C": self.c, "Rs": self.rs,
+            "new_chip": self.opened, "r_ohm": self.r, "c_farad": self.c, "rs_ohm": self.rs,
             "formula": self.formula, "worked": self.worked,
-            "f_wanted": self.wanted_hz, "f_nom": self.f_nom, "f_min": self.f_min, "f_max": self.f_max,
+            "wanted_hz": self.wanted_hz, "nominal_hz": self.f_nom, "min_hz": self.f_min, "max_hz": self.f_max,
             "tolerance": self.tolerance, "tolerance_default": not self.tolerance_given,
-            "thresholds": self.thresholds, "clock_net": self.clock_net,
+            "thresholds_v": self.thresholds, "clock_net": self.clock_net,
             "pins": dict(self.pins), "passives": list(self.passives),
             "counter_fmax_mhz": self.counter_fmax_mhz,
-            "corners": [{"label": l, "vt_plus": p, "vt_minus": m, "f": f} for l, p, m, f in self.corners],
+            "corners": [{"label": l, "vt_plus_v": p, "vt_minus_v": m, "frequency_hz": f}
+                        for l, p, m, f in self.corners],
             "warnings": list(self.warnings),
         }
 

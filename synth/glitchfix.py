@@ -571,7 +571,7 @@ def _phase_text(clock: str, level: bool) -> str:
 
 def _spare_input_rewrite(network, signal, out, clock, settle, plan, stock, catalog):
     """Use a spare input of the signal's last gate when its controlling level is the inactive one."""
-    from .timing import gate_names_of, spare_input
+    from .timing import spare_input, spare_input_place
 
     gate = next((g for g in network.gates if out.net in g.outputs), None)
     if gate is None or gate.op not in _CONTROLLING or len(gate.outputs) != 1:
@@ -587,10 +587,10 @@ def _spare_input_rewrite(network, signal, out, clock, settle, plan, stock, catal
     inputs = list(gate.inputs)
     inputs[index] = phase_net
     gates = [dataclasses.replace(g, inputs=tuple(inputs)) if g.id == gate.id else g for g in gates]
-    name = gate_names_of(plan).get(gate.id, gate.id)
     return (dataclasses.replace(network, gates=gates),
             _record("spare_input", signal, out.polarity, clock, settle,
-                    f"{name}'s spare input {index + 1} wired to {_phase_wording(clock, settle, controlling)}",
+                    f"{spare_input_place(plan, gate, index)} wired to "
+                    f"{_phase_wording(clock, settle, controlling)}",
                     added))
 
 

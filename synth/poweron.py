@@ -61,9 +61,9 @@ class PowerOnReset:
 
     def as_json(self) -> dict:
         return {"wanted_s": self.wanted_s, "active": self.active, "part": self.part, "ref": self.ref,
-                "unit": self.unit, "new_chip": self.opened, "R": self.r, "C": self.c,
+                "unit": self.unit, "new_chip": self.opened, "r_ohm": self.r, "c_farad": self.c,
                 "width_s": {"min": self.width_s[0], "typ": self.width_s[1], "max": self.width_s[2]},
-                "formula": self.formula, "thresholds": self.thresholds, "net": NET,
+                "formula": self.formula, "thresholds_v": self.thresholds, "net": NET,
                 "resets": [{"ref": r, "pin": p} for r, p in self.resets],
                 "pins": dict(self.pins), "passives": list(self.passives), "warnings": list(self.warnings)}
 

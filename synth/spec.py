@@ -1027,9 +1027,10 @@ class _Reader:
         reach = None      # the listed window reaching furthest so far
         for start, end, line in sorted(spans):
             if reach is not None and start < reach[1]:
-                common = (start, min(end, reach[1]))
+                first, last = start, min(end, reach[1]) - 1
+                both = f"tick {first}" if first == last else f"ticks {first}-{last}"
                 self.fail(f"{where}: windows [{reach[0]}, {reach[1]}] and [{start}, {end}] overlap "
-                          f"at ticks {common[0]}..{common[1] - 1}", max(line, reach[2]),
+                          f"at {both}", max(line, reach[2]),
                           "merge them into one window")
             if reach is None or end > reach[1]:
                 reach = (start, end, line)

@@ -64,12 +64,13 @@ from typing import Any
 
 from .errors import InternalError
 from .network import RAILS, Gate, Network, evaluate_gate
+from .packing import unit_logic_pins
 
 __all__ = [
     "simulate", "Trace", "ResetPulse", "counter_models", "gate_models", "gate_names_of",
     "reset_net_of", "CounterModel", "CounterOutput", "GateModel", "glitches", "Glitch",
     "settle_mismatches", "merge_glitches", "ripple_hazards", "RippleHazard", "coincident_edges",
-    "edge_skews", "remedies", "spare_input", "analyse", "default_period_ns", "nice_period_ns",
+    "edge_skews", "remedies", "spare_input", "spare_input_place", "MODEL_NAMES", "MODEL_TEXT", "MODELS", "analyse", "default_period_ns", "nice_period_ns",
     "ps", "expected_from_delivered", "registered_signals", "register_start_levels",
     "flipflop_requirement_ns", "register_checks", "pulse_width_checks", "pulse_warning_lines", "mark_races",
 ]
@@ -90,6 +91,14 @@ pass), with inertial delays at typical (what a Verilog primitive and a real
 gate of exactly that delay pass), and the state enumeration of the ripple
 transients (``ripple_hazards``: the decode evaluated on every state the count
 passes through, independent of gate delays)."""
+MODEL_NAMES = {
+    "transport_typ": "typical_delays",
+    "transport_max": "worst_case_delays",
+    "inertial_typ": "short_pulses_swallowed",
+    "states": "count_states",
+}
+"""What the output calls each analysis (plan JSON ``models``, the glitch table's
+"found by" with ``_`` read as a space): plain words, not the ids above."""
 PS_PER_NS = 1000
 
 
@@ -1409,6 +1418,20 @@ def spare_input(gate: Gate) -> int | None:
     return None
 
 
+def spare_input_place(plan: Any, gate: Gate, index: int) -> str:
+    """Where a gate's spare input is on the board, ``U5 pin 11 (G, a spare input of U5 gate A)``:
+    the package pin a person finds, not the input's place in the gate's list."""
+    for chip in getattr(plan, "chips", ()):
+        unit_id = next((u for u, purpose in (chip.units_used or {}).items() if str(purpose) == gate.id), None)
+        if unit_id is None:
+            continue
+        part = plan.parts[chip.part]
+        unit = next(u for u in part.units if u.id == unit_id)
+        pin = unit_logic_pins(unit)[0][index]
+        return f"{chip.ref} pin {pin} ({part.pins.get(pin, '?')}, a spare input of {chip.ref} gate {unit_id})"
+    return f"a spare input of gate {gate.id}"
+
+
 def _driver(network: Network, net: str) -> Gate | None:
     return next((g for g in network.gates if net in g.outputs), None)
 
@@ -1523,8 +1546,7 @@ def _clock_gating_remedy(glitch: Glitch, plan: Any) -> list[str]:
         return []        # gating would force the asserted level: no use
     after_edge = getattr(plan, "clock_edge", "falling") == "rising"
     phase = "CLK" if controlling == after_edge else "CLK through a spare inverter"
-    name = gate_names_of(plan).get(gate.id, gate.id)
-    return [f"gate the decode with the clock: wire {name}'s spare input (input {spare + 1}) to {phase}; "
+    return [f"gate the decode with the clock: wire {spare_input_place(plan, gate, spare)} to {phase}; "
             f"{glitch.signal} is then held inactive in the first half of every tick while the counter "
             "settles, and asserted only in the second half of each asserted tick (so a window of "
             "several ticks becomes one pulse per tick)"]

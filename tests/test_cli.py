@@ -145,7 +145,7 @@ def test_decode_expressions_give_the_spec_waveforms(capsys):
                        "--bin", str(data_path("bins", "sample_hold.yaml")), "--json")
     assert code == 0
     body = json.loads(out)
-    names = [v["net"] for v in body["counter"]["vars"]]
+    names = [v["net"] for v in body["counter"]["variables"]]
     # examples/sample_hold.yaml, written out: asserted ticks (ready has don't-cares at 38, 39)
     wanted = {"track": set(range(0, 24)), "convert": {28, 29}, "frame": {0}, "ready": set(range(40, 64))}
     dont_care = {"ready": {38, 39}}
@@ -269,9 +269,9 @@ def test_delay_into_a_plain_input_is_rc_ln2(capsys):
     body = json.loads(out)
     assert code == 0 and body["receiver"] == "plain-input"
     # a plain CMOS input switches near VDD/2: t = RC ln(5 / (5 - 2.5)) = RC ln 2
-    assert body["delay_typ"] == pytest.approx(body["r"] * body["c"] * math.log(2), rel=1e-12)
+    assert body["delay_typ_s"] == pytest.approx(body["r_ohm"] * body["c_farad"] * math.log(2), rel=1e-12)
     # inventory/bins/stepper.yaml holds 1k, 10k, 47k and 10n, 100n, 1u
-    assert body["r"] in (1e3, 10e3, 47e3) and body["c"] in (10e-9, 100e-9, 1e-6)
+    assert body["r_ohm"] in (1e3, 10e3, 47e3) and body["c_farad"] in (10e-9, 100e-9, 1e-6)
 
 
 def test_delay_into_the_bins_schmitt_inverter(capsys):
@@ -280,13 +280,13 @@ def test_delay_into_the_bins_schmitt_inverter(capsys):
     body = json.loads(out)
     assert code == 0 and body["receiver"] == "40106"
     # 40106 VT+ at 5 V: 2.2 / 2.9 / 3.6 V (RCA/TI limits as printed by UTC CD40106, [utc40106])
-    assert body["thresholds"]["vt_plus"] == {"min": 2.2, "typ": 2.9, "max": 3.6}
-    rc = body["r"] * body["c"]
-    assert body["rising"]["typ"] == pytest.approx(rc * math.log(5 / (5 - 2.9)), rel=1e-12)
-    assert body["rising"]["min"] == pytest.approx(rc * math.log(5 / (5 - 2.2)), rel=1e-12)
+    assert body["thresholds_v"]["vt_plus"] == {"min": 2.2, "typ": 2.9, "max": 3.6}
+    rc = body["r_ohm"] * body["c_farad"]
+    assert body["rising_s"]["typ"] == pytest.approx(rc * math.log(5 / (5 - 2.9)), rel=1e-12)
+    assert body["rising_s"]["min"] == pytest.approx(rc * math.log(5 / (5 - 2.2)), rel=1e-12)
     # the adc bin's values (inventory/bins/adc_staircase.yaml)
-    assert body["r"] in (1e3, 4.7e3, 10e3, 47e3, 100e3)
-    assert body["c"] in (100e-12, 1e-9, 2.2e-9, 4.7e-9, 10e-9, 100e-9)
+    assert body["r_ohm"] in (1e3, 4.7e3, 10e3, 47e3, 100e3)
+    assert body["c_farad"] in (100e-12, 1e-9, 2.2e-9, 4.7e-9, 10e-9, 100e-9)
 
 
 def test_delay_plain_text_names_the_values(capsys):

@@ -101,8 +101,8 @@ def test_example_json_and_wiring_carry_the_oscillator(example, tmp_path):
 
     doc = plan_to_json(example.plan)
     osc = doc["oscillator"]
-    assert (osc["part"], osc["R"], osc["C"], osc["new_chip"]) == ("40106", 47e3, 2.2e-9, True)
-    assert osc["f_min"] < osc["f_nom"] < osc["f_max"] and osc["tolerance"] == 0.1
+    assert (osc["part"], osc["r_ohm"], osc["c_farad"], osc["new_chip"]) == ("40106", 47e3, 2.2e-9, True)
+    assert osc["min_hz"] < osc["nominal_hz"] < osc["max_hz"] and osc["tolerance"] == 0.1
     refs = {p["ref"] for w in doc["wires"] for p in w["pins"]}
     assert {"R1", "C1"} <= refs
     text = wiring_markdown(example.plan)
@@ -201,7 +201,7 @@ def test_without_a_tolerance_the_closest_pair_is_built_with_a_warning(tmp_path, 
     assert main(["plan", str(spec), "--bin", str(stock), "--json", "-", "--lacks", "0"]) == 0
     data = json.loads(capsys.readouterr().out)
     osc = data["oscillator"]
-    assert osc["f_nom"] == pytest.approx(1 / (10e3 * 10e-9 * 0.812322), rel=1e-4)
+    assert osc["nominal_hz"] == pytest.approx(1 / (10e3 * 10e-9 * 0.812322), rel=1e-4)
     assert any("built with the closest pair anyway" in w and "41 nF" in w for w in osc["warnings"])
 
 

@@ -280,7 +280,7 @@ def test_decode_command_json(tmp_path, capsys):
     doc = json.loads(capsys.readouterr().out)
     assert doc["clock_edge"] == "falling"        # [isl4040]: negative clock transition
     assert doc["counter"]["chips"][0]["part"] == "4040"
-    assert [v["pin"] for v in doc["counter"]["vars"][:4]] == [9, 7, 6, 5]   # [isl4040] Q1-Q4
+    assert [v["pin"] for v in doc["counter"]["variables"][:4]] == [9, 7, 6, 5]   # [isl4040] Q1-Q4
     strobe = doc["signals"]["strobe"]
     assert strobe["expression"] == "Q4·Q3·Q2·Q1" and strobe["literals"] == 4
     assert strobe["delivered"][:2] == [[15, 16], [31, 32]]

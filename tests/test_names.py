@@ -12,6 +12,7 @@ from __future__ import annotations
 import contextlib
 import io
 import json
+import re
 import textwrap
 import threading
 import tomllib
@@ -163,7 +164,28 @@ RETIRED = {
     "espresso": "the name of an existing minimizer program (the method is named in docs only)",
     "pyeda": "a library name, not a label",
     "either-polarity": "the spec's word is 'free' (--free-polarity)",
+    "minterm": "the glitch table and remedies say 'count 28'",
+    "transport_typ": "an internal analysis id: the output says 'typical delays'",
+    "transport_max": "an internal analysis id: the output says 'worst case delays'",
+    "inertial_typ": "an internal analysis id: the output says 'short pulses swallowed'",
+    "spare input (input": "a spare input is named by chip and pin ('U5 pin 11')",
+    "pair(s)": "counted nouns agree with their number",
+    "[structure selection": "the first line says '4 logic chips: best found, at least 3 needed'",
 }
+"""Case-insensitive text no output may contain (why, beside each)."""
+
+RETIRED_KEYS = {
+    "supply": "supply_v (a number names its unit)",
+    "vars": "variables (words spelled out, as the plan JSON has it)",
+    "levels": "staircases (the spec's word), levels_v inside a staircase",
+    "R": "r_ohm", "C": "c_farad", "2R": "r2_ohm", "Rs": "rs_ohm",
+    "f_wanted": "wanted_hz", "f_nom": "nominal_hz", "f_min": "min_hz", "f_max": "max_hz",
+    "load_ohms": "load_ohm", "driver_resistance": "driver_resistance_ohm",
+    "thresholds": "thresholds_v", "r_on": "r_on_ohm", "delay_typ": "delay_typ_s",
+}
+"""JSON keys of an earlier style (docs/reading-a-plan.md, "Key style"), each with its successor."""
+
+PLAN_FILES = ("json", "wiring", "verilog", "vcd", "svg", "spice", "report")
 
 
 @pytest.fixture(scope="module")
@@ -181,11 +203,13 @@ def shipped_outputs(tmp_path_factory) -> dict[str, str]:
 
     for name in EXAMPLES:
         spec, stock = str(example_path(f"{name}.yaml")), str(data_path("bins", f"{name}.yaml"))
-        plan_json = out / f"{name}.json"
-        run(f"plan {name}", ["plan", spec, "--bin", stock, "--lacks", "0", "--json", str(plan_json)],
+        files = {kind: out / f"{name}.{kind}" for kind in PLAN_FILES}
+        run(f"plan {name}", ["plan", spec, "--bin", stock, "--lacks", "0",
+                             *[arg for kind, path in files.items() for arg in (f"--{kind}", str(path))]],
             codes=(0, 3, 4))     # a bin that is short still prints what it says
-        if plan_json.exists():
-            texts[f"plan {name} json"] = plan_json.read_text()
+        for kind, path in files.items():
+            if path.exists():
+                texts[f"plan {name} {kind}"] = path.read_text(encoding="utf-8")
         run(f"decode {name}", ["decode", spec, "--bin", stock])
         run(f"decode {name} json", ["decode", spec, "--bin", stock, "--json"])
         run(f"bin {name}", ["bin", stock])
@@ -193,15 +217,100 @@ def shipped_outputs(tmp_path_factory) -> dict[str, str]:
     run("substitute", ["substitute", "nand4", "--bin", sample, "--limit", "1"])
     run("substitute json", ["substitute", "a & ~b", "--bin", sample, "--free-polarity", "--json"])
     run("delay", ["delay", "50us", "--bin", str(data_path("bins", "sample_hold.yaml"))])
+    run("delay json", ["delay", "50us", "--bin", str(data_path("bins", "adc_staircase.yaml")), "--json"])
     run("parts", ["parts", "4040"])
+    run("parts schmitt", ["parts", "4093"])
+    run("parts switch", ["parts", "4066"])
+    run("parts json", ["parts", "4093", "--json"])
     run("parts list", ["parts"])
+    run("bin json", ["bin", sample, "--json"])
     return texts
 
 
 @pytest.mark.parametrize("label", sorted(RETIRED))
 def test_no_output_carries_a_retired_label(shipped_outputs, label):
-    found = [key for key, text in shipped_outputs.items() if label in text.lower()]
+    found = [key for key, text in shipped_outputs.items() if label.lower() in text.lower()]
     assert not found, f"{label!r} ({RETIRED[label]}) printed by: {', '.join(found)}"
+
+
+def _keys(value, names_below: bool = False) -> set[str]:
+    """Every key of a JSON document, except the names a user or the catalog chose
+    (signals, switches, staircases, nets, refs, pins, parts) -- those are data, not keys."""
+    found: set[str] = set()
+    if isinstance(value, dict):
+        for key, item in value.items():
+            if not names_below:
+                found.add(key)
+            found |= _keys(item, key in NAMED_BY_DATA)
+    elif isinstance(value, list):
+        for item in value:
+            found |= _keys(item)
+    return found
+
+
+NAMED_BY_DATA = {"signals", "switches", "staircases", "nets_external", "pin_notes", "units", "pins",
+                 "rails", "settle_ns", "logic_chips_by_part", "parts", "ties", "power", "thresholds_v",
+                 "r_on_ohm", "timing", "glitch_models", "glitches_by_model",
+                 "source"}   # parts --json: which catalog section each source backs
+
+
+def test_no_json_output_uses_a_key_of_the_earlier_style(shipped_outputs):
+    """Plan, decode, delay, parts and bin JSON keep one key style (docs/reading-a-plan.md)."""
+    docs = {key: json.loads(text) for key, text in shipped_outputs.items()
+            if key.endswith("json") and text.lstrip().startswith(("{", "["))}
+    assert {"plan sample_hold json", "decode sample_hold json", "delay json", "parts json", "bin json"} <= set(docs)
+    for key, doc in docs.items():
+        old = _keys(doc) & set(RETIRED_KEYS)
+        assert not old, f"{key}: {', '.join(f'{k} (now {RETIRED_KEYS[k]})' for k in sorted(old))}"
+    plan = docs["plan sample_hold json"]
+    assert plan["supply_v"] == 5.0 and "staircases" in plan and "variables" in plan["counter"]
+    assert json.loads(shipped_outputs["decode sample_hold json"])["format"] == "binsynth-decode/2"
+
+
+def test_the_first_line_says_the_logic_chips_in_plain_words(shipped_outputs):
+    """'4 logic chips: best found, at least 3 needed' -- the same words in the JSON reason."""
+    for name in EXAMPLES:
+        text, doc = shipped_outputs[f"plan {name}"], json.loads(shipped_outputs[f"plan {name} json"])
+        first = text.splitlines()[0]
+        logic = sum(1 for chip in doc["chips"] if chip["role"] == "logic")
+        assert doc["reason"].startswith(f"{logic} logic chip{'' if logic == 1 else 's'}: "), doc["reason"]
+        assert f"; {doc['reason']}; " in first, first
+        assert re.search(r": (proven minimum|best found)(, at least \d+ needed)?", doc["reason"])
+
+
+def test_glitch_table_names_each_analysis_in_plain_words(shipped_outputs):
+    doc = json.loads(shipped_outputs["plan sample_hold json"])
+    assert set(doc["glitch_models"]) == {"typical_delays", "worst_case_delays", "short_pulses_swallowed",
+                                         "count_states"}
+    assert {m for g in doc["glitches"] for m in g["models"]} <= set(doc["glitch_models"])
+    table = shipped_outputs["plan sample_hold"].split("found by", 1)[1].split("\n\n", 1)[0]
+    assert "count states, typical delays, worst case delays" in table
+
+
+def test_oscillator_is_named_only_in_a_plan_that_has_one(shipped_outputs):
+    for name in EXAMPLES:
+        has = json.loads(shipped_outputs[f"plan {name} json"])["oscillator"] is not None
+        for kind in ("", " wiring", " spice"):
+            text = shipped_outputs[f"plan {name}{kind}"].lower()
+            assert ("oscillator" in text) == has, (name, kind)
+
+
+def test_the_spare_input_is_named_by_chip_and_pin(shipped_outputs):
+    """U5 is a 4078 (8-input NOR/OR): its gate's inputs A-H, pin 11 is G, pin 7 is VSS
+    (TI CD4078B pinout, from memory; the catalog's pin table says the same)."""
+    text = shipped_outputs["plan sample_hold"]
+    assert "wire U5 pin 11 (G, a spare input of U5 gate A) to CLK" in text
+
+
+def test_a_note_explains_a_delivered_level_the_decode_shows_otherwise(shipped_outputs):
+    """sample_hold's track has polarity: free; the decode's cheapest cover is its low form,
+    the plan delivers it high: the plan says why, once."""
+    decode = shipped_outputs["decode sample_hold"]
+    plan = shipped_outputs["plan sample_hold"]
+    assert re.search(r"^track\s+low\s", decode, re.M) and re.search(r"^track\s+high\s", plan, re.M)
+    assert plan.count("note: track is delivered active high, while 'binsynth decode' shows it active low: "
+                      "its polarity is free in the spec") == 1
+    assert "note: convert is delivered" not in plan      # same level in both: no note
 
 
 def test_cover_method_is_in_plain_words(shipped_outputs):

@@ -656,10 +656,10 @@ BAD_SPECS = [
      8, "switches.p: unknown key 'of'", "did you mean"),
     ("overlapping windows",
      "cycle: 16\nsignals:\n  a:\n    high:\n      - [0, 8]\n      - [4, 12]\n",
-     6, "signals.a.high: windows [0, 8] and [4, 12] overlap at ticks 4..7", "merge"),
+     6, "signals.a.high: windows [0, 8] and [4, 12] overlap at ticks 4-7", "merge"),   # inclusive: 4, 5, 6, 7
     ("overlapping bare tick",
      "cycle: 16\nsignals:\n  a:\n    high:\n      - 5\n      - [4, 12]\n",
-     6, "windows [4, 12] and [5, 6] overlap at ticks 5..5", None),   # the later line
+     6, "windows [4, 12] and [5, 6] overlap at tick 5", None),   # the later line
     ("window past the cycle",
      "cycle: 16\nsignals:\n  a: {high: [[10, 17]]}\n",
      3, "window [10, 17] goes past the cycle of 16 ticks", "<= 16"),

@@ -125,7 +125,7 @@ def test_example_wiring_list_has_every_ladder_resistor_with_both_ends(example):
         assert pins.count((ref, 1)) == 1 and pins.count((ref, 2)) == 1
     # counter Q pin -> leg resistor -> node: tick bit 2 drives R3 from U1 pin 6 (Q3)
     assert "- [ ] U1 pin 6 (Q3) -> R3 end 1 (100 kΩ) [net Q3]" in text
-    assert doc["levels"]["ramp"]["routed_by"] == ["adc_in"]
+    assert doc["staircases"]["ramp"]["routed_by"] == ["adc_in"]
     json.dumps(doc)                                         # plain JSON all the way down
 
 

@@ -76,7 +76,7 @@ def test_a_planned_json_says_what_is_known_about_the_minimum(tmp_path, capsys):
     doc = json.loads(capsys.readouterr().out)
     assert doc["verdict"] == "planned" and doc["short"] == []
     # one 4-input AND of one 4082 is the only gate needed: one chip, proven by counting
-    assert doc["reason"] == "proven minimum"
+    assert doc["reason"] == "1 logic chip: proven minimum"
 
 
 def test_effort_names_are_checked(tmp_path, capsys):

@@ -22,6 +22,10 @@ NAME = "decode"
 HELP = ("show the counter chips and stages chosen for a spec, and each signal's minimized decode "
         "in counter-pin names")
 
+DECODE_FORMAT = "binsynth-decode/2"
+"""/2: ``counter.vars`` became ``counter.variables`` (the plan JSON's word); the key
+style is the plan JSON's (docs/reading-a-plan.md, "Key style")."""
+
 STRIP_WIDTH = 64
 HIGH, LOW, MIXED = "‾", "_", "|"
 
@@ -193,7 +197,7 @@ def decode_json(spec, stock, decode) -> dict:
     plan, cover = decode.plan, decode.cover
     reset = plan.reset
     return {
-        "format": "binsynth-decode/1",
+        "format": DECODE_FORMAT,
         "name": spec.name,
         "spec": str(spec.path),
         "bin": stock.path,
@@ -207,7 +211,7 @@ def decode_json(spec, stock, decode) -> dict:
                        "reset_net": c.reset_net, "enable_pin": c.enable_pin, "enable_net": c.enable_net,
                        "ties": {str(p): v for p, v in sorted(c.ties.items())}, "stages": list(c.stages),
                        "divisor": c.divisor, "how": c.how} for c in plan.chips],
-            "vars": [{"index": v.index, "net": v.net, "ref": plan.chips[v.chip].ref, "unit": v.unit,
+            "variables": [{"index": v.index, "net": v.net, "ref": plan.chips[v.chip].ref, "unit": v.unit,
                       "pin": v.pin, "pin_name": v.pin_name, "weight": v.weight} for v in plan.vars],
             "reset": None if reset is None else {
                 "state": reset.state, "net": reset.net, "active": reset.active,

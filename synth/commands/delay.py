@@ -159,9 +159,16 @@ def _row_text(row: dict) -> str:
 
 
 def delay_json(design, part_type, thresholds, wiring, warnings) -> dict:
-    """A JSON object for scripts (SI units: seconds, ohms, farads, volts)."""
-    body = asdict(design)
-    body.pop("warnings")
-    return {"format": "binsynth-delay/1", "receiver": part_type or "plain-input",
+    """A JSON object for scripts, in the plan JSON's key style: each number names its
+    unit (``_s``, ``_v``, ``_ohm``, ``_farad``).  /2: the keys of /1 gained their units."""
+    d = design
+    return {"format": "binsynth-delay/2", "receiver": part_type or "plain-input",
             "thresholds_method": thresholds.get("method"), "thresholds_note": thresholds.get("note"),
-            **body, "wiring": wiring, "warnings": warnings}
+            "wanted_s": d.wanted_s, "supply_v": d.supply, "edge": d.edge, "r_ohm": d.r, "c_farad": d.c,
+            "needed_c_farad": d.needed_c, "needed_r_ohm": d.needed_r, "delay_typ_s": d.delay_typ,
+            "error": d.error, "rising_s": asdict(d.rising), "falling_s": asdict(d.falling),
+            "thresholds_v": d.thresholds, "formula": d.formula, "formulas": dict(d.formulas),
+            "options": [{"r_ohm": o.r, "c_farad": o.c, "needed_c_farad": o.needed_c,
+                         "needed_r_ohm": o.needed_r, "error": o.error, "mid_range": o.mid_range}
+                        for o in d.options],
+            "plain_input": d.plain_input, "wiring": wiring, "warnings": warnings}

@@ -126,6 +126,22 @@ def describe_role(part, unit_id: str, role: str) -> str:
             "also": "second output"}.get(base, role)
 
 
+TIMING_WORDS = {
+    "tpd": "propagation delay, input to output",
+    "stage": "delay per counter stage",
+    "clock_to_q": "clock to output delay",
+    "clock_width": "shortest clock pulse",
+    "fmax_mhz": "fastest clock",
+    "setup": "setup time before the clock edge",
+    "hold": "hold time after the clock edge",
+    "reset": "reset to output delay",
+    "reset_width": "shortest reset pulse",
+    "select": "select to output delay",
+}
+"""The catalog's timing keys in the words the facts table prints (the keys stay in --json)."""
+THRESHOLD_WORDS = {"vt_plus": "VT+ (rising)", "vt_minus": "VT- (falling)"}
+
+
 def _facts(part) -> list[tuple]:
     rows = [("family", part.family), ("function", part.function),
             ("package", f"{part.package}-{part.pin_count}"),
@@ -137,13 +153,13 @@ def _facts(part) -> list[tuple]:
                 if isinstance(row, dict):
                     cells.append(f"{volts:g} V: " + " / ".join(f"{k} {v:g}" for k, v in row.items()))
             unit = "MHz" if key.endswith("mhz") else "ns"
-            rows.append((f"{key} ({unit})", "; ".join(cells)))
+            rows.append((f"{TIMING_WORDS.get(key, key.replace('_', ' '))} ({unit})", "; ".join(cells)))
     for volts, row in sorted(part.thresholds.items()):
-        text = "; ".join(f"{k} {v.get('min', '?')}/{v.get('typ', '?')}/{v.get('max', '?')} V"
-                         for k, v in row.items() if isinstance(v, dict))
-        rows.append((f"thresholds at {volts:g} V (min/typ/max)", text))
+        text = "; ".join(f"{THRESHOLD_WORDS.get(k, k)} {v.get('min', '?')}/{v.get('typ', '?')}/"
+                         f"{v.get('max', '?')} V" for k, v in row.items() if isinstance(v, dict))
+        rows.append((f"Schmitt thresholds at {volts:g} V (min/typ/max)", text))
     for volts, row in sorted(part.r_on.items()):
-        rows.append((f"R_on at {volts:g} V (ohm)", " / ".join(f"{k} {v}" for k, v in row.items())))
+        rows.append((f"switch on-resistance at {volts:g} V", " / ".join(f"{k} {v} Ω" for k, v in row.items())))
     for key, text in part.source.items():
         rows.append((f"source: {key}", text))
     if part.notes:
@@ -163,11 +179,11 @@ def part_json(part) -> dict:
     return {"type": part.type, "family": part.family, "function": part.function,
             "category": part.category, "package": part.package, "pin_count": part.pin_count,
             "pins": {str(k): v for k, v in sorted(part.pins.items())},
-            "power": part.power, "supply": {"min": part.supply[0], "max": part.supply[1]},
+            "power": part.power, "supply_v": {"min": part.supply[0], "max": part.supply[1]},
             "units": [{"id": u.id, "type": u.type, **{k: v for k, v in u.fields.items()
                                                       if k not in ("id", "type")}} for u in part.units],
             "timing": {k: ({str(v): r for v, r in t.items()} if isinstance(t, dict) else t)
                        for k, t in part.timing.items()},
-            "thresholds": {str(v): r for v, r in part.thresholds.items()},
-            "r_on": {str(v): r for v, r in part.r_on.items()},
+            "thresholds_v": {str(v): r for v, r in part.thresholds.items()},
+            "r_on_ohm": {str(v): r for v, r in part.r_on.items()},
             "source": part.source}

@@ -19,7 +19,9 @@ from pathlib import Path
 from ..bintake import take_from_bin
 from ..errors import NotFoundError, ShortError, UsageError
 from ..exports import EXPORTERS, Exporter, Output, OutputTransaction, check_outputs
+from ..exports.plan_json import verdict_reason
 from ..limits import check_seconds, os_reason
+from ..timing import MODEL_NAMES
 
 NAME = "plan"
 HELP = "plan the circuit for a spec from the chips in a bin: chips, pins, wiring list and checks"
@@ -155,20 +157,20 @@ def _gate_count(plan) -> int:
 
 
 def summary_text(design) -> str:
+    """The plan's first line: chips by role, gates, and the logic chip count in plain words."""
     plan = design.plan
     roles = {}
     for chip in plan.chips:
         roles[chip.role] = roles.get(chip.role, 0) + 1
     parts = ", ".join(f"{n} {role}" for role, n in sorted(roles.items()))
-    from ..exports.plan_json import verdict_reason
-
-    if not plan.proven_minimal and plan.lower_bound is not None and plan.lower_bound == roles.get("logic"):
-        proof = "proven minimum (the lower bound is met), gates best found"
-    else:
-        proof = verdict_reason(plan)
-    return (f"plan {plan.name}: {len(plan.chips)} chips ({parts}), {_gate_count(plan)} gates, "
-            f"logic chips: {proof} [{plan.method}]; supply {plan.supply:g} V, "
+    gates = _gate_count(plan)
+    return (f"plan {plan.name}: {_count(len(plan.chips), 'chip')} ({parts}), {_count(gates, 'gate')}; "
+            f"{verdict_reason(plan)}; supply {plan.supply:g} V, "
             f"counting on the {plan.clock_edge} edge of CLK")
+
+
+def _count(n: int, noun: str) -> str:
+    return f"{n} {noun}{'' if n == 1 else 's'}"
 
 
 def bin_rows(design) -> list[tuple]:
@@ -198,6 +200,31 @@ def signal_rows(design) -> list[tuple]:
     return rows
 
 
+def polarity_notes(design) -> list[str]:
+    """A note for each signal the plan delivers at another level than ``binsynth decode``
+    shows, saying why, so the two printouts do not seem to disagree."""
+    plan, decode = design.plan, design.decode
+    spec_signals = getattr(getattr(design, "spec", None), "signals", {}) or {}
+    notes = []
+    for name, info in plan.signals.items():
+        shown = getattr(decode.signals.get(name), "polarity", None)
+        delivered = info.get("polarity")
+        if shown is None or delivered is None or shown == delivered:
+            continue
+        if getattr(spec_signals.get(name), "polarity", None) == "free":
+            drives = [s for s, sw in plan.switches.items() if sw.get("select") == name]
+            wired = f"; switch {', '.join(drives)} is wired to match" if drives else ""
+            notes.append(f"note: {name} is delivered active {delivered}, while 'binsynth decode' shows it "
+                         f"active {shown}: its polarity is free in the spec, the decode picks the level with "
+                         f"the fewest terms and literals, the plan the level the bin's gates build with the "
+                         f"fewest chips, then gates{wired}")
+        else:
+            notes.append(f"note: {name} is delivered active {delivered}, as the spec asks, while "
+                         f"'binsynth decode' shows the cover of its active-{shown} form; the last gate "
+                         "inverts it")
+    return notes
+
+
 def _asserted_expression(signal) -> str:
     """The decode as the function that is true while the signal is asserted."""
     if signal.phase == "true":
@@ -215,6 +242,7 @@ def plan_blocks(design) -> list:
               Table("taken from the bin", ("part", "used", "on hand", "left"), bin_rows(design)),
               Table("signals", ("signal", "delivered active", "from", "asserted when (counter pins)"),
                     signal_rows(design))]
+    blocks += [Text(line) for line in polarity_notes(design)]
     for name, sw in plan.switches.items():
         blocks.append(Text(f"switch {name}: {sw.get('ref')} section {sw.get('unit', '?')}; common joins "
                            f"{sw.get('when_control_high')} while its control is high"))
@@ -241,7 +269,7 @@ def plan_blocks(design) -> list:
                             ("signals", "tick"), [(" & ".join(e["signals"]), e["at_tick"]) for e in races]))
     others = len(plan.coincident_edges) - len(races)
     if others:
-        blocks.append(Text(f"{others} pair(s) of outputs switch on the same clock edge without one gating "
+        blocks.append(Text(f"{_count(others, 'pair')} of outputs switch on the same clock edge without one gating "
                            "the other (complementary or independent): no race on this board; see "
                            "coincident_edges in the plan JSON"))
     for remedy in remedy_lines(design):
@@ -266,9 +294,9 @@ def glitch_rows(plan) -> list[tuple]:
         groups.setdefault((g.get("signal"), g.get("mechanism", "")), []).append(g)
     rows = []
     for (signal, _), items in groups.items():
-        ticks = " ".join(str(g.get("at_tick")) for g in sorted(items, key=lambda g: g.get("at_tick")))
+        ticks = ", ".join(str(g.get("at_tick")) for g in sorted(items, key=lambda g: g.get("at_tick")))
         widest = max(float(g.get("width_max_ns") or g.get("width_ns") or 0) for g in items)
-        models = sorted({m for g in items for m in g.get("models", ())})
+        models = sorted({MODEL_NAMES.get(m, m).replace("_", " ") for g in items for m in g.get("models", ())})
         rows.append((signal, ticks, round(widest, 1), ", ".join(models), items[0].get("cause", "")))
     return rows
 

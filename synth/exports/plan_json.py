@@ -1,19 +1,25 @@
 """The plan as JSON (``--json``): formats.md section 3, format ``binsynth-plan/2``.
 
-Interface: ``FORMAT``; ``verdict_reason(plan) -> str`` ("proven minimum" or
-"best found, at least N logic chips needed"); ``failure_to_json(error) ->
+Interface: ``FORMAT``; ``verdict_reason(plan) -> str`` ("2 logic chips: proven
+minimum" or "4 logic chips: best found, at least 3 needed"; also the plan's first line); ``failure_to_json(error) ->
 dict`` and ``write_failure_json(error, path)`` (the file written when no plan
 was made: ``verdict`` impossible or not_found, ``reason``, ``short``);
 ``plan_to_json(plan) -> dict`` (``verdict`` planned, ``reason``, ``short``
 empty, every key of the
-contract, plus ``proven_minimal``, ``lower_bound``, ``method``, ``supply``,
+contract, plus ``proven_minimal``, ``lower_bound``, ``method``, ``supply_v``,
 ``decoupling``, ``cautions``, ``counter``, ``nets_external``, per-chip pin
 notes, ``passives`` (every resistor and capacitor: ref, value, the net at
 each end; their ends appear in ``wires`` as pins 1 and 2 of refs R1, C1 ...),
 ``oscillator`` (null unless ``clock.source: oscillator``), ``power_on_reset``
-(null unless the spec asks for one), ``levels`` (one entry per staircase) and ``breadboard`` (where
+(null unless the spec asks for one), ``staircases`` (one entry per staircase) and ``breadboard`` (where
 each chip, part, jumper and outside lead goes on a solderless board, ``synth.breadboard``));
 ``plan_to_text(plan) -> str``; ``write_json(plan, path)`` (atomic).
+
+Key style (docs/reading-a-plan.md, "Key style"): snake_case words spelled out
+(``variables``, not ``vars``); a number with a physical unit names the unit
+as its last word (``supply_v``, ``width_ns``, ``r_ohm``, ``wanted_hz``); a
+text value that spells its unit (``"10 kΩ"``) has no suffix; analyses and
+kinds are plain words of ours (``typical_delays``), not internal ids.
 """
 
 from __future__ import annotations
@@ -25,6 +31,7 @@ from typing import Any
 
 from ..breadboard import plan_breadboard
 from ..netlist import Plan, ref_key, verilog_module_name
+from ..timing import MODEL_NAMES, MODEL_TEXT, MODELS
 from .files import atomic_write_text
 
 FORMAT = "binsynth-plan/2"
@@ -83,27 +90,38 @@ def _decoupling(plan: Plan) -> list[dict]:
 
 def _glitch_models() -> dict:
     """What each name in a glitch record's ``models`` list means."""
-    from ..timing import MODEL_TEXT
+    return {MODEL_NAMES[model]: text for model, text in MODEL_TEXT.items()}
 
-    return dict(MODEL_TEXT)
+
+def _glitches(glitches) -> list[dict]:
+    """Glitch records with each analysis under its plain name (``typical_delays`` ...)."""
+    return [{**g, "models": [MODEL_NAMES.get(m, m) for m in g["models"]]} if "models" in g else g
+            for g in _plain(list(glitches))]
 
 
 def _glitches_by_model(glitches) -> dict:
-    """Model -> the (signal, at_tick) entries it found, so each analysis can be compared alone."""
-    from ..timing import MODELS
-
-    return {model: [[g["signal"], g["at_tick"]] for g in glitches if model in g.get("models", ())]
+    """Analysis -> the (signal, at_tick) entries it found, so each can be compared alone."""
+    return {MODEL_NAMES[model]: [[g["signal"], g["at_tick"]] for g in glitches
+                                 if MODEL_NAMES[model] in g.get("models", ())]
             for model in MODELS}
 
 
+def logic_chip_count(plan: Plan) -> int:
+    return sum(1 for chip in plan.chips if chip.role == "logic")
+
+
 def verdict_reason(plan: Plan) -> str:
-    """What is known about the plan's logic chips: the minimum, or a bound."""
+    """The plan's logic chips and what is known about their number, in plain words:
+    ``4 logic chips: best found, at least 3 needed`` or ``2 logic chips: proven minimum``."""
+    count = logic_chip_count(plan)
+    head = f"{count} logic chip{'' if count == 1 else 's'}"
     if plan.proven_minimal:
-        return "proven minimum"
+        return f"{head}: proven minimum"
+    if plan.lower_bound is not None and plan.lower_bound == count:
+        return f"{head}: proven minimum (the lower bound is met); gates best found"
     if plan.lower_bound is not None:
-        chips = "chip" if plan.lower_bound == 1 else "chips"
-        return f"best found, at least {plan.lower_bound} logic {chips} needed"
-    return "best found"
+        return f"{head}: best found, at least {plan.lower_bound} needed"
+    return f"{head}: best found"
 
 
 def failure_to_json(error) -> dict:
@@ -137,9 +155,9 @@ def plan_to_json(plan: Plan) -> dict:
                    "units": dict(c.units_used),
                    "pin_notes": {str(pin): note for pin, note in c.notes.items()}} for c in chips],
         "wires": [{"net": net, "pins": [_endpoint(p) for p in pins]} for net, pins in plan.nets.items()],
-        "glitches": _plain(list(plan.glitches)),
+        "glitches": _glitches(plan.glitches),
         "glitch_models": _glitch_models(),
-        "glitches_by_model": _glitches_by_model(_plain(list(plan.glitches))),
+        "glitches_by_model": _glitches_by_model(_glitches(plan.glitches)),
         "coincident_edges": _plain(list(plan.coincident_edges)),
         "timing_fixes": _plain(list(getattr(plan, "timing_fixes", None) or [])),
         "clock_gated": _plain(dict(getattr(plan, "strobed", None) or {})),
@@ -148,7 +166,7 @@ def plan_to_json(plan: Plan) -> dict:
         "register_checks": _plain(list(getattr(plan, "register_checks", None) or [])),
         "pulse_widths": _plain(list(getattr(plan, "pulse_widths", None) or [])),
         "warnings": list(plan.warnings),
-        "supply": plan.supply,
+        "supply_v": plan.supply,
         "spec": plan.spec_path,
         "bin": plan.bin_path,
         "proven_minimal": bool(plan.proven_minimal),
@@ -165,7 +183,7 @@ def plan_to_json(plan: Plan) -> dict:
         "oscillator": plan.oscillator.as_json() if plan.oscillator is not None else None,
         "power_on_reset": (plan.power_on_reset.as_json()
                            if getattr(plan, "power_on_reset", None) is not None else None),
-        "levels": {name: ladder.as_json() for name, ladder in plan.ladders.items()},
+        "staircases": {name: ladder.as_json() for name, ladder in plan.ladders.items()},
         "breadboard": plan_breadboard(plan),
     }
 

@@ -303,6 +303,11 @@ def _receiver_thresholds(catalog: Any, receiver: str, supply: float) -> tuple[fl
     return row["vt_plus"]["typ"], row["vt_minus"]["typ"]
 
 
+def _is_schmitt(catalog: Any, receiver: str | None) -> bool:
+    part = catalog.parts.get(receiver) if receiver and receiver != "plain-input" else None
+    return part is not None and bool(part.thresholds)
+
+
 def _delay(plan: Any, catalog: Any, index: int, offer: dict) -> _Section:
     supply = plan.supply
     r, c = float(offer["r_ohm"]), float(offer["c_farad"])
@@ -312,9 +317,11 @@ def _delay(plan: Any, catalog: Any, index: int, offer: dict) -> _Section:
     tag = f"d{index}"
     src, mid, out = f"{tag}_in", f"{tag}_node", f"{tag}_out"
     state = "applied" if offer.get("applied") else "offered"
+    receiver = offer.get("receiver")
+    into = (f"{receiver} input (VT+ {vtp:.4g} V, VT- {vtm:.4g} V typical)" if _is_schmitt(catalog, receiver)
+            else f"a plain CMOS input (modelled as switching at {vtp:.4g} V rising, {vtm:.4g} V falling)")
     lines = [f"* RC delay {state} on {offer['delayed']} ({offer.get('problem', '')}): stage 1's output "
-             f"(a step) -> R -> node, C to VSS, node -> {offer.get('receiver')} input "
-             f"(VT+ {vtp:.4g} V, VT- {vtm:.4g} V typical); stage 2's output inverts",
+             f"(a step) -> R -> node, C to VSS, node -> {into}; stage 2's output inverts",
              f"* binsynth: {offer.get('formula', '')}",
              f"V{tag} {src} 0 PULSE(0 {_num(supply)} {_num(start)} {_num(edge)} {_num(edge)} "
              f"{_num(width)} {_num(4 * width)})",
@@ -411,7 +418,7 @@ def plan_to_spice(plan: Any, catalog: Any, *, tick_ns: float | None = None) -> s
              "* to look: ngspice FILE, then 'plot v(clk)' (or any node named below)",
              f"VDD vdd 0 DC {_num(plan.supply)}"]
     if not sections:
-        lines += ["* this plan has no oscillator, power-on reset, staircase or RC delay",
+        lines += ["* this plan has no resistors or capacitors to simulate (its logic is in the Verilog export)",
                   "RIDLE vdd 0 1e6", ".tran 1e-6 1e-5", ".end"]
         return "\n".join(lines) + "\n"
     for section in sections:

@@ -73,12 +73,29 @@ def _parts(plan: Plan) -> list[str]:
     lines.append(f"| 100 nF ceramic capacitor | {len(plan.decoupling)} | decoupling, one per chip "
                  "across its supply pins (common practice) |")
     values: dict[tuple[str, str], int] = {}
+    uses: dict[tuple[str, str], set[str]] = {}
+    section = _passive_sections(plan)
     for item in plan.passives:
         key = (item.kind, item.label())
         values[key] = values.get(key, 0) + 1
+        uses.setdefault(key, set()).add(section.get(item.ref, item.purpose))
     for (kind, label), count in sorted(values.items()):
-        lines.append(f"| {label} {kind} | {count} | oscillator and staircase parts (below) |")
+        lines.append(f"| {label} {kind} | {count} | {', '.join(sorted(uses[(kind, label)]))} (below) |")
     return lines + [""]
+
+
+def _passive_sections(plan: Plan) -> dict[str, str]:
+    """Resistor/capacitor ref -> the part of the plan it belongs to: only what the plan has
+    (no "oscillator" on a plan without one)."""
+    found: dict[str, str] = {}
+    if plan.oscillator is not None:
+        found.update({ref: "clock oscillator" for ref in plan.oscillator.passives})
+    reset = getattr(plan, "power_on_reset", None)
+    if reset is not None:
+        found.update({ref: "power-on reset" for ref in reset.passives})
+    for name, ladder in plan.ladders.items():
+        found.update({ref: f"staircase {name}" for ref in ladder.passives})
+    return found
 
 
 def _analog(plan: Plan) -> list[str]:
