@@ -1425,8 +1425,10 @@ def spare_input_place(plan: Any, gate: Gate, index: int) -> str:
         unit_id = next((u for u, purpose in (chip.units_used or {}).items() if str(purpose) == gate.id), None)
         if unit_id is None:
             continue
-        part = plan.parts[chip.part]
-        unit = next(u for u in part.units if u.id == unit_id)
+        part = (getattr(plan, "parts", None) or {}).get(chip.part)
+        unit = next((u for u in part.units if u.id == unit_id), None) if part is not None else None
+        if unit is None:
+            return f"a spare input of {chip.ref} gate {unit_id}"
         pin = unit_logic_pins(unit)[0][index]
         return f"{chip.ref} pin {pin} ({part.pins.get(pin, '?')}, a spare input of {chip.ref} gate {unit_id})"
     return f"a spare input of gate {gate.id}"

@@ -58,7 +58,7 @@ def test_zero_decode_spikes_on_the_entries_to_2_4_8(fixed):
     before, _ = fixed
     assert _ticks(before) == ZERO_SPIKES
     by_model = plan_to_json(before.plan)["glitches_by_model"]
-    assert by_model["states"] == [["zero", t] for t in ZERO_SPIKES]
+    assert by_model["count_states"] == [["zero", t] for t in ZERO_SPIKES]
     for g in before.plan.glitches:
         assert g["mechanism"] == "transient_state" and g["transient_state"] == 0
         assert "states" in g["models"] and "transport_typ" in g["models"]

@@ -267,11 +267,20 @@ class Stock:
     parts: dict
 
 
+@dataclass
+class _Chip:
+    ref: str
+    part: str
+    units_used: dict
+
+
 class _Plan:
-    def __init__(self, cp, net, switches=None):
+    def __init__(self, cp, net, switches=None, catalog=None):
         self.counter, self.network = cp, net
         self.signals = {n: {"net": s.net, "polarity": s.polarity} for n, s in net.signals.items()}
-        self.chips = []
+        # each gate on unit A of its own chip U2, U3 ... (as packing would place it)
+        self.chips = [_Chip(f"U{i}", g.part, {"A": g.id}) for i, g in enumerate(net.gates, start=2)]
+        self.parts = {g.part: catalog.parts[g.part] for g in net.gates} if catalog else {}
         self.switches = switches or {}
         self.clock_edge = cp.edge
 
@@ -297,12 +306,17 @@ def test_clock_gating_remedy_needs_a_spare_input_of_the_right_kind(catalog):
     # falling-edge counter settles), holding an active-high output inactive.
     gate = Gate("g1", "4073", "and", ("Q1", "Q3", "VDD"), ("y",))
     cp, net, found = _zero_glitch(catalog, Gate("n", "4025", "nor", ("Q1", "Q3", "VSS"), ("y",)))
-    plan = _Plan(cp, Network([gate], {"y": SignalOut("y", "high")}, ()))
+    # The spare input is named by chip and package pin: the 4073's gate A has inputs on
+    # pins 3, 4, 5 (1A, 1B, 1C), the 4025's gate A on pins 1, 2, 8 (1A, 1B, 1C), so the
+    # third input of the NOR is pin 8, not pin 3 (TI CD4073B / CD4025B pinouts, from memory;
+    # the catalog's pin tables say the same).
+    plan = _Plan(cp, Network([gate], {"y": SignalOut("y", "high")}, ()), catalog=catalog)
     text = timing.remedies(found[4], plan)
-    assert any("spare input (input 3) to CLK;" in r for r in text)
+    assert any("wire U2 pin 5 (1C, a spare input of U2 gate A) to CLK;" in r for r in text)
     # A NOR forces its output low with a high input: that needs the clock inverted.
-    nor_text = timing.remedies(found[4], _Plan(cp, net))
-    assert any("spare input (input 3) to CLK through a spare inverter" in r for r in nor_text)
+    nor_text = timing.remedies(found[4], _Plan(cp, net, catalog=catalog))
+    assert any("wire U2 pin 8 (1C, a spare input of U2 gate A) to CLK through a spare inverter" in r
+               for r in nor_text)
     # A NAND forces its output high: no use for an active-high signal.
     nand = Gate("g1", "4023", "nand", ("Q1", "Q3", "VDD"), ("y",))
     nand_plan = _Plan(cp, Network([nand], {"y": SignalOut("y", "high")}, ()))

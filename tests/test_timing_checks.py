@@ -81,7 +81,7 @@ def test_one_glitch_line_per_signal_and_cause():
         {"signal": "f", "at_tick": t, "width_ns": 10.0 * t, "mechanism": "transient_state",
          "models": ["states"], "cause": f"count {t - 1}->{t}"} for t in (2, 4, 8)]
     rows = glitch_rows(plan)
-    assert rows == [("f", "2 4 8", 80.0, "states", "count 1->2")]
+    assert rows == [("f", "2, 4, 8", 80.0, "count states", "count 1->2")]   # the analysis in plain words
     design = type("D", (), {})()
     design.remedies = {"by_glitch": {("f", 2): ["gate it", "note: x"], ("f", 4): ["gate it", "note: x"]}}
     assert remedy_lines(design) == ["f (ticks 2, 4): gate it"]
