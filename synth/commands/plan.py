@@ -326,9 +326,9 @@ def _fix_blocks(plan) -> list:
         blocks.append(Table(f"glitch fixes (--fix glitches{asked}; glitches re-analysed after the fix)",
                             ("signal", "fix applied", "cost", "glitch ticks before", "after", "how"),
                             [(r["signal"], " + ".join(r.get("remedies_applied") or ["note"]).replace("_", " "),
-                              f"+{r['cost']['chips']} chips, +{r['cost']['gates']} gates",
-                              " ".join(map(str, r["glitches_before"])),
-                              " ".join(map(str, r["glitches_after"])) or "none",
+                              f"+{_count(r['cost']['chips'], 'chip')}, +{_count(r['cost']['gates'], 'gate')}",
+                              ", ".join(map(str, r["glitches_before"])),
+                              ", ".join(map(str, r["glitches_after"])) or "none",
                               r["detail"] + ("".join(f"; {t['remedy'].replace('_', ' ')}: {t['result']}"
                                                      for t in r["tried"] if "not applicable" in t["result"])
                                              if not r["applied"] else ""))
