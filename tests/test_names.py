@@ -485,3 +485,14 @@ def test_vt_plus_is_named_only_for_a_schmitt_input(capsys):
     assert "rising  (0 → VDD/2):" in plain and "VT+" not in plain.split("warnings:")[0]
     assert main(["delay", "50us", "--bin", str(data_path("bins", "adc_staircase.yaml"))]) == 0
     assert "rising  (0 → VT+):" in capsys.readouterr().out
+
+
+def test_vt_plus_is_named_only_where_a_schmitt_input_is(shipped_outputs):
+    """sample_hold's offered RC delays feed a plain CMOS input (its bin has no Schmitt part):
+    no VT+ there, in the plan text or the SPICE deck; adc_staircase's oscillator is a 40106
+    Schmitt inverter, whose VT+ / VT- the 40106 datasheet prints (UTC CD40106, [utc40106])."""
+    for kind in ("", " spice", " wiring"):
+        assert "VT+" not in shipped_outputs[f"plan sample_hold{kind}"], kind
+    assert "a plain CMOS input (modelled as switching at" in shipped_outputs["plan sample_hold spice"]
+    assert "_plain_lo SW(" in shipped_outputs["plan sample_hold spice"]
+    assert "VT+" in shipped_outputs["plan adc_staircase"] and "VT+" in shipped_outputs["plan adc_staircase spice"]

@@ -318,8 +318,10 @@ def _delay(plan: Any, catalog: Any, index: int, offer: dict) -> _Section:
     src, mid, out = f"{tag}_in", f"{tag}_node", f"{tag}_out"
     state = "applied" if offer.get("applied") else "offered"
     receiver = offer.get("receiver")
-    into = (f"{receiver} input (VT+ {vtp:.4g} V, VT- {vtm:.4g} V typical)" if _is_schmitt(catalog, receiver)
+    schmitt = _is_schmitt(catalog, receiver)
+    into = (f"{receiver} input (VT+ {vtp:.4g} V, VT- {vtm:.4g} V typical)" if schmitt
             else f"a plain CMOS input (modelled as switching at {vtp:.4g} V rising, {vtm:.4g} V falling)")
+    model = f"{tag}_{'schmitt' if schmitt else 'plain'}"
     lines = [f"* RC delay {state} on {offer['delayed']} ({offer.get('problem', '')}): stage 1's output "
              f"(a step) -> R -> node, C to VSS, node -> {into}; stage 2's output inverts",
              f"* binsynth: {offer.get('formula', '')}",
@@ -327,8 +329,8 @@ def _delay(plan: Any, catalog: Any, index: int, offer: dict) -> _Section:
              f"{_num(width)} {_num(4 * width)})",
              f"R{tag} {src} {mid} {_num(r)}",
              f"C{tag} {mid} 0 {_num(c)} IC=0"]
-    lines += _inverter(tag.upper(), f"{tag}_schmitt", mid, out)
-    lines += _schmitt_models(f"{tag}_schmitt", vtp, vtm)
+    lines += _inverter(tag.upper(), model, mid, out)
+    lines += _schmitt_models(model, vtp, vtm)
     rising = rc * math.log(supply / (supply - vtp))
     falling = rc * math.log(supply / vtm)
     why = ("the RC time constant law t = RC ln((V_final - V_start) / (V_final - V_threshold)) "
