@@ -2,7 +2,8 @@
 
 Interface: ``Table(title, columns, rows)``, ``Text(body)``, ``show(blocks,
 stream=None)``, ``to_plain(blocks) -> str``, ``print_json(obj, stream=None)``,
-``progress(what, stream=None, after=PROGRESS_AFTER)`` (a context manager).
+``progress(what, stream=None, after=PROGRESS_AFTER)`` (a context manager),
+``counted(n, noun) -> str`` (``1 chip``, ``2 chips``: no ``chip(s)`` in output).
 
 Commands build a list of blocks and hand it to ``show``; they never decide
 how a terminal draws.  Plain text is what scripts, files and tests see.
@@ -82,6 +83,15 @@ def show(blocks: Sequence[Block], stream: IO[str] | None = None) -> None:
         else:
             console.print(RichText(block.body, style=block.style))
         console.print()
+
+
+def counted(n: int, noun: str) -> str:
+    """A count with its noun agreeing, for the nouns output counts (regular plurals only).
+
+    >>> counted(1, "chip"), counted(3, "pair"), counted(0, "gate")
+    ('1 chip', '3 pairs', '0 gates')
+    """
+    return f"{n} {noun}{'' if n == 1 else 's'}"
 
 
 def print_json(obj: object, stream: IO[str] | None = None) -> None:

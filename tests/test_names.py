@@ -169,7 +169,8 @@ RETIRED = {
     "transport_max": "an internal analysis id: the output says 'worst case delays'",
     "inertial_typ": "an internal analysis id: the output says 'short pulses swallowed'",
     "spare input (input": "a spare input is named by chip and pin ('U5 pin 11')",
-    "pair(s)": "counted nouns agree with their number",
+    "pair(s)": "counted nouns agree with their number (render.counted)",
+    "way(s)": "counted nouns agree with their number (render.counted)",
     "[structure selection": "the first line says '4 logic chips: best found, at least 3 needed'",
 }
 """Case-insensitive text no output may contain (why, beside each)."""

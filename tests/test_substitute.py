@@ -102,7 +102,7 @@ def test_text_output_draws_the_cascade(tmp_path, capsys):
     code = main(["substitute", "nand4", "--bin", write_bin(tmp_path, {"4011": 2})])
     out = capsys.readouterr().out
     assert code == 0
-    assert "way 1: 2 chip(s) (2 x 4011), 5 gate(s)" in out and "proven minimal" in out
+    assert "way 1: 2 chips (2 x 4011), 5 gates" in out and "proven minimal" in out
     assert "inputs joined or tied: inverts" in out and "pin 1  <= input a" in out
 
 

@@ -21,6 +21,7 @@ from ..errors import NotFoundError, ShortError, UsageError
 from ..exports import EXPORTERS, Exporter, Output, OutputTransaction, check_outputs
 from ..exports.plan_json import verdict_reason
 from ..limits import check_seconds, os_reason
+from ..render import counted
 from ..timing import MODEL_NAMES
 
 NAME = "plan"
@@ -164,13 +165,9 @@ def summary_text(design) -> str:
         roles[chip.role] = roles.get(chip.role, 0) + 1
     parts = ", ".join(f"{n} {role}" for role, n in sorted(roles.items()))
     gates = _gate_count(plan)
-    return (f"plan {plan.name}: {_count(len(plan.chips), 'chip')} ({parts}), {_count(gates, 'gate')}; "
+    return (f"plan {plan.name}: {counted(len(plan.chips), 'chip')} ({parts}), {counted(gates, 'gate')}; "
             f"{verdict_reason(plan)}; supply {plan.supply:g} V, "
             f"counting on the {plan.clock_edge} edge of CLK")
-
-
-def _count(n: int, noun: str) -> str:
-    return f"{n} {noun}{'' if n == 1 else 's'}"
 
 
 def bin_rows(design) -> list[tuple]:
@@ -269,7 +266,7 @@ def plan_blocks(design) -> list:
                             ("signals", "tick"), [(" & ".join(e["signals"]), e["at_tick"]) for e in races]))
     others = len(plan.coincident_edges) - len(races)
     if others:
-        blocks.append(Text(f"{_count(others, 'pair')} of outputs switch on the same clock edge without one gating "
+        blocks.append(Text(f"{counted(others, 'pair')} of outputs switch on the same clock edge without one gating "
                            "the other (complementary or independent): no race on this board; see "
                            "coincident_edges in the plan JSON"))
     for remedy in remedy_lines(design):
@@ -326,7 +323,7 @@ def _fix_blocks(plan) -> list:
         blocks.append(Table(f"glitch fixes (--fix glitches{asked}; glitches re-analysed after the fix)",
                             ("signal", "fix applied", "cost", "glitch ticks before", "after", "how"),
                             [(r["signal"], " + ".join(r.get("remedies_applied") or ["note"]).replace("_", " "),
-                              f"+{_count(r['cost']['chips'], 'chip')}, +{_count(r['cost']['gates'], 'gate')}",
+                              f"+{counted(r['cost']['chips'], 'chip')}, +{counted(r['cost']['gates'], 'gate')}",
                               ", ".join(map(str, r["glitches_before"])),
                               ", ".join(map(str, r["glitches_after"])) or "none",
                               r["detail"] + ("".join(f"; {t['remedy'].replace('_', ' ')}: {t['result']}"

@@ -15,7 +15,7 @@ from ..errors import UsageError
 from ..inventory import load_bin, load_catalog
 from ..limits import check_expression, check_supply
 from ..mapper import build_library
-from ..render import print_json, progress, show, Table, Text
+from ..render import counted, print_json, progress, show, Table, Text
 from ..substitute import draw_way, parse_target, substitute, way_json, wiring_rows
 from ..units import parse_quantity
 
@@ -75,13 +75,13 @@ def run(args: argparse.Namespace) -> int:
 def substitute_blocks(target, ways, bin_path: str) -> list:
 
     inputs = ", ".join(f"{name} = bit {i}" for i, name in enumerate(target.inputs))
-    blocks: list = [Text(f"{target.text} from {bin_path}: {len(ways)} way(s), cheapest first "
+    blocks: list = [Text(f"{target.text} from {bin_path}: {counted(len(ways), 'way')}, cheapest first "
                          f"(chips, then gates, then depth); inputs {inputs}")]
     for rank, way in enumerate(ways, start=1):
         parts = ", ".join(f"{n} x {p}" for p, n in sorted(way.network.chips.items())) or "none"
         proof = "proven minimal (chips, then gates)" if way.proven else \
             f"best found with {', '.join(way.parts_offered)}"
-        blocks.append(Text(f"way {rank}: {way.chip_count} chip(s) ({parts}), {way.gates} gate(s), "
+        blocks.append(Text(f"way {rank}: {counted(way.chip_count, 'chip')} ({parts}), {counted(way.gates, 'gate')}, "
                            f"depth {way.depth}; {proof}\n\n" + draw_way(way, target)))
         blocks.append(Table(f"way {rank} wiring (every pin on a net; unused inputs tied)", ("net", "pins"),
                             [list(row) for row in wiring_rows(way)]))
