@@ -1421,11 +1421,11 @@ def spare_input(gate: Gate) -> int | None:
 def spare_input_place(plan: Any, gate: Gate, index: int) -> str:
     """Where a gate's spare input is on the board, ``U5 pin 11 (G, a spare input of U5 gate A)``:
     the package pin a person finds, not the input's place in the gate's list."""
-    for chip in getattr(plan, "chips", ()):
+    for chip in plan.chips:
         unit_id = next((u for u, purpose in (chip.units_used or {}).items() if str(purpose) == gate.id), None)
         if unit_id is None:
             continue
-        part = (getattr(plan, "parts", None) or {}).get(chip.part)
+        part = plan.parts.get(chip.part)
         unit = next((u for u in part.units if u.id == unit_id), None) if part is not None else None
         if unit is None:
             return f"a spare input of {chip.ref} gate {unit_id}"

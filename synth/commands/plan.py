@@ -200,15 +200,15 @@ def signal_rows(design) -> list[tuple]:
 def polarity_notes(design) -> list[str]:
     """A note for each signal the plan delivers at another level than ``binsynth decode``
     shows, saying why, so the two printouts do not seem to disagree."""
-    plan, decode = design.plan, design.decode
-    spec_signals = getattr(getattr(design, "spec", None), "signals", {}) or {}
+    plan, decode, spec = design.plan, design.decode, design.spec
     notes = []
     for name, info in plan.signals.items():
-        shown = getattr(decode.signals.get(name), "polarity", None)
-        delivered = info.get("polarity")
-        if shown is None or delivered is None or shown == delivered:
+        if name not in decode.signals or name not in spec.signals:
             continue
-        if getattr(spec_signals.get(name), "polarity", None) == "free":
+        shown, delivered = decode.signals[name].polarity, info.get("polarity")
+        if delivered is None or shown == delivered:
+            continue
+        if spec.signals[name].polarity == "free":
             drives = [s for s, sw in plan.switches.items() if sw.get("select") == name]
             wired = f"; switch {', '.join(drives)} is wired to match" if drives else ""
             notes.append(f"note: {name} is delivered active {delivered}, while 'binsynth decode' shows it "

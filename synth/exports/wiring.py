@@ -90,9 +90,8 @@ def _passive_sections(plan: Plan) -> dict[str, str]:
     found: dict[str, str] = {}
     if plan.oscillator is not None:
         found.update({ref: "clock oscillator" for ref in plan.oscillator.passives})
-    reset = getattr(plan, "power_on_reset", None)
-    if reset is not None:
-        found.update({ref: "power-on reset" for ref in reset.passives})
+    if plan.power_on_reset is not None:
+        found.update({ref: "power-on reset" for ref in plan.power_on_reset.passives})
     for name, ladder in plan.ladders.items():
         found.update({ref: f"staircase {name}" for ref in ladder.passives})
     return found
