@@ -387,6 +387,8 @@ LADDER_SLICE = 0.25     # of the work left, the most one circuit size gets befor
 
 LADDER_MIN_SLICE = 20_000   # steps every circuit size gets at least (within the deadline)
 
+LADDER_GROWTH = 3     # sizes beyond the one asked that an encoding holds (built again when outgrown)
+
 
 def exact_search(problem: Problem, cells: Sequence[Cell], deadline: int, meter: Meter,
                   incumbent: Cost | None, max_gates: int = EXACT_MAX_GATES
@@ -421,8 +423,10 @@ def exact_search(problem: Problem, cells: Sequence[Cell], deadline: int, meter: 
 
     def settle(k: int, until: int) -> bool:
         nonlocal ladder
-        if ladder is None:
-            ladder = _Ladder(ExactEncoding(problem, cells, kinds, top))
+        if ladder is None or ladder.encoding.size < k:
+            if ladder is not None:
+                ladder.close()
+            ladder = _Ladder(ExactEncoding(problem, cells, kinds, min(top, k + LADDER_GROWTH)))
         bound = state["bound"]
         ceiling = None if bound is None else bound.chips if k < bound.gates else bound.chips - 1
         model, done, cost = ladder.settle(k, until, meter, floor=chips_lower_bound(k, capacities),
