@@ -460,8 +460,7 @@ def _decode_choice(design: Any, exact: str) -> Any:
 # ---------------------------------------------------------------- (b) a synchronous counter
 
 def _is_ripple(part: Any) -> bool:
-    return any(u.type == "counter" and not u.fields.get("synchronous")
-               and u.fields.get("mode") != "johnson" for u in part.units)
+    return any(u.type == "counter" and not u.synchronous and u.mode != "johnson" for u in part.units)
 
 
 def _synchronous(design: Any, exact: str) -> Any:
@@ -716,7 +715,7 @@ def _unit_options(plan, stock, catalog, op: str, min_inputs: int) -> list[tuple[
         if part is None:
             continue
         units = [u for u in part.units if u.type in ("gate", "inverter") and u.op == op
-                 and not u.fields.get("also") and len(unit_logic_pins(u)[0]) >= min_inputs]
+                 and u.also is None and len(unit_logic_pins(u)[0]) >= min_inputs]
         if not units:
             continue
         width = min(len(unit_logic_pins(u)[0]) for u in units)

@@ -225,15 +225,14 @@ def counter_models(counter_plan: Any, network: Network, catalog: Any, supply: fl
     for index, cc in enumerate(counter_plan.chips):
         part = catalog.parts[cc.part]
         unit = next(u for u in part.units if str(u.id) == str(cc.unit))
-        f = unit.fields
-        stages = {int(pin): int(k) for k, pin in (f.get("stages") or {}).items()}
-        decoded = {int(pin): int(n) for n, pin in (f.get("decoded") or {}).items()}
-        k0 = min((int(k) for k in (f.get("stages") or {})), default=1)
+        stages = {pin: k for k, pin in unit.stages.items()}
+        decoded = {pin: n for n, pin in unit.decoded.items()}
+        k0 = min(unit.stages, default=1)
         tcq = _delay(part, "clock_to_q", supply, corner) or 0.0
         stage = _delay(part, "stage", supply, corner) or 0.0
         t_reset = _delay(part, "reset", supply, corner)
         notes = []
-        async_reset = not (f.get("reset") or {}).get("synchronous", False) and \
+        async_reset = not (unit.reset is not None and unit.reset.synchronous) and \
             str(getattr(cc, "reset_net", "") or "VSS") not in RAILS
         if t_reset is None:
             t_reset = tcq
@@ -245,20 +244,20 @@ def counter_models(counter_plan: Any, network: Network, catalog: Any, supply: fl
             if _chip_ref(counter_plan, var.chip) == str(cc.ref) and \
                     str(getattr(var, "unit", cc.unit)) == str(cc.unit):
                 if int(var.pin) in stages or int(var.pin) in decoded or \
-                        int(var.pin) in (f.get("carry"), f.get("carry_out")):
+                        int(var.pin) in (unit.carry, unit.carry_out):
                     pins[int(var.pin)] = str(var.net)
         if reset is not None and getattr(reset, "direct", False) and getattr(reset, "direct_pin", None):
             ref, pin = reset.direct_pin
             if ref == cc.ref and (int(pin) in stages or int(pin) in decoded):
                 pins.setdefault(int(pin), str(board_reset))
-        if getattr(cc, "carry_net", None) and f.get("carry_out") is not None:
-            pins[int(f["carry_out"])] = str(cc.carry_net)
+        if getattr(cc, "carry_net", None) and unit.carry_out is not None:
+            pins[unit.carry_out] = str(cc.carry_net)
         carry_in = None
-        if getattr(cc, "enable_pin", None) in (f.get("count_enable") or ()) and \
+        if getattr(cc, "enable_pin", None) in unit.count_enable and \
                 str(getattr(cc, "enable_net", "") or "VDD") not in RAILS:
             carry_in = str(cc.enable_net)
         outputs = []
-        synchronous = bool(f.get("synchronous", False))
+        synchronous = unit.synchronous
         for pin, net in sorted(pins.items()):
             if pin in stages:
                 k = stages[pin]
@@ -267,26 +266,25 @@ def counter_models(counter_plan: Any, network: Network, catalog: Any, supply: fl
             elif pin in decoded:
                 outputs.append(CounterOutput(net, "decoded", decoded[pin], pin, part.pins.get(pin, ""),
                                              ps(tcq)))
-            elif pin == f.get("carry"):
+            elif pin == unit.carry:
                 outputs.append(CounterOutput(net, "carry", 0, pin, part.pins.get(pin, ""), ps(tcq)))
             else:
                 outputs.append(CounterOutput(net, "tc", 0, pin, part.pins.get(pin, ""), ps(tcq)))
-        reset_field = f.get("reset") or {}
         net = str(cc.reset_net) if getattr(cc, "reset_net", None) else None
         if net is not None and net not in RAILS and reset is not None and net == str(reset.net):
             net = board_reset
-        reset_high = reset_field.get("active", "high") == "high"
+        reset_high = unit.reset is None or unit.reset.active == "high"
         if net in RAILS:
             if RAILS[net] == reset_high:
                 raise InternalError(f"{cc.ref}: its reset is tied to {net}, its active level")
             net = None
-        edge = str(getattr(cc, "clock_edge", None) or f.get("clock", {}).get("edge", "rising"))
+        edge = str(getattr(cc, "clock_edge", None) or (unit.clock.edge if unit.clock else "rising"))
         models.append(CounterModel(
-            ref=str(cc.ref), unit=str(cc.unit), part=part.type, mode=str(f.get("mode", "binary")),
-            modulus=int(f.get("modulus", 2 ** max(stages.values(), default=1))),
-            synchronous=synchronous or f.get("mode") == "johnson",
+            ref=str(cc.ref), unit=str(cc.unit), part=part.type, mode=unit.mode,
+            modulus=unit.modulus,
+            synchronous=synchronous or unit.mode == "johnson",
             clock_net=str(cc.clock_net), edge=edge, reset_net=net, reset_high=reset_high,
-            reset_sync=bool(reset_field.get("synchronous", False)), reset_ps=ps(t_reset),
+            reset_sync=unit.reset is not None and unit.reset.synchronous, reset_ps=ps(t_reset),
             outputs=outputs, notes=notes, enable_net=carry_in))
     return models
 
@@ -304,9 +302,8 @@ def _also_op(part: Any, gate: Gate) -> str | None:
     if part is None or len(gate.outputs) < 2:
         return None
     for unit in part.units:
-        also = unit.fields.get("also") if unit.type == "gate" else None
-        if also and unit.op == gate.op and len(unit.inputs) == len(gate.inputs):
-            return str(also["op"])
+        if unit.also is not None and unit.op == gate.op and len(unit.inputs) == len(gate.inputs):
+            return unit.also.op
     return None
 
 
@@ -345,7 +342,7 @@ def _flipflop_model(gate: Gate, part: Any, supply: float, corner: str,
             raise InternalError(f"flip-flop {gate.id}: its {control.partition(':')[0]} is not held "
                                 "inactive (only tied set/reset inputs are modelled)")
     unit = next(u for u in part.units if u.type == "flipflop")
-    edge = str(unit.fields["clock"].get("edge", "rising"))
+    edge = unit.clock.edge
     name = (gate_names or {}).get(gate.id, gate.id)
     return GateModel(gate, name, ps(delay), edge=edge)
 
@@ -1147,10 +1144,9 @@ def _var_roles(counter_plan: Any, catalog: Any | None) -> list[_VarRole]:
             base = net_rank[clock] + 1 if clock in net_rank else 0
             part = catalog.parts[cc.part]
             unit = next(u for u in part.units if str(u.id) == str(cc.unit))
-            f = unit.fields
-            together = bool(f.get("synchronous")) or f.get("mode") == "johnson"
-            stages = {int(p): int(k) for k, p in (f.get("stages") or {}).items()}
-            decoded = {int(p): int(n) for n, p in (f.get("decoded") or {}).items()}
+            together = unit.synchronous or unit.mode == "johnson"
+            stages = {p: k for k, p in unit.stages.items()}
+            decoded = {p: n for n, p in unit.decoded.items()}
             for v in vars_:
                 if _chip_ref(counter_plan, v.chip) != cc.ref or str(v.unit) != str(cc.unit):
                     continue
@@ -1424,8 +1420,7 @@ def _synchronous_parts(catalog: Any, stock: Any) -> list[str]:
     found = []
     for part_type in sorted(getattr(stock, "parts", {}) or {}):
         part = catalog.parts.get(part_type)
-        if part is not None and any(u.type == "counter" and u.fields.get("synchronous")
-                                    and u.fields.get("mode") != "johnson" for u in part.units):
+        if part is not None and any(u.synchronous_binary_or_bcd for u in part.units):
             found.append(part_type)
     return found
 
@@ -1686,8 +1681,7 @@ def register_checks(plan: Any, traces: Sequence[Trace], catalog: Any) -> list[di
         d, clock = gate.inputs[0], gate.inputs[1]
         setup = flipflop_requirement_ns(part, "setup", plan.supply) or 0.0
         hold = flipflop_requirement_ns(part, "hold", plan.supply) or 0.0
-        edge = next((str(u.fields["clock"].get("edge", "rising")) for u in part.units
-                     if u.type == "flipflop"), "rising")
+        edge = next((u.clock.edge for u in part.units if u.type == "flipflop"), "rising")
         setup_slack, hold_margin = math.inf, math.inf
         for trace in traces:
             d_times = [t for t, _ in trace.changes.get(d, [])]

@@ -283,7 +283,7 @@ def candidate_parts(stock, catalog, library) -> list[str]:
     from .mapper import cells_of_part
 
     supply = stock.supply
-    families = {catalog.parts[p].family for p in stock.parts} or {"4000B"}
+    families = catalog.families_or_default(stock.parts)
     have = {(c.op, c.width, c.schmitt) for c in library.cells}
     seen: dict[tuple, tuple[bool, str]] = {}
     for part in sorted(catalog.parts.values(), key=lambda p: (p.family not in families, p.type)):
