@@ -35,7 +35,8 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 
-from .analog import counter_oscillator_design, schmitt_oscillator_design, thresholds_at
+from .analog import (CounterOscillatorDesign, OscillatorDesign, counter_oscillator_design,
+                     schmitt_oscillator_design, thresholds_at)
 from .counter import counter_fmax_mhz
 from .errors import ShortError
 from .netlist import RAIL_NETS, Passive
@@ -178,13 +179,13 @@ def _counter_stage(plan, chip, part) -> str | None:
 
 # ---------------------------------------------------------------- the values
 
-def _short_values(design, wanted: float, tolerance: float, bin, given: bool) -> ShortError:
+def _short_values(design: OscillatorDesign | CounterOscillatorDesign, wanted: float, tolerance: float,
+                  bin, given: bool) -> ShortError:
     said = f"{tolerance:.0%}" + ("" if given else " (the default: the spec gives no clock.tolerance)")
-    best = design
-    achieved = getattr(best, "freq_typ", None) or getattr(best, "freq_hz")
-    r = getattr(best, "r", None) or getattr(best, "rt")
-    c = getattr(best, "c", None) or getattr(best, "ct")
-    needed_c = getattr(best, "needed_c", None) or getattr(best, "needed_ct")
+    if isinstance(design, OscillatorDesign):
+        achieved, r, c, needed_c = design.freq_typ, design.r, design.c, design.needed_c
+    else:
+        achieved, r, c, needed_c = design.freq_hz, design.rt, design.ct, design.needed_ct
     needed_r = needed_c * r / c
     return ShortError(
         f"no resistor and capacitor in the bin set the oscillator within {said} of "
@@ -194,7 +195,7 @@ def _short_values(design, wanted: float, tolerance: float, bin, given: bool) -> 
              f"{format_si(needed_r, 'Ω')} resistor (with {format_si(c, 'F')}) to the bin's lists")
 
 
-def _check_error(design, wanted: float, tolerance: float, bin, given: bool, warnings: list[str]) -> None:
+def _check_error(design: OscillatorDesign | CounterOscillatorDesign, wanted: float, tolerance: float, bin, given: bool, warnings: list[str]) -> None:
     """Off by more than the tolerance: exit 3 when the spec set it, else plan and warn.
 
     With no ``clock.tolerance`` the 10 % is our assumption, not the user's

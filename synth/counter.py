@@ -736,7 +736,7 @@ def allocate(spec, stock: Bin, catalog: Catalog) -> CounterPlan:
     n = bits_for(cycle)
     if n > MAX_VARIABLES:
         raise SpecError(f"expected a cycle of at most {1 << MAX_VARIABLES} ticks, got {cycle} "
-                        f"({n} counter stages to decode)", file=getattr(spec, "path", None),
+                        f"({n} counter stages to decode)", file=spec.path,
                         hint="split the sequence, or lower the clock and use fewer ticks")
     supply = float(spec.supply)
     frequency = _frequency(spec)
@@ -747,8 +747,7 @@ def allocate(spec, stock: Bin, catalog: Catalog) -> CounterPlan:
 
 
 def _frequency(spec) -> float | None:
-    clock = getattr(spec, "clock", None)
-    return getattr(clock, "frequency_hz", None) if clock is not None else None
+    return spec.clock.frequency_hz
 
 
 def _search(spec, kinds: list[_Kind], supply: float, frequency: float | None):

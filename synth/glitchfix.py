@@ -431,11 +431,11 @@ def _decode_and_map(spec, stock, catalog, cp, exact: str):
 
 def _decode_choice(design: Any, exact: str) -> Any:
     """Re-derive with the glitching entries' transient states passed at the steady level."""
-    from .timing import _entry_sequence, _var_roles
+    from .timing import entry_sequence, var_roles
 
     cp = design.counter
     functions = {f.name: f for f in design.decode.functions}
-    roles = _var_roles(cp, design.catalog)
+    roles = var_roles(cp, design.catalog)
     reset = getattr(cp, "reset", None)
     async_reset = reset is not None and not getattr(reset, "synchronous", False)
     states = [int(s) for s in cp.state_of_tick]
@@ -443,7 +443,7 @@ def _decode_choice(design: Any, exact: str) -> Any:
     usable = False
     for g in design.plan.glitches:
         k = int(g["at_tick"])
-        seq = _entry_sequence(states[k - 1], states[k], roles, async_reset)
+        seq = entry_sequence(states[k - 1], states[k], roles, async_reset)
         shown = frozenset(seq[1:-1])
         function = functions.get(g["signal"])
         if function is not None and shown & function.dc:
@@ -466,12 +466,12 @@ def _is_ripple(part: Any) -> bool:
 def _synchronous(design: Any, exact: str) -> Any:
     """The counter re-allocated from the bin's synchronous (or Johnson) counters only."""
     from .counter import allocate
-    from .timing import _synchronous_parts
+    from .timing import synchronous_counter_parts
 
     if getattr(design.counter, "synchronous", False):
         raise NotApplicable("the counter is already synchronous")
     stock, catalog = design.stock, design.catalog
-    if not _synchronous_parts(catalog, stock):
+    if not synchronous_counter_parts(catalog, stock):
         raise NotApplicable("the bin has no synchronous counter (e.g. 4520, 74HC161, 74HC163)")
     parts = {t: n for t, n in stock.parts.items() if not _is_ripple(catalog.parts[t])}
     try:
@@ -685,9 +685,7 @@ def _phase(network, clock, settle, controlling, plan, stock, catalog, avoid_part
 
 
 def _delay_ns(catalog, part_type: str, supply: float, corner: str = "typ") -> float:
-    from .timing import _delay
-
-    return _delay(catalog.parts[part_type], "tpd", supply, corner) or 0.0
+    return catalog.parts[part_type].delay_at_corner("tpd", supply, corner) or 0.0
 
 
 def _too_slow(catalog, part_type: str, plan) -> bool:

@@ -263,6 +263,14 @@ class Part:
             return None
         return interpolate_inverse_v(points, supply)
 
+    def delay_at_corner(self, key: str, supply: float, corner: str) -> float | None:
+        """A timing figure at the corner ('typ' or 'max'), the other corner's
+        where the catalog gives only that one."""
+        value = self.delay_ns(key, supply, corner)
+        if value is None:
+            value = self.delay_ns(key, supply, "max" if corner == "typ" else "typ")
+        return value
+
     def pin_roles(self) -> dict[int, str]:
         """Pin -> 'unit A: inputs[0]' style role text, power and ties included."""
         roles: dict[int, str] = {}
@@ -499,17 +507,17 @@ def _input_levels(entry: _Entry) -> InputLevels | None:
     table = entry.inner("input_levels", required=False)
     if table is None:
         return None
-    rows = table.get("rows")
-    if not isinstance(rows, dict) or not rows:
-        raise table.fail("rows", "rows of {vil, vih} by supply", rows)
+    rows = table.inner("rows")
+    if not rows.data:
+        raise table.fail("rows", "rows of {vil, vih} by supply", rows.data)
     levels = {}
-    for supply, row in rows.items():
+    for supply, row in rows.data.items():
         ok = isinstance(supply, (int, float)) and not isinstance(supply, bool) and supply > 0 \
             and isinstance(row, dict) and set(row) == {"vil", "vih"} \
             and all(isinstance(row[k], (int, float)) and not isinstance(row[k], bool) for k in row) \
             and 0 <= row["vil"] < row["vih"] <= supply
         if not ok:
-            raise table.fail("rows", "{vil: V, vih: V} with 0 <= vil < vih <= the row's supply", {supply: row})
+            raise rows.fail(supply, "{vil: V, vih: V} with 0 <= vil < vih <= the row's supply", _plain(row))
         levels[float(supply)] = (float(row["vil"]), float(row["vih"]))
     return InputLevels(levels, str(table.get("source")))
 
@@ -528,6 +536,10 @@ def _parts_of_file(path: Path, doc: Any, families: dict[str, Family]) -> list[Pa
         parts.append(part)
         for variant_name, variant in variants.items():
             if entry.get(str(variant_name).lower()):
+                if not part.type.startswith(family):
+                    raise CatalogError(f"part {name}: a variant ({variant_name}) needs a part name that "
+                                       f"starts with the family name {family}", file=path, line=where,
+                                       hint=SCHEMA_HINT)
                 parts.append(_variant_twin(part, str(variant_name), families[variant_name], variant))
     return parts
 
@@ -854,7 +866,7 @@ def bin_from_yaml(doc: object, catalog: Catalog, supply: float, path: str) -> Bi
     if not isinstance(doc, MarkedDict):
         raise BinError("expected a mapping with a 'parts:' key, got "
                        f"{describe(doc) if doc is not None else 'an empty file'}",
-                       file=path, line=getattr(doc, "line", 1),
+                       file=path, line=doc.line if isinstance(doc, MarkedList) else 1,
                        hint="start the file with 'parts:' and one 'MARKING: COUNT' line per chip type")
     for key in doc:
         if key not in BIN_KEYS:

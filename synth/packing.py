@@ -178,7 +178,7 @@ def _place_counters(board: _Board, counter_plan: Any, network: Network) -> None:
             else:
                 chip.set_pin(int(cc.reset_pin), reset_net.get(net, net), "counter reset")
         enable_pin, enable_net = cc.enable_pin, cc.enable_net
-        carried = tuple(getattr(cc, "count_enable_pins", ()) or ())
+        carried = cc.count_enable_pins
         if enable_pin is not None and enable_net:
             note = ("enable held active for plain counting" if enable_net in RAIL_NETS
                     else "counts on this input")
@@ -187,7 +187,7 @@ def _place_counters(board: _Board, counter_plan: Any, network: Network) -> None:
             chip.set_pin(int(enable_pin), str(enable_net), note)
             for pin in carried:
                 chip.set_pin(int(pin), str(enable_net), note)
-        carry_net = getattr(cc, "carry_net", None)
+        carry_net = cc.carry_net
         if carry_net:
             unit = next(u for u in part.units if str(u.id) == str(cc.unit))
             chip.set_pin(int(unit.carry_out), str(carry_net),
@@ -211,7 +211,7 @@ def _counts_on_carry(part: Part, cc: Any) -> bool:
     """Whether a counter unit's enable pin is one of its count enables on a carry net."""
     unit = next((u for u in part.units if str(u.id) == str(cc.unit)), None)
     pins = unit.count_enable if unit is not None else ()
-    return getattr(cc, "enable_pin", None) in pins and str(cc.enable_net) not in RAIL_NETS
+    return cc.enable_pin in pins and str(cc.enable_net) not in RAIL_NETS
 
 
 def _chip_ref(counter_plan: Any, chip: Any) -> str:

@@ -137,7 +137,7 @@ def _invert_counter_clock(counter: Any, ff_edge: str) -> Any:
         changes = {}
         if str(chip.clock_net) == CLOCK_NET:
             changes["clock_net"] = COUNTER_CLOCK_NET
-        if getattr(chip, "enable_net", None) == CLOCK_NET:
+        if chip.enable_net == CLOCK_NET:
             changes["enable_net"] = COUNTER_CLOCK_NET
         chips.append(dataclasses.replace(chip, **changes) if changes else chip)
     return dataclasses.replace(counter, chips=chips, edge=ff_edge)
