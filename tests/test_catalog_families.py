@@ -20,8 +20,9 @@ import textwrap
 
 import pytest
 
-from synth.errors import CatalogError
+from synth.errors import CatalogError, InputError
 from synth.inventory import Family, PinControl, load_catalog
+from synth.limits import check_supply
 from synth.packing import unit_logic_pins
 
 FAMILY_FILE = """\
@@ -210,3 +211,13 @@ def test_a_family_described_in_two_files_is_refused(tmp_path):
     with pytest.raises(CatalogError, match="family 74ZZ described twice") as caught:
         load_catalog([first, second])
     assert caught.value.file == str(second)
+
+
+def test_the_supply_hint_agrees_with_the_family_facts(catalog):
+    """limits.check_supply runs before any catalog is read, so its hint names the
+    family ranges in words; they must stay what the catalog says ([hc-common], [ti4001])."""
+    with pytest.raises(InputError) as caught:
+        check_supply(40.0, "supply")
+    hc, cmos = catalog.families["74HC"].supply, catalog.families["4000B"].supply
+    assert f"74HC parts run from {hc[0]:g} to {hc[1]:g} V, 4000B parts from {cmos[0]:g} to {cmos[1]:g} V" \
+        in caught.value.hint
