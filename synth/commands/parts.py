@@ -109,15 +109,12 @@ def describe_role(part, unit_id: str, role: str) -> str:
     head, _, tail = role.partition(".")
     base = head.split("[")[0]
     unit = next((u for u in part.units if u.id == unit_id), None) if part is not None else None
-    fields = unit.fields if unit is not None else {}
     if base == "stages":
         return f"stage {tail} (divide by {2 ** int(tail)})"
     if base == "decoded":
         return f"decoded output, high in state {tail}"
     if base in ("clock", "reset", "enable", "set") and tail == "pin":
-        info = fields.get(base, {})
-        extra = info.get("edge") or (f"active {info['active']}" if "active" in info else "")
-        return f"{base} ({extra})" if extra else base
+        return f"{base} ({_control_words(unit, base)})" if unit is not None else base
     if base == "throws":
         return f"throw joined while control is {tail}"
     return {"inputs": "input", "input": "input", "output": "output", "selects": "select",
@@ -140,6 +137,14 @@ TIMING_WORDS = {
 }
 """The catalog's timing keys in the words the facts table prints (the keys stay in --json)."""
 THRESHOLD_WORDS = {"vt_plus": "VT+ (rising)", "vt_minus": "VT- (falling)"}
+
+
+def _control_words(unit, name: str) -> str:
+    """``rising`` for a clock, ``active low`` for a reset, set or enable."""
+    if name == "clock":
+        return unit.clock.edge
+    control = unit.control_of_role(name)
+    return control.edge or f"active {control.active}"
 
 
 def _facts(part) -> list[tuple]:
