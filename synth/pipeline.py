@@ -66,10 +66,21 @@ def reserved_chips(counter_plan, spec, stock, catalog) -> dict[str, int]:
 
 def _switch_chips(spec, stock, catalog) -> dict[str, int]:
     """How many switch chips the spec's switches need (SPDT sections first)."""
+    return {part: chips for part, (chips, _) in _switch_use(spec, stock, catalog).items()}
+
+
+def switch_sections(spec, stock, catalog) -> dict[str, int]:
+    """SPDT sections the spec's switches take per part type (the rest may serve as logic)."""
+    return {part: used for part, (_, used) in _switch_use(spec, stock, catalog).items()
+            if catalog.parts[part].units_of("spdt")}
+
+
+def _switch_use(spec, stock, catalog) -> dict[str, tuple[int, int]]:
+    """Per switch part type: (chips, sections) the spec's switches take, SPDT sections first."""
     wanted = len(spec.switches)
     if not wanted:
         return {}
-    taken: dict[str, int] = {}
+    taken: dict[str, tuple[int, int]] = {}
     for unit_types, per_switch in ((("spdt",), 1), (("spst",), 2), (("analog_mux",), 1)):
         for part_type, count in sorted(stock.parts.items()):
             part = catalog.parts[part_type]
@@ -80,7 +91,7 @@ def _switch_chips(spec, stock, catalog) -> dict[str, int]:
             if not per_chip:
                 continue
             need = min(count, -(-wanted // per_chip))
-            taken[part_type] = need
+            taken[part_type] = (need, min(wanted, need * per_chip) * per_switch)
             wanted -= need * per_chip
     return taken
 
@@ -187,7 +198,8 @@ def mapping_inputs(spec, stock, catalog, counter_plan, decode):
     """The library (counter and switch chips reserved) and polarities the mapper sees."""
     from .mapper import build_library
 
-    library = build_library(stock, catalog, reserved=reserved_chips(counter_plan, spec, stock, catalog))
+    library = build_library(stock, catalog, reserved=reserved_chips(counter_plan, spec, stock, catalog),
+                            switch_sections=switch_sections(spec, stock, catalog))
     polarity = switch_polarity(spec)
     for function in decode.functions:
         polarity.setdefault(function.name, _internal_polarity(counter_plan, function.name))

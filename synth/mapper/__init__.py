@@ -86,16 +86,23 @@ Library rules (the mapper's choices):
 - Mux units that share their select pins with other units of the chip (the
   74HC153, 74HC157) count as one logic element per chip.
 - Analog switch sections (4053 SPDT) appear in the library and in
-  ``substitute``, but ``map_design`` does not use them as logic (packing
-  places them for spec switches only); a signal that only drives a switch is
-  given polarity 'free' by the caller, and packing swaps the throws.
+  ``substitute``.  Sections of a switch chip the spec's switches already take
+  are prepaid cells (``build_library(switch_sections=...)``): the gate
+  engines do not see them; ``switchmux`` (the package's ``map_design``) uses
+  one as a 2:1 mux when the gate-only mapping fails or leaves a gap to its
+  lower bound: Shannon expansion of a signal on a counter bit (``factor``),
+  the cofactors mapped by the engines, the whole verified.  Packing puts such
+  a section on the switch chip beside the spec's switch.  A signal that only
+  drives a switch is given polarity 'free' by the caller, and packing swaps
+  the throws.
 """
 
 from __future__ import annotations
 
-from .core import EXACT_MAX_VARS, map_design
+from .core import EXACT_MAX_VARS
 from .exact import EXACT_MAX_GATES
 from .library import Cell, Library, build_library, cells_of_part, chips_of
+from .switchmux import map_design
 
 __all__ = ["Cell", "Library", "build_library", "cells_of_part", "chips_of", "map_design",
            "EXACT_MAX_VARS", "EXACT_MAX_GATES"]
