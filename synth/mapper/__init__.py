@@ -88,10 +88,13 @@ Library rules (the mapper's choices):
 - Analog switch sections (4053 SPDT) appear in the library and in
   ``substitute``.  Sections of a switch chip the spec's switches already take
   are prepaid cells (``build_library(switch_sections=...)``): the gate
-  engines do not see them; ``switchmux`` (the package's ``map_design``) uses
-  one as a 2:1 mux when the gate-only mapping fails or leaves a gap to its
-  lower bound: Shannon expansion of a signal on a counter bit (``factor``),
-  the cofactors mapped by the engines, the whole verified.  Packing puts such
+  engines do not see them; ``complete`` (the package's ``map_design``) splits
+  a signal on a counter bit (Shannon expansion, the XOR case first:
+  ``factor``) when the gate-only mapping fails, or leaves a gap to its lower
+  bound while spare sections exist, and joins the halves with a spare
+  section as a 2:1 mux (``switchmux``) or with gates synthesised exactly
+  over the cut's nets (``cutsplit``); the cofactors are mapped by the
+  engines and the whole is verified.  Packing puts such
   a section on the switch chip beside the spec's switch.  A signal that only
   drives a switch is given polarity 'free' by the caller, and packing swaps
   the throws.
@@ -102,7 +105,7 @@ from __future__ import annotations
 from .core import EXACT_MAX_VARS
 from .exact import EXACT_MAX_GATES
 from .library import Cell, Library, build_library, cells_of_part, chips_of
-from .switchmux import map_design
+from .complete import map_design
 
 __all__ = ["Cell", "Library", "build_library", "cells_of_part", "chips_of", "map_design",
            "EXACT_MAX_VARS", "EXACT_MAX_GATES"]

@@ -120,6 +120,15 @@ class Library:
         return Library(cells, self.supply, self.catalog, dict(self.available), dict(self.reserved),
                        list(self.notes), self.source)
 
+    def less_chips(self, chips: Mapping[str, int]) -> "Library":
+        """The same bin with these whole chips set aside (for logic mapped separately)."""
+        available = {p: n - chips.get(p, 0) for p, n in self.available.items()}
+        cells = [c if c.prepaid or not chips.get(c.part) else replace(c, chips=available[c.part])
+                 for c in self.cells]
+        return Library([c for c in cells if c.chips > 0], self.supply, self.catalog,
+                       {p: n for p, n in available.items() if n > 0}, dict(self.reserved),
+                       list(self.notes), self.source)
+
     def mapped(self) -> "Library":
         """Only the cells packing can place in a plan."""
         lib = Library([c for c in self.cells if c.mapped], self.supply, self.catalog,

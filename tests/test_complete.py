@@ -1,4 +1,5 @@
-"""Spare switch sections as 2:1 muxes, and Shannon / XOR splits of a signal.
+"""Completeness on tight bins: spare switch sections as 2:1 muxes, Shannon / XOR splits
+of a signal joined by a section or by gates.
 
 Outside checks: a 2:1 multiplexer's truth table (textbook definition: y = s ? d1 : d0);
 the 4053 function table and pinout from the datasheets (TI CD4053B function table:
@@ -15,6 +16,7 @@ import pytest
 
 from synth.inventory import Bin
 from synth.mapper import build_library, map_design
+from synth.mapper.cutsplit import joining_function
 from synth.mapper.factor import cofactor, splits
 from synth.minimize import Function
 from synth.network import Gate, counting_words, evaluate_gate, evaluate_words
@@ -84,21 +86,51 @@ def test_cofactor_keeps_dont_cares():
     assert on == frozenset() and dc == frozenset({1, 3})
 
 
-def test_a_tight_bin_is_completed_by_a_spare_section_and_matches_every_tick(catalog):
-    # the tight drawer's decode (counter bits Q1..Q8 = b0..b7) over its logic parts, the
-    # 4053 reserved for one spec switch: the gate-only mapping finds nothing, the split does
+def tight_design(catalog, switches_used: int):
+    """The tight drawer's decode (counter bits Q1..Q8 = b0..b7) over its logic parts, the
+    4053 reserved for the spec's switches (``switches_used`` of its three sections)."""
     stock = Bin("tight", 5.0, {"4073": 1, "4011": 2, "40106": 1, "4053": 1}, [], [], [], {}, {})
-    lib = build_library(stock, catalog, reserved={"4053": 1}, switch_sections={"4053": 1})
+    lib = build_library(stock, catalog, reserved={"4053": 1}, switch_sections={"4053": switches_used})
     nets = [f"Q{i + 1}" for i in range(8)]
     functions = [Function("strobe", frozenset(t for t in range(256) if strobe(t)), frozenset()),
                  Function("reset", frozenset(t for t in range(256) if window(t)), frozenset())]
-    network = map_design(functions, 8, nets, lib, polarity={"strobe": "high", "reset": "high"})
-    muxes = [g for g in network.gates if g.part == "4053"]
-    assert len(muxes) == 1 and muxes[0].op == "mux"
-    assert "4053" not in network.chips                    # the switch's package: no new chip
+    return map_design(functions, 8, nets, lib, polarity={"strobe": "high", "reset": "high"}), nets
+
+
+def assert_meets_the_spec_at_every_tick(network, nets):
     values = evaluate_words(network, dict(zip(nets, counting_words(8))), 256)
     for name, f in (("strobe", strobe), ("reset", window)):
         out = network.signals[name]
         for t in range(256):                              # brute force over all ticks
             level = bool(values[out.net] >> t & 1)
             assert level == (f(t) == (out.polarity == "high")), (name, t)
+
+
+def test_a_tight_bin_is_completed_by_a_spare_section_and_matches_every_tick(catalog):
+    # one section for the spec's switch: the gate-only mapping finds nothing, a split
+    # joined by a spare section does
+    network, nets = tight_design(catalog, 1)
+    muxes = [g for g in network.gates if g.part == "4053"]
+    assert len(muxes) == 1 and muxes[0].op == "mux"
+    assert "4053" not in network.chips                    # the switch's package: no new chip
+    assert_meets_the_spec_at_every_tick(network, nets)
+
+
+def test_without_a_spare_section_the_xor_split_is_joined_by_gates(catalog):
+    # all three sections taken by switches: reset = Q6 XOR (its cofactor), the XOR made of
+    # the bin's NAND gates (4011) since the bin has no XOR gate
+    network, nets = tight_design(catalog, 3)
+    assert not any(g.part == "4053" for g in network.gates)
+    assert sum(network.chips.values()) <= 4 and all(network.chips[p] <= n for p, n in
+                                                     {"4073": 1, "4011": 2, "40106": 1}.items())
+    assert any("XOR case" in note for note in network.notes)
+    assert_meets_the_spec_at_every_tick(network, nets)
+
+
+@pytest.mark.parametrize("xor", [True, False])
+def test_the_joining_function_is_an_xor_or_a_2_to_1_mux(xor):
+    # bit 0 of a code is the split bit b, bit 1 the cofactor f0, bit 2 the cofactor f1
+    join = joining_function("f", xor)
+    for code in range(4 if xor else 8):
+        b, f0, f1 = code & 1, code >> 1 & 1, code >> 2 & 1
+        assert (code in join.on) == bool(b ^ f0 if xor else (f1 if b else f0))
