@@ -79,8 +79,9 @@ minterm each signal cares about; a mismatch raises ``InternalError``.
 
 Library rules (the mapper's choices):
 
-- Chips ``reserved`` for counters or switches are not offered at all; their
-  spare sections are not used for logic (a partly used 4053 keeps its spares).
+- Chips ``reserved`` for counters or switches are not offered to the gate
+  engines; the spare SPDT sections of reserved switch chips are offered to
+  the splits only (below).
 - A 4068/4078 offers its main (NAND/NOR) output only; the second (AND/OR)
   output is not used, since the network's gate record carries one function.
 - Mux units that share their select pins with other units of the chip (the
