@@ -218,6 +218,15 @@ def test_a_tight_drawer_plans_and_cosimulates(tmp_path, capsys, catalog):
     purposes = sorted(switches[0].units_used.values())
     assert "switch dut_in" in purposes and any(not p.startswith("switch ") for p in purposes)
     assert sum(c.startswith("A switch section used as logic") for c in plan.cautions) == 1
+    # TI CD4053B: INH (pin 6) high turns every switch off, so it is held at VSS; VEE (pin 7)
+    # at VSS for a single supply; control low joins the common to the x throw (data 0)
+    chip = switches[0]
+    assert chip.pins[6] == "VSS" and chip.pins[7] == "VSS"
+    mux = next(g for g in plan.network.gates if g.part == "4053")
+    unit_id = next(u for u, purpose in chip.units_used.items() if purpose == mux.id)
+    pins = {"A": (11, 12, 13, 14), "B": (10, 2, 1, 15), "C": (9, 5, 3, 4)}[unit_id]
+    d0, d1, select = mux.inputs
+    assert [chip.pins[p] for p in pins] == [select, d0, d1, mux.output]
     if shutil.which("iverilog") is None or shutil.which("vvp") is None:
         pytest.skip("Icarus Verilog is not installed (Debian package iverilog)")
     from cosim import run_plan
