@@ -10,7 +10,7 @@ last.  Every split design passes the same self-check as any other mapping
 (``core.verify_design``), so it matches the spec on every cared-for counter state.
 
 Interface: ``map_design`` (the package's entry: ``core.map_design``, then the
-splits; same arguments, results and errors), ``SPLIT_TRIES``, ``SPLIT_SHARE``.
+splits; same arguments, results and errors), ``SPLIT_TRIES``, ``GAP_TRIES``, ``SPLIT_SHARE``.
 """
 
 from __future__ import annotations
@@ -29,6 +29,7 @@ from .switchmux import switch_split
 
 
 SPLIT_TRIES = 6          # splits tried per mapping, in all (each one or two gate mappings)
+GAP_TRIES = 4            # ... when a gate-only design exists and only a gap to its bound is left
 SPLIT_SHARE = 4          # each piece's gate mapping gets 1/SPLIT_SHARE of the mapping's work
 
 
@@ -38,7 +39,9 @@ def map_design(functions, nvars: int, var_nets: Sequence[str], library: Library,
     """``core.map_design``, completed by splits where it fails or leaves a gap.
 
     A split design is taken only when the gate-only one is missing, or takes
-    more chips (then gates) while a spare switch section could help.
+    more chips (then gates) than its lower bound while a spare switch section
+    could help (``GAP_TRIES`` splits; skipped with ``exact='no'``, the quick
+    search what-the-bin-lacks runs for each candidate part).
     """
     glitch_free = tuple(glitch_free)
     budget = effort_named(effort).steps if steps is None else steps
@@ -52,10 +55,10 @@ def map_design(functions, nvars: int, var_nets: Sequence[str], library: Library,
         if found is None:
             raise
         return found
-    if network.proven_minimal or not library.spare_switches() or \
+    if network.proven_minimal or not library.spare_switches() or exact == "no" or \
             (network.lower_bound or 0) >= sum(network.chips.values()):
         return network
-    found = best_split(functions, nvars, var_nets, library, args, budget, [SPLIT_TRIES], cost(network),
+    found = best_split(functions, nvars, var_nets, library, args, budget, [GAP_TRIES], cost(network),
                        gates_too=False)
     return network if found is None else found
 
