@@ -52,13 +52,13 @@ def switch_split(split: Split, functions, nvars: int, var_nets: Sequence[str], l
     sub = map_piece(rest, library.less_spare(cell), polarity)
     if sub is None:
         return None
-    network = _joined(sub, split, halves, cell, var_nets, low, library)
+    network = _joined(sub, split, halves, cell, var_nets, low, library, functions)
     verify_design(network, functions, var_nets, library, args["polarity"])
     return network
 
 
 def _joined(sub: Network, split: Split, halves: Sequence[Function], cell: Cell,
-            var_nets: Sequence[str], low: bool, library: Library) -> Network:
+            var_nets: Sequence[str], low: bool, library: Library, functions) -> Network:
     """The sub-design plus the mux section: its two throws on the cofactors' nets."""
     data = []
     signals = dict(sub.signals)
@@ -79,23 +79,23 @@ def _joined(sub: Network, split: Split, halves: Sequence[Function], cell: Cell,
     note = (f"{split.name}: a spare {cell.part} section selects by {bit} (Shannon expansion"
             + (", the XOR case: one half is the other inverted" if split.xor else "") + ")")
     return Network(gates, signals, tuple(var_nets), chips_of(gates, library), False,
-                   _chip_floor(signals, var_nets, split, library),
+                   _chip_floor(signals, var_nets, functions, library),
                    "spare switch section split: best found", list(sub.notes) + [note])
 
 
-def _chip_floor(signals: Mapping[str, SignalOut], var_nets: Sequence[str], split: Split,
+def _chip_floor(signals: Mapping[str, SignalOut], var_nets: Sequence[str], functions,
                 library: Library) -> int:
     """1 when the spare sections alone cannot be the whole design, else 0 (a sound floor):
-    each distinct output needs its own unit, and a unit of fan-in 3 joins at most 2 more bits."""
+    each distinct output needs its own unit, and a signal on k bits needs a tree of
+    units of fan-in 3 (a 2:1 mux) or less, at least (k - 1) / 2 of them."""
     spare = sum(c.capacity for c in library.spare_switches())
     outputs = len({s.net for s in signals.values()} - {"VDD", "VSS", *var_nets})
     nvars = len(var_nets)
     universe = frozenset(range(1 << nvars))
-    support = {split.var}
-    for on, dc in ((split.on0, split.dc0), (split.on1, split.dc1)):
-        support |= needed_support(Signal(split.name, on, universe - dc, "high"), nvars)
-    support = len(support)
-    return 1 if outputs > spare or -(-(support - 1) // 2) > spare else 0
+    widest = max(len(needed_support(Signal(f.name, frozenset(f.on) - frozenset(f.dc),
+                                           universe - frozenset(f.dc), "high"), nvars))
+                 for f in functions)
+    return 1 if outputs > spare or -(-(widest - 1) // 2) > spare else 0
 
 
 def _fresh(base: str, taken: set[str]) -> str:
