@@ -8,7 +8,7 @@ module sh_bench (clk, convert, frame, ready, track);
   output ready;
   output track;
   reg Q6, Q5, Q4, Q3, Q2, Q1;
-  wire n8, convert_n, n11, n12, track_Q6lo, CLK_inv;
+  wire n8, convert_n, n11, track_Q5lo, track_Q5hi, CLK_inv;
 
   // U1 unit A: 4040 12-stage binary ripple counter; counts on the falling edge of CLK, modulus 4096
   //   Q6 (pin 2) -> Q6: 505 ns after the counting edge
@@ -51,14 +51,14 @@ module sh_bench (clk, convert, frame, ready, track);
   nor #(200) U4_A (frame, Q1, Q2, Q3, Q4, Q5, Q6, CLK_inv, 1'b0);
   // U2_B: 4001 nor, 120 ns (gate g4)
   nor #(120) U2_B (n11, Q4, Q5);
-  // U2_C: 4001 nor, 120 ns (gate g5)
-  nor #(120) U2_C (n12, Q6, Q6);
-  // U2_D: 4001 nor, 120 ns (gate g6)
-  nor #(120) U2_D (ready, n11, n12);
-  // U3_B: 4012 nand, 160 ns (gate g7)
-  nand #(160) U3_B (track_Q6lo, Q4, Q5, 1'b1, 1'b1);
+  // U3_B: 4012 nand, 160 ns (gate g5)
+  nand #(160) U3_B (track_Q5lo, Q6, Q6, Q6, Q6);
+  // U2_C: 4001 nor, 120 ns (gate g6)
+  nor #(120) U2_C (ready, n11, track_Q5lo);
+  // U2_D: 4001 nor, 120 ns (gate g7)
+  nor #(120) U2_D (track_Q5hi, Q4, Q6);
   // U6_B: 4053 mux, 275 ns (gate sw1)
-  assign #(275) track = (Q6 == 0) ? track_Q6lo : 1'b0;
+  assign #(275) track = (Q5 == 0) ? track_Q5lo : track_Q5hi;
   // U5_A: 4069 not, 55 ns (gate strobe_clock_inv)
   not #(55) U5_A (CLK_inv, clk);
 
