@@ -62,6 +62,7 @@ from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass, field
 from typing import Any
 
+from .analog import Spread, with_tolerance
 from .errors import InternalError
 from .network import RAILS, Gate, Network, evaluate_gate
 
@@ -1584,7 +1585,7 @@ def analyse(design: Any, fix: Sequence[str] | set[str] = ()) -> None:
             plan.warnings.append(f"{rec['signal']}: flip-flop {rec['flipflop']} ({rec['part']}) sees D change "
                                  f"{rec['hold_margin_ns']:g} ns after its clock edge, inside its "
                                  f"{rec['hold_needed_ns']:g} ns hold time")
-    plan.pulse_widths = pulse_width_checks(plan, typ, catalog)
+    plan.pulse_widths = pulse_width_checks(plan, typ, catalog, worst)
     for rec in plan.pulse_widths:
         plan.warnings += pulse_warning_lines(rec)
     plan.warnings += [w for w in dict.fromkeys(typ.warnings + worst.warnings) if w not in plan.warnings]
@@ -1605,10 +1606,14 @@ def pulse_warning_lines(rec: dict) -> list[str]:
     """A runt clock or reset pulse, said once, with the remedy; a reset pulse the
     catalog has no figure for is said to be unchecked."""
     if rec["what"] == "reset" and rec["ok"] is None:
-        return [f"the counter reset pulse on {rec['ref']} lasts {rec['width_ns']:.0f} ns at typical delays "
+        return [f"the counter reset pulse on {rec['ref']} lasts {rec['width_ns']:.0f} ns at its narrowest "
                 f"(the catalog gives no minimum reset pulse width for {rec['part']} to check)"]
     if rec["ok"] is not False:
         return []
+    if rec["what"] == "power-on reset":
+        return [f"the power-on reset pulse on {rec['ref']} ({rec['part']}) may be as short as "
+                f"{rec['width_ns']:.0f} ns, shorter than the {rec['needed_ns']:g} ns minimum reset pulse "
+                "at this supply; remedy: a longer power_on_reset time"]
     if rec["what"] == "reset":
         return [f"the counter reset pulse on {rec['ref']} ({rec['part']}) lasts {rec['width_ns']:.0f} ns, "
                 f"shorter than the {rec['needed_ns']:g} ns minimum at this supply: the count may not "
@@ -1715,13 +1720,21 @@ def register_checks(plan: Any, traces: Sequence[Trace], catalog: Any) -> list[di
     return out
 
 
-def pulse_width_checks(plan: Any, trace: Trace, catalog: Any) -> list[dict]:
-    """Every clock input and every asynchronous reset pulse against the catalog's
-    minimum width at the plan's supply (``clock_width``, ``reset_width``).
+def pulse_width_checks(plan: Any, trace: Trace, catalog: Any, worst: Trace | None = None) -> list[dict]:
+    """Every clock input, every asynchronous reset pulse and the power-on reset
+    against the catalog's minimum width at the plan's supply (``clock_width``,
+    ``reset_width``).
 
     The clock's narrower half is half the period (the simulator's square wave);
-    a counter reset decoded from a count lasts as long as that count shows.
-    A part with no width figure is listed as not checked, never as passed.
+    a counter reset decoded from a count lasts as long as that count shows, and
+    is measured on the typical trace and on ``worst`` (worst-case delays); the
+    narrower of the two is checked (``width_ns``; ``width_typ_ns`` and
+    ``width_max_ns`` beside it).  The catalog has no minimum delays, so the
+    corner that would make a self-ending pulse narrower still (faster parts)
+    cannot be simulated: the record's ``basis`` says so.  The power-on reset is
+    checked at its shortest over the threshold spread and the R and C
+    tolerances.  A part with no width figure is listed as not checked, never as
+    passed.
     """
     out = []
     half = trace.period_ns / 2
@@ -1733,17 +1746,56 @@ def pulse_width_checks(plan: Any, trace: Trace, catalog: Any) -> list[dict]:
         out.append({"what": "clock", "ref": ref, "part": part_type, "width_ns": round(half, 1),
                     "needed_ns": None if need is None else round(need, 1),
                     "ok": None if need is None else half >= need})
-    seen = set()
-    for pulse in trace.resets:
-        if pulse.ref in seen:
-            continue
-        seen.add(pulse.ref)
-        part_type = next((c.part for c in plan.counter.chips if c.ref == pulse.ref), "")
+    out += _reset_pulse_checks(plan, trace, worst, catalog)
+    out += _power_on_checks(plan, catalog)
+    return out
+
+
+def _narrowest_resets(trace: Trace | None) -> dict[str, ResetPulse]:
+    """Counter ref -> its narrowest reset pulse on the trace."""
+    found: dict[str, ResetPulse] = {}
+    for pulse in trace.resets if trace is not None else ():
+        if pulse.ref not in found or pulse.width_ns < found[pulse.ref].width_ns:
+            found[pulse.ref] = pulse
+    return found
+
+
+def _reset_pulse_checks(plan: Any, typ: Trace, worst: Trace | None, catalog: Any) -> list[dict]:
+    at_typ, at_max = _narrowest_resets(typ), _narrowest_resets(worst)
+    out = []
+    for ref, pulse in at_typ.items():
+        other = at_max.get(ref)
+        narrow = other if other is not None and other.width_ns < pulse.width_ns else pulse
+        part_type = next((c.part for c in plan.counter.chips if c.ref == ref), "")
         need = flipflop_requirement_ns(catalog.parts.get(part_type), "reset_width", plan.supply)
-        out.append({"what": "reset", "ref": pulse.ref, "part": part_type,
-                    "width_ns": round(pulse.width_ns, 1), "at_tick": pulse.at_tick,
+        out.append({"what": "reset", "ref": ref, "part": part_type,
+                    "width_ns": round(narrow.width_ns, 1), "at_tick": narrow.at_tick,
+                    "width_typ_ns": round(pulse.width_ns, 1),
+                    "width_max_ns": None if other is None else round(other.width_ns, 1),
+                    "corner": "max" if narrow is other else "typ",
+                    "basis": "the narrower of the pulses simulated at typical and at worst-case (max) "
+                             "delays; the catalog gives no minimum delays to simulate faster parts",
                     "needed_ns": None if need is None else round(need, 1),
-                    "ok": None if need is None else pulse.width_ns >= need})
+                    "ok": None if need is None else narrow.width_ns >= need})
+    return out
+
+
+def _power_on_checks(plan: Any, catalog: Any) -> list[dict]:
+    """The power-on reset pulse, at its shortest, against each held counter's minimum reset width."""
+    por = getattr(plan, "power_on_reset", None)
+    if por is None:
+        return []
+    shortest_ns = with_tolerance(Spread(*por.width_s)).min * 1e9
+    out = []
+    for ref, _pin in por.resets:
+        part_type = next((c.part for c in plan.counter.chips if c.ref == ref), "")
+        need = flipflop_requirement_ns(catalog.parts.get(part_type), "reset_width", plan.supply)
+        out.append({"what": "power-on reset", "ref": ref, "part": part_type,
+                    "width_ns": round(shortest_ns, 1), "width_typ_ns": round(por.width_s[1] * 1e9, 1),
+                    "basis": "the shortest pulse over the Schmitt threshold spread and the R and C "
+                             "tolerances (R_TOLERANCE, C_TOLERANCE: common practice)",
+                    "needed_ns": None if need is None else round(need, 1),
+                    "ok": None if need is None else shortest_ns >= need})
     return out
 
 
