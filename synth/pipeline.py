@@ -26,6 +26,7 @@ from typing import Any, Iterable
 
 from .effort import effort_named
 from .errors import Shortage, ShortError
+from .rcdelay import apply_delays
 
 
 @dataclass
@@ -115,6 +116,7 @@ def make_plan(spec_path: str | Path, bin_path: str | Path, *, catalog=None, exac
         design = Design(plan, spec, stock, catalog, counter_plan, decode, network)
         _timing_checks(design, set(fix))
         design = _timing_fixes(design, set(fix), exact)
+        design = apply_delays(design, set(fix))
     except BaseException:
         if search is not None:
             search.cancel()

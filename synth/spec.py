@@ -95,6 +95,10 @@ choice open, this module decides as follows.
   Schmitt input that holds the counter reset that long after power-up, so
   the sequence starts at tick 0 (R and C from the bin; the counter's reset
   pin must be free, not used by the decode).
+- ``delay`` (per signal): a time (``2 us``): the output goes through an RC
+  delay between two Schmitt stages of about that length (R and C from the
+  bin, a Schmitt part from the bin); needs ``clock.frequency`` (the delay is
+  checked against the tick) and must stay under half a tick.
 - ``cycle`` is at most ``MAX_CYCLE`` ticks: tick sets are built in memory.
 """
 
@@ -143,7 +147,11 @@ LEVEL_KEYS = ("bits", "kind", "tolerance", "load")
 LEVEL_KINDS = ("r2r", "binary")
 DEFAULT_LADDER_TOLERANCE = 0.05
 """Resistor tolerance assumed when a ``levels`` entry gives none (5 %, common stock)."""
-SIGNAL_KEYS = ("asserted", "every", "polarity", "dont_care", "clear_of", "stretch", "steady")
+MIN_SIGNAL_DELAY_S = 100e-9
+MAX_SIGNAL_DELAY_S = 1.0
+"""``delay:`` bounds: below 100 ns the two stages' own delays dominate; above 1 s no
+bin capacitor makes it (the RC sizing still checks the values on hand)."""
+SIGNAL_KEYS = ("asserted", "every", "polarity", "dont_care", "clear_of", "stretch", "steady", "delay")
 SWITCH_KEYS = ("select", "on", "off")
 POLARITIES = ("high", "low", "free")
 CLOCK_SOURCES = ("external", "oscillator")
@@ -185,6 +193,7 @@ class SignalSpec:
     stretch: int
     line: int
     steady: bool | None = None   # True: must hold its level through every tick; False: a pulse per tick will do
+    delay_s: float | None = None  # an RC delay between two Schmitt stages asked for on this output (seconds)
 
 
 @dataclass(frozen=True)
@@ -946,9 +955,25 @@ class _Reader:
             if not isinstance(steady, bool):
                 self.fail(f"{where}.steady: expected true or false, got {_kind(steady)}",
                           body.line_of("steady"), "steady: true (hold the level through every tick)")
+        delay = self.signal_delay(body, where) if "delay" in body else None
         return SignalSpec(name=name, high=high, dont_care=dont_care, polarity=polarity,
                           every=every, windows=windows_of(high, cycle), clear_of=clear_of,
-                          stretch=stretch, line=line, steady=steady)
+                          stretch=stretch, line=line, steady=steady, delay_s=delay)
+
+    def signal_delay(self, body: MarkedDict, where: str) -> float:
+        """``delay: 2 us``: the output goes through an RC delay of about this long."""
+        value, line = body["delay"], body.line_of("delay")
+        expected = f"{where}.delay: expected a time such as '2 us'"
+        if not isinstance(value, str):
+            self.fail(f"{expected}, got {_kind(value)}", line)
+        try:
+            seconds = parse_quantity(value, "s")
+        except ValueError:
+            self.fail(f"{expected}, got {describe(value)}", line)
+        if not MIN_SIGNAL_DELAY_S <= seconds <= MAX_SIGNAL_DELAY_S:
+            self.fail(f"{where}.delay: expected between 100 ns and 1 s, got {describe(value)}", line,
+                      "a delay the passives of a bin can make, e.g. '2 us'")
+        return seconds
 
     def every(self, body: MarkedDict, where: str, cycle: int) -> int:
         line = body.line_of("every")

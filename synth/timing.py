@@ -73,6 +73,7 @@ __all__ = [
     "edge_skews", "remedies", "spare_input", "analyse", "default_period_ns", "nice_period_ns",
     "ps", "expected_from_delivered", "registered_signals", "register_start_levels",
     "flipflop_requirement_ns", "register_checks", "pulse_width_checks", "pulse_warning_lines", "mark_races",
+    "rc_filter_ns",
 ]
 
 CORNERS = ("typ", "max")
@@ -169,6 +170,11 @@ class GateModel:
     also_op: str | None = None     # second output of the same inputs (4068 AND, 4078 OR)
     borrowed: str | None = None    # the warning when the delay is a stand-in (``stand_in_delay``)
     edge: str | None = None        # a flip-flop's clocking edge ('rising'/'falling'); None for gates
+    fall_ps: int | None = None     # a different delay for a falling output (an applied RC delay)
+
+    def delay_to(self, level: bool) -> int:
+        """The delay of an output change to ``level``."""
+        return self.fall_ps if self.fall_ps is not None and not level else self.delay_ps
 
     @property
     def clocked(self) -> bool:
@@ -320,6 +326,9 @@ def gate_models(network: Network, catalog: Any, supply: float, corner: str = "ty
         if gate.op == "flipflop":
             models.append(_flipflop_model(gate, part, supply, corner, gate_names))
             continue
+        if gate.op == "rc":
+            models.append(_rc_model(gate, network, corner, gate_names))
+            continue
         delay, borrowed = _delay(part, "tpd", supply, corner), None
         if delay is None:
             delay, borrowed = stand_in_delay(catalog, gate, supply, corner)
@@ -329,6 +338,19 @@ def gate_models(network: Network, catalog: Any, supply: float, corner: str = "ty
         name = (gate_names or {}).get(gate.id, gate.id)
         models.append(GateModel(gate, name, ps(delay), _also_op(part, gate), borrowed))
     return models
+
+
+def _rc_model(gate: Gate, network: Network, corner: str,
+              gate_names: Mapping[str, str] | None) -> GateModel:
+    """An applied RC delay: a buffer whose rising and falling delays are the RC
+    times to the Schmitt thresholds (typical, or the longest of the spread at
+    ``max``); inertial like a gate, as an RC swallows a pulse shorter than its delay."""
+    times = network.delays.get(gate.id)
+    if times is None:
+        raise InternalError(f"RC delay {gate.id}: the network gives no times for it")
+    pick = 1 if corner == "typ" else 2
+    name = (gate_names or {}).get(gate.id, gate.id)
+    return GateModel(gate, name, ps(times.rise[pick]), fall_ps=ps(times.fall[pick]))
 
 
 def _flipflop_model(gate: Gate, part: Any, supply: float, corner: str,
@@ -510,7 +532,7 @@ def default_period_ns(counters: Sequence[CounterModel], gates: Sequence[GateMode
     ripple = sum(max((o.delay_ps for o in c.outputs), default=0) for c in counters)
     resets = max((c.reset_ps for c in counters if c.reset_net), default=0)
     depth = _depth(gates)
-    slowest = max((g.delay_ps for g in gates), default=0)
+    slowest = max((max(g.delay_ps, g.fall_ps or 0) for g in gates), default=0)
     settle = ripple + resets + 3 * depth * slowest
     return max(1000.0, nice_period_ns(4 * _ns(settle)))
 
@@ -688,14 +710,14 @@ class _Engine:
                 trigger = next((n for n in g.gate.inputs if n in changed), None)
                 cause = self.last_change(trigger) if trigger else None
             self.computed[(gi, net)] = value
-            if self.inertial:
+            if self.inertial or g.gate.op == "rc":     # an RC swallows a pulse shorter than its delay
                 pending = self.pending.pop(net, None)
                 if pending is not None:
                     self.cancelled.add(pending)
                 if value != self.levels[net]:
-                    self.pending[net] = self.schedule(t + g.delay_ps, net, value, cause, "gate")
+                    self.pending[net] = self.schedule(t + g.delay_to(value), net, value, cause, "gate")
             else:
-                self.schedule(t + g.delay_ps, net, value, cause, "gate")
+                self.schedule(t + g.delay_to(value), net, value, cause, "gate")
 
 
 def _compiled(model: GateModel):
@@ -713,7 +735,7 @@ def _compiled(model: GateModel):
     if simple and gate.op in ("or", "nor"):
         flip = gate.op == "nor"
         return lambda v: ((out, any(v[n] for n in ins) ^ flip),)
-    if simple and gate.op in ("not", "buf"):
+    if simple and gate.op in ("not", "buf", "rc"):
         only, flip = ins[0], gate.op == "not"
         return lambda v: ((out, v[only] ^ flip),)
     return lambda v: tuple(model.evaluate(v).items())
@@ -1658,6 +1680,8 @@ def merge_glitches(plan: Any, expected: Mapping[str, Sequence[bool]], typ: Trace
         key = (h.signal, h.at_tick)
         if key not in merged:
             lasts = _state_duration(typ, h.at_tick or typ.cycle, h.transient)
+            if lasts < rc_filter_ns(plan.network, typ.signals[h.signal][0]):
+                continue        # an applied RC delay on the output swallows a pulse this short
             merged[key] = Glitch(h.signal, h.at_tick, lasts,
                                  f"the counter outputs pass through count {h.transient} for {lasts:g} ns "
                                  f"({h.order}); at the catalog's delays the gate paths smooth it away, "
@@ -1667,6 +1691,25 @@ def merge_glitches(plan: Any, expected: Mapping[str, Sequence[bool]], typ: Trace
             merged[key].transient_state = h.transient
         merged[key].models.add("states")
     return sorted(merged.values(), key=lambda g: (g.signal, g.at_tick))
+
+
+def rc_filter_ns(network: Network, net: str) -> float:
+    """The shortest delay of an applied RC delay the net is taken through (through
+    single-input stages such as its Schmitt gates), 0 when none: a pulse shorter
+    than that never brings the RC node to a threshold."""
+    by_output = {n: g for g in network.gates for n in g.outputs if n}
+    seen = set()
+    while net in by_output and net not in seen:
+        seen.add(net)
+        gate = by_output[net]
+        if gate.op == "rc" and gate.id in network.delays:
+            times = network.delays[gate.id]
+            return min(times.rise[0], times.fall[0])
+        inputs = [n for n in gate.inputs if n not in RAILS]
+        if gate.op == "flipflop" or len(set(inputs)) != 1:
+            return 0.0
+        net = inputs[0]
+    return 0.0
 
 
 def registered_signals(network: Network) -> dict[str, Gate]:

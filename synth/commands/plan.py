@@ -43,10 +43,11 @@ def add_output_arguments(parser: argparse.ArgumentParser) -> None:
         parser.add_argument(entry.option, metavar="FILE", help=entry.description)
     parser.add_argument("--take", action="store_true",
                         help="write the bin back with the parts this plan uses removed (keeps a .bak)")
-    parser.add_argument("--fix", action="append", choices=["glitches"], default=[],
+    parser.add_argument("--fix", action="append", choices=["glitches", "races"], default=[],
                         help="apply remedies: 'glitches' tries another decode choice, a synchronous "
                              "counter, then gating with the clock's still half (the signal is then "
-                             "asserted only in the second half of each tick), and says what it did")
+                             "asserted only in the second half of each tick), and says what it did; "
+                             "'races' builds the offered RC delay (two Schmitt stages) into each race")
     add_effort_argument(parser)
     # the former seconds option: 0 still skips what-the-bin-lacks, other values only warn
     parser.add_argument("--lacks", type=seconds, default=None, metavar="SECONDS", help=argparse.SUPPRESS)
@@ -151,7 +152,8 @@ def write_outputs(design, requests: list[tuple[Exporter, Output]], *, take: bool
 
 
 def _gate_count(plan) -> int:
-    return len(plan.network.gates)
+    """Gates on chips (an applied RC delay's R and C are no gate)."""
+    return len([g for g in plan.network.gates if g.op != "rc"])
 
 
 def summary_text(design) -> str:
@@ -218,7 +220,8 @@ def plan_blocks(design) -> list:
     for name, sw in plan.switches.items():
         blocks.append(Text(f"switch {name}: {sw.get('ref')} section {sw.get('unit', '?')}; common joins "
                            f"{sw.get('when_control_high')} while its control is high"))
-    blocks += oscillator_blocks(plan) + power_on_blocks(plan) + ladder_blocks(plan) + passive_blocks(plan)
+    blocks += oscillator_blocks(plan) + power_on_blocks(plan) + rc_delay_blocks(plan) + ladder_blocks(plan) \
+        + passive_blocks(plan)
     for chip in plan.chips:
         part = plan.part_of(chip.ref)
         rows = [(r.pin, r.function, r.net or "(open)", ", ".join(r.goes_to)) for r in pin_table(plan, chip.ref)]
@@ -305,7 +308,7 @@ def _fix_blocks(plan) -> list:
                                                      for t in r["tried"] if "not applicable" in t["result"])
                                              if not r["applied"] else ""))
                              for r in fixes]))
-    offers = getattr(plan, "rc_offers", None) or []
+    offers = [o for o in getattr(plan, "rc_offers", None) or [] if not o.get("applied")]
     races = [o for o in offers if o["problem"] in ("race", "coincident") and o.get("applicable")]
     if races:
         blocks.append(Text(_race_offers_text(races)))
@@ -407,6 +410,26 @@ def power_on_blocks(plan) -> list:
                  f"{', '.join(f'{ref} = {plan.passive(ref).label()}' for ref in por.passives)}; holds "
                  f"{resets} {por.active} for {typ} after power-up ({low} .. {high} over the threshold "
                  f"spread; wanted {format_si(por.wanted_s, 's')}): {por.formula}")]
+
+
+def rc_delay_blocks(plan) -> list:
+    """Each RC delay built into the plan: who asked, stages, R and C, and its times."""
+    from ..render import Text
+    from ..units import format_si
+
+    blocks = []
+    for d in plan.rc_delays:
+        stages = " and ".join(f"{ref} unit {unit}" for ref, unit in d.stages)
+        new = f" ({', '.join(d.new_chips)} new from the bin)" if d.new_chips else ""
+        rise = " .. ".join(format_si(t, "s") for t in (d.rise_s[0], d.rise_s[2]))
+        fall = " .. ".join(format_si(t, "s") for t in (d.fall_s[0], d.fall_s[2]))
+        blocks.append(Text(
+            f"RC delay on {d.signal} ({d.asked_by}): Schmitt {d.part} stages {stages}{new}; "
+            f"{', '.join(f'{ref} = {plan.passive(ref).label()}' for ref in d.passives)}; the delayed "
+            f"output is net {d.nets['output']}; rising edge {format_si(d.rise_s[1], 's')} ({rise}), "
+            f"falling {format_si(d.fall_s[1], 's')} ({fall}) over the threshold spread and R, C "
+            f"tolerance: {d.formula}"))
+    return blocks
 
 
 def ladder_blocks(plan) -> list:

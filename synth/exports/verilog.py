@@ -235,6 +235,11 @@ def _gate_lines(g: GateModel, names: dict[str, str], taken: set[str]) -> list[st
         return [comment] + _decoder_lines(gate, ins, names, delay)
     if gate.op == "flipflop":
         return _flipflop_lines(g, names, label, delay)
+    if gate.op == "rc":
+        fall = delay_text(g.fall_ps if g.fall_ps is not None else g.delay_ps)
+        return [f"  // {g.name}: applied RC delay (R and C, no chip), {delay} ns rising to the Schmitt "
+                f"VT+, {fall} ns falling to VT- (typical)",
+                f"  buf #({delay}, {fall}) {label} ({names[gate.output]}, {', '.join(ins)});"]
     raise ValueError(f"expected a gate op Verilog can model, got {gate.op!r}")
 
 
