@@ -102,7 +102,29 @@ def apply_delays(design, fix) -> object:
         if offer.get("delayed") in wanted:
             offer["applied"] = True
     analyse(design)
+    _separated_races(plan, applied)
     return design
+
+
+def _separated_races(plan, applied: list[AppliedDelay]) -> None:
+    """A race whose later signal now goes through an RC delay is kept in the list,
+    marked separated (``race`` false, ``separated_by``) with the gap at the shortest delay."""
+    shortest = {d.signal: (min(d.rise_s[0], d.fall_s[0]) * 1e9, d) for d in applied}
+    for rec in plan.coincident_edges:
+        if not rec.get("race"):
+            continue
+        delayed = [n for n in rec["signals"] if n in shortest]
+        if len(delayed) != 1:
+            continue
+        name = delayed[0]
+        other = next(n for n in rec["signals"] if n != name)
+        settle = (rec.get("settle_ns") or {}).get(other)
+        low, d = shortest[name]
+        if settle is None or low <= settle:
+            continue
+        rec["race"] = False
+        rec["separated_by"] = (f"RC delay on {name} ({', '.join(d.passives)}): its edge comes at least "
+                               f"{low - settle:.0f} ns after {other}'s at the shortest delay")
 
 
 def _wanted(design, fix: set[str]) -> dict[str, tuple[float, str]]:

@@ -242,7 +242,10 @@ def plan_blocks(design) -> list:
     if races:
         blocks.append(Table("races (one signal gates what the other drives, and both switch on one clock edge)",
                             ("signals", "tick"), [(" & ".join(e["signals"]), e["at_tick"]) for e in races]))
-    others = len(plan.coincident_edges) - len(races)
+    separated = [e for e in map(_as_dict, plan.coincident_edges) if e.get("separated_by")]
+    for e in separated:
+        blocks.append(Text(f"race {' & '.join(e['signals'])} at tick {e['at_tick']}: separated, {e['separated_by']}"))
+    others = len(plan.coincident_edges) - len(races) - len(separated)
     if others:
         blocks.append(Text(f"{others} pair(s) of outputs switch on the same clock edge without one gating "
                            "the other (complementary or independent): no race on this board; see "
