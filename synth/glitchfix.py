@@ -320,8 +320,11 @@ def _global_detail(remedy: str, design: Any) -> str:
 
 
 def _by_signal(glitch_records) -> dict[str, list[int]]:
+    """Signal -> its glitch ticks (a glitch marked harmless, ``synth.harmless``, left out)."""
     out: dict[str, list[int]] = {}
     for g in glitch_records:
+        if g.get("harmless"):
+            continue
         out.setdefault(g["signal"], []).append(int(g["at_tick"]))
     return {s: sorted(t) for s, t in out.items()}
 

@@ -63,6 +63,16 @@ class SignalOut:
     polarity: Literal["high", "low"]
 
 
+@dataclass(frozen=True)
+class RcTiming:
+    """An applied RC delay's times (ns) from its input edge to the Schmitt input's switching:
+    ``rise`` charging to VT+, ``fall`` discharging to VT-, each (min, typ, max) over the
+    threshold spread and the R and C tolerances."""
+
+    rise: tuple[float, float, float]
+    fall: tuple[float, float, float]
+
+
 @dataclass
 class Network:
     """A mapped design: gates over counter nets, before packing into chips."""
@@ -76,16 +86,6 @@ class Network:
     method: str = ""
     notes: list[str] = field(default_factory=list)
     delays: dict[str, RcTiming] = field(default_factory=dict)   # rc gate id -> its timing
-
-
-@dataclass(frozen=True)
-class RcTiming:
-    """An applied RC delay's times (ns) from its input edge to the Schmitt input's switching:
-    ``rise`` charging to VT+, ``fall`` discharging to VT-, each (min, typ, max) over the
-    threshold spread and the R and C tolerances."""
-
-    rise: tuple[float, float, float]
-    fall: tuple[float, float, float]
 
     def depth(self) -> int:
         """Logic depth: the longest chain of gates from an input to a signal."""

@@ -140,7 +140,7 @@ def _wanted(design, fix: set[str]) -> dict[str, tuple[float, str]]:
 
 
 def _period_ns(design) -> float | None:
-    freq = getattr(getattr(design.spec, "clock", None), "frequency_hz", None)
+    freq = design.spec.clock.frequency_hz
     return 1e9 / freq if freq else None
 
 

@@ -99,6 +99,10 @@ choice open, this module decides as follows.
   delay between two Schmitt stages of about that length (R and C from the
   bin, a Schmitt part from the bin); needs ``clock.frequency`` (the delay is
   checked against the tick) and must stay under half a tick.
+- ``feeds`` (per signal): ``logic`` (default) or ``slow``: nothing that
+  latches, counts or reacts within 1 us reads the output (an LED, a lamp, a
+  relay); a glitch on it narrower than that is marked harmless
+  (``synth.harmless``).  ``steady: true`` with ``feeds: slow`` is refused.
 - ``cycle`` is at most ``MAX_CYCLE`` ticks: tick sets are built in memory.
 """
 
@@ -151,7 +155,10 @@ MIN_SIGNAL_DELAY_S = 100e-9
 MAX_SIGNAL_DELAY_S = 1.0
 """``delay:`` bounds: below 100 ns the two stages' own delays dominate; above 1 s no
 bin capacitor makes it (the RC sizing still checks the values on hand)."""
-SIGNAL_KEYS = ("asserted", "every", "polarity", "dont_care", "clear_of", "stretch", "steady", "delay")
+SIGNAL_KEYS = ("asserted", "every", "polarity", "dont_care", "clear_of", "stretch", "steady", "delay", "feeds")
+FEEDS = ("logic", "slow")
+"""``feeds:``: what reads the output (``synth.harmless``): a logic input (the default), or a
+slow load that holds no state, on which a short glitch is harmless."""
 SWITCH_KEYS = ("select", "on", "off")
 POLARITIES = ("high", "low", "free")
 CLOCK_SOURCES = ("external", "oscillator")
@@ -194,6 +201,7 @@ class SignalSpec:
     line: int
     steady: bool | None = None   # True: must hold its level through every tick; False: a pulse per tick will do
     delay_s: float | None = None  # an RC delay between two Schmitt stages asked for on this output (seconds)
+    feeds: str = "logic"          # "slow": nothing that latches, counts or reacts within 1 us reads it
 
 
 @dataclass(frozen=True)
@@ -956,9 +964,16 @@ class _Reader:
                 self.fail(f"{where}.steady: expected true or false, got {_kind(steady)}",
                           body.line_of("steady"), "steady: true (hold the level through every tick)")
         delay = self.signal_delay(body, where) if "delay" in body else None
+        feeds = body.get("feeds", "logic")
+        if feeds not in FEEDS:
+            self.fail(f"{where}.feeds: expected logic or slow, got {_kind(feeds)}", body.line_of("feeds"),
+                      "feeds: slow (an LED, lamp, relay, meter: nothing that latches or counts)")
+        if feeds == "slow" and steady is True:
+            self.fail(f"{where}: steady: true and feeds: slow contradict (a slow load needs no steady level)",
+                      body.line_of("feeds"), "keep one of them")
         return SignalSpec(name=name, high=high, dont_care=dont_care, polarity=polarity,
                           every=every, windows=windows_of(high, cycle), clear_of=clear_of,
-                          stretch=stretch, line=line, steady=steady, delay_s=delay)
+                          stretch=stretch, line=line, steady=steady, delay_s=delay, feeds=feeds)
 
     def signal_delay(self, body: MarkedDict, where: str) -> float:
         """``delay: 2 us``: the output goes through an RC delay of about this long."""

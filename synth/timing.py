@@ -64,6 +64,7 @@ from typing import Any
 
 from .analog import Spread, with_tolerance
 from .errors import InternalError
+from .harmless import check_slow_outputs, mark_harmless
 from .network import RAILS, Gate, Network, evaluate_gate
 
 __all__ = [
@@ -1594,6 +1595,9 @@ def analyse(design: Any, fix: Sequence[str] | set[str] = ()) -> None:
         plan.warnings.append(f"at worst-case delays the clock is too fast: {problems_max[0]}")
     found = merge_glitches(plan, expected, typ, run)
     plan.glitches = [g.as_json() for g in found]
+    check_slow_outputs(spec, plan)
+    mark_harmless(plan.glitches, spec, plan)
+    harmless = {(g["signal"], g["at_tick"]) for g in plan.glitches if g.get("harmless")}
     delivered = {n: t for n, t in delivered_sets(plan, levels).items() if n in typ.signals}
     plan.coincident_edges = mark_races(edge_skews(typ, coincident_edges(delivered, typ.cycle)),
                                        delivered, plan, typ.cycle)
@@ -1614,10 +1618,10 @@ def analyse(design: Any, fix: Sequence[str] | set[str] = ()) -> None:
     design.trace = typ
     stock = getattr(design, "stock", None)
     by_glitch = {(g.signal, g.at_tick): remedies(g, plan, catalog=catalog, stock=stock, spec=spec)
-                 for g in found}
+                 for g in found if (g.signal, g.at_tick) not in harmless}
     text: list[str] = []
     for g in found:
-        for line in by_glitch[(g.signal, g.at_tick)]:
+        for line in by_glitch.get((g.signal, g.at_tick), ()):
             entry = f"{g.signal} tick {g.at_tick}: {line}"
             if not line.startswith("note:") and entry not in text:
                 text.append(entry)
@@ -1825,7 +1829,7 @@ def _reset_pulse_checks(plan: Any, typ: Trace, worst: Trace | None, catalog: Any
 
 def _power_on_checks(plan: Any, catalog: Any) -> list[dict]:
     """The power-on reset pulse, at its shortest, against each held counter's minimum reset width."""
-    por = getattr(plan, "power_on_reset", None)
+    por = plan.power_on_reset
     if por is None:
         return []
     shortest_ns = with_tolerance(Spread(*por.width_s)).min * 1e9

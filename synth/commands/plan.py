@@ -269,13 +269,16 @@ def glitch_rows(plan) -> list[tuple]:
     count, or unequal gate paths), its ticks listed together, the widest pulse."""
     groups: dict[tuple, list[dict]] = {}
     for g in map(_as_dict, plan.glitches):
-        groups.setdefault((g.get("signal"), g.get("mechanism", "")), []).append(g)
+        groups.setdefault((g.get("signal"), g.get("mechanism", ""), bool(g.get("harmless"))), []).append(g)
     rows = []
-    for (signal, _), items in groups.items():
+    for (signal, _, _), items in groups.items():
         ticks = " ".join(str(g.get("at_tick")) for g in sorted(items, key=lambda g: g.get("at_tick")))
         widest = max(float(g.get("width_max_ns") or g.get("width_ns") or 0) for g in items)
         models = sorted({m for g in items for m in g.get("models", ())})
-        rows.append((signal, ticks, round(widest, 1), ", ".join(models), items[0].get("cause", "")))
+        cause = items[0].get("cause", "")
+        if all(g.get("harmless") for g in items):
+            cause = f"harmless: {items[0]['harmless_why']}; {cause}"
+        rows.append((signal, ticks, round(widest, 1), ", ".join(models), cause))
     return rows
 
 
