@@ -29,7 +29,8 @@ weight); nets are the datasheet pin names, prefixed with the chip's ref
 dual counter share one ref and have distinct pin names).  Synchronous carry
 cascades: a 74HC161/163 counts on CLK while the unit below's TC is high
 (TC -> CEP and CET, the datasheet's synchronous cascade), so all outputs
-change on one edge; two units (8 stages) at most.
+change on one edge; any number of units (three 74HC163 count 4096), each
+unit's TC high only while its own CET is (the TCs ripple up the chain).
 """
 
 from __future__ import annotations
@@ -418,13 +419,14 @@ def _carries(kind: _Kind) -> bool:
 
 def _carry_source(elements, kind: _Kind, top: int, n: int) -> int | None:
     """The element whose TC can enable ``kind`` as the next unit of a synchronous
-    cascade: the top unit, clocked by CLK, itself not carry-enabled (its TC would then
-    depend on its own enable, which the models do not carry: two units, 8 stages)."""
+    cascade: the top unit, clocked by CLK, counting freely or itself carry-enabled
+    (its TC is then CET and count 15, so the TCs ripple up: 74HC161 datasheet,
+    TC = CET . Q0 . Q1 . Q2 . Q3; ``timing`` models a TC that follows its CET)."""
     if not elements or top >= n or not _carries(kind):
         return None
     for i, e in enumerate(elements):
-        if e.offset + e.kind.width == top and e.source is None and e.via == "clock" \
-                and _carries(e.kind) and e.carry_from is None \
+        if e.offset + e.kind.width == top and e.source is None and e.via in ("clock", "carry") \
+                and _carries(e.kind) \
                 and _fields(e)["clock"]["edge"] == kind.units[0].fields["clock"]["edge"]:
             return i
     return None
@@ -824,8 +826,7 @@ def _unchainable(kinds: list[_Kind], n: int) -> str:
     carry = sorted({k.part.type for k in short if k.clocking("falling") is None and _carries(k)})
     if carry and len(stuck) + len(carry) == len(short):
         return (f"the {_or_list(carry)} counts only on a rising clock edge; a synchronous carry "
-                f"cascade of two units gives {2 * min(k.width for k in short if _carries(k))} stages, "
-                "and longer cascades are not built")
+                "cascade needs enough of them on one clock edge")
     if not stuck or len(stuck) < len(short):
         return ""
     names = _or_list(sorted(set(stuck)))
@@ -978,7 +979,7 @@ def _how(chip: CounterChip, part: Part, e: _Element, fields: dict) -> str:
     if e.via == "carry":
         pins = ", ".join(f"{name.get(p, p)} (pin {p})" for p in (chip.enable_pin, *chip.count_enable_pins))
         text += (f" while {chip.enable_net} is high ({pins} on it): a synchronous cascade, every "
-                 "output of both units changes on the same clock edge")
+                 "output of the cascade changes on the same clock edge")
     elif e.via == "enable":
         clock_pin = int(fields["clock"]["pin"])
         level = "low" if chip.ties.get(clock_pin) == "VSS" else "high"

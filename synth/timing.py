@@ -143,6 +143,11 @@ class CounterModel:
     notes: list[str] = field(default_factory=list)
     enable_net: str | None = None   # a count enable on a carry net: counts only while it is high
 
+    def tc_follows_enable(self, output: CounterOutput) -> bool:
+        """A carry-enabled unit's TC is its CET and count 15 (the enable is on CET too):
+        it follows the enable net between clock edges."""
+        return output.kind == "tc" and self.enable_net is not None
+
     def level(self, output: CounterOutput, state: int) -> bool:
         """The output's level in a counter state."""
         if output.kind == "stage":
@@ -279,6 +284,10 @@ def counter_models(counter_plan: Any, network: Network, catalog: Any, supply: fl
                 outputs.append(CounterOutput(net, "carry", 0, pin, part.pins.get(pin, ""), ps(tcq)))
             else:
                 outputs.append(CounterOutput(net, "tc", 0, pin, part.pins.get(pin, ""), ps(tcq)))
+        if carry_in is not None and getattr(cc, "carry_net", None):
+            notes.append(f"{cc.ref}: its TC follows its count enable (TC = CET and count "
+                         f"{2 ** len(stages) - 1}); the catalog gives no CET-to-TC delay for {part.type}, "
+                         "clock-to-output used")
         reset_field = f.get("reset") or {}
         net = str(cc.reset_net) if getattr(cc, "reset_net", None) else None
         if net is not None and net not in RAILS and reset is not None and net == str(reset.net):
@@ -594,6 +603,11 @@ class _Engine:
         self.reset_started: list[int | None] = [None for _ in counters]
         self.reset_pulses: list[tuple[int, int, int]] = []
         self.warnings: list[str] = []
+        self.tc_levels: dict[tuple[int, str], bool] = {}      # a gated TC's last scheduled level
+        self.gated_by: dict[str, list[int]] = {}
+        for i, c in enumerate(counters):
+            if c.enable_net is not None and any(c.tc_follows_enable(o) for o in c.outputs):
+                self.gated_by.setdefault(c.enable_net, []).append(i)
 
     def schedule(self, time: int, net: str, level: bool, cause: tuple[str, int] | None,
                  kind: str) -> int:
@@ -633,6 +647,9 @@ class _Engine:
             self._react(t, changed)
 
     def _react(self, t: int, changed: dict[str, bool]) -> None:
+        for net in [n for n in changed if n in self.gated_by]:
+            for i in self.gated_by[net]:
+                self._gate_tc(i, self.counters[i], t, self.last_change(net))
         for i, c in enumerate(self.counters):
             if c.reset_net is not None and c.reset_net in changed:
                 self._reset_changed(i, c, t)
@@ -675,12 +692,25 @@ class _Engine:
             return          # a carry-enabled unit holds its count while the unit below is not at 15
         new = c.next_state(old, self._reset_active(c))
         cause = self.last_change(c.clock_net)
+        self.state[i] = new
         for out in c.outputs:
+            if c.tc_follows_enable(out):
+                continue
             before, after = c.level(out, old), c.level(out, new)
             if before != after:
                 self.schedule(t + out.delay_ps, out.net, after, cause, "counter")
                 self.busy_until[i] = max(self.busy_until[i], t + out.delay_ps)
-        self.state[i] = new
+        self._gate_tc(i, c, t, cause)
+
+    def _gate_tc(self, i: int, c: CounterModel, t: int, cause: tuple[str, int] | None) -> None:
+        """A carry-enabled unit's TC: count 15 and its enable high, after the output delay."""
+        for out in c.outputs:
+            if not c.tc_follows_enable(out):
+                continue
+            level = c.level(out, self.state[i]) and bool(self.levels[c.enable_net])   # type: ignore[index]
+            if self.tc_levels.get((i, out.net), False) != level:
+                self.tc_levels[(i, out.net)] = level
+                self.schedule(t + out.delay_ps, out.net, level, cause, "counter")
 
     def _reset_changed(self, i: int, c: CounterModel, t: int) -> None:
         if c.reset_sync:
@@ -696,6 +726,8 @@ class _Engine:
             cause = self.last_change(c.reset_net)  # type: ignore[arg-type]
             for out in c.outputs:
                 self.schedule(t + c.reset_ps, out.net, c.level(out, 0), cause, "counter")
+                if c.tc_follows_enable(out):
+                    self.tc_levels[(i, out.net)] = False
         elif self.reset_started[i] is not None:
             self.reset_pulses.append((i, self.reset_started[i], t - self.reset_started[i]))
             self.reset_started[i] = None

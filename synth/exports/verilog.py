@@ -197,12 +197,19 @@ def _counter_block(plan: Any, c: CounterModel, names: dict[str, str], catalog: A
         step = f"({names[c.reset_net]} === {active}) ? {width}'d0 : {step}"
     lines.append(f"      {nxt} = {step};")
     for o in c.outputs:
+        if c.tc_follows_enable(o):
+            continue
         new, old = _output_value(c, o, nxt), _output_value(c, o, count)
         lines.append(f"      if ({new} != {old}) {names[o.net]} <= #({delay_text(o.delay_ps)}) {new};")
     lines.append(f"      {count} = {nxt};")
     lines.append("    end")
     lines.append(f"    {was} = {clock};")
     lines.append("  end")
+    for o in c.outputs:
+        if c.tc_follows_enable(o):      # TC = CET and count 15: it follows the enable between edges
+            enable = names[c.enable_net]    # type: ignore[index]
+            lines.append(f"  always @({count} or {enable}) {names[o.net]} <= #({delay_text(o.delay_ps)}) "
+                         f"{_output_value(c, o, count)} && {enable} === 1'b1;")
     if c.reset_net and not c.reset_sync:
         reset = names[c.reset_net]
         lines.append(f"  always @({reset}) if ({reset} === {active}) begin")
