@@ -23,6 +23,8 @@ Interface:
 - ``monte_carlo(ladder, tolerance, trials, seed) -> LadderStats``
 - ``choose_ladder_resistors(resistors, bits, *, r_out_driver=0.0) -> LadderChoice``
 - ``solve_linear(matrix, rhs) -> list[float]`` (Gaussian elimination)
+- ``with_tolerance(spread) -> Spread`` (an RC time's spread widened by
+  ``R_TOLERANCE`` and ``C_TOLERANCE``, the parts' own tolerances)
 - records: ``Spread``, ``RcOption``, ``DelayDesign``, ``OscillatorCorner``,
   ``OscillatorDesign``, ``CounterOscillatorDesign``, ``LadderElement``,
   ``Ladder``, ``Linearity``, ``WorstCase``, ``LadderStats``, ``LadderChoice``

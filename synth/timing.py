@@ -24,6 +24,8 @@ Interface:
 - ``coincident_edges(delivered, cycle)`` and ``edge_skews(trace, records)``.
 - ``remedies(glitch, plan, *, catalog=None, stock=None, spec=None) -> list[str]``;
   ``spare_input(gate)``.
+- ``rc_filter_ns(network, net)``: the shortest delay of an applied RC delay the
+  net is taken through (a runt shorter than it never reaches the output).
 - ``analyse(design, fix=())``: fills ``plan.glitches``, ``plan.coincident_edges``,
   ``design.trace`` and ``design.remedies`` (the plan command's timing step).
 - ``default_period_ns(...)``, ``nice_period_ns(ns)``.
@@ -50,6 +52,13 @@ The delay model (documented here once, used everywhere):
   the gate's delay is swallowed.  ``inertial=False`` gives transport delays,
   which show every pulse a real, faster part may pass: the glitch report
   uses both.
+- An applied RC delay (an ``rc`` gate, ``synth.rcdelay``) is a buffer with
+  separate rising and falling delays (``Network.delays``: typical, or the
+  longest of the spread at ``max``), always inertial: an RC swallows a pulse
+  shorter than its delay, whatever the model of the gates.
+- A carry-enabled 74HC161/163 (a synchronous cascade) counts only while its
+  enable is high at the edge, and its TC is count 15 AND that enable: it
+  follows the enable between edges, after the clock-to-output delay.
 - Times are kept in whole picoseconds; catalog delays are rounded to 1 ps.
 """
 
