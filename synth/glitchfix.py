@@ -479,11 +479,12 @@ def _synchronous(design: Any, exact: str) -> Any:
         raise NotApplicable("the bin has no synchronous counter (e.g. 4520, 74HC161, 74HC163)")
     parts = {t: n for t, n in stock.parts.items() if not _is_ripple(catalog.parts[t])}
     try:
-        cp = allocate(design.spec, dataclasses.replace(stock, parts=parts), catalog)
+        cp = allocate(design.spec, dataclasses.replace(stock, parts=parts), catalog, decoded_carry=True)
     except SynthError as exc:
         raise NotApplicable(f"the synchronous counters on hand cannot count the cycle: {exc.args[0]}") \
             from None
-    if sorted(c.part for c in cp.chips) == sorted(c.part for c in design.counter.chips):
+    if sorted(c.part for c in cp.chips) == sorted(c.part for c in design.counter.chips) \
+            and cp.synchronous == design.counter.synchronous:
         raise NotApplicable("without the ripple counters the allocation comes out the same")
     return _rebuild(design, counter_plan=cp, exact=exact)
 

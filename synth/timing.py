@@ -72,6 +72,7 @@ from dataclasses import dataclass, field
 from typing import Any
 
 from .analog import Spread, with_tolerance
+from .counter import carry_nets
 from .errors import InternalError
 from .harmless import check_slow_outputs, mark_harmless
 from .network import RAILS, Gate, Network, evaluate_gate
@@ -151,11 +152,12 @@ class CounterModel:
     outputs: list[CounterOutput]
     notes: list[str] = field(default_factory=list)
     enable_net: str | None = None   # a count enable on a carry net: counts only while it is high
+    enable_clocks: bool = False     # 4520/4518: ENABLE falling while CLOCK is low also counts
 
     def tc_follows_enable(self, output: CounterOutput) -> bool:
         """A carry-enabled unit's TC is its CET and count 15 (the enable is on CET too):
         it follows the enable net between clock edges."""
-        return output.kind == "tc" and self.enable_net is not None
+        return output.kind == "tc" and self.enable_net is not None and not self.enable_clocks
 
     def level(self, output: CounterOutput, state: int) -> bool:
         """The output's level in a counter state."""
@@ -243,6 +245,7 @@ def counter_models(counter_plan: Any, network: Network, catalog: Any, supply: fl
         raise ValueError(f"expected a corner in {CORNERS}, got {corner!r}")
     reset = getattr(counter_plan, "reset", None)
     board_reset = reset_net_of(counter_plan, network)
+    decoded_enables = carry_nets(counter_plan, network)
     models = []
     for index, cc in enumerate(counter_plan.chips):
         part = catalog.parts[cc.part]
@@ -279,6 +282,9 @@ def counter_models(counter_plan: Any, network: Network, catalog: Any, supply: fl
         if getattr(cc, "enable_pin", None) in (f.get("count_enable") or ()) and \
                 str(getattr(cc, "enable_net", "") or "VDD") not in RAILS:
             carry_in = str(cc.enable_net)
+        enable_clocks = False
+        if str(getattr(cc, "enable_net", "")) in decoded_enables:
+            carry_in, enable_clocks = decoded_enables[str(cc.enable_net)], True
         outputs = []
         synchronous = bool(f.get("synchronous", False))
         for pin, net in sorted(pins.items()):
@@ -313,7 +319,7 @@ def counter_models(counter_plan: Any, network: Network, catalog: Any, supply: fl
             synchronous=synchronous or f.get("mode") == "johnson",
             clock_net=str(cc.clock_net), edge=edge, reset_net=net, reset_high=reset_high,
             reset_sync=bool(reset_field.get("synchronous", False)), reset_ps=ps(t_reset),
-            outputs=outputs, notes=notes, enable_net=carry_in))
+            outputs=outputs, notes=notes, enable_net=carry_in, enable_clocks=enable_clocks))
     return models
 
 
@@ -660,6 +666,9 @@ class _Engine:
             for i in self.gated_by[net]:
                 self._gate_tc(i, self.counters[i], t, self.last_change(net))
         for i, c in enumerate(self.counters):
+            if c.enable_clocks and c.enable_net in changed and changed[c.enable_net] \
+                    and not self.levels[c.enable_net] and not self.levels[c.clock_net]:
+                self._count(i, c, t, by_enable=True)     # ENABLE fell while CLOCK was low: it counts
             if c.reset_net is not None and c.reset_net in changed:
                 self._reset_changed(i, c, t)
             if c.clock_net in changed:
@@ -690,17 +699,17 @@ class _Engine:
     def _reset_active(self, c: CounterModel) -> bool:
         return c.reset_net is not None and self.levels[c.reset_net] == c.reset_high
 
-    def _count(self, i: int, c: CounterModel, t: int) -> None:
+    def _count(self, i: int, c: CounterModel, t: int, by_enable: bool = False) -> None:
         if self._reset_active(c) and not c.reset_sync:
             self.warnings.append(f"{c.ref}: a counting edge at {_ns(t):.3f} ns came while the "
                                  "reset was still held; the count was lost")
             return
         old = self.state[i]
-        if c.enable_net is not None and not self.levels[c.enable_net] and \
+        if c.enable_net is not None and not by_enable and not self.levels[c.enable_net] and \
                 not (c.reset_sync and self._reset_active(c)):
             return          # a carry-enabled unit holds its count while the unit below is not at 15
         new = c.next_state(old, self._reset_active(c))
-        cause = self.last_change(c.clock_net)
+        cause = self.last_change(c.enable_net if by_enable else c.clock_net)   # type: ignore[arg-type]
         self.state[i] = new
         for out in c.outputs:
             if c.tc_follows_enable(out):

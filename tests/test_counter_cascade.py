@@ -183,3 +183,80 @@ def test_three_163_cosimulate(three_163, catalog, tmp_path):
         ours = [(timing.ps(t), "1" if v else "0") for t, v in trace.changes.get(net, [])
                 if half <= timing.ps(t) < end]
         assert [(t, v) for t, v in waves[ident] if half <= t < end] == ours, f"net {net}"
+
+
+# ---------------------------------------------------------------- 4520 / 4518: a decoded enable
+#
+# Outside references: Nexperia HEF4520B / Motorola MC14520B (shared/reference/cmos-4000b.md,
+# 4520 rows): each unit counts on CLOCK rising while ENABLE is HIGH, or on ENABLE falling while
+# CLOCK is LOW; the 4518 is the BCD twin (counts 0-9).  Cascading both units on one clock with
+# the upper ENABLE from a gate that decodes the lower unit at its last count (15, or 9 for BCD)
+# is the synchronous way (common practice; the data sheets show the ripple way, Q4 into ENABLE).
+
+SYNC = """\
+name: sync-4520
+cycle: {cycle}
+clock: {{frequency: 100 kHz}}
+signals:
+  frame:
+    high: [[16, 48]]
+"""
+
+
+def _sync_plan(tmp_path: Path, catalog, cycle: int, counter: str):
+    from synth.decode import derive
+    from synth.packing import pack
+    from synth.pipeline import map_decode, mapping_inputs
+
+    (tmp_path / "s.yaml").write_text(SYNC.format(cycle=cycle))
+    (tmp_path / "b.yaml").write_text(f"parts: {{'{counter}': 1, '4081': 2, '4082': 1, '4011': 2, '4069': 1}}\n")
+    spec = load_spec(tmp_path / "s.yaml")
+    stock = load_bin(tmp_path / "b.yaml", catalog, spec.supply)
+    cp = allocate(spec, stock, catalog, decoded_carry=True)
+    decode = derive(spec, cp)
+    library, polarity = mapping_inputs(spec, stock, catalog, cp, decode)
+    network = map_decode(decode, cp, library, polarity, "auto")
+    return spec, pack(network, cp, spec, stock, catalog)
+
+
+@pytest.mark.parametrize("cycle, counter, last", [(256, "4520", 15), (100, "4518", 9)])
+def test_decoded_enable_cascade_counts(cycle, counter, last, catalog, tmp_path):
+    spec, plan = _sync_plan(tmp_path, catalog, cycle, counter)
+    cp = plan.counter
+    assert cp.synchronous and [c.clock_net for c in cp.chips] == ["CLK", "CLK"]
+    carry, = cp.carries
+    enable = plan.network.signals[carry.name].net
+    assert plan.chip("U1").pins[cp.chips[1].enable_pin] == enable
+    trace = timing.simulate(cp, plan.network, catalog, plan.supply, cycles=1, clock_period_ns=10000.0)
+    assert [trace.count_value(k * 10000.0 + 9999.0) for k in range(cycle)] == list(range(cycle))
+    high = trace.sample(enable)[:cycle]
+    assert [t for t in range(cycle) if high[t]] == [t for t in range(cycle) if t % (last + 1) == last]
+    moves = {n: trace.window(n, last + 1) for n in trace.counter_nets}      # the entry to the carry
+    assert len({t for rows in moves.values() for t, _ in rows}) == 1
+
+
+def test_enable_falling_while_clock_is_low_counts(catalog, tmp_path):
+    """At a clock so fast that the enable decode falls after CLOCK has gone low again, the
+    4520's second counting mode steps the upper unit once more: the simulator shows it."""
+    _, plan = _sync_plan(tmp_path, catalog, 256, "4520")
+    trace = timing.simulate(plan.counter, plan.network, catalog, plan.supply, cycles=1,
+                            clock_period_ns=300.0)
+    counts = [trace.count_value(k * 300.0 + 299.0) for k in range(40)]
+    assert counts[:16] == list(range(16)) and counts[16:20] != [16, 17, 18, 19]
+
+
+@needs_iverilog
+@pytest.mark.parametrize("cycle, counter", [(256, "4520"), (100, "4518")])
+def test_decoded_enable_cascade_cosimulates(cycle, counter, catalog, tmp_path):
+    spec, plan = _sync_plan(tmp_path, catalog, cycle, counter)
+    trace = timing.simulate(plan.counter, plan.network, catalog, plan.supply, cycles=2,
+                            clock_period_ns=10000.0, gate_names=timing.gate_names_of(plan))
+    period = timing.ps(trace.period_ns)
+    samples, waves = run_plan(plan, catalog, period, 2 * cycle, tmp_path)
+    sig = spec.signals["frame"]
+    active = plan.signals["frame"]["polarity"] == "high"
+    assert samples["frame"] == [(t % cycle in sig.high) == active for t in range(2 * cycle)]
+    half = period // 2
+    for net, ident in verilog_names(plan, catalog).items():
+        ours = [(timing.ps(t), "1" if v else "0") for t, v in trace.changes.get(net, []) if timing.ps(t) >= half]
+        assert [(t, v) for t, v in waves[ident] if t >= half] == ours, f"net {net}"

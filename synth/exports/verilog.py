@@ -185,6 +185,9 @@ def _counter_block(plan: Any, c: CounterModel, names: dict[str, str], catalog: A
     condition = f"{was} === {before} && {clock} === {now}"
     if c.reset_net and not c.reset_sync:
         condition += f" && {names[c.reset_net]} !== {active}"
+    if c.enable_clocks:
+        lines.append("  // its ENABLE falling while CLOCK is low would also count (4520/4518); the timing "
+                     "check keeps the enable decode settling while CLOCK is high, so this model leaves it out")
     if c.enable_net:        # a synchronous cascade: count only while the unit below's TC is high
         enabled = f"{names[c.enable_net]} === 1'b1"
         if c.reset_net and c.reset_sync:
