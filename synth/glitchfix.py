@@ -468,7 +468,10 @@ def _is_ripple(part: Any) -> bool:
 
 
 def _synchronous(design: Any, exact: str) -> Any:
-    """The counter re-allocated from the bin's synchronous (or Johnson) counters only."""
+    """The counter re-allocated from the bin's synchronous (or Johnson) counters only:
+    first with 4520/4518 units cascaded through a decoded enable (every output on one
+    edge; the decode takes gates), then, when the bin cannot map that, as allocated
+    without it."""
     from .counter import allocate
     from .timing import _synchronous_parts
 
@@ -478,15 +481,21 @@ def _synchronous(design: Any, exact: str) -> Any:
     if not _synchronous_parts(catalog, stock):
         raise NotApplicable("the bin has no synchronous counter (e.g. 4520, 74HC161, 74HC163)")
     parts = {t: n for t, n in stock.parts.items() if not _is_ripple(catalog.parts[t])}
-    try:
-        cp = allocate(design.spec, dataclasses.replace(stock, parts=parts), catalog, decoded_carry=True)
-    except SynthError as exc:
-        raise NotApplicable(f"the synchronous counters on hand cannot count the cycle: {exc.args[0]}") \
-            from None
-    if sorted(c.part for c in cp.chips) == sorted(c.part for c in design.counter.chips) \
-            and cp.synchronous == design.counter.synchronous:
-        raise NotApplicable("without the ripple counters the allocation comes out the same")
-    return _rebuild(design, counter_plan=cp, exact=exact)
+    why = "without the ripple counters the allocation comes out the same"
+    for decoded in (True, False):
+        try:
+            cp = allocate(design.spec, dataclasses.replace(stock, parts=parts), catalog, decoded_carry=decoded)
+        except SynthError as exc:
+            why = f"the synchronous counters on hand cannot count the cycle: {exc.args[0]}"
+            continue
+        if sorted(c.part for c in cp.chips) == sorted(c.part for c in design.counter.chips) \
+                and cp.synchronous == design.counter.synchronous:
+            continue
+        try:
+            return _rebuild(design, counter_plan=cp, exact=exact)
+        except SynthError as exc:
+            why = str(exc.args[0] if exc.args else exc)
+    raise NotApplicable(why)
 
 
 # ---------------------------------------------------------------- (c) gating with the clock
