@@ -2,13 +2,17 @@
 
 Interface:
 
-- ``apply_fixes(design, fix, *, exact='auto') -> Design``: with ``'glitches'``
-  in ``fix``, tries the remedies for every signal that ``timing.analyse``
-  reported glitches on and returns the design that keeps the cheapest one
-  that removes them (the plan passes the tick-by-tick self-check again and
-  is re-analysed); always sets ``plan.rc_offers`` and ``plan.strobed``
-  (signal -> how it is gated with the clock); sets ``plan.timing_fixes`` when
-  asked to fix: one record per glitching signal with ``glitches_before``,
+- ``apply_fixes(design, fix, replanner) -> (Design, FixReport)``: with
+  ``'glitches'`` in ``fix``, tries the remedies for every signal that the
+  timing step reported glitches on and returns the design that keeps the
+  cheapest one that removes them (the plan passes the tick-by-tick self-check
+  again and is re-analysed).  Every remedy that changes the counter, the
+  decode or the network asks ``replanner`` (the sequencer, ``synth.flow``) to
+  run the stages again with that input changed, at the user's ``--exact`` and
+  ``--effort``; nothing here calls the stages in its own order.  The
+  ``model.FixReport`` always holds ``rc_offers`` and ``strobed`` (signal ->
+  how it is gated with the clock), and ``timing_fixes`` when asked to fix:
+  one record per glitching signal with ``glitches_before``,
   ``remedies_applied``, ``remedy`` (the last one, or ``note``), ``applied``,
   ``cost`` ({chips, gates} added), ``glitches_after`` (re-analysed),
   ``detail`` and ``tried`` (every remedy's outcome, "not applicable: why").
@@ -56,6 +60,7 @@ from collections.abc import Iterable
 from typing import Any
 
 from .errors import ShortError, SynthError
+from .model import Design, FixReport, Replanner
 from .network import RAILS, Gate, Network, SignalOut
 
 __all__ = ["apply_fixes", "rc_offers", "strobe_network", "FIXES", "NotApplicable"]
@@ -73,44 +78,44 @@ class NotApplicable(Exception):
 
 # ---------------------------------------------------------------- the fixing loop
 
-def apply_fixes(design: Any, fix: Iterable[str], *, exact: str = "auto") -> Any:
-    """The design with the glitch remedies applied (see the module text)."""
+def apply_fixes(design: Design, fix: Iterable[str], replanner: Replanner) -> tuple[Design, FixReport]:
+    """The design with the glitch remedies applied, and what they did (see the module text)."""
     fix = set(fix)
     widths = _widest(design.plan.glitches)
     if "glitches" in fix:
-        design = _fix_glitches(design, exact)
+        design, fixes = _fix_glitches(design, replanner)
     else:
-        design = _steady_signals(design, exact)
-    if not hasattr(design.plan, "strobed"):
-        design.plan.strobed = {}
-    design.plan.rc_offers = rc_offers(design, widths)
-    return design
+        design, fixes = _steady_signals(design, replanner)
+    plan = dataclasses.replace(design.plan, timing_fixes=fixes)
+    design = dataclasses.replace(design, plan=plan)
+    return design, FixReport(dict(plan.strobed), tuple(rc_offers(design, widths)),
+                             tuple(fixes) if fixes is not None else None, dict(plan.strobe_skipped),
+                             dict(plan.registered))
 
 
-def _steady_signals(design: Any, exact: str) -> Any:
+def _steady_signals(design: Design, replanner: Replanner) -> tuple[Design, list[dict] | None]:
     """Signals the spec marks ``steady: true`` that glitch are registered without ``--fix``;
     a bin that cannot register them is short (exit 3), never a silent glitch."""
     spec = design.spec
     wanted = sorted(s for s in _by_signal(design.plan.glitches)
                     if getattr(spec.signals.get(s), "steady", None))
     if not wanted:
-        return design
+        return design, design.plan.timing_fixes
     before = _by_signal(design.plan.glitches)
     try:
-        new = _register(design, wanted, exact)
+        new = _register(design, wanted, replanner)
     except NotApplicable as exc:
         raise ShortError(f"{', '.join(wanted)} must hold a steady level (steady: true) but glitch; "
                          f"registering failed: {exc}", hint="add a 74HC74 or 74HC174 (4013 or 40174 "
                          "at 4000B supplies), or drop steady: true") from None
     after = _by_signal(new.plan.glitches)
-    new.plan.timing_fixes = [
+    return new, [
         {"signal": s, "glitches_before": before[s], "tried": [], "glitches_after": after.get(s, []),
          "remedies_applied": ["registered"], "remedy": "registered", "applied": True,
          "cost": {"chips": _chips(new) - _chips(design), "gates": _gates(new) - _gates(design)},
          "cost_shared": "the decode was re-derived for the early signals: its change counts for every signal",
          "detail": new.plan.registered[s]["detail"], "asked_by": "steady: true"}
         for s in wanted]
-    return new
 
 
 def _widest(glitch_records) -> dict[str, float]:
@@ -122,14 +127,13 @@ def _widest(glitch_records) -> dict[str, float]:
     return out
 
 
-def _fix_glitches(design: Any, exact: str) -> Any:
+def _fix_glitches(design: Design, replanner: Replanner) -> tuple[Design, list[dict]]:
     before = _by_signal(design.plan.glitches)
     records = {s: {"signal": s, "glitches_before": ticks, "tried": []} for s, ticks in before.items()}
     if not before:
-        design.plan.timing_fixes = []
-        return design
+        return design, []
     current, fixed_by = design, {}
-    choice = _attempt(records, "decode_choice", lambda: _decode_choice(current, exact), current)
+    choice = _attempt(records, "decode_choice", lambda: _decode_choice(current, replanner), current)
     if choice is not None and _chips(choice) <= _chips(current) and \
             _count(choice) < _count(current):
         _credit(fixed_by, current, choice, "decode_choice")
@@ -138,14 +142,14 @@ def _fix_glitches(design: Any, exact: str) -> Any:
         _note_all(records, "decode_choice", "re-derived, but it removed no glitch without a new chip")
     remaining = sorted(_by_signal(current.plan.glitches))
     if remaining:
-        best = _best_plan(records, current, remaining, exact)
+        best = _best_plan(records, current, remaining, replanner)
         if best is not None and _key(best[-1][1], current.spec) < _key(current, current.spec):
             previous = current
             for name, step in best:
                 _credit(fixed_by, previous, step, name, only_strobed=name == "clock_gating")
                 previous = step
             current = best[-1][1]
-    _finish_records(records, fixed_by, design, current)
+    fixes = _finish_records(records, fixed_by, design, current)
     unsteady = sorted(s for s in _by_signal(current.plan.glitches)
                       if getattr(current.spec.signals.get(s), "steady", None))
     if unsteady:
@@ -155,7 +159,7 @@ def _fix_glitches(design: Any, exact: str) -> Any:
                          f"glitch after every remedy the bin allows ({tried or 'none removed them'})",
                          hint="add a 74HC74 or 74HC174 (4013 or 40174 at 4000B supplies), or drop "
                               "steady: true")
-    return current
+    return current, fixes
 
 
 def _key(design: Any, spec: Any) -> tuple:
@@ -164,13 +168,13 @@ def _key(design: Any, spec: Any) -> tuple:
     from .registers import pulse_per_tick_ok
 
     left = _by_signal(design.plan.glitches)
-    strobed = getattr(design.plan, "strobed", None) or {}
+    strobed = design.plan.strobed
     must_hold = sum(len(t) for s, t in left.items() if not pulse_per_tick_ok(spec, s))
     chopped = sum(1 for s in strobed if not pulse_per_tick_ok(spec, s))
     return (must_hold + chopped, _count(design), _chips(design), _gates(design))
 
 
-def _best_plan(records: dict, current: Any, remaining: list[str], exact: str):
+def _best_plan(records: dict, current: Design, remaining: list[str], replanner: Replanner):
     """The remedies compared per signal: a signal for which a pulse per tick is acceptable
     (``registers.pulse_per_tick_ok``) may be gated with the clock; every other one is
     registered in a flip-flop of the bin; a synchronous counter is tried first where
@@ -191,20 +195,20 @@ def _best_plan(records: dict, current: Any, remaining: list[str], exact: str):
         hold = [s for s in left if s not in gateable]
         gate = [s for s in left if s in gateable]
         if hold:
-            reg = _attempt(records, "registered", lambda: _register(base, hold, exact), base)
+            reg = _attempt(records, "registered", lambda: _register(base, hold, replanner), base)
             if reg is not None:
                 steps.append(("registered", reg))
                 base = reg
                 gate = [s for s in gate if s in _by_signal(reg.plan.glitches)]
         if gate:
-            gated = _attempt(records, "clock_gating", lambda: _strobe_all(base, gate), base)
+            gated = _attempt(records, "clock_gating", lambda: _strobe_all(base, gate, replanner), base)
             if gated is not None:
                 steps.append(("clock_gating", gated))
         if steps:
             candidates.append(steps)
 
     extend(current, [], remaining)
-    sync = _attempt(records, "synchronous_counter", lambda: _synchronous(current, exact), current)
+    sync = _attempt(records, "synchronous_counter", lambda: _synchronous(current, replanner), current)
     if sync is not None:
         extend(sync, [("synchronous_counter", sync)], sorted(_by_signal(sync.plan.glitches)))
     if not candidates:
@@ -242,7 +246,7 @@ def _note_all(records: dict, remedy: str, text: str) -> None:
 def _credit(fixed_by: dict, old: Any, new: Any, remedy: str, only_strobed: bool = False) -> None:
     """Signals whose glitches this step reduced are credited to the remedy (in order)."""
     was, now = _by_signal(old.plan.glitches), _by_signal(new.plan.glitches)
-    strobed = getattr(new.plan, "strobed", {}) or {}
+    strobed = new.plan.strobed
     for signal, ticks in was.items():
         if only_strobed and signal not in strobed:
             continue
@@ -250,10 +254,11 @@ def _credit(fixed_by: dict, old: Any, new: Any, remedy: str, only_strobed: bool 
             fixed_by.setdefault(signal, []).append((remedy, old, new))
 
 
-def _finish_records(records: dict, fixed_by: dict, start: Any, final: Any) -> None:
+def _finish_records(records: dict, fixed_by: dict, start: Design, final: Design) -> list[dict]:
+    """The per-signal records of what was tried and applied, finished against ``final``."""
     after = _by_signal(final.plan.glitches)
-    strobed = getattr(final.plan, "strobed", {}) or {}
-    skipped = getattr(final.plan, "strobe_skipped", {}) or {}
+    strobed = final.plan.strobed
+    skipped = final.plan.strobe_skipped
     for signal, rec in records.items():
         if signal in skipped:
             rec["tried"].append({"remedy": "clock_gating", "result": f"not applicable to {signal}: "
@@ -265,7 +270,7 @@ def _finish_records(records: dict, fixed_by: dict, start: Any, final: Any) -> No
         rec["applied"] = bool(steps)
         chips = gates = 0
         details = []
-        registered = getattr(final.plan, "registered", None) or {}
+        registered = final.plan.registered
         for remedy, old, new in steps:
             if remedy == "clock_gating" and signal in strobed:
                 chips += strobed[signal]["cost"]["chips"]
@@ -286,7 +291,7 @@ def _finish_records(records: dict, fixed_by: dict, start: Any, final: Any) -> No
         rec["detail"] = "; then ".join(details) if details else _note_text(final, signal)
         if rec["glitches_after"] and steps:
             rec["note"] = _note_text(final, signal)
-    final.plan.timing_fixes = [records[s] for s in sorted(records)]
+    return [records[s] for s in sorted(records)]
 
 
 def _pulse_reason(spec: Any, signal: str) -> str:
@@ -341,41 +346,16 @@ def _gates(design: Any) -> int:
     return len(design.plan.network.gates)
 
 
-# ---------------------------------------------------------------- rebuilding a design
-
-def _rebuild(design: Any, *, counter_plan: Any = None, network: Network | None = None,
-             strobed: dict | None = None, exact: str = "auto", decode: Any = None) -> Any:
-    """The pipeline's stages from the counter plan on (or from packing on, given a
-    network), then the timing analysis; raises what the stages raise."""
-    from .packing import pack
-    from .pipeline import Design, _analog_parts
-    from .timing import analyse
-
-    spec, stock, catalog = design.spec, design.stock, design.catalog
-    cp = counter_plan if counter_plan is not None else design.counter
-    decode = decode if decode is not None else design.decode
-    if network is None:
-        decode, network = _decode_and_map(spec, stock, catalog, cp, exact)
-    plan = pack(network, cp, spec, stock, catalog)
-    plan.warnings[:0] = list(stock.warnings) + list(getattr(cp, "warnings", []))
-    _analog_parts(plan, spec, stock, catalog)
-    plan.strobed = dict(strobed or {})
-    plan.registered = dict(getattr(design.plan, "registered", None) or {})
-    new = Design(plan, spec, stock, catalog, cp, decode, network)
-    analyse(new)
-    return new
-
-
 # ---------------------------------------------------------------- (d) registering
 
-def _register(design: Any, signals, exact: str) -> Any:
+def _register(design: Design, signals, replanner: Replanner) -> Design:
     """The design with ``signals`` decoded one tick early and clocked into D flip-flops
     (``synth.registers``); packed, self-checked and re-analysed like the others."""
     from .registers import prepare_registering, with_flipflops
 
-    if getattr(design.plan, "strobed", None):
+    if design.plan.strobed:
         raise NotApplicable("the plan already gates signals with the clock")
-    names = [s for s in signals if s not in (getattr(design.plan, "registered", None) or {})]
+    names = [s for s in signals if s not in design.plan.registered]
     if not names:
         raise NotApplicable("already registered")
     try:
@@ -383,14 +363,13 @@ def _register(design: Any, signals, exact: str) -> Any:
     except ShortError as exc:
         raise NotApplicable(exc.args[0] if exc.args else str(exc)) from None
     try:
-        decode, network = _decode_and_map(reg.spec, design.stock, design.catalog, reg.counter, exact)
+        decode, network = replanner.decode_and_map(reg.spec, design.stock, design.catalog, reg.counter)
         network = with_flipflops(network, reg, design.catalog)
-        new = _rebuild(design, counter_plan=reg.counter, network=network, decode=decode, exact=exact)
+        new = replanner.replan(design, counter_plan=reg.counter, network=network, decode=decode)
     except ShortError as exc:
         raise NotApplicable(f"no room on the board or in the bin ({exc.args[0]})") from None
-    new.plan.registered = {**(getattr(design.plan, "registered", None) or {}),
-                           **register_records(new.plan, reg)}
-    return new
+    registered = {**design.plan.registered, **register_records(new.plan, reg)}
+    return dataclasses.replace(new, plan=dataclasses.replace(new.plan, registered=registered))
 
 
 def register_records(plan: Any, reg: Any) -> dict[str, dict]:
@@ -421,18 +400,9 @@ def register_records(plan: Any, reg: Any) -> dict[str, dict]:
     return out
 
 
-def _decode_and_map(spec, stock, catalog, cp, exact: str):
-    from .decode import derive
-    from .pipeline import map_decode, mapping_inputs
-
-    decode = derive(spec, cp, exact=exact)
-    library, polarity = mapping_inputs(spec, stock, catalog, cp, decode)
-    return decode, map_decode(decode, cp, library, polarity, exact)
-
-
 # ---------------------------------------------------------------- (a) another decode choice
 
-def _decode_choice(design: Any, exact: str) -> Any:
+def _decode_choice(design: Design, replanner: Replanner) -> Design:
     """Re-derive with the glitching entries' transient states passed at the steady level."""
     from .timing import _entry_sequence, _var_roles
 
@@ -456,8 +426,8 @@ def _decode_choice(design: Any, exact: str) -> Any:
     if not usable:
         raise NotApplicable("no transient state of a glitching entry is a don't-care of its signal "
                             "(each is a count the signal is specified on)")
-    return _rebuild(design, counter_plan=dataclasses.replace(cp, passing=passing),
-                    strobed=getattr(design.plan, "strobed", None), exact=exact)
+    return replanner.replan(design, counter_plan=dataclasses.replace(cp, passing=passing),
+                            strobed=design.plan.strobed)
 
 
 # ---------------------------------------------------------------- (b) a synchronous counter
@@ -467,7 +437,7 @@ def _is_ripple(part: Any) -> bool:
                and u.fields.get("mode") != "johnson" for u in part.units)
 
 
-def _synchronous(design: Any, exact: str) -> Any:
+def _synchronous(design: Design, replanner: Replanner) -> Design:
     """The counter re-allocated from the bin's synchronous (or Johnson) counters only:
     first with 4520/4518 units cascaded through a decoded enable (every output on one
     edge; the decode takes gates), then, when the bin cannot map that, as allocated
@@ -492,7 +462,7 @@ def _synchronous(design: Any, exact: str) -> Any:
                 and cp.synchronous == design.counter.synchronous:
             continue
         try:
-            return _rebuild(design, counter_plan=cp, exact=exact)
+            return replanner.replan(design, counter_plan=cp)
         except SynthError as exc:
             why = str(exc.args[0] if exc.args else exc)
     raise NotApplicable(why)
@@ -500,10 +470,10 @@ def _synchronous(design: Any, exact: str) -> Any:
 
 # ---------------------------------------------------------------- (c) gating with the clock
 
-def _strobe_all(design: Any, signals: list[str]) -> Any:
+def _strobe_all(design: Design, signals: list[str], replanner: Replanner) -> Design:
     """Gate each signal in turn; a signal that cannot be gated keeps its decode."""
     network = design.network
-    strobed = dict(getattr(design.plan, "strobed", {}) or {})
+    strobed = dict(design.plan.strobed)
     plan, applied = design.plan, 0
     skipped = []
     for signal in signals:
@@ -512,7 +482,7 @@ def _strobe_all(design: Any, signals: list[str]) -> Any:
         try:
             new_net, info = strobe_network(network, signal, plan, design.stock, design.catalog,
                                            design.spec)
-            new_plan = _pack(design, new_net)
+            new_plan = _pack(design, new_net, replanner)
         except NotApplicable as exc:
             skipped.append(f"{signal}: {exc}")
             continue
@@ -527,20 +497,15 @@ def _strobe_all(design: Any, signals: list[str]) -> Any:
         failure = NotApplicable("; ".join(skipped) or "no signal to gate")
         failure.per_signal = dict(item.split(": ", 1) for item in skipped)
         raise failure
-    new = _rebuild(design, network=network, strobed=strobed)
-    new.plan.strobe_skipped = dict(s.split(": ", 1) for s in skipped)
-    return new
+    new = replanner.replan(design, network=network, strobed=strobed)
+    skipped_by_signal = dict(s.split(": ", 1) for s in skipped)
+    return dataclasses.replace(new, plan=dataclasses.replace(new.plan, strobe_skipped=skipped_by_signal))
 
 
-def _pack(design: Any, network: Network):
-    """Re-pack a changed network; the oscillator and staircases go on it as in the pipeline."""
-    from .packing import pack
-    from .pipeline import _analog_parts
-
+def _pack(design: Design, network: Network, replanner: Replanner):
+    """Re-pack a changed network; the oscillator and staircases go on it as in the plan."""
     try:
-        plan = pack(network, design.counter, design.spec, design.stock, design.catalog)
-        _analog_parts(plan, design.spec, design.stock, design.catalog)
-        return plan
+        return replanner.pack(design, network)
     except ShortError as exc:
         raise NotApplicable(f"no gate of the kind left in the bin ({exc.args[0]})") from None
 

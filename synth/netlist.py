@@ -117,6 +117,14 @@ class Plan:
     ladders: dict = field(default_factory=dict)   # staircase.LadderPlan by net name
     power_on_reset: Any = None      # poweron.PowerOnReset when the spec asks for one
     rc_delays: list = field(default_factory=list)   # rcdelay.AppliedDelay, each RC delay built in
+    # the timing step's results (timing.TimingReport) and the remedies' (glitchfix.FixReport)
+    register_checks: list[dict] = field(default_factory=list)
+    pulse_widths: list[dict] = field(default_factory=list)
+    strobed: dict[str, dict] = field(default_factory=dict)        # signal -> how it is gated with the clock
+    strobe_skipped: dict[str, str] = field(default_factory=dict)  # signal -> why it could not be gated
+    registered: dict[str, dict] = field(default_factory=dict)     # signal -> its flip-flop
+    rc_offers: list[dict] = field(default_factory=list)
+    timing_fixes: list[dict] | None = None   # None: --fix glitches not asked (nor steady: true)
 
     def passive(self, ref: str) -> Passive:
         for item in self.passives:

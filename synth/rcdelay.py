@@ -2,12 +2,12 @@
 
 Interface:
 
-- ``apply_delays(design, fix) -> Design``: every signal the spec gives a
-  ``delay:`` and, with ``races`` in ``fix``, every race the timing step found
-  (one signal selects a switch that routes the other; the offer in
+- ``apply_delays(design, fix, retime) -> Design``: every signal the spec gives
+  a ``delay:`` and, with ``races`` in ``fix``, every race the timing step
+  found (one signal selects a switch that routes the other; the offer in
   ``plan.rc_offers`` names the signal that settles later) gets its delay
-  built into the plan, which is then checked again (nets, the tick-by-tick
-  self-check, the timing analysis).
+  built into a copy of the plan, which is then checked again (nets, the
+  tick-by-tick self-check, and ``retime``: the sequencer's timing step).
 - record ``AppliedDelay`` (``plan.rc_delays``; JSON ``rc_delays``).
 
 The circuit (common practice for a CMOS delay): the decode's net drives
@@ -45,7 +45,6 @@ from .errors import ShortError, SpecError, SynthError
 from .network import Gate, RcTiming, SignalOut
 from .netlist import Passive, check_nets, self_check
 from .packing import refresh, rewire_pin
-from .timing import analyse
 from .units import format_si
 
 __all__ = ["AppliedDelay", "apply_delays", "FIX"]
@@ -82,13 +81,14 @@ class AppliedDelay:
                 "formula": self.formula, "passives": list(self.passives), "warnings": list(self.warnings)}
 
 
-def apply_delays(design, fix) -> object:
-    """The design with the asked-for RC delays built in and checked again (see the module text)."""
+def apply_delays(design, fix, retime):
+    """The design with the asked-for RC delays built into a new plan, checked again
+    (see the module text); the same design when none is asked for."""
     wanted = _wanted(design, set(fix))
-    plan = design.plan
-    plan.rc_delays = []
     if not wanted:
         return design
+    plan = _copy(design.plan)
+    design = dataclasses.replace(design, plan=plan)
     period_ns = _period_ns(design)
     applied = []
     for name, (seconds, asked_by) in sorted(wanted.items()):
@@ -98,12 +98,22 @@ def apply_delays(design, fix) -> object:
     self_check(plan, design.spec)
     plan.rc_delays = applied
     plan.warnings += [f"RC delay on {d.signal}: {w}" for d in applied for w in d.warnings]
-    for offer in getattr(plan, "rc_offers", None) or []:
-        if offer.get("delayed") in wanted:
-            offer["applied"] = True
-    analyse(design)
-    _separated_races(plan, applied)
+    plan.rc_offers = [{**o, "applied": True} if o.get("delayed") in wanted else o for o in plan.rc_offers]
+    design = retime(dataclasses.replace(design, network=plan.network))
+    design.plan.warnings[:] = list(dict.fromkeys(design.plan.warnings))   # the timing step ran twice
+    _separated_races(design.plan, applied)
     return design
+
+
+def _copy(plan):
+    """The plan with every part this module changes copied (chips' pins, notes and units,
+    passives, signals, switches, external nets, warnings): the old record stays as it was."""
+    chips = [dataclasses.replace(c, pins=dict(c.pins), notes=dict(c.notes), units_used=dict(c.units_used))
+             for c in plan.chips]
+    return dataclasses.replace(
+        plan, chips=chips, passives=list(plan.passives), signals={k: dict(v) for k, v in plan.signals.items()},
+        switches={k: dict(v) for k, v in plan.switches.items()}, external=dict(plan.external),
+        warnings=list(plan.warnings), parts=dict(plan.parts), rc_offers=list(plan.rc_offers))
 
 
 def _separated_races(plan, applied: list[AppliedDelay]) -> None:
@@ -133,7 +143,7 @@ def _wanted(design, fix: set[str]) -> dict[str, tuple[float, str]]:
     wanted = {name: (s.delay_s, f"delay: {format_si(s.delay_s, 's')}")
               for name, s in spec.signals.items() if s.delay_s}
     if FIX in fix:
-        for offer in getattr(design.plan, "rc_offers", None) or []:
+        for offer in design.plan.rc_offers:
             if offer.get("problem") == "race" and offer.get("applicable") and offer["delayed"] not in wanted:
                 wanted[offer["delayed"]] = (offer["wanted_ns"] * 1e-9, "--fix races")
     return wanted

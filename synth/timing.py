@@ -26,8 +26,10 @@ Interface:
   ``spare_input(gate)``.
 - ``rc_filter_ns(network, net)``: the shortest delay of an applied RC delay the
   net is taken through (a runt shorter than it never reaches the output).
-- ``analyse(design, fix=())``: fills ``plan.glitches``, ``plan.coincident_edges``,
-  ``design.trace`` and ``design.remedies`` (the plan command's timing step).
+- ``timing_report(design) -> TimingReport``: the plan command's timing step,
+  pure (glitches, coincident edges, register and pulse-width checks, warnings,
+  the trace, remedies; the plan it reads is left unchanged);
+  ``analyse(design, fix=())`` writes the same into a stand-in design in place.
 - ``default_period_ns(...)``, ``nice_period_ns(ns)``.
 
 The delay model (documented here once, used everywhere):
@@ -65,6 +67,7 @@ The delay model (documented here once, used everywhere):
 from __future__ import annotations
 
 import bisect
+import dataclasses
 import heapq
 import math
 from collections.abc import Callable, Mapping, Sequence
@@ -81,7 +84,7 @@ __all__ = [
     "simulate", "Trace", "ResetPulse", "counter_models", "gate_models", "gate_names_of",
     "reset_net_of", "CounterModel", "CounterOutput", "GateModel", "glitches", "Glitch",
     "settle_mismatches", "merge_glitches", "ripple_hazards", "RippleHazard", "coincident_edges",
-    "edge_skews", "remedies", "spare_input", "analyse", "default_period_ns", "nice_period_ns",
+    "edge_skews", "remedies", "spare_input", "analyse", "timing_report", "TimingReport", "default_period_ns", "nice_period_ns",
     "ps", "expected_from_delivered", "registered_signals", "register_start_levels",
     "flipflop_requirement_ns", "register_checks", "pulse_width_checks", "pulse_warning_lines", "mark_races",
     "rc_filter_ns",
@@ -1611,21 +1614,48 @@ def _period_of(spec: Any) -> float | None:
     return 1e9 / freq if freq else None
 
 
-def analyse(design: Any, fix: Sequence[str] | set[str] = ()) -> None:
-    """Simulate the plan at typical and worst-case delays and fill in the timing results.
+@dataclass(frozen=True)
+class TimingReport:
+    """What the timing analysis found; the plan it read is left as it was.
 
-    Sets ``plan.glitches`` (``Glitch.as_json`` records: what the transport
-    and inertial models show at both corners, and the state-based ripple
-    analysis), ``plan.coincident_edges`` (with which side settles first),
-    adds warnings (a clock too fast, reset pulse widths), and sets
-    ``design.trace`` (typical delays, inertial, two cycles: what the VCD and
-    SVG show) and ``design.remedies`` ({'text': [...], 'by_glitch':
-    {(signal, tick): [...]}, 'glitches': [Glitch]}).  ``fix`` is accepted for
-    the callers' sake: applying remedies is ``synth.glitchfix``'s job.
+    ``glitches`` are ``Glitch.as_json`` records, ``coincident_edges`` the
+    pairs with ``relation`` and ``race``, ``warnings`` the plan's warnings
+    with the timing ones added (in order), ``trace`` the typical-delay
+    inertial simulation of two cycles (what the VCD and SVG show) and
+    ``remedies`` {'text': [...], 'by_glitch': {(signal, tick): [...]},
+    'glitches': [Glitch]}.
+    """
+
+    glitches: tuple[dict, ...]
+    coincident_edges: tuple[dict, ...]
+    register_checks: tuple[dict, ...]
+    pulse_widths: tuple[dict, ...]
+    warnings: tuple[str, ...]
+    trace: Trace
+    remedies: dict[str, Any]
+
+    def apply_to(self, plan: Any) -> None:
+        """Copy the results into a plan (the sequencer builds a new plan instead; kept for
+        stand-in plans in tests)."""
+        plan.glitches = list(self.glitches)
+        plan.coincident_edges = list(self.coincident_edges)
+        plan.register_checks = list(self.register_checks)
+        plan.pulse_widths = list(self.pulse_widths)
+        plan.warnings[:] = list(self.warnings)
+
+
+def timing_report(design: Any) -> TimingReport:
+    """Simulate the plan at typical and worst-case delays; the results, nothing changed.
+
+    Glitches (what the transport and inertial models show at both corners,
+    and the state-based ripple analysis), coincident edges (with which side
+    settles first), warnings (a clock too fast, setup / hold of registered
+    outputs, runt clock and reset pulses) and the remedies per glitch.
     """
     from .netlist import delivered_sets, simulate_ticks
 
-    plan, catalog = design.plan, design.catalog
+    catalog = design.catalog
+    plan = dataclasses.replace(design.plan, warnings=list(design.plan.warnings))   # read, never written
     spec = getattr(design, "spec", None)
     period = _period_of(spec)
     run = dict(catalog=catalog, supply=plan.supply, clock_period_ns=period, cycles=2,
@@ -1665,7 +1695,6 @@ def analyse(design: Any, fix: Sequence[str] | set[str] = ()) -> None:
     for rec in plan.pulse_widths:
         plan.warnings += pulse_warning_lines(rec)
     plan.warnings += [w for w in dict.fromkeys(typ.warnings + worst.warnings) if w not in plan.warnings]
-    design.trace = typ
     stock = getattr(design, "stock", None)
     by_glitch = {(g.signal, g.at_tick): remedies(g, plan, catalog=catalog, stock=stock, spec=spec)
                  for g in found if (g.signal, g.at_tick) not in harmless}
@@ -1675,7 +1704,22 @@ def analyse(design: Any, fix: Sequence[str] | set[str] = ()) -> None:
             entry = f"{g.signal} tick {g.at_tick}: {line}"
             if not line.startswith("note:") and entry not in text:
                 text.append(entry)
-    design.remedies = {"text": text, "by_glitch": by_glitch, "glitches": found}
+    return TimingReport(tuple(plan.glitches), tuple(plan.coincident_edges), tuple(plan.register_checks),
+                        tuple(plan.pulse_widths), tuple(plan.warnings), typ,
+                        {"text": text, "by_glitch": by_glitch, "glitches": found})
+
+
+
+
+def analyse(design: Any, fix: Sequence[str] | set[str] = ()) -> None:
+    """``timing_report`` written into ``design.plan`` and ``design`` (``trace``,
+    ``remedies``) in place, for stand-in designs in tests; the plan command's
+    sequencer (``synth.flow``) uses ``timing_report`` and builds new records.
+    ``fix`` is accepted for the callers' sake."""
+    report = timing_report(design)
+    report.apply_to(design.plan)
+    design.trace = report.trace
+    design.remedies = report.remedies
 
 
 def pulse_warning_lines(rec: dict) -> list[str]:

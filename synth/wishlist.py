@@ -37,6 +37,7 @@ from typing import Any
 
 from .effort import Effort, effort_named
 from .errors import SafetyCapError, SynthError
+from .stages import async_reset_names, mapping_inputs
 
 LOGIC_CATEGORIES = ("gate", "inverter", "mux", "decoder")
 
@@ -241,8 +242,6 @@ def start_search(decode: Any, counter_plan: Any, library: Any, polarity: dict, s
 
 def bin_lacks(design, *, effort: str | Effort | None = None) -> BinLacks:
     """The same search for a finished design, run here and now (tests, scripts)."""
-    from .pipeline import async_reset_names
-
     library, polarity = _mapping_inputs(design)
     search = start_search(design.decode, design.counter, library, polarity, design.stock,
                           design.catalog, glitch_free=async_reset_names(design.counter),
@@ -273,8 +272,6 @@ def _judge(design: Any, inputs: _Inputs, results, seconds: float) -> BinLacks:
 
 def _mapping_inputs(design):
     """The library and polarities the plan's mapper saw (same reservations)."""
-    from .pipeline import mapping_inputs
-
     return mapping_inputs(design.spec, design.stock, design.catalog, design.counter, design.decode)
 
 

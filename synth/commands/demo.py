@@ -49,7 +49,7 @@ def check_folder(text: str) -> Path:
 
 def run(args: argparse.Namespace) -> int:
     from ..inventory import data_path, example_path
-    from ..pipeline import make_plan
+    from ..flow import make_plan
     from ..render import Text, progress, show
 
     spec = example_path(f"{EXAMPLE}.yaml")

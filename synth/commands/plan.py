@@ -60,7 +60,7 @@ LACKS_NOTE = ("--lacks no longer takes seconds: what the bin lacks is searched b
 
 
 def run(args: argparse.Namespace) -> int:
-    from ..pipeline import make_plan
+    from ..flow import make_plan
     from ..render import progress, show
 
     requests = requested_outputs(args)
