@@ -286,7 +286,7 @@ def counter_models(counter_plan: Any, network: Network, catalog: Any, supply: fl
                 str(getattr(cc, "enable_net", "") or "VDD") not in RAILS:
             carry_in = str(cc.enable_net)
         enable_clocks = False
-        if str(getattr(cc, "enable_net", "")) in decoded_enables:
+        if str(cc.enable_net) in decoded_enables:
             carry_in, enable_clocks = decoded_enables[str(cc.enable_net)], True
         outputs = []
         synchronous = bool(f.get("synchronous", False))
@@ -302,7 +302,7 @@ def counter_models(counter_plan: Any, network: Network, catalog: Any, supply: fl
                 outputs.append(CounterOutput(net, "carry", 0, pin, part.pins.get(pin, ""), ps(tcq)))
             else:
                 outputs.append(CounterOutput(net, "tc", 0, pin, part.pins.get(pin, ""), ps(tcq)))
-        if carry_in is not None and getattr(cc, "carry_net", None):
+        if carry_in is not None and any(o.kind == "tc" for o in outputs):
             notes.append(f"{cc.ref}: its TC follows its count enable (TC = CET and count "
                          f"{2 ** len(stages) - 1}); the catalog gives no CET-to-TC delay for {part.type}, "
                          "clock-to-output used")

@@ -87,3 +87,4 @@ class CounterPlan:
     synchronous: bool
     reset: object = None
     unreachable: frozenset = frozenset()
+    carries: tuple = ()

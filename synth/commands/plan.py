@@ -20,6 +20,8 @@ from ..bintake import take_from_bin
 from ..errors import NotFoundError, ShortError, UsageError
 from ..exports import EXPORTERS, Exporter, Output, OutputTransaction, check_outputs
 from ..limits import check_seconds, os_reason
+from ..render import Text
+from ..units import format_si
 
 NAME = "plan"
 HELP = "plan the circuit for a spec from the chips in a bin: chips, pins, wiring list and checks"
@@ -314,7 +316,7 @@ def _fix_blocks(plan) -> list:
                                                      for t in r["tried"] if "not applicable" in t["result"])
                                              if not r["applied"] else ""))
                              for r in fixes]))
-    offers = [o for o in getattr(plan, "rc_offers", None) or [] if not o.get("applied")]
+    offers = [o for o in plan.rc_offers if not o.get("applied")]
     races = [o for o in offers if o["problem"] in ("race", "coincident") and o.get("applicable")]
     if races:
         blocks.append(Text(_race_offers_text(races)))
@@ -420,9 +422,6 @@ def power_on_blocks(plan) -> list:
 
 def rc_delay_blocks(plan) -> list:
     """Each RC delay built into the plan: who asked, stages, R and C, and its times."""
-    from ..render import Text
-    from ..units import format_si
-
     blocks = []
     for d in plan.rc_delays:
         stages = " and ".join(f"{ref} unit {unit}" for ref, unit in d.stages)

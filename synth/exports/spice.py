@@ -422,7 +422,7 @@ def _sections(plan: Any, catalog: Any, tick_ns: float | None) -> list[_Section]:
         section = _switch(plan, catalog, name, sw, tick)
         if section is not None:
             sections.append(section)
-    offers = [o for o in getattr(plan, "rc_offers", None) or []
+    offers = [o for o in plan.rc_offers
               if o.get("applicable") and "r_ohm" in o and not o.get("applied")]
     for index, offer in enumerate(offers, 1):
         sections.append(_delay(plan, catalog, index, offer))
