@@ -56,11 +56,11 @@ remains): fewest glitches left, then fewest chips, then fewest gates.
 from __future__ import annotations
 
 import dataclasses
-from collections.abc import Iterable
+from collections.abc import Callable, Iterable
 from typing import Any
 
 from .errors import ShortError, SynthError
-from .model import Design, FixReport, Replanner
+from .model import Design, FixReport, Replanner, Spec
 from .network import RAILS, Gate, Network, SignalOut
 
 __all__ = ["apply_fixes", "rc_offers", "strobe_network", "FIXES", "NotApplicable"]
@@ -162,7 +162,7 @@ def _fix_glitches(design: Design, replanner: Replanner) -> tuple[Design, list[di
     return current, fixes
 
 
-def _key(design: Any, spec: Any) -> tuple:
+def _key(design: Design, spec: Spec) -> tuple:
     """How good a fixed design is: glitches left on signals that must hold their level
     (no pulse per tick acceptable), glitches left, chips, gates."""
     from .registers import pulse_per_tick_ok
@@ -188,9 +188,9 @@ def _best_plan(records: dict, current: Design, remaining: list[str], replanner: 
             records[signal]["tried"].append({"remedy": "clock_gating", "result": (
                 f"not applicable: {signal} has windows of several ticks; gated with the clock it would "
                 "pulse once per tick instead of holding its level (say steady: false to allow it)")})
-    candidates: list[list[tuple[str, Any]]] = []
+    candidates: list[list[tuple[str, Design]]] = []
 
-    def extend(base: Any, steps: list, left: list[str]) -> None:
+    def extend(base: Design, steps: list, left: list[str]) -> None:
         steps = list(steps)
         hold = [s for s in left if s not in gateable]
         gate = [s for s in left if s in gateable]
@@ -216,7 +216,7 @@ def _best_plan(records: dict, current: Design, remaining: list[str], replanner: 
     return min(candidates, key=lambda steps: _key(steps[-1][1], spec))
 
 
-def _attempt(records: dict, remedy: str, build, base: Any) -> Any:
+def _attempt(records: dict, remedy: str, build: Callable[[], Design], base: Design) -> Design | None:
     """Run one remedy; note its outcome for every signal; None when it does not apply."""
     try:
         result = build()
@@ -243,7 +243,7 @@ def _note_all(records: dict, remedy: str, text: str) -> None:
         rec["tried"].append({"remedy": remedy, "result": text})
 
 
-def _credit(fixed_by: dict, old: Any, new: Any, remedy: str, only_strobed: bool = False) -> None:
+def _credit(fixed_by: dict, old: Design, new: Design, remedy: str, only_strobed: bool = False) -> None:
     """Signals whose glitches this step reduced are credited to the remedy (in order)."""
     was, now = _by_signal(old.plan.glitches), _by_signal(new.plan.glitches)
     strobed = new.plan.strobed
@@ -294,7 +294,7 @@ def _finish_records(records: dict, fixed_by: dict, start: Design, final: Design)
     return [records[s] for s in sorted(records)]
 
 
-def _pulse_reason(spec: Any, signal: str) -> str:
+def _pulse_reason(spec: Spec | None, signal: str) -> str:
     """Why a pulse per tick is acceptable for a gated signal (said with the remedy)."""
     sig = spec.signals.get(signal) if spec is not None else None
     if sig is not None and sig.steady is False:
@@ -302,7 +302,7 @@ def _pulse_reason(spec: Any, signal: str) -> str:
     return "; a pulse per tick is acceptable here: each of its windows is one tick long"
 
 
-def _note_text(design: Any, signal: str) -> str:
+def _note_text(design: Design, signal: str) -> str:
     widths = [g.get("width_max_ns") or g.get("width_ns") or 0 for g in design.plan.glitches
               if g.get("signal") == signal]
     widest = max(widths, default=0)
@@ -316,7 +316,7 @@ def _note_text(design: Any, signal: str) -> str:
             "an RC-filtered input) will not see what remains; an edge-triggered input will")
 
 
-def _global_detail(remedy: str, design: Any) -> str:
+def _global_detail(remedy: str, design: Design) -> str:
     if remedy == "decode_choice":
         return ("the transient states of the glitching entries, where they are don't-cares, were "
                 "given the steady level and the decode re-derived")
@@ -334,15 +334,15 @@ def _by_signal(glitch_records) -> dict[str, list[int]]:
     return {s: sorted(t) for s, t in out.items()}
 
 
-def _count(design: Any) -> int:
+def _count(design: Design) -> int:
     return len(design.plan.glitches)
 
 
-def _chips(design: Any) -> int:
+def _chips(design: Design) -> int:
     return len(design.plan.chips)
 
 
-def _gates(design: Any) -> int:
+def _gates(design: Design) -> int:
     return len(design.plan.network.gates)
 
 
@@ -730,7 +730,7 @@ def _record(how: str, signal: str, polarity: str, clock: str, settle: bool, text
 
 # ---------------------------------------------------------------- RC delay offers
 
-def rc_offers(design: Any, widths: dict[str, float] | None = None) -> list[dict]:
+def rc_offers(design: Design, widths: dict[str, float] | None = None) -> list[dict]:
     """RC delays between Schmitt stages for races and for glitches a logic fix cannot
     remove without a new chip; offered with values, spread and wiring, never applied.
 
@@ -759,7 +759,7 @@ def rc_offers(design: Any, widths: dict[str, float] | None = None) -> list[dict]
     return [o for o in offers if o is not None]
 
 
-def _period_ns(design: Any) -> float | None:
+def _period_ns(design: Design) -> float | None:
     freq = getattr(getattr(design.spec, "clock", None), "frequency_hz", None)
     if freq:
         return 1e9 / freq
@@ -767,7 +767,7 @@ def _period_ns(design: Any) -> float | None:
     return getattr(trace, "period_ns", None)
 
 
-def _race_offer(design: Any, later: str, edges: list[dict], period: float | None) -> dict | None:
+def _race_offer(design: Design, later: str, edges: list[dict], period: float | None) -> dict | None:
     if period is None:
         return None
     others = sorted({n for e in edges for n in e["signals"] if n != later})
@@ -784,7 +784,7 @@ def _race_offer(design: Any, later: str, edges: list[dict], period: float | None
     return offer
 
 
-def _glitch_offer(design: Any, signal: str, width_ns: float, period: float | None) -> dict | None:
+def _glitch_offer(design: Design, signal: str, width_ns: float, period: float | None) -> dict | None:
     if period is None:
         return None
     wanted_ns = max(4 * width_ns, 1000.0)
@@ -811,7 +811,7 @@ def _glitch_offer(design: Any, signal: str, width_ns: float, period: float | Non
     return offer
 
 
-def _rc_design(design: Any, signal: str, wanted_ns: float, period: float) -> dict:
+def _rc_design(design: Design, signal: str, wanted_ns: float, period: float) -> dict:
     from .analog import plain_input_thresholds, rc_delay_design, thresholds_at
     from .units import format_si
 

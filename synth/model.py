@@ -7,7 +7,7 @@ the sequencer: run the stages again with changed inputs), and, re-exported
 from the module that makes each, the stage records: ``Spec`` (spec), ``Bin``
 and ``Catalog`` (inventory), ``CounterPlan`` (counter), ``Decode`` (decode),
 ``Network`` (network: the mapped gates), ``Plan`` (netlist: the packed
-plan), ``TimingReport`` and ``Trace`` (timing), ``OscillatorPlan``
+plan), ``TimingReport``, ``Remedies`` and ``Trace`` (timing), ``OscillatorPlan``
 (clocksource), ``LadderPlan`` (staircase), ``PowerOnReset`` (poweron),
 ``BinLacks`` (wishlist); the mapper's verdicts when no plan exists are the
 errors ``ShortError`` (proven impossible, with ``short``) and
@@ -26,7 +26,7 @@ except the remedies (``glitchfix``), which read ``Design`` and return a
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from typing import Any, Protocol
+from typing import Protocol
 
 from .clocksource import OscillatorPlan
 from .counter import CounterPlan
@@ -38,11 +38,11 @@ from .network import Network
 from .poweron import PowerOnReset
 from .spec import Spec
 from .staircase import LadderPlan
-from .timing import TimingReport, Trace
+from .timing import Remedies, TimingReport, Trace
 from .wishlist import BinLacks
 
 __all__ = ["Design", "FixReport", "Replanner", "Spec", "Bin", "Catalog", "CounterPlan", "Decode",
-           "Network", "Plan", "TimingReport", "Trace", "OscillatorPlan", "LadderPlan", "PowerOnReset",
+           "Network", "Plan", "TimingReport", "Remedies", "Trace", "OscillatorPlan", "LadderPlan", "PowerOnReset",
            "BinLacks", "ShortError", "NotFoundError"]
 
 
@@ -62,7 +62,7 @@ class Design:
     decode: Decode
     network: Network
     trace: Trace | None = None
-    remedies: dict[str, Any] = field(default_factory=dict)
+    remedies: Remedies | None = None
     lacks: BinLacks | None = None
 
 

@@ -84,7 +84,7 @@ __all__ = [
     "simulate", "Trace", "ResetPulse", "counter_models", "gate_models", "gate_names_of",
     "reset_net_of", "CounterModel", "CounterOutput", "GateModel", "glitches", "Glitch",
     "settle_mismatches", "merge_glitches", "ripple_hazards", "RippleHazard", "coincident_edges",
-    "edge_skews", "remedies", "spare_input", "analyse", "timing_report", "TimingReport", "default_period_ns", "nice_period_ns",
+    "edge_skews", "remedies", "spare_input", "analyse", "timing_report", "TimingReport", "Remedies", "default_period_ns", "nice_period_ns",
     "ps", "expected_from_delivered", "registered_signals", "register_start_levels",
     "flipflop_requirement_ns", "register_checks", "pulse_width_checks", "pulse_warning_lines", "mark_races",
     "rc_filter_ns",
@@ -1615,6 +1615,17 @@ def _period_of(spec: Any) -> float | None:
 
 
 @dataclass(frozen=True)
+class Remedies:
+    """The remedies the timing step names per glitch (``remedies``): ``text`` one line per
+    glitch and remedy, ``by_glitch`` (signal, tick) -> its sentences, ``glitches`` the
+    glitches found."""
+
+    text: tuple[str, ...] = ()
+    by_glitch: dict[tuple[str, int], list[str]] = field(default_factory=dict)
+    glitches: tuple[Glitch, ...] = ()
+
+
+@dataclass(frozen=True)
 class TimingReport:
     """What the timing analysis found; the plan it read is left as it was.
 
@@ -1622,8 +1633,7 @@ class TimingReport:
     pairs with ``relation`` and ``race``, ``warnings`` the plan's warnings
     with the timing ones added (in order), ``trace`` the typical-delay
     inertial simulation of two cycles (what the VCD and SVG show) and
-    ``remedies`` {'text': [...], 'by_glitch': {(signal, tick): [...]},
-    'glitches': [Glitch]}.
+    ``remedies`` the remedies named per glitch (``Remedies``).
     """
 
     glitches: tuple[dict, ...]
@@ -1632,7 +1642,7 @@ class TimingReport:
     pulse_widths: tuple[dict, ...]
     warnings: tuple[str, ...]
     trace: Trace
-    remedies: dict[str, Any]
+    remedies: Remedies
 
     def apply_to(self, plan: Any) -> None:
         """Copy the results into a plan (the sequencer builds a new plan instead; kept for
@@ -1706,7 +1716,7 @@ def timing_report(design: Any) -> TimingReport:
                 text.append(entry)
     return TimingReport(tuple(plan.glitches), tuple(plan.coincident_edges), tuple(plan.register_checks),
                         tuple(plan.pulse_widths), tuple(plan.warnings), typ,
-                        {"text": text, "by_glitch": by_glitch, "glitches": found})
+                        Remedies(tuple(text), by_glitch, tuple(found)))
 
 
 

@@ -37,6 +37,7 @@ from typing import Any
 
 from .effort import Effort, effort_named
 from .errors import SafetyCapError, SynthError
+from .mapper import cells_of_part, map_design
 from .stages import async_reset_names, mapping_inputs
 
 LOGIC_CATEGORIES = ("gate", "inverter", "mux", "decoder")
@@ -133,8 +134,6 @@ class _SafetyCap(Exception):
 
 def _remap(inputs: _Inputs, part: str, effort: Effort) -> tuple[dict, int] | None:
     """(logic chips by part, gates) with one more ``part`` chip; None if it cannot map."""
-    from .mapper import map_design
-
     try:
         network = map_design(inputs.functions, inputs.nvars, list(inputs.var_nets),
                              inputs.library.with_extra(part), polarity=inputs.polarity,
@@ -277,8 +276,6 @@ def _mapping_inputs(design):
 
 def candidate_parts(stock, catalog, library) -> list[str]:
     """Logic part types worth adding: one per distinct unit set, kinds the bin lacks first."""
-    from .mapper import cells_of_part
-
     supply = stock.supply
     families = {catalog.parts[p].family for p in stock.parts} or {"4000B"}
     have = {(c.op, c.width, c.schmitt) for c in library.cells}

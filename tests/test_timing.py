@@ -362,7 +362,7 @@ def test_analyse_fills_the_plan(catalog):
         (["z13", "zero"], 0), (["z13", "zero"], 1)]
     assert plan.coincident_edges[1]["first"] == "z13"     # 4001 (120 ns) beats 4002 (160 ns)
     assert design.trace.period_ns == 10_000 and design.trace.cycles == 2
-    assert any("a synchronous counter: the bin has 4520" in line for line in design.remedies["text"])
+    assert any("a synchronous counter: the bin has 4520" in line for line in design.remedies.text)
     # Each record names the analyses that found it (formats.md section 3 `glitches`).
     assert got[("zero", 2)]["models"] == ["transport_typ", "transport_max", "states"]
     assert got[("z13", 4)]["models"] == ["transport_typ", "transport_max", "inertial_typ", "states"]

@@ -16,7 +16,7 @@ import pytest
 from synth.commands.plan import glitch_rows, remedy_lines
 from synth.inventory import load_catalog
 from synth.pipeline import make_plan
-from synth.timing import mark_races, pulse_warning_lines, pulse_width_checks
+from synth.timing import Remedies, mark_races, pulse_warning_lines, pulse_width_checks
 
 CUT = """\
 name: cut
@@ -83,5 +83,5 @@ def test_one_glitch_line_per_signal_and_cause():
     rows = glitch_rows(plan)
     assert rows == [("f", "2 4 8", 80.0, "states", "count 1->2")]
     design = type("D", (), {})()
-    design.remedies = {"by_glitch": {("f", 2): ["gate it", "note: x"], ("f", 4): ["gate it", "note: x"]}}
+    design.remedies = Remedies(by_glitch={("f", 2): ["gate it", "note: x"], ("f", 4): ["gate it", "note: x"]})
     assert remedy_lines(design) == ["f (ticks 2, 4): gate it"]

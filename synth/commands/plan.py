@@ -286,14 +286,14 @@ def glitch_rows(plan) -> list[tuple]:
 
 def remedy_lines(design) -> list[str]:
     """Each remedy once per signal, with the ticks it applies to (not once per tick)."""
-    by_glitch = design.remedies.get("by_glitch", {}) if design.remedies else {}
+    by_glitch = design.remedies.by_glitch if design.remedies else {}
     lines: dict[tuple[str, str], list[int]] = {}
     for (signal, tick), texts in sorted(by_glitch.items()):
         for text in texts:
             if not text.startswith("note:"):
                 lines.setdefault((signal, text), []).append(tick)
     if not by_glitch:
-        return list(design.remedies.get("text", [])) if design.remedies else []
+        return list(design.remedies.text) if design.remedies else []
     return [f"{signal} (tick{'s' if len(ticks) > 1 else ''} {', '.join(map(str, ticks))}): {text}"
             for (signal, text), ticks in lines.items()]
 

@@ -656,7 +656,7 @@ def _remedies(design) -> str:
         applied = " + ".join(fix.get("remedies_applied") or ["note"]).replace("_", " ")
         items.append(f"<li>{escape(fix['signal'])}: {escape(applied)} (+{fix['cost']['chips']} chips, "
                      f"+{fix['cost']['gates']} gates): {escape(fix.get('detail', ''))}</li>")
-    for text in (design.remedies or {}).get("text", []):
+    for text in design.remedies.text if design.remedies else ():
         items.append(f"<li>{escape(text)}</li>")
     if not items:
         return "<p>No remedies were applied to this plan.</p>"
