@@ -35,7 +35,8 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 
-from .analog import counter_oscillator_design, schmitt_oscillator_design, thresholds_at
+from .analog import (CounterOscillatorDesign, OscillatorDesign, counter_oscillator_design,
+                     schmitt_oscillator_design, thresholds_at)
 from .counter import counter_fmax_mhz
 from .errors import ShortError
 from .netlist import RAIL_NETS, Passive
@@ -158,8 +159,8 @@ def find_sites(plan, bin, catalog) -> list[Site]:
                 sites.append(Site(kind, part_type, units[0].id, None, 4))
     for part_type in sorted(bin.parts):
         part = catalog.parts[part_type]
-        units = [u for u in part.units_of("counter") if u.fields.get("oscillator")]
-        if units and part.raw.get("oscillator_k") and _spare_count(plan, bin, part_type) > 0:
+        units = [u for u in part.units_of("counter") if u.oscillator is not None]
+        if units and part.oscillator_k and _spare_count(plan, bin, part_type) > 0:
             sites.append(Site("counter-stage", part_type, units[0].id, None, 5))
     return sites
 
@@ -170,21 +171,21 @@ def _counter_stage(plan, chip, part) -> str | None:
         if cc.ref != chip.ref or str(cc.clock_net) != "CLK":
             continue
         unit = next(u for u in part.units if str(u.id) == str(cc.unit))
-        osc = unit.fields.get("oscillator")
-        if osc and int(osc["input"]) == int(cc.clock_pin) and part.raw.get("oscillator_k"):
+        osc = unit.oscillator
+        if osc and osc.input == int(cc.clock_pin) and part.oscillator_k:
             return unit.id
     return None
 
 
 # ---------------------------------------------------------------- the values
 
-def _short_values(design, wanted: float, tolerance: float, bin, given: bool) -> ShortError:
+def _short_values(design: OscillatorDesign | CounterOscillatorDesign, wanted: float, tolerance: float,
+                  bin, given: bool) -> ShortError:
     said = f"{tolerance:.0%}" + ("" if given else " (the default: the spec gives no clock.tolerance)")
-    best = design
-    achieved = getattr(best, "freq_typ", None) or getattr(best, "freq_hz")
-    r = getattr(best, "r", None) or getattr(best, "rt")
-    c = getattr(best, "c", None) or getattr(best, "ct")
-    needed_c = getattr(best, "needed_c", None) or getattr(best, "needed_ct")
+    if isinstance(design, OscillatorDesign):
+        achieved, r, c, needed_c = design.freq_typ, design.r, design.c, design.needed_c
+    else:
+        achieved, r, c, needed_c = design.freq_hz, design.rt, design.ct, design.needed_ct
     needed_r = needed_c * r / c
     return ShortError(
         f"no resistor and capacitor in the bin set the oscillator within {said} of "
@@ -194,7 +195,7 @@ def _short_values(design, wanted: float, tolerance: float, bin, given: bool) -> 
              f"{format_si(needed_r, 'Ω')} resistor (with {format_si(c, 'F')}) to the bin's lists")
 
 
-def _check_error(design, wanted: float, tolerance: float, bin, given: bool, warnings: list[str]) -> None:
+def _check_error(design: OscillatorDesign | CounterOscillatorDesign, wanted: float, tolerance: float, bin, given: bool, warnings: list[str]) -> None:
     """Off by more than the tolerance: exit 3 when the spec set it, else plan and warn.
 
     With no ``clock.tolerance`` the 10 % is our assumption, not the user's
@@ -226,7 +227,7 @@ def _schmitt_values(site: Site, part, spec, bin, tolerance: float, given: bool):
 def _counter_values(part, spec, bin):
     try:
         return counter_oscillator_design(spec.clock.frequency_hz, resistors=bin.resistors,
-                                         capacitors=bin.capacitors, k=float(part.raw["oscillator_k"]))
+                                         capacitors=bin.capacitors, k=part.oscillator_k)
     except ShortError as exc:
         raise ShortError(f"clock.source: oscillator needs R and C: {exc.message}", file=bin.path,
                          hint=exc.hint) from exc
@@ -294,8 +295,8 @@ def _wire_schmitt(plan, site: Site, part, bin, design) -> tuple[str, bool, dict[
 
 def _wire_counter_stage(plan, site: Site, part, design) -> tuple[str, bool, dict[str, int]]:
     unit = next(u for u in part.units if u.id == site.unit)
-    osc = unit.fields["oscillator"]
-    rs_in, ct_out, rt_out = int(osc["input"]), int(osc["output"]), int(osc["output_inv"])
+    osc = unit.oscillator
+    rs_in, ct_out, rt_out = osc.input, osc.output, osc.output_inv
     if site.ref is None:
         # A spare 4060: its in-phase output (the one driving Ct) clocks the counter.
         pins = {rs_in: "OSC_RS", ct_out: "CLK", rt_out: "OSC_RT"}

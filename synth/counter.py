@@ -235,11 +235,11 @@ class _Kind:
 
     @property
     def mode(self) -> str:
-        return self.units[0].fields.get("mode", "binary")
+        return self.units[0].mode
 
     @property
     def modulus(self) -> int:
-        return int(self.units[0].fields["modulus"])
+        return self.units[0].modulus
 
     @property
     def width(self) -> int:
@@ -248,13 +248,11 @@ class _Kind:
 
     @property
     def synchronous(self) -> bool:
-        return bool(self.units[0].fields.get("synchronous"))
+        return self.units[0].synchronous
 
     def outputs(self, slot: int) -> dict[int, int]:
         """Stage k (or decoded n) -> pin for the unit in ``slot``."""
-        fields = self.units[slot % len(self.units)].fields
-        table = fields.get("decoded") if self.mode == "johnson" else fields.get("stages")
-        return {int(k): int(v) for k, v in (table or {}).items()}
+        return self.units[slot % len(self.units)].outputs_by_count()
 
     @property
     def visible(self) -> frozenset[int]:
@@ -270,10 +268,10 @@ class _Kind:
         enable overrides that rule; units with a carry output use their
         enable for carry cascades instead.
         """
-        fields = self.units[0].fields
-        if fields.get("clock", {}).get("edge") == source_edge_needed:
+        unit = self.units[0]
+        if unit.clock is not None and unit.clock.edge == source_edge_needed:
             return "clock"
-        if _enable_edge(fields) == source_edge_needed:
+        if _enable_edge(unit) == source_edge_needed:
             return "enable"
         return None
 
@@ -302,23 +300,23 @@ class _Kind:
         return None, "none"
 
 
-def _enable_edge(fields: dict) -> Edge | None:
-    enable = fields.get("enable")
-    if not enable:
+def _enable_edge(unit: Unit) -> Edge | None:
+    enable = unit.enable
+    if enable is None:
         return None
-    if "edge" in enable:
-        return enable["edge"]
-    if fields.get("carry_out") is not None or fields.get("clock", {}).get("edge") != "rising":
+    if enable.edge is not None:
+        return enable.edge
+    if unit.carry_out is not None or unit.clock is None or unit.clock.edge != "rising":
         return None
     return "falling"
 
 
-def _clock_hold(fields: dict) -> str:
+def _clock_hold(unit: Unit) -> str:
     """The rail CLOCK is held at while ENABLE counts (low for an active-high enable)."""
-    enable = fields["enable"]
-    if "clock_hold" in enable:
-        return "VDD" if enable["clock_hold"] in ("high", "VDD") else "VSS"
-    return "VSS" if enable.get("active", "high") == "high" else "VDD"
+    enable = unit.enable
+    if enable.clock_hold is not None:
+        return "VDD" if enable.clock_hold == "high" else "VSS"
+    return "VSS" if enable.active == "high" else "VDD"
 
 
 def counter_fmax_mhz(part: Part, supply: float) -> tuple[float | None, str]:
@@ -442,9 +440,9 @@ def _binary_chains(kinds: list[_Kind], n: int, max_chips: int, decoded: bool = F
 def _carries(kind: _Kind) -> bool:
     """A synchronous binary unit with a carry output (TC) and count-enable inputs
     (74HC161/163: TC = CET and count 15; CEP, CET high to count)."""
-    f = kind.units[0].fields
-    return kind.synchronous and kind.mode == "binary" and f.get("carry_out") is not None \
-        and bool(f.get("count_enable")) and set(kind.visible) == set(range(1, kind.width + 1))
+    unit = kind.units[0]
+    return kind.synchronous and kind.mode == "binary" and unit.carry_out is not None \
+        and bool(unit.count_enable) and set(kind.visible) == set(range(1, kind.width + 1))
 
 
 def _carry_source(elements, kind: _Kind, top: int, n: int) -> int | None:
@@ -457,7 +455,7 @@ def _carry_source(elements, kind: _Kind, top: int, n: int) -> int | None:
     for i, e in enumerate(elements):
         if e.offset + e.kind.width == top and e.source is None and e.via in ("clock", "carry") \
                 and _carries(e.kind) \
-                and _fields(e)["clock"]["edge"] == kind.units[0].fields["clock"]["edge"]:
+                and _unit(e).clock.edge == kind.units[0].clock.edge:
             return i
     return None
 
@@ -651,18 +649,18 @@ def _period(chain: _Chain) -> int:
 
 def _element_edge(e: _Element) -> Edge:
     """The edge of its input net that advances a unit."""
-    fields = _fields(e)
+    unit = _unit(e)
     if e.via in ("clock", "carry", "decoded"):
-        return fields["clock"]["edge"]
-    return _enable_edge(fields) or "falling"
+        return unit.clock.edge
+    return _enable_edge(unit) or "falling"
 
 
 def _edge_of(chain: _Chain) -> Edge:
     return _element_edge(chain.elements[0])
 
 
-def _fields(e: _Element) -> dict:
-    return e.kind.units[e.slot % len(e.kind.units)].fields
+def _unit(e: _Element) -> Unit:
+    return e.kind.units[e.slot % len(e.kind.units)]
 
 
 def _is_synchronous(chain: _Chain) -> bool:
@@ -750,16 +748,16 @@ def _missing_stages(chain: _Chain) -> str:
 
 def _choose_reset(chain: _Chain, verdict: _Verdict, cycle: int) -> str:
     """Pick how the cycle is cut short; return why it cannot be, or ''."""
-    resets = [_fields(e).get("reset") for e in chain.elements]
+    resets = [_unit(e).reset for e in chain.elements]
     if any(r is None for r in resets):
         return "a counter in the chain has no reset input to cut the cycle short"
-    if len({(r["active"], bool(r.get("synchronous"))) for r in resets}) > 1:
+    if len({(r.active, r.synchronous) for r in resets}) > 1:
         return "the counters in the chain have different reset inputs (level or clocking)"
     if chain.style == "johnson":
-        if resets[0]["active"] != "high":
+        if resets[0].active != "high":
             return "the decoded output cannot drive an active-low reset without an inverter"
         verdict.reset_mode, verdict.reset_state = "direct", cycle
-    elif resets[0].get("synchronous"):
+    elif resets[0].synchronous:
         if not verdict.synchronous:
             return "a synchronous clear needs every counter clocked by CLK"
         verdict.reset_mode, verdict.reset_state = "sync", cycle - 1
@@ -801,7 +799,7 @@ def allocate(spec, stock: Bin, catalog: Catalog, *, decoded_carry: bool = False)
     n = bits_for(cycle)
     if n > MAX_VARIABLES:
         raise SpecError(f"expected a cycle of at most {1 << MAX_VARIABLES} ticks, got {cycle} "
-                        f"({n} counter stages to decode)", file=getattr(spec, "path", None),
+                        f"({n} counter stages to decode)", file=spec.path,
                         hint="split the sequence, or lower the clock and use fewer ticks")
     supply = float(spec.supply)
     frequency = _frequency(spec)
@@ -812,8 +810,7 @@ def allocate(spec, stock: Bin, catalog: Catalog, *, decoded_carry: bool = False)
 
 
 def _frequency(spec) -> float | None:
-    clock = getattr(spec, "clock", None)
-    return getattr(clock, "frequency_hz", None) if clock is not None else None
+    return spec.clock.frequency_hz
 
 
 def _search(spec, kinds: list[_Kind], supply: float, frequency: float | None, decoded: bool = False):
@@ -900,13 +897,15 @@ def _fixes(spec, stock: Bin, catalog: Catalog, supply: float, frequency: float |
            limit: int = 3) -> list[str]:
     """Catalog counters that, one chip added to the bin, make the allocation work.
 
-    Fewest chips in the result first, then parts of the bin's own family.
+    Fewest chips in the result first, then parts of the bin's own family.  Parts
+    of a family with TTL-level inputs are not offered: their twins with CMOS
+    inputs count the same, and nothing in a plan drives TTL levels.
     """
     families = [catalog.parts[p].family for p in stock.parts]
     usual = max(set(families), key=families.count) if families else ""
     options = []
     for part_type, part in sorted(catalog.parts.items()):
-        if not part.units_of("counter") or not part.suits(supply) or part_type.startswith("74HCT"):
+        if not part.units_of("counter") or not part.suits(supply) or catalog.family_of(part).ttl_inputs:
             continue
         trial = replace(stock, parts={**stock.parts, part_type: stock.parts.get(part_type, 0) + 1})
         best, _ = _search(spec, _kinds(trial, catalog), supply, frequency)
@@ -975,44 +974,43 @@ def _chips(chain: _Chain, vars_: list[CounterVar], refs: list[str], reset: Reset
     net_of = {(src.element, src.stage): vars_[i].net for i, src in enumerate(chain.sources)}
     chips = []
     for i, e in enumerate(chain.elements):
-        fields = e.kind.units[e.slot % len(e.kind.units)].fields
+        unit = _unit(e)
         part = e.kind.part
         ties = {int(p): str(v) for p, v in part.ties.items()}
-        ties.update({int(p): str(v) for p, v in (fields.get("ties") or {}).items()})
+        ties.update(unit.ties)
         if e.source is None:
             clock_net, edge = "CLK", _element_edge(e)
         else:
             clock_net, edge = net_of[e.source], "falling"
             used[e.source[0]].add(e.source[1])
-        enable = fields.get("enable")
-        enable_pin = int(enable["pin"]) if enable else None
+        enable = unit.enable
+        enable_pin = enable.pin if enable else None
         count_enable: tuple[int, ...] = ()
         if e.via == "decoded":
-            clock_pin = int(fields["clock"]["pin"])
+            clock_pin = unit.clock.pin
             enable_net = _carry_placeholder(i)
             ties.pop(enable_pin, None)
         elif e.via == "carry":
-            count_enable = tuple(int(p) for p in fields["count_enable"])
-            clock_pin = int(fields["clock"]["pin"])
+            count_enable = unit.count_enable
+            clock_pin = unit.clock.pin
             enable_pin, enable_net = count_enable[0], _carry_net(chain, e, refs, prefix)
             for pin in count_enable:
                 ties.pop(pin, None)
         elif e.via == "enable":
             clock_pin = enable_pin
-            ties[int(fields["clock"]["pin"])] = _clock_hold(fields)
+            ties[unit.clock.pin] = _clock_hold(unit)
             enable_net = clock_net
         else:
-            clock_pin = int(fields["clock"]["pin"])
+            clock_pin = unit.clock.pin
             enable_net = None
             if enable:
-                enable_net = "VDD" if enable.get("active", "high") == "high" else "VSS"
+                enable_net = "VDD" if enable.active == "high" else "VSS"
                 ties[enable_pin] = enable_net
-        reset_field = fields.get("reset")
-        reset_pin = int(reset_field["pin"]) if reset_field else None
+        reset_pin = unit.reset.pin if unit.reset else None
         if reset is not None:
             reset_net = reset.net
         else:
-            reset_net = "VSS" if (reset_field or {}).get("active", "high") == "high" else "VDD"
+            reset_net = "VSS" if unit.reset is None or unit.reset.active == "high" else "VDD"
             if reset_pin is not None:
                 ties[reset_pin] = reset_net
         for pin in (clock_pin, enable_pin if e.via in ("enable", "decoded") else None,
@@ -1026,7 +1024,7 @@ def _chips(chain: _Chain, vars_: list[CounterVar], refs: list[str], reset: Reset
         if e.carry_from is not None and e.via == "carry":
             chips[e.carry_from].carry_net = chips[i].enable_net
     for chip, e in zip(chips, chain.elements):
-        chip.how = _how(chip, e.kind.part, e, e.kind.units[e.slot % len(e.kind.units)].fields)
+        chip.how = _how(chip, e.kind.part, e, _unit(e))
     return chips
 
 
@@ -1061,12 +1059,12 @@ def carry_nets(counter_plan: CounterPlan, network) -> dict[str, str]:
 def _carry_net(chain: _Chain, e: _Element, refs: list[str], prefix: bool) -> str:
     """The net from the earlier unit's TC pin to this unit's count enables."""
     source = chain.elements[e.carry_from]          # type: ignore[index]
-    pin = int(_fields(source)["carry_out"])
+    pin = _unit(source).carry_out
     name = source.kind.part.pins.get(pin, "TC")
     return f"{refs[e.carry_from]}.{name}" if prefix else name     # type: ignore[index]
 
 
-def _how(chip: CounterChip, part: Part, e: _Element, fields: dict) -> str:
+def _how(chip: CounterChip, part: Part, e: _Element, counter: Unit) -> str:
     name = part.pins
     unit = f" unit {chip.unit}" if len(e.kind.units) > 1 else ""
     text = (f"{chip.ref} {part.type}{unit} counts on the {chip.clock_edge} edge of {chip.clock_net} "
@@ -1080,7 +1078,7 @@ def _how(chip: CounterChip, part: Part, e: _Element, fields: dict) -> str:
         text += (f" while {chip.enable_net} is high ({pins} on it): a synchronous cascade, every "
                  "output of the cascade changes on the same clock edge")
     elif e.via == "enable":
-        clock_pin = int(fields["clock"]["pin"])
+        clock_pin = counter.clock.pin
         level = "low" if chip.ties.get(clock_pin) == "VSS" else "high"
         text += f", {name.get(clock_pin, clock_pin)} (pin {clock_pin}) held {level}"
     elif chip.enable_pin is not None:
@@ -1099,8 +1097,7 @@ def _reset_decode(verdict: _Verdict, chain: _Chain, vars_: list[CounterVar], ref
                   held: set[int], unreachable: frozenset[int], stock: Bin, catalog: Catalog,
                   supply: float) -> ResetDecode:
     first = chain.elements[0]
-    fields = first.kind.units[first.slot % len(first.kind.units)].fields
-    active = fields["reset"]["active"]
+    active = _unit(first).reset.active
     state = verdict.reset_state
     if verdict.reset_mode == "direct":
         pin = first.kind.outputs(first.slot)[state]
@@ -1162,7 +1159,7 @@ def _gate_estimate(stock: Bin, catalog: Catalog, supply: float, active: str,
     for part_type in stock.parts:
         part = catalog.parts[part_type]
         for unit in part.units_of("gate"):
-            ops = {unit.op} | ({unit.fields["also"]["op"]} if unit.fields.get("also") else set())
+            ops = {unit.op} | ({unit.also.op} if unit.also else set())
             typ = part.delay_ns("tpd", supply, "typ")
             if not ops & {"and", "nand"} or typ is None:
                 continue

@@ -404,11 +404,11 @@ def register_records(plan: Any, reg: Any) -> dict[str, dict]:
 
 def _decode_choice(design: Design, replanner: Replanner) -> Design:
     """Re-derive with the glitching entries' transient states passed at the steady level."""
-    from .timing import _entry_sequence, _var_roles
+    from .timing import entry_sequence, var_roles
 
     cp = design.counter
     functions = {f.name: f for f in design.decode.functions}
-    roles = _var_roles(cp, design.catalog)
+    roles = var_roles(cp, design.catalog)
     reset = getattr(cp, "reset", None)
     async_reset = reset is not None and not getattr(reset, "synchronous", False)
     states = [int(s) for s in cp.state_of_tick]
@@ -416,7 +416,7 @@ def _decode_choice(design: Design, replanner: Replanner) -> Design:
     usable = False
     for g in design.plan.glitches:
         k = int(g["at_tick"])
-        seq = _entry_sequence(states[k - 1], states[k], roles, async_reset)
+        seq = entry_sequence(states[k - 1], states[k], roles, async_reset)
         shown = frozenset(seq[1:-1])
         function = functions.get(g["signal"])
         if function is not None and shown & function.dc:
@@ -433,8 +433,7 @@ def _decode_choice(design: Design, replanner: Replanner) -> Design:
 # ---------------------------------------------------------------- (b) a synchronous counter
 
 def _is_ripple(part: Any) -> bool:
-    return any(u.type == "counter" and not u.fields.get("synchronous")
-               and u.fields.get("mode") != "johnson" for u in part.units)
+    return any(u.type == "counter" and not u.synchronous and u.mode != "johnson" for u in part.units)
 
 
 def _synchronous(design: Design, replanner: Replanner) -> Design:
@@ -443,12 +442,12 @@ def _synchronous(design: Design, replanner: Replanner) -> Design:
     edge; the decode takes gates), then, when the bin cannot map that, as allocated
     without it."""
     from .counter import allocate
-    from .timing import _synchronous_parts
+    from .timing import synchronous_counter_parts
 
     if getattr(design.counter, "synchronous", False):
         raise NotApplicable("the counter is already synchronous")
     stock, catalog = design.stock, design.catalog
-    if not _synchronous_parts(catalog, stock):
+    if not synchronous_counter_parts(catalog, stock):
         raise NotApplicable("the bin has no synchronous counter (e.g. 4520, 74HC161, 74HC163)")
     parts = {t: n for t, n in stock.parts.items() if not _is_ripple(catalog.parts[t])}
     why = "without the ripple counters the allocation comes out the same"
@@ -664,9 +663,7 @@ def _phase(network, clock, settle, controlling, plan, stock, catalog, avoid_part
 
 
 def _delay_ns(catalog, part_type: str, supply: float, corner: str = "typ") -> float:
-    from .timing import _delay
-
-    return _delay(catalog.parts[part_type], "tpd", supply, corner) or 0.0
+    return catalog.parts[part_type].delay_at_corner("tpd", supply, corner) or 0.0
 
 
 def _too_slow(catalog, part_type: str, plan) -> bool:
@@ -694,7 +691,7 @@ def _unit_options(plan, stock, catalog, op: str, min_inputs: int) -> list[tuple[
         if part is None:
             continue
         units = [u for u in part.units if u.type in ("gate", "inverter") and u.op == op
-                 and not u.fields.get("also") and len(unit_logic_pins(u)[0]) >= min_inputs]
+                 and u.also is None and len(unit_logic_pins(u)[0]) >= min_inputs]
         if not units:
             continue
         width = min(len(unit_logic_pins(u)[0]) for u in units)

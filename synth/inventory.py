@@ -15,7 +15,7 @@ from __future__ import annotations
 
 import difflib
 import re
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from importlib import resources
 from pathlib import Path
 from typing import Any, Iterable, Literal
@@ -62,11 +62,19 @@ Edge = Literal["rising", "falling"]
 
 @dataclass(frozen=True)
 class PinControl:
-    """A control input and the level at which it acts (reset, set, enable)."""
+    """A control input and the level at which it acts (reset, set, enable).
+
+    A counter's enable may also say on which ``edge`` it counts and the level
+    the clock is held at meanwhile (``clock_hold``), where the rule of
+    ``counter`` (a rising-edge clock's enable counts on its falling edge with
+    the clock held inactive) does not fit the part.
+    """
 
     pin: int
     active: Level = "high"
     synchronous: bool = False
+    edge: Edge | None = None
+    clock_hold: Level | None = None
 
 
 @dataclass(frozen=True)
@@ -161,6 +169,25 @@ class Unit:
         """Every package pin this unit uses, with the role it plays."""
         return list(_unit_pins(self.fields))
 
+    @property
+    def synchronous_binary_or_bcd(self) -> bool:
+        """A counter with coded outputs that change together on the clock edge
+        (4520, 74HC161): no ripple.  A Johnson counter's outputs are decoded states."""
+        return self.type == "counter" and self.synchronous and self.mode != "johnson"
+
+    def outputs_by_count(self) -> dict[int, int]:
+        """Stage k -> pin, or for a Johnson counter decoded state n -> pin."""
+        return dict(self.decoded if self.mode == "johnson" else self.stages)
+
+    def control_of_role(self, role: str) -> PinControl | None:
+        """The control a role of ``pins()`` belongs to (``reset.pin`` -> the reset,
+        ``enables[1].pin`` -> the second enable); None for a role that is no control."""
+        head, _, index = role.split(".")[0].partition("[")
+        if head == "enables" and index:
+            position = int(index.rstrip("]"))
+            return self.enables[position] if position < len(self.enables) else None
+        return {"reset": self.reset, "set": self.set, "enable": self.enable}.get(head)
+
 
 def _unit_pins(fields: dict, role: str = "") -> Iterable[tuple[int, str]]:
     """Walk a unit's fields and yield (pin, role) for every pin number in them."""
@@ -236,6 +263,14 @@ class Part:
             return None
         return interpolate_inverse_v(points, supply)
 
+    def delay_at_corner(self, key: str, supply: float, corner: str) -> float | None:
+        """A timing figure at the corner ('typ' or 'max'), the other corner's
+        where the catalog gives only that one."""
+        value = self.delay_ns(key, supply, corner)
+        if value is None:
+            value = self.delay_ns(key, supply, "max" if corner == "typ" else "typ")
+        return value
+
     def pin_roles(self) -> dict[int, str]:
         """Pin -> 'unit A: inputs[0]' style role text, power and ties included."""
         roles: dict[int, str] = {}
@@ -285,13 +320,59 @@ MAKER_PREFIXES = ("HCF", "HEF", "HEC", "MC", "CD", "SN", "TC", "MM", "NTE", "BU"
                   "M", "LC", "HD", "IW", "KF", "UTC", "U", "F", "SNJ", "TP")
 
 
+@dataclass(frozen=True)
+class InputLevels:
+    """The guaranteed switching band of a family's plain (non-Schmitt) inputs."""
+
+    rows: dict[float, tuple[float, float]]    # supply volts -> (VIL max, VIH min)
+    source: str
+
+    def band_at(self, supply: float) -> tuple[float, float]:
+        """VIL and VIH at ``supply``: linear between rows, proportional to the supply outside them."""
+        points = sorted(self.rows)
+        if supply <= points[0] or supply >= points[-1]:
+            edge = points[0] if supply <= points[0] else points[-1]
+            scale = supply / edge
+            return self.rows[edge][0] * scale, self.rows[edge][1] * scale
+        hi = next(v for v in points if v >= supply)
+        lo = max(v for v in points if v <= supply)
+        w = 0.0 if hi == lo else (supply - lo) / (hi - lo)
+        return tuple(self.rows[lo][k] + w * (self.rows[hi][k] - self.rows[lo][k]) for k in (0, 1))
+
+
+@dataclass(frozen=True)
+class Family:
+    """What every part of a family shares, read from the family file's top level
+    (or from a variant such as the 74HC file's HCT): code asks these facts
+    instead of testing part names."""
+
+    name: str                                   # '4000B', '74HC', '74HCT'
+    supply: tuple[float, float] | None = None   # the family's recommended range, volts
+    input_levels: InputLevels | None = None
+    ttl_inputs: bool = False                    # VIL 0.8 / VIH 2.0 V, not a fraction of VDD
+    variant_of: str | None = None               # the family a derived variant copies
+    keeps_thresholds: bool = True               # a variant's Schmitt levels are its original's
+    offered_for_empty_bin: bool = False         # the family to suggest from when the bin gives none
+    source: str = ""
+
+
 @dataclass
 class Catalog:
     """All known part types, with the marking rules that reach them."""
 
     parts: dict[str, Part]
     files: tuple[Path, ...] = ()
-    input_levels: dict[str, dict] = field(default_factory=dict)   # family -> plain-input VIL/VIH rows
+    families: dict[str, Family] = field(default_factory=dict)
+
+    def family_of(self, part: Part) -> Family:
+        """The family record of a part (a bare record when no file describes its family)."""
+        return self.families.get(part.family) or Family(part.family)
+
+    def families_or_default(self, part_types: Iterable[str]) -> set[str]:
+        """The families of these parts; when there are none, the family the
+        catalog offers for an empty bin."""
+        found = {self.parts[p].family for p in part_types}
+        return found or {f.name for f in self.families.values() if f.offered_for_empty_bin}
 
     def plain_input_levels(self, families: Iterable[str], supply: float) -> tuple[float, float, str] | None:
         """The guaranteed switching band (VIL max, VIH min) of a plain input at ``supply``.
@@ -303,10 +384,10 @@ class Catalog:
         """
         bands = []
         for family in sorted(set(families)):
-            table = self.input_levels.get(family)
-            if table:
-                vil, vih = _band_at(table["rows"], supply)
-                bands.append((vil, vih, f"{family}: {table['source']}"))
+            levels = self.families[family].input_levels if family in self.families else None
+            if levels is not None:
+                vil, vih = levels.band_at(supply)
+                bands.append((vil, vih, f"{family}: {levels.source}"))
         if not bands:
             return None
         return (min(b[0] for b in bands), max(b[1] for b in bands), "; ".join(b[2] for b in bands))
@@ -374,58 +455,75 @@ def load_catalog(paths: Iterable[str | Path] | None = None) -> Catalog:
     files = tuple(Path(p) for p in paths) if paths is not None else \
         tuple(sorted(data_path("catalog").glob("*.yaml")))
     parts: dict[str, Part] = {}
-    levels: dict[str, dict] = {}
+    families: dict[str, Family] = {}
     for path in files:
         doc = load_yaml(path)
-        for part in _parts_of_file(path, doc):
+        file_families = _families_of_file(path, doc)
+        for part in _parts_of_file(path, doc, file_families):
             if part.type in parts:
                 raise CatalogError(f"part {part.type} defined twice", file=path)
             parts[part.type] = part
-        levels.update(_input_levels_of_file(path, doc))
-    return Catalog(parts, files, levels)
+        for family in file_families.values():
+            if family.name in families:
+                raise CatalogError(f"family {family.name} described twice", file=path)
+            families[family.name] = family
+    return Catalog(parts, files, families)
 
 
-def _band_at(rows: dict[float, dict], supply: float) -> tuple[float, float]:
-    """VIL and VIH at ``supply`` from rows by supply voltage (see plain_input_levels)."""
-    points = sorted(rows)
-    if supply <= points[0] or supply >= points[-1]:
-        edge = points[0] if supply <= points[0] else points[-1]
-        scale = supply / edge
-        return rows[edge]["vil"] * scale, rows[edge]["vih"] * scale
-    hi = next(v for v in points if v >= supply)
-    lo = max(v for v in points if v <= supply)
-    w = 0.0 if hi == lo else (supply - lo) / (hi - lo)
-    return tuple(rows[lo][k] + w * (rows[hi][k] - rows[lo][k]) for k in ("vil", "vih"))
+FILE_KEYS = ("family", "supply", "inputs", "offered_for_empty_bin", "input_levels", "source",
+             "variants", "sources", "parts")
+VARIANT_KEYS = ("family", "supply", "inputs", "keeps_thresholds", "note", "input_levels", "source")
 
 
-def _input_levels_of_file(path: Path, doc: Any) -> dict[str, dict]:
-    """Guaranteed VIL max / VIH min of plain inputs by supply: the file's family's
-    ``input_levels``, and each variant's (the 74HCT twins' TTL levels)."""
-    if not isinstance(doc, dict):
-        return {}
-    family = str(doc.get("family", ""))
-    found = {family: _levels_table(path, doc, "input_levels")}
-    for name, variant in (doc.get("variants") or {}).items():
-        found[str(variant.get("family", name))] = _levels_table(path, variant, "input_levels")
-    return {fam: table for fam, table in found.items() if table}
+def _families_of_file(path: Path, doc: Any) -> dict[str, Family]:
+    """The file's family and its variants (key: the variant's name in the file, '' for the family)."""
+    if not isinstance(doc, dict) or "parts" not in doc or "family" not in doc:
+        raise CatalogError("expected a mapping with 'family' and 'parts'", file=path,
+                           line=doc.line if isinstance(doc, MarkedDict) else None, hint=SCHEMA_HINT)
+    top = _Entry(path, f"family {doc['family']}", doc)
+    top.only(FILE_KEYS)
+    family = _family(top, str(doc["family"]))
+    found = {"": family}
+    variants = top.inner("variants", required=False)
+    for name in variants.data if variants is not None else ():
+        variant = variants.inner(name)
+        variant.only(VARIANT_KEYS)
+        found[str(name)] = replace(_family(variant, str(variant.get("family"))), variant_of=family.name,
+                                   keeps_thresholds=variant.flag("keeps_thresholds", default=True))
+    return found
 
 
-def _levels_table(path: Path, container: Any, key: str) -> dict:
-    table = container.get(key) if isinstance(container, dict) else None
-    if not table:
-        return {}
-    try:
-        rows = {float(v): {"vil": float(r["vil"]), "vih": float(r["vih"])} for v, r in table["rows"].items()}
-    except (KeyError, TypeError, ValueError, AttributeError) as exc:
-        raise CatalogError(f"{key}: expected rows of {{vil, vih}} by supply, got {exc!r}",
-                           file=path, line=line_of(container, key)) from exc
-    return {"rows": rows, "source": str(table.get("source", ""))}
+def _family(entry: _Entry, name: str) -> Family:
+    """A family's shared facts from a family file's top level or from one of its variants."""
+    return Family(name=name, supply=entry.supply_range(required=False),
+                  input_levels=_input_levels(entry),
+                  ttl_inputs=entry.choice("inputs", ("cmos", "ttl"), False, "cmos") == "ttl",
+                  offered_for_empty_bin=entry.flag("offered_for_empty_bin"),
+                  source=str(entry.get("source", required=False) or ""))
 
 
-def _parts_of_file(path: Path, doc: Any) -> list[Part]:
-    if not isinstance(doc, dict) or "parts" not in doc:
-        raise CatalogError("expected a mapping with 'family' and 'parts'", file=path)
-    family = str(doc.get("family", ""))
+def _input_levels(entry: _Entry) -> InputLevels | None:
+    """Guaranteed VIL max / VIH min of plain inputs by supply (``input_levels``)."""
+    table = entry.inner("input_levels", required=False)
+    if table is None:
+        return None
+    rows = table.inner("rows")
+    if not rows.data:
+        raise table.fail("rows", "rows of {vil, vih} by supply", rows.data)
+    levels = {}
+    for supply, row in rows.data.items():
+        ok = isinstance(supply, (int, float)) and not isinstance(supply, bool) and supply > 0 \
+            and isinstance(row, dict) and set(row) == {"vil", "vih"} \
+            and all(isinstance(row[k], (int, float)) and not isinstance(row[k], bool) for k in row) \
+            and 0 <= row["vil"] < row["vih"] <= supply
+        if not ok:
+            raise rows.fail(supply, "{vil: V, vih: V} with 0 <= vil < vih <= the row's supply", _plain(row))
+        levels[float(supply)] = (float(row["vil"]), float(row["vih"]))
+    return InputLevels(levels, str(table.get("source")))
+
+
+def _parts_of_file(path: Path, doc: Any, families: dict[str, Family]) -> list[Part]:
+    family = families[""].name
     variants = doc.get("variants") or {}
     parts = []
     for name, entry in (doc["parts"] or {}).items():
@@ -436,8 +534,13 @@ def _parts_of_file(path: Path, doc: Any) -> list[Part]:
             raise CatalogError(f"part {name}: expected the schema of DEVELOPERS.md, got {exc!r}",
                                file=path, line=where) from exc
         parts.append(part)
-        if entry.get("hct") and "HCT" in variants:
-            parts.append(_hct_twin(part, variants["HCT"]))
+        for variant_name, variant in variants.items():
+            if entry.get(str(variant_name).lower()):
+                if not part.type.startswith(family):
+                    raise CatalogError(f"part {name}: a variant ({variant_name}) needs a part name that "
+                                       f"starts with the family name {family}", file=path, line=where,
+                                       hint=SCHEMA_HINT)
+                parts.append(_variant_twin(part, str(variant_name), families[variant_name], variant))
     return parts
 
 
@@ -509,10 +612,27 @@ class _Entry:
             raise self.fail(key, "a list of pin numbers", value)
         return tuple(self.pin(key, v) for v in value)
 
-    def flag(self, key: str) -> bool:
+    def only(self, keys: tuple[str, ...]) -> None:
+        """Refuse a key the schema does not know (a misspelt key would otherwise be ignored)."""
+        for key in self.data:
+            if key not in keys:
+                raise self.fail(key, f"one of the keys {', '.join(keys)}", key)
+
+    def supply_range(self, required: bool = True) -> tuple[float, float] | None:
+        """``{min: V, max: V}`` with 0 < min < max."""
+        value = self.get("supply", required)
+        if value is None:
+            return None
+        low, high = (value.get("min"), value.get("max")) if isinstance(value, dict) else (None, None)
+        if not all(isinstance(v, (int, float)) and not isinstance(v, bool) for v in (low, high)) \
+                or not 0 < low < high:
+            raise self.fail("supply", "{min: V, max: V} with 0 < min < max", _plain(value))
+        return float(low), float(high)
+
+    def flag(self, key: str, default: bool = False) -> bool:
         value = self.get(key, required=False)
         if value is None:
-            return False
+            return default
         if not isinstance(value, bool):
             raise self.fail(key, "true or false", value)
         return value
@@ -541,13 +661,18 @@ class _Entry:
             raise self.fail(key, "a mapping", value)
         return _Entry(self.path, f"{self.what} {key}", value, self.pin_count)
 
-    def control(self, key: str) -> PinControl | None:
+    def control(self, key: str, counts: bool = False) -> PinControl | None:
         sub = self.inner(key, required=False)
-        return sub.as_control() if sub is not None else None
+        return sub.as_control(counts) if sub is not None else None
 
-    def as_control(self) -> PinControl:
+    def as_control(self, counts: bool = False) -> PinControl:
+        """``{pin, active, synchronous}``; a counter's enable (``counts``) may add
+        ``edge`` and ``clock_hold``."""
+        self.only(("pin", "active", "synchronous") + (("edge", "clock_hold") if counts else ()))
         return PinControl(self.pin("pin"), self.choice("active", ("high", "low"), False, "high"),
-                          self.flag("synchronous"))
+                          self.flag("synchronous"),
+                          self.choice("edge", ("rising", "falling"), False) or None,
+                          self.choice("clock_hold", ("high", "low"), False) or None)
 
     def pin_map(self, key: str) -> dict[int, int]:
         value = self.get(key, required=False)
@@ -589,7 +714,7 @@ def _unit_from_entry(part: _Entry, index: int, raw: Any) -> Unit:
         if kind == "counter":
             osc = unit.inner("oscillator", required=False)
             typed.update(mode=unit.choice("mode", ("binary", "bcd", "johnson")), modulus=unit.number("modulus"),
-                         synchronous=unit.flag("synchronous"), enable=unit.control("enable"),
+                         synchronous=unit.flag("synchronous"), enable=unit.control("enable", counts=True),
                          stages=unit.pin_map("stages"), decoded=unit.pin_map("decoded"),
                          carry=unit.pin("carry", required=False), carry_out=unit.pin("carry_out", required=False),
                          count_enable=unit.pins("count_enable", required=False),
@@ -643,10 +768,7 @@ def _check_part(part: _Entry) -> None:
     part.choice("category", CATEGORIES)
     package = part.inner("package")
     package.number("pins")
-    supply = part.inner("supply")
-    low, high = supply.get("min"), supply.get("max")
-    if not all(isinstance(v, (int, float)) and not isinstance(v, bool) for v in (low, high)) or not 0 < low < high:
-        raise part.fail("supply", "{min: V, max: V} with 0 < min < max", dict(part.data["supply"]))
+    part.supply_range()
     if not isinstance(part.data["units"], list) or not part.data["units"]:
         raise part.fail("units", "a list of units", part.data["units"])
 
@@ -692,20 +814,19 @@ def _plain(value: Any) -> Any:
     return value
 
 
-def _hct_twin(part: Part, variant: dict) -> Part:
-    """The 74HCT part that shares a 74HC part's pins and function."""
-    supply = variant.get("supply", {"min": 4.5, "max": 5.5})
-    family = str(variant.get("family", "74HCT"))
+def _variant_twin(part: Part, key: str, family: Family, variant: dict) -> Part:
+    """The variant's part (74HCT00) that shares an original's (74HC00) pins and function;
+    ``key`` is the variant's name in the file (``HCT``, flagged ``hct: true`` on a part)."""
     source = dict(part.source)
-    source["hct"] = str(variant.get("source", "from memory"))
+    source[key.lower()] = family.source or "from memory"
     return Part(
-        type=part.type.replace(part.family, family, 1), family=family, function=part.function,
+        type=part.type.replace(part.family, family.name, 1), family=family.name, function=part.function,
         category=part.category, pin_count=part.pin_count, package=part.package, pins=part.pins,
         power=part.power, units=part.units,
-        supply=(float(supply["min"]), float(supply["max"])), timing=part.timing,
+        supply=family.supply or part.supply, timing=part.timing,
         source=source, nc=part.nc, ties=part.ties, shared=part.shared,
-        thresholds={}, r_on=part.r_on, r_out=part.r_out,  # HCT Schmitt levels differ: not in the catalog
-        notes=(part.notes + " " if part.notes else "") + f"HCT: {variant.get('note', 'TTL input levels')}",
+        thresholds=part.thresholds if family.keeps_thresholds else {}, r_on=part.r_on, r_out=part.r_out,
+        notes=(part.notes + " " if part.notes else "") + f"{key}: {variant.get('note', 'TTL input levels')}",
         oscillator_k=part.oscillator_k, variant_of=part.type,
         raw=part.raw,
     )
@@ -745,7 +866,7 @@ def bin_from_yaml(doc: object, catalog: Catalog, supply: float, path: str) -> Bi
     if not isinstance(doc, MarkedDict):
         raise BinError("expected a mapping with a 'parts:' key, got "
                        f"{describe(doc) if doc is not None else 'an empty file'}",
-                       file=path, line=getattr(doc, "line", 1),
+                       file=path, line=doc.line if isinstance(doc, MarkedList) else 1,
                        hint="start the file with 'parts:' and one 'MARKING: COUNT' line per chip type")
     for key in doc:
         if key not in BIN_KEYS:

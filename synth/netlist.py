@@ -26,9 +26,11 @@ from collections.abc import Mapping
 from dataclasses import dataclass, field
 from typing import Any, Literal, NamedTuple
 
+from .counter import CounterPlan
 from .errors import InternalError
 from .inventory import Part
 from .network import Network, evaluate_words
+from .spec import SignalSpec, Spec
 from .verilog_names import VERILOG_KEYWORDS, verilog_module_name  # noqa: F401 - re-exported
 
 RAIL_NETS = ("VDD", "VSS")
@@ -317,12 +319,9 @@ def _direction(plan: Plan, ref: str, pin: int) -> Direction:
 
 # ---------------------------------------------------------------- zero-delay simulation
 
-def tick_count(counter: Any) -> int:
+def tick_count(counter: CounterPlan) -> int:
     """Ticks in one cycle of the counter plan."""
-    states = getattr(counter, "state_of_tick", None)
-    if states is not None and hasattr(states, "__len__"):
-        return len(states)
-    return int(counter.cycle)
+    return len(counter.state_of_tick)
 
 
 def counter_levels(counter: Any, t: int) -> dict[str, bool]:
@@ -341,12 +340,12 @@ def counter_levels(counter: Any, t: int) -> dict[str, bool]:
     return levels
 
 
-def sampled_clock_levels(counter: Any) -> dict[str, bool]:
+def sampled_clock_levels(counter: CounterPlan) -> dict[str, bool]:
     """The clock net at the level it has just before a counting edge, where ticks are
     sampled: a decode gated with the clock's still half reads its tick's level there."""
-    var_nets = {str(v.net) for v in getattr(counter, "vars", ())}
-    level = str(getattr(counter, "edge", "rising")) == "falling"
-    levels = {str(c.clock_net): level for c in getattr(counter, "chips", ())
+    var_nets = {str(v.net) for v in counter.vars}
+    level = counter.edge == "falling"
+    levels = {str(c.clock_net): level for c in counter.chips
               if str(c.clock_net) not in var_nets}
     if CLOCK_NET not in var_nets:        # the board clock, also where the counters take an inverted copy
         levels.setdefault(CLOCK_NET, level)
@@ -441,32 +440,31 @@ def _exact_mismatches(delivered: dict[str, frozenset[int]], wanted: Mapping) -> 
     return problems
 
 
-def _spec_mismatches(plan: Plan, delivered: dict[str, frozenset[int]], spec: Any,
+def _spec_mismatches(plan: Plan, delivered: dict[str, frozenset[int]], spec: Spec,
                      cycle: int) -> list[str]:
-    spec_cycle = getattr(spec, "cycle", cycle)
-    if spec_cycle != cycle:
-        return [f"the counter runs {cycle} ticks per cycle, the spec wants {spec_cycle}"]
+    if spec.cycle != cycle:
+        return [f"the counter runs {cycle} ticks per cycle, the spec wants {spec.cycle}"]
     problems = []
     for name, sig in spec.signals.items():
         if name not in delivered:
             problems.append(f"signal {name} is not in the plan")
             continue
-        polarity = getattr(sig, "polarity", "free")
+        polarity = sig.polarity
         if polarity in ("high", "low") and plan.signals[name]["polarity"] != polarity:
             problems.append(f"signal {name}: the spec wants it active {polarity}, "
                             f"the plan delivers it active {plan.signals[name]['polarity']}")
         problems += _level_mismatches(name, delivered[name], sig, cycle)
     for name, sig in spec.signals.items():
-        for other, gap in (getattr(sig, "clear_of", None) or {}).items():
+        for other, gap in sig.clear_of.items():
             if name in delivered and other in delivered:
                 problems += _clear_of_mismatches(name, other, int(gap), delivered, cycle)
     return problems
 
 
-def _level_mismatches(name: str, got: frozenset[int], sig: Any, cycle: int) -> list[str]:
+def _level_mismatches(name: str, got: frozenset[int], sig: SignalSpec, cycle: int) -> list[str]:
     high = frozenset(sig.high)
-    dont_care = frozenset(getattr(sig, "dont_care", ()) or ())
-    stretch = int(getattr(sig, "stretch", 0) or 0)
+    dont_care = sig.dont_care
+    stretch = sig.stretch
     for t in range(cycle):
         if t in dont_care or (t in high) == (t in got):
             continue

@@ -33,7 +33,7 @@ from .netlist import (CLOCK_NET, RAIL_NETS, ChipInstance, Plan, check_nets, is_p
                       pin_directions, ref_key, self_check)
 from .network import Gate, Network, evaluate_gate
 
-__all__ = ["pack", "unit_logic_pins", "flipflop_controls", "spec_net", "check_nets", "add_chip", "rewire_pin", "refresh"]
+__all__ = ["pack", "place_logic", "unit_logic_pins", "flipflop_controls", "spec_net", "check_nets", "add_chip", "rewire_pin", "refresh"]
 
 # Common practice: an unused CMOS input is tied to a rail, never left floating;
 # either rail is fine for a gate input, and binsynth always uses VSS.
@@ -71,8 +71,8 @@ def unit_logic_pins(unit: Unit) -> tuple[list[int], list[int], dict[int, str]]:
 def flipflop_controls(unit: Unit) -> tuple[str, ...]:
     """A flip-flop unit's set and reset pins as ``Gate.enables_active`` names them
     (``set:low``, ``reset:low``), in ``unit_logic_pins`` order."""
-    f = unit.fields
-    return tuple(f"{k}:{f[k].get('active', 'high')}" for k in ("set", "reset") if f.get(k))
+    return tuple(f"{name}:{control.active}" for name, control in (("set", unit.set), ("reset", unit.reset))
+                 if control is not None)
 
 
 def _level(active: str) -> str:
@@ -180,7 +180,7 @@ def _place_counters(board: _Board, counter_plan: Any, network: Network) -> None:
             else:
                 chip.set_pin(int(cc.reset_pin), reset_net.get(net, net), "counter reset")
         enable_pin, enable_net = cc.enable_pin, cc.enable_net
-        carried = tuple(getattr(cc, "count_enable_pins", ()) or ())
+        carried = cc.count_enable_pins
         if enable_pin is not None and enable_net:
             note = ("enable held active for plain counting" if enable_net in RAIL_NETS
                     else "counts on this input")
@@ -192,7 +192,7 @@ def _place_counters(board: _Board, counter_plan: Any, network: Network) -> None:
             chip.set_pin(int(enable_pin), str(enable_net), note)
             for pin in carried:
                 chip.set_pin(int(pin), str(enable_net), note)
-        carry_net = getattr(cc, "carry_net", None)
+        carry_net = cc.carry_net
         if carry_net:
             unit = next(u for u in part.units if str(u.id) == str(cc.unit))
             chip.set_pin(int(unit.carry_out), str(carry_net),
@@ -215,8 +215,8 @@ def _place_counters(board: _Board, counter_plan: Any, network: Network) -> None:
 def _counts_on_carry(part: Part, cc: Any) -> bool:
     """Whether a counter unit's enable pin is one of its count enables on a carry net."""
     unit = next((u for u in part.units if str(u.id) == str(cc.unit)), None)
-    pins = (unit.fields.get("count_enable") or ()) if unit is not None else ()
-    return getattr(cc, "enable_pin", None) in pins and str(cc.enable_net) not in RAIL_NETS
+    pins = unit.count_enable if unit is not None else ()
+    return cc.enable_pin in pins and str(cc.enable_net) not in RAIL_NETS
 
 
 def _chip_ref(counter_plan: Any, chip: Any) -> str:
@@ -600,8 +600,8 @@ def _finish_chip(chip: _Chip) -> None:
 def _free_input_level(unit: Unit, role: str, used: bool) -> tuple[str, str]:
     """The rail for an input nothing else drives, and why."""
     head = role.split(".")[0].split("[")[0]
-    spec = unit.fields.get(head)
-    active = spec.get("active", "high") if isinstance(spec, dict) else "high"
+    control = unit.control_of_role(role)
+    active = control.active if control is not None else "high"
     if not used and unit.type == "flipflop" and head in ("set", "reset"):
         inactive = "VSS" if active == "high" else "VDD"
         return inactive, f"unused flip-flop's {head} held inactive ({inactive})"
@@ -636,6 +636,18 @@ def pack(network: Network, counter_plan: Any, spec: Any, bin: Bin, catalog: Cata
     check_nets(plan)
     self_check(plan, spec)
     return plan
+
+
+def place_logic(network: Network, bin: Bin, catalog: Catalog) -> list[_Chip]:
+    """Gates onto chip units and pins, unused inputs tied, as ``pack`` places them
+    (without counters or switches): how ``substitute`` shows a way on real chips."""
+    board = _Board(catalog, bin)
+    for gate in network.gates:
+        _place_gate(board, gate)
+    _assign_refs(board)
+    for chip in board.chips:
+        _finish_chip(chip)
+    return board.chips
 
 
 def _assign_refs(board: _Board) -> None:

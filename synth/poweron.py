@@ -81,7 +81,7 @@ def _resets(plan, spec) -> tuple[str, list[tuple[str, int, str]]]:
                             file=spec.path, hint="drop power_on_reset, or use a counter whose own "
                                                  "length is the cycle")
         unit = next(u for u in plan.part_of(cc.ref).units_of("counter") if str(u.id) == str(cc.unit))
-        levels.add(unit.fields["reset"].get("active", "high"))
+        levels.add(unit.reset.active)
         found.append((cc.ref, int(cc.reset_pin), net))
     if not found:
         raise SpecError("power_on_reset: the plan's counters have no reset pin to hold", file=spec.path,

@@ -31,6 +31,7 @@ from typing import Any
 
 from .errors import ShortError
 from .netlist import CLOCK_NET
+from .packing import flipflop_controls
 from .network import RAILS, Gate, Network, SignalOut
 
 __all__ = ["FlipFlopOption", "Registering", "flipflop_options", "pulse_per_tick_ok",
@@ -74,10 +75,9 @@ def flipflop_options(stock: Any, catalog: Any) -> list[FlipFlopOption]:
         units = [u for u in part.units if u.type == "flipflop"] if part is not None else []
         if not units or stock.count(part_type) <= 0:
             continue
-        f = units[0].fields
-        controls = tuple(f"{k}:{f[k].get('active', 'high')}" for k in ("set", "reset") if f.get(k))
-        out.append(FlipFlopOption(part_type, len(units), stock.count(part_type),
-                                  str(f["clock"].get("edge", "rising")), controls, bool(f.get("qn"))))
+        unit = units[0]
+        out.append(FlipFlopOption(part_type, len(units), stock.count(part_type), unit.clock.edge,
+                                  flipflop_controls(unit), unit.qn is not None))
     return out
 
 
@@ -110,7 +110,7 @@ def _inverter_part(stock: Any, catalog: Any, supply: float) -> tuple[str, str, i
         part = catalog.parts.get(part_type)
         for unit in part.units if part is not None else ():
             if unit.type not in ("inverter", "gate") or unit.op not in ("not", "nand", "nor") \
-                    or unit.fields.get("also"):
+                    or unit.also is not None:
                 continue
             width = len(unit.inputs)
             delay = part.delay_ns("tpd", supply, "typ") or 1e9
@@ -137,7 +137,7 @@ def _invert_counter_clock(counter: Any, ff_edge: str) -> Any:
         changes = {}
         if str(chip.clock_net) == CLOCK_NET:
             changes["clock_net"] = COUNTER_CLOCK_NET
-        if getattr(chip, "enable_net", None) == CLOCK_NET:
+        if chip.enable_net == CLOCK_NET:
             changes["enable_net"] = COUNTER_CLOCK_NET
         chips.append(dataclasses.replace(chip, **changes) if changes else chip)
     return dataclasses.replace(counter, chips=chips, edge=ff_edge)

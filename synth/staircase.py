@@ -122,7 +122,7 @@ def _driver_pin(plan, net: str) -> tuple[str, int]:
 
 def driver_resistance(part, supply: float) -> tuple[float | None, float | None, str]:
     """(typ, max) output resistance in ohms at the supply: the nearest catalog row."""
-    table = getattr(part, "r_out", None) or {}
+    table = part.r_out
     if not table:
         return None, None, f"the catalog gives no output resistance for {part.type}"
     volts = min(table, key=lambda v: (abs(float(v) - supply), -float(v)))

@@ -37,10 +37,11 @@ from dataclasses import dataclass, field
 
 from .effort import effort_named
 from .errors import NotFoundError, SafetyCapError, ShortError, UsageError
-from .errors import ShortError, UsageError
 from .limits import shown
+from .mapper import map_design
 from .minimize import Function
-from .network import Network, SignalOut
+from .network import Network, SignalOut, evaluate_gate
+from .packing import place_logic, unit_logic_pins
 
 __all__ = ["Target", "parse_target", "Way", "substitute", "draw_way", "way_json", "GATE_NAMES"]
 
@@ -278,8 +279,6 @@ def substitute(target: Target, library, bin, *, either_polarity: bool = False, l
     The whole bin gets half of the effort level's work, each smaller group of
     part types a twentieth, until the work is spent (work, not seconds, so the
     answer is the same on a busy machine)."""
-    from .mapper import map_design
-
     total = effort_named(effort).steps
     left = total
     function = Function("y", target.on)
@@ -315,29 +314,14 @@ def substitute(target: Target, library, bin, *, either_polarity: bool = False, l
     best_cost = ranked[0].rank_key()[:2] if ranked else None
     for way in ranked:
         way.proven = way.proven or (any(w.proven for w in ways.values()) and way.rank_key()[:2] == best_cost)
-        way.chips = _place(way.network, bin, library.catalog)
+        way.chips = place_logic(way.network, bin, library.catalog)
     return ranked
-
-
-def _place(network: Network, bin, catalog) -> list:
-    """Gates onto chip units and pins, unused inputs tied, as the plan's packing does it."""
-    from .packing import _assign_refs, _Board, _finish_chip, _place_gate
-
-    board = _Board(catalog, bin)
-    for gate in network.gates:
-        _place_gate(board, gate)
-    _assign_refs(board)
-    for chip in board.chips:
-        _finish_chip(chip)
-    return board.chips
 
 
 # ---------------------------------------------------------------- pictures
 
 def _drivers(way: Way) -> dict[str, tuple[str, int]]:
     """Which chip pin drives each net."""
-    from .packing import unit_logic_pins
-
     driver: dict[str, tuple[str, int]] = {}
     for chip in way.chips:
         for unit in chip.part.units:
@@ -353,8 +337,6 @@ def _drivers(way: Way) -> dict[str, tuple[str, int]]:
 
 def _unit_of_gate(way: Way, gate_id: str):
     """The chip, unit and pins a gate was placed on."""
-    from .packing import unit_logic_pins
-
     for chip in way.chips:
         for unit in chip.part.units:
             if chip.units_used.get(unit.id) == gate_id:
@@ -417,8 +399,6 @@ def draw_way(way: Way, target: Target) -> str:
 
 def _inverts(gate) -> bool:
     """Whether a gate with one signal on all its used inputs inverts that signal."""
-    from .network import evaluate_gate
-
     net = next(n for n in gate.inputs if n not in ("VDD", "VSS"))
     levels = [evaluate_gate(gate, {net: v})[gate.outputs[0]] for v in (False, True)]
     return levels == [True, False]

@@ -211,13 +211,7 @@ class GateModel:
 
 def _delay(part: Any, key: str, supply: float, corner: str) -> float | None:
     """A catalog delay at the corner, the other corner when only that one is given."""
-    if part is None:
-        return None
-    value = part.delay_ns(key, supply, corner)
-    if value is None:
-        other = "max" if corner == "typ" else "typ"
-        value = part.delay_ns(key, supply, other)
-    return value
+    return part.delay_at_corner(key, supply, corner) if part is not None else None
 
 
 def _chip_ref(counter_plan: Any, chip: Any) -> str:
@@ -228,16 +222,16 @@ def _chip_ref(counter_plan: Any, chip: Any) -> str:
 
 def reset_net_of(counter_plan: Any, network: Network) -> str | None:
     """The board net that carries the counter reset (the decode's net, as packing wires it)."""
-    reset = getattr(counter_plan, "reset", None)
+    reset = counter_plan.reset
     if reset is None:
         return None
-    if getattr(reset, "direct", False) and getattr(reset, "direct_pin", None):
+    if reset.direct and reset.direct_pin:
         ref, pin = reset.direct_pin
         for var in counter_plan.vars:
             if _chip_ref(counter_plan, var.chip) == ref and int(var.pin) == int(pin):
                 return str(var.net)
         return str(reset.net)
-    decoded = network.signals.get(getattr(reset, "name", ""))
+    decoded = network.signals.get(reset.name)
     return str(decoded.net) if decoded is not None else str(reset.net)
 
 
@@ -246,23 +240,22 @@ def counter_models(counter_plan: Any, network: Network, catalog: Any, supply: fl
     """Every counter unit of the plan with its outputs and delays at the corner."""
     if corner not in CORNERS:
         raise ValueError(f"expected a corner in {CORNERS}, got {corner!r}")
-    reset = getattr(counter_plan, "reset", None)
+    reset = counter_plan.reset
     board_reset = reset_net_of(counter_plan, network)
     decoded_enables = carry_nets(counter_plan, network)
     models = []
     for index, cc in enumerate(counter_plan.chips):
         part = catalog.parts[cc.part]
         unit = next(u for u in part.units if str(u.id) == str(cc.unit))
-        f = unit.fields
-        stages = {int(pin): int(k) for k, pin in (f.get("stages") or {}).items()}
-        decoded = {int(pin): int(n) for n, pin in (f.get("decoded") or {}).items()}
-        k0 = min((int(k) for k in (f.get("stages") or {})), default=1)
+        stages = {pin: k for k, pin in unit.stages.items()}
+        decoded = {pin: n for n, pin in unit.decoded.items()}
+        k0 = min(unit.stages, default=1)
         tcq = _delay(part, "clock_to_q", supply, corner) or 0.0
         stage = _delay(part, "stage", supply, corner) or 0.0
         t_reset = _delay(part, "reset", supply, corner)
         notes = []
-        async_reset = not (f.get("reset") or {}).get("synchronous", False) and \
-            str(getattr(cc, "reset_net", "") or "VSS") not in RAILS
+        async_reset = not (unit.reset is not None and unit.reset.synchronous) and \
+            str(cc.reset_net or "VSS") not in RAILS
         if t_reset is None:
             t_reset = tcq
             if async_reset:
@@ -271,25 +264,24 @@ def counter_models(counter_plan: Any, network: Network, catalog: Any, supply: fl
         pins: dict[int, str] = {}
         for var in counter_plan.vars:
             if _chip_ref(counter_plan, var.chip) == str(cc.ref) and \
-                    str(getattr(var, "unit", cc.unit)) == str(cc.unit):
+                    str(var.unit) == str(cc.unit):
                 if int(var.pin) in stages or int(var.pin) in decoded or \
-                        int(var.pin) in (f.get("carry"), f.get("carry_out")):
+                        int(var.pin) in (unit.carry, unit.carry_out):
                     pins[int(var.pin)] = str(var.net)
-        if reset is not None and getattr(reset, "direct", False) and getattr(reset, "direct_pin", None):
+        if reset is not None and reset.direct and reset.direct_pin:
             ref, pin = reset.direct_pin
             if ref == cc.ref and (int(pin) in stages or int(pin) in decoded):
                 pins.setdefault(int(pin), str(board_reset))
-        if getattr(cc, "carry_net", None) and f.get("carry_out") is not None:
-            pins[int(f["carry_out"])] = str(cc.carry_net)
+        if cc.carry_net and unit.carry_out is not None:
+            pins[unit.carry_out] = str(cc.carry_net)
         carry_in = None
-        if getattr(cc, "enable_pin", None) in (f.get("count_enable") or ()) and \
-                str(getattr(cc, "enable_net", "") or "VDD") not in RAILS:
+        if cc.enable_pin in unit.count_enable and str(cc.enable_net or "VDD") not in RAILS:
             carry_in = str(cc.enable_net)
         enable_clocks = False
         if str(cc.enable_net) in decoded_enables:
             carry_in, enable_clocks = decoded_enables[str(cc.enable_net)], True
         outputs = []
-        synchronous = bool(f.get("synchronous", False))
+        synchronous = unit.synchronous
         for pin, net in sorted(pins.items()):
             if pin in stages:
                 k = stages[pin]
@@ -298,7 +290,7 @@ def counter_models(counter_plan: Any, network: Network, catalog: Any, supply: fl
             elif pin in decoded:
                 outputs.append(CounterOutput(net, "decoded", decoded[pin], pin, part.pins.get(pin, ""),
                                              ps(tcq)))
-            elif pin == f.get("carry"):
+            elif pin == unit.carry:
                 outputs.append(CounterOutput(net, "carry", 0, pin, part.pins.get(pin, ""), ps(tcq)))
             else:
                 outputs.append(CounterOutput(net, "tc", 0, pin, part.pins.get(pin, ""), ps(tcq)))
@@ -306,22 +298,21 @@ def counter_models(counter_plan: Any, network: Network, catalog: Any, supply: fl
             notes.append(f"{cc.ref}: its TC follows its count enable (TC = CET and count "
                          f"{2 ** len(stages) - 1}); the catalog gives no CET-to-TC delay for {part.type}, "
                          "clock-to-output used")
-        reset_field = f.get("reset") or {}
-        net = str(cc.reset_net) if getattr(cc, "reset_net", None) else None
+        net = str(cc.reset_net) if cc.reset_net else None
         if net is not None and net not in RAILS and reset is not None and net == str(reset.net):
             net = board_reset
-        reset_high = reset_field.get("active", "high") == "high"
+        reset_high = unit.reset is None or unit.reset.active == "high"
         if net in RAILS:
             if RAILS[net] == reset_high:
                 raise InternalError(f"{cc.ref}: its reset is tied to {net}, its active level")
             net = None
-        edge = str(getattr(cc, "clock_edge", None) or f.get("clock", {}).get("edge", "rising"))
+        edge = str(cc.clock_edge or (unit.clock.edge if unit.clock else "rising"))
         models.append(CounterModel(
-            ref=str(cc.ref), unit=str(cc.unit), part=part.type, mode=str(f.get("mode", "binary")),
-            modulus=int(f.get("modulus", 2 ** max(stages.values(), default=1))),
-            synchronous=synchronous or f.get("mode") == "johnson",
+            ref=str(cc.ref), unit=str(cc.unit), part=part.type, mode=unit.mode,
+            modulus=unit.modulus,
+            synchronous=synchronous or unit.mode == "johnson",
             clock_net=str(cc.clock_net), edge=edge, reset_net=net, reset_high=reset_high,
-            reset_sync=bool(reset_field.get("synchronous", False)), reset_ps=ps(t_reset),
+            reset_sync=unit.reset is not None and unit.reset.synchronous, reset_ps=ps(t_reset),
             outputs=outputs, notes=notes, enable_net=carry_in, enable_clocks=enable_clocks))
     return models
 
@@ -339,9 +330,8 @@ def _also_op(part: Any, gate: Gate) -> str | None:
     if part is None or len(gate.outputs) < 2:
         return None
     for unit in part.units:
-        also = unit.fields.get("also") if unit.type == "gate" else None
-        if also and unit.op == gate.op and len(unit.inputs) == len(gate.inputs):
-            return str(also["op"])
+        if unit.also is not None and unit.op == gate.op and len(unit.inputs) == len(gate.inputs):
+            return unit.also.op
     return None
 
 
@@ -396,7 +386,7 @@ def _flipflop_model(gate: Gate, part: Any, supply: float, corner: str,
             raise InternalError(f"flip-flop {gate.id}: its {control.partition(':')[0]} is not held "
                                 "inactive (only tied set/reset inputs are modelled)")
     unit = next(u for u in part.units if u.type == "flipflop")
-    edge = str(unit.fields["clock"].get("edge", "rising"))
+    edge = unit.clock.edge
     name = (gate_names or {}).get(gate.id, gate.id)
     return GateModel(gate, name, ps(delay), edge=edge)
 
@@ -415,10 +405,10 @@ def stand_in_delay(catalog: Any, gate: Gate, supply: float, corner: str) -> tupl
     4070's), and the warning that says so.  Slowest, so a timing margin found
     with it is not an optimistic guess."""
     part = catalog.parts.get(gate.part)
-    family = getattr(part, "family", None)
+    family = part.family if part is not None else None
     best, source = None, None
     for other in catalog.parts.values():
-        if other is part or getattr(other, "family", None) != family:
+        if other is part or other.family != family:
             continue
         if not any(u.type == "gate" and u.op == gate.op for u in other.units) and \
                 not any(u.type in ("inverter", "buffer") and gate.op in ("not", "buf") for u in other.units):
@@ -831,7 +821,7 @@ def simulate(counter_plan: Any, network: Network, catalog: Any, supply: float, *
     counters = counter_models(counter_plan, network, catalog, supply, corner)
     gates = gate_models(network, catalog, supply, corner, gate_names)
     cycle = int(counter_plan.cycle)
-    edge = str(getattr(counter_plan, "edge", None) or (counters[0].edge if counters else "rising"))
+    edge = str(counter_plan.edge or (counters[0].edge if counters else "rising"))
     driven = {o.net for c in counters for o in c.outputs} | {n for g in gates for n in g.gate.outputs if n}
     clock_nets = [c.clock_net for c in counters if c.clock_net not in driven]
     clock_net = clock_nets[0] if clock_nets else "CLK"
@@ -883,12 +873,12 @@ def _trace_of(engine: _Engine, counter_plan: Any, network: Network, counters: li
               gates: list[GateModel], period: int, cycle: int, cycles: int, corner: str,
               supply: float, inertial: bool, clock_net: str, edge: str,
               initial: dict[str, bool], end: int) -> Trace:
-    reset = getattr(counter_plan, "reset", None)
-    internal_names = {getattr(reset, "name", None)} if reset is not None else set()
+    reset = counter_plan.reset
+    internal_names = {reset.name} if reset is not None else set()
     signals = {name: (s.net, s.polarity) for name, s in network.signals.items()
                if name not in internal_names}
     counter_nets = [str(v.net) for v in sorted(counter_plan.vars, key=lambda v: v.index)]
-    weights = {str(v.net): getattr(v, "weight", None) for v in counter_plan.vars}
+    weights = {str(v.net): v.weight for v in counter_plan.vars}
     var_index = {str(v.net): int(v.index) for v in counter_plan.vars}
     shown = {clock_net, *counter_nets, *(n for n, _ in signals.values())}
     internal = [n for n in initial if n not in shown and n not in RAILS]
@@ -1196,7 +1186,7 @@ class _VarRole:
     rank: int                 # order of change after a counting edge (equal: together)
 
 
-def _var_roles(counter_plan: Any, catalog: Any | None) -> list[_VarRole]:
+def var_roles(counter_plan: Any, catalog: Any | None) -> list[_VarRole]:
     """Each decode variable with the order in which it can change after an edge.
 
     A ripple unit's stages change one after another from the lowest; a
@@ -1206,7 +1196,7 @@ def _var_roles(counter_plan: Any, catalog: Any | None) -> list[_VarRole]:
     """
     vars_ = sorted(counter_plan.vars, key=lambda v: v.index)
     if catalog is None:
-        sync = bool(getattr(counter_plan, "synchronous", False))
+        sync = bool(counter_plan.synchronous)
         order = sorted(vars_, key=lambda v: (v.weight if v.weight is not None else 0, v.index))
         return [_VarRole(v.index, str(v.net), v.weight, None, 0 if sync else order.index(v))
                 for v in vars_]
@@ -1224,10 +1214,9 @@ def _var_roles(counter_plan: Any, catalog: Any | None) -> list[_VarRole]:
             base = net_rank[clock] + 1 if clock in net_rank else 0
             part = catalog.parts[cc.part]
             unit = next(u for u in part.units if str(u.id) == str(cc.unit))
-            f = unit.fields
-            together = bool(f.get("synchronous")) or f.get("mode") == "johnson"
-            stages = {int(p): int(k) for k, p in (f.get("stages") or {}).items()}
-            decoded = {int(p): int(n) for n, p in (f.get("decoded") or {}).items()}
+            together = unit.synchronous or unit.mode == "johnson"
+            stages = {p: k for k, p in unit.stages.items()}
+            decoded = {p: n for n, p in unit.decoded.items()}
             for v in vars_:
                 if _chip_ref(counter_plan, v.chip) != cc.ref or str(v.unit) != str(cc.unit):
                     continue
@@ -1297,7 +1286,7 @@ def _function_values(counter_plan: Any, functions_or_network: Any) -> Callable[[
             net = Network([g for g in net.gates if g.op != "flipflop"], net.signals, net.inputs)
         driven = {n for g in net.gates for n in g.outputs}
         free = {n for g in net.gates for n in g.inputs if n not in RAILS and n not in driven}
-        clock_level = getattr(counter_plan, "edge", "rising") == "rising"
+        clock_level = counter_plan.edge == "rising"
         nvars = max((v.index + 1 for v in counter_plan.vars), default=0)
         width = 1 << nvars
         full = (1 << width) - 1
@@ -1329,18 +1318,18 @@ def ripple_hazards(counter_plan: Any, functions_or_network: Any, catalog: Any | 
     value = _function_values(counter_plan, functions_or_network)
     if signals is None:
         if isinstance(functions_or_network, Network):
-            skip = {getattr(getattr(counter_plan, "reset", None), "name", None)}
+            skip = {counter_plan.reset.name if counter_plan.reset is not None else None}
             signals = [n for n in functions_or_network.signals if n not in skip]
         else:
             signals = list(functions_or_network)
-    roles = _var_roles(counter_plan, catalog)
+    roles = var_roles(counter_plan, catalog)
     states = [int(s) for s in counter_plan.state_of_tick]
-    reset = getattr(counter_plan, "reset", None)
-    async_reset = reset is not None and not getattr(reset, "synchronous", False)
+    reset = counter_plan.reset
+    async_reset = reset is not None and not reset.synchronous
     hazards = []
     for k in range(len(states)):
         a, b = states[k - 1], states[k]
-        seq = _entry_sequence(a, b, roles, async_reset)
+        seq = entry_sequence(a, b, roles, async_reset)
         if len(seq) < 3:
             continue
         order = _order_text(roles, seq)
@@ -1351,7 +1340,7 @@ def ripple_hazards(counter_plan: Any, functions_or_network: Any, catalog: Any | 
     return hazards
 
 
-def _entry_sequence(a: int, b: int, roles: list[_VarRole], async_reset: bool) -> list[int]:
+def entry_sequence(a: int, b: int, roles: list[_VarRole], async_reset: bool) -> list[int]:
     """Held state a, the transients, held state b; an asynchronous reset cuts the
     natural count short, so its state shows and then every output clears at once."""
     natural = _natural_next(a, roles) if async_reset else None
@@ -1497,12 +1486,12 @@ def _ticks_of_states(counter_plan: Any) -> dict[int, list[int]]:
     return ticks
 
 
-def _synchronous_parts(catalog: Any, stock: Any) -> list[str]:
+def synchronous_counter_parts(catalog: Any, stock: Any) -> list[str]:
+    """The bin's counter parts whose coded outputs change together (no ripple)."""
     found = []
     for part_type in sorted(getattr(stock, "parts", {}) or {}):
         part = catalog.parts.get(part_type)
-        if part is not None and any(u.type == "counter" and u.fields.get("synchronous")
-                                    and u.fields.get("mode") != "johnson" for u in part.units):
+        if part is not None and any(u.synchronous_binary_or_bcd for u in part.units):
             found.append(part_type)
     return found
 
@@ -1523,8 +1512,8 @@ def remedies(glitch: Glitch, plan: Any, *, catalog: Any = None, stock: Any = Non
     state = glitch.transient_state
     if state is not None:
         out += _decode_choice_remedy(glitch, counter, spec)
-        if not getattr(counter, "synchronous", False) and catalog is not None and stock is not None:
-            parts = _synchronous_parts(catalog, stock)
+        if not counter.synchronous and catalog is not None and stock is not None:
+            parts = synchronous_counter_parts(catalog, stock)
             if parts:
                 shown = (glitch.transient_count if glitch.transient_count is not None
                          else f"count {state}")
@@ -1576,7 +1565,7 @@ def _decode_choice_remedy(glitch: Glitch, counter: Any, spec: Any) -> list[str]:
     ticks = _ticks_of_states(counter).get(int(state), [])  # type: ignore[arg-type]
     sig = getattr(spec, "signals", {}).get(glitch.signal) if spec is not None else None
     dont_care = set(getattr(sig, "dont_care", ()) or ())
-    never_held = not ticks and int(state) in set(getattr(counter, "unreachable", ()) or ())  # type: ignore[arg-type]
+    never_held = not ticks and int(state) in counter.unreachable  # type: ignore[arg-type]
     if not never_held and not (ticks and all(t in dont_care for t in ticks)):
         return []
     level = "low" if glitch.wrong_level else "high"
@@ -1842,8 +1831,7 @@ def register_checks(plan: Any, traces: Sequence[Trace], catalog: Any) -> list[di
         d, clock = gate.inputs[0], gate.inputs[1]
         setup = flipflop_requirement_ns(part, "setup", plan.supply) or 0.0
         hold = flipflop_requirement_ns(part, "hold", plan.supply) or 0.0
-        edge = next((str(u.fields["clock"].get("edge", "rising")) for u in part.units
-                     if u.type == "flipflop"), "rising")
+        edge = next((u.clock.edge for u in part.units if u.type == "flipflop"), "rising")
         setup_slack, hold_margin = math.inf, math.inf
         for trace in traces:
             d_times = [t for t, _ in trace.changes.get(d, [])]

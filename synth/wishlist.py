@@ -277,7 +277,7 @@ def _mapping_inputs(design):
 def candidate_parts(stock, catalog, library) -> list[str]:
     """Logic part types worth adding: one per distinct unit set, kinds the bin lacks first."""
     supply = stock.supply
-    families = {catalog.parts[p].family for p in stock.parts} or {"4000B"}
+    families = catalog.families_or_default(stock.parts)
     have = {(c.op, c.width, c.schmitt) for c in library.cells}
     seen: dict[tuple, tuple[bool, str]] = {}
     for part in sorted(catalog.parts.values(), key=lambda p: (p.family not in families, p.type)):

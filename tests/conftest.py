@@ -64,6 +64,8 @@ class Chip:
     enable_pin: int | None = None
     enable_net: str | None = None
     ties: dict = field(default_factory=dict)
+    carry_net: str | None = None
+    count_enable_pins: tuple = ()
 
 
 @dataclass

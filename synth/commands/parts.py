@@ -109,21 +109,26 @@ def describe_role(part, unit_id: str, role: str) -> str:
     head, _, tail = role.partition(".")
     base = head.split("[")[0]
     unit = next((u for u in part.units if u.id == unit_id), None) if part is not None else None
-    fields = unit.fields if unit is not None else {}
     if base == "stages":
         return f"stage {tail} (divide by {2 ** int(tail)})"
     if base == "decoded":
         return f"decoded output, high in state {tail}"
     if base in ("clock", "reset", "enable", "set") and tail == "pin":
-        info = fields.get(base, {})
-        extra = info.get("edge") or (f"active {info['active']}" if "active" in info else "")
-        return f"{base} ({extra})" if extra else base
+        return f"{base} ({_control_words(unit, base)})" if unit is not None else base
     if base == "throws":
         return f"throw joined while control is {tail}"
     return {"inputs": "input", "input": "input", "output": "output", "selects": "select",
             "data": "data input", "outputs": "output", "channels": "channel",
             "terminals": "switch terminal", "control": "control", "common": "common",
             "also": "second output"}.get(base, role)
+
+
+def _control_words(unit, name: str) -> str:
+    """``rising`` for a clock, ``active low`` for a reset, set or enable."""
+    if name == "clock":
+        return unit.clock.edge
+    control = unit.control_of_role(name)
+    return control.edge or f"active {control.active}"
 
 
 def _facts(part) -> list[tuple]:

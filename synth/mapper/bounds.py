@@ -62,7 +62,8 @@ def chips_lower_bound(k: int, capacities: Sequence[int]) -> float:
 
 
 def gate_lower_bound(problem: Problem, kinds: Sequence[SatKind]) -> float:
-    """Gates any circuit needs: a signal over s variables needs a tree joining them."""
+    """Gates any circuit needs: a signal over s variables needs a tree joining them,
+    and signals no one gate output can deliver together need a gate each."""
     widest = max((_distinct_inputs(k) for k in kinds), default=0)
     bound = 1
     for sig in problem.signals:
@@ -71,7 +72,28 @@ def gate_lower_bound(problem: Problem, kinds: Sequence[SatKind]) -> float:
             if widest <= 1:
                 return float("inf")
             bound = max(bound, -(-(s - 1) // (widest - 1)))
-    return bound
+    return max(bound, output_gate_bound(problem))
+
+
+def _levels_agree(a: Signal, b: Signal) -> bool:
+    """Whether one gate output can deliver both signals (each at its polarity)."""
+    common = a.care & b.care
+    same = all((m in a.on) == (m in b.on) for m in common)
+    opposite = all((m in a.on) != (m in b.on) for m in common)
+    fixed = {"high": 0, "low": 1}
+    if a.polarity == "free" or b.polarity == "free":
+        return same or opposite
+    return same if fixed[a.polarity] == fixed[b.polarity] else opposite
+
+
+def output_gate_bound(problem: Problem) -> int:
+    """Gates that deliver signals: signals no single gate output can deliver two of
+    need one gate each (a greedy set of pairwise such signals is a lower bound)."""
+    apart: list[Signal] = []
+    for sig in problem.signals:
+        if all(not _levels_agree(sig, other) for other in apart):
+            apart.append(sig)
+    return len(apart)
 
 
 def _monotone_possible(sig: Signal, nvars: int, low: bool) -> bool:

@@ -191,12 +191,12 @@ def map_design(functions, nvars: int, var_nets: Sequence[str], library: Library,
     gates = _name_signal_nets(result.gates, signals, set(var_nets))
     chips = chips_of(gates, lib)
     chip_floor, gate_floor = counting_bounds(problem, lib.cells)
-    if not result.proven and result.cost[0] <= chip_floor and result.cost[1] <= gate_floor:
+    if not result.proven and result.cost.chips <= chip_floor and result.cost.gates <= gate_floor:
         result.proven = True
         notes.append("counting bound: no circuit of the bin has fewer chips or gates "
                      "(fan-in, distinct outputs, inversion)")
     # an exact search that found nothing among plain gates may bound at infinity
-    lb = result.cost[0] if result.proven else max(1, int(min(max(lower, chip_floor), result.cost[0])))
+    lb = result.cost.chips if result.proven else max(1, int(min(max(lower, chip_floor), result.cost.chips)))
     method = ("exact synthesis" if result.method == "exact synthesis" else "structure selection") + \
         (": proven minimal" if result.proven else ": best found")
     network = Network(gates, signals, tuple(var_nets), chips, result.proven, lb, method, notes)

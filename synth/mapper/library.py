@@ -135,22 +135,21 @@ def cells_of_part(part: Part, chips: int, supply: float) -> list[Cell]:
     """The logic cells one part type offers (identical units grouped)."""
     groups: dict[tuple, list] = {}
     for unit in part.units:
-        f = unit.fields
-        if unit.type == "gate" and f.get("op") in AND_FORM or (unit.type == "gate" and f.get("op") in ("xor", "xnor")):
-            key = (f["op"], len(f["inputs"]), bool(f.get("schmitt")), False, 0, "high", (), False)
+        if unit.type == "gate" and unit.op in AND_FORM or (unit.type == "gate" and unit.op in ("xor", "xnor")):
+            key = (unit.op, len(unit.inputs), unit.schmitt, False, 0, "high", (), False)
         elif unit.type == "inverter":
-            key = ("not", 1, bool(f.get("schmitt")), False, 0, "high", (), False)
+            key = ("not", 1, unit.schmitt, False, 0, "high", (), False)
         elif unit.type == "buffer":
             key = ("buf", 1, False, False, 0, "high", (), False)
         elif unit.type == "mux":
-            shared = any(p in part.shared for p in f["selects"])
-            key = ("mux", len(f["data"]), False, bool(f.get("output_inv")), len(f["selects"]),
+            shared = any(p in part.shared for p in unit.selects)
+            key = ("mux", len(unit.data), False, unit.output_inv is not None, len(unit.selects),
                    "high", (), shared)
         elif unit.type == "decoder":
-            shared = any(p in part.shared for p in f["selects"])
-            enables = tuple(str(e.get("active", "high")) for e in f.get("enables") or ())
-            key = ("decoder", len(f["selects"]), False, False, len(f["outputs"]),
-                   str(f.get("active", "high")), enables, shared)
+            shared = any(p in part.shared for p in unit.selects)
+            enables = tuple(e.active for e in unit.enables)
+            key = ("decoder", len(unit.selects), False, False, len(unit.outputs),
+                   unit.active or "high", enables, shared)
         elif unit.type == "spdt":
             key = ("spdt", 2, False, False, 1, "high", (), False)
         else:

@@ -12,6 +12,7 @@ from typing import Mapping, Sequence
 from ..effort import Meter
 from .candidates import Candidates
 from .library import Cell, chips_from_units
+from .objective import Cost
 from .problem import Problem
 from .satkit import NODES_PER_STEP
 from .selection import Chosen
@@ -26,7 +27,7 @@ MOVABLE_ALL_NODES = 150   # designs of more nodes climb only where inverters or 
 @dataclass
 class _Eval:
     key: tuple
-    cost: tuple[int, int]
+    cost: Cost
     nodes: list[int]
     z: dict[int, tuple[int, ...]]
     inverters: dict[tuple, int]
@@ -166,7 +167,8 @@ class LocalSearch:
         overflow = sum(max(0, u - c.capacity) for u, c in zip(units, cells))
         chips = sum(chips_from_units(dict(enumerate(units)), cells).values())
         gates = sum(units)
-        return _Eval((overflow, chips, gates, depth), (chips, gates), order, z, inverters, tuple(units))
+        cost = Cost(chips, gates, depth)
+        return _Eval((overflow, *cost), cost, order, z, inverters, tuple(units))
 
     def _place_inverters(self, units: list[int], nets: list[tuple]) -> dict[tuple, int] | None:
         """Spare units of chips already opened first, then the cell that opens fewest chips."""

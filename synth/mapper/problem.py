@@ -7,6 +7,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from ..network import Gate, SignalOut
+from .objective import Cost
 
 
 EXACT_MAX_VARS = 6        # exact synthesis in 'auto' mode: at most this many variables ...
@@ -74,7 +75,7 @@ class Result:
 
     gates: list[Gate]
     signals: dict[str, SignalOut]
-    cost: tuple[int, int]
+    cost: Cost
     proven: bool
     method: str
     lower_bound: int | None = None

@@ -15,6 +15,7 @@ from typing import Iterable, Sequence
 
 from ..effort import Meter, PROPAGATIONS_PER_STEP
 from .library import Cell
+from .objective import Cost
 
 
 class Cnf:
@@ -153,8 +154,8 @@ def add_costing(cnf: Cnf, cells: Sequence[Cell], unit_lits: dict[int, list[int]]
 
 
 def minimise(solver, costing: _Costing, deadline: int, meter: Meter, count_chips, count_gates,
-              fixed: Sequence[int] = (), incumbent: tuple[int, int] | None = None
-              ) -> tuple[list[int] | None, bool, tuple[int, int] | None]:
+              fixed: Sequence[int] = (), incumbent: Cost | None = None
+              ) -> tuple[list[int] | None, bool, Cost | None]:
     """Chips first, then gates, by bound tightening.
 
     Returns (model, proven, (chips, gates)); proven means both minima were
@@ -169,12 +170,12 @@ def minimise(solver, costing: _Costing, deadline: int, meter: Meter, count_chips
         model = solver.get_model()
         chips, gates = count_chips(model), count_gates(model)
     else:
-        model, (chips, gates) = None, incumbent
+        model, chips, gates = None, incumbent.chips, incumbent.gates
     proven = True
     while 0 < chips <= len(costing.chip_count):
         result = solve_within(solver, list(fixed) + [-costing.chip_count[chips - 1]], deadline, meter)
         if result is None:
-            return model, False, (chips, gates)
+            return model, False, Cost(chips, gates)
         if not result:
             break
         model = solver.get_model()
@@ -189,4 +190,4 @@ def minimise(solver, costing: _Costing, deadline: int, meter: Meter, count_chips
             break
         model = solver.get_model()
         gates = count_gates(model)
-    return model, proven, (chips, gates)
+    return model, proven, Cost(chips, gates)

@@ -12,6 +12,7 @@ from typing import Sequence
 from ..effort import Meter
 from .candidates import Candidates, Option
 from .library import Cell, chips_from_units
+from .objective import Cost
 from .problem import Problem, Signal
 from .satkit import Cnf, add_costing, minimise, new_solver
 from .trees import Tree, TreeTable
@@ -29,7 +30,7 @@ class Chosen:
     trees: dict[int, Tree]
     z: dict[int, tuple[int, ...]]
     inverters: dict[tuple, int]          # net -> inverter kind index
-    cost: tuple[int, int]
+    cost: Cost
 
 
 class Selection:
@@ -248,7 +249,7 @@ class Selection:
             return None, proven
         return self._decode(set(l for l in model if l > 0), cost), proven
 
-    def _decode(self, model: set[int], cost: tuple[int, int]) -> Chosen:
+    def _decode(self, model: set[int], cost: Cost) -> Chosen:
         options = {}
         for name, lits in self.opt.items():
             options[name] = next(option for x, option in lits if x in model)

@@ -129,7 +129,7 @@ class Failure:
 def _fix_candidates(lib: Library, prefer_inverting: bool) -> list[str]:
     """Parts to try adding: more of what the bin has, inverters, NANDs, the rest of the family."""
     catalog = lib.catalog
-    families = {catalog.parts[p].family for p in lib.available} or {"4000B"}
+    families = catalog.families_or_default(lib.available)
     usable = [p for p in catalog.parts.values()
               if p.family in families and p.suits(lib.supply)
               and p.category in ("gate", "inverter", "mux", "decoder")]

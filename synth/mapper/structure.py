@@ -13,6 +13,7 @@ from .build import Builder
 from .candidates import Candidates, Form, candidate_structures
 from .library import Library, cell_of_gate, chips_from_units
 from .local import LocalSearch
+from .objective import Cost, depth_of
 from .problem import Problem, Result
 from .selection import Selection
 from .trees import TreeTable, tree_table
@@ -40,7 +41,7 @@ def select_structure(problem: Problem, forms: dict[str, list[Form]], lib: Librar
     signals = {sig.name: builder.signal(sig) for sig in problem.signals}
     gates = _tidy(builder.finish(), signals)
     units = _units_of(gates, lib)
-    cost = (sum(chips_from_units(units, cells).values()), len(gates))
+    cost = Cost(sum(chips_from_units(units, cells).values()), len(gates), depth_of(gates))
     return Result(gates, signals, cost, False, "structure selection"), proven
 
 
