@@ -312,9 +312,27 @@ def pin_direction(plan: Plan, ref: str, pin: int) -> Direction:
 
 def _direction(plan: Plan, ref: str, pin: int) -> Direction:
     try:
-        return pin_directions(plan.part_of(ref)).get(pin, "other")
+        part = plan.part_of(ref)
     except KeyError:
         return "other"
+    direction = pin_directions(part).get(pin, "other")
+    if direction == "analog":
+        return _logic_section_direction(plan, ref, part, pin) or direction
+    return direction
+
+
+def _logic_section_direction(plan: Plan, ref: str, part: Part, pin: int) -> Direction | None:
+    """A switch section used as a 2:1 mux gate: its common is the output, its throws inputs."""
+    units_used = plan.chip(ref).units_used
+    for unit in part.units_of("spdt"):
+        purpose = units_used.get(unit.id)
+        if not purpose or purpose.startswith("switch "):
+            continue
+        if pin == unit.common:
+            return "out"
+        if pin in (unit.throws.low, unit.throws.high):
+            return "in"
+    return None
 
 
 # ---------------------------------------------------------------- zero-delay simulation

@@ -494,6 +494,45 @@ def _free_sections(board: _Board, unit_type: str) -> int:
     return free + sum(board.spare(p.type) * len(p.units_of(unit_type)) for p in board.bin_parts(unit_type))
 
 
+# ---------------------------------------------------------------- switch sections as logic
+
+def is_switch_gate(gate: Gate, catalog: Catalog) -> bool:
+    """A 2:1 mux gate the mapper put on an analog switch's SPDT section."""
+    part = catalog.parts.get(gate.part)
+    return gate.op == "mux" and part is not None and bool(part.units_of("spdt")) \
+        and not any(u.type == "mux" for u in part.units)
+
+
+def _place_switch_gate(board: _Board, gate: Gate) -> None:
+    """A switch section as a 2:1 mux: control on the select, the low throw on data 0,
+    the high throw on data 1, the common is the output (4053 function table: control
+    low joins the common to the low throw).  Switch chips the spec's switches opened
+    come first, so the section shares their package."""
+    d0, d1, select = gate.inputs
+    notes_of = {}
+
+    def assignment(unit: Unit) -> dict[int, str]:
+        notes_of[unit.id] = {unit.control: f"gate {gate.id}: control (select {select})",
+                             unit.throws.low: f"gate {gate.id}: joins the output while the control is low",
+                             unit.throws.high: f"gate {gate.id}: joins the output while the control is high",
+                             unit.common: f"gate {gate.id}: output (drive CMOS inputs only)"}
+        return {unit.control: select, unit.throws.low: d0, unit.throws.high: d1, unit.common: gate.output}
+
+    part = _catalog_part(board.catalog, gate.part)
+    chips = [c for c in board.of_role("switch") if c.part.type == part.type]
+    for chip in chips + [None]:
+        if chip is None:
+            chip = board.open(part, "switch")
+        for unit in chip.part.units_of("spdt"):
+            if unit.id in chip.units_used:
+                continue
+            wiring = assignment(unit)
+            if chip.fits(wiring):
+                chip.place(unit.id, gate.id, wiring, notes_of[unit.id])
+                return
+    raise InternalError(f"gate {gate.id} fits no SPDT section of a {gate.part}")
+
+
 # ---------------------------------------------------------------- complements for SPST pairs
 
 def _inverts(gate: Gate, net: str) -> bool:
@@ -622,11 +661,15 @@ def pack(network: Network, counter_plan: Any, spec: Any, bin: Bin, catalog: Cata
     """Chips, pins and nets for a mapped network; checked before it is returned."""
     board = _Board(catalog, bin, signal_nets={n: s.net for n, s in network.signals.items()})
     _place_counters(board, counter_plan, network)
+    switch_gates = [g for g in network.gates if is_switch_gate(g, catalog)]
     for gate in network.gates:
-        _place_gate(board, gate)
+        if gate not in switch_gates:
+            _place_gate(board, gate)
     internal = {n for g in network.gates for n in (*g.inputs, *g.outputs) if n}
     internal |= {v.net for v in counter_plan.vars} | {str(c.clock_net) for c in counter_plan.chips}
     routes = _route_switches(board, network, spec, internal)
+    for gate in switch_gates:
+        _place_switch_gate(board, gate)
     if board.added_gates:
         network = dataclasses.replace(network, gates=list(network.gates) + board.added_gates)
     _assign_refs(board)
@@ -780,6 +823,12 @@ def _external_nets(plan: Plan, routes: list[_Route], net_for: Any) -> dict[str, 
     return external
 
 
+def _logic_sections(chip: ChipInstance) -> list[str]:
+    """Units of a switch chip serving as logic gates (not as one of the spec's switches)."""
+    return [u for u, purpose in (chip.units_used or {}).items()
+            if chip.role == "switch" and not str(purpose).startswith("switch ")]
+
+
 def _cautions(plan: Plan, counter_plan: Any) -> list[str]:
     lo = max(p.supply[0] for p in plan.parts.values()) if plan.parts else 3.0
     hi = min(p.supply[1] for p in plan.parts.values()) if plan.parts else 15.0
@@ -796,6 +845,10 @@ def _cautions(plan: Plan, counter_plan: Any) -> list[str]:
     if any(c.role == "switch" for c in plan.chips):
         cautions.append("Analog switch signals must stay between VSS and VDD (VEE is tied to VSS "
                         "for a single supply).")
+    if any(_logic_sections(c) for c in plan.chips):
+        cautions.append("A switch section used as logic passes the level of its selected input "
+                        "through its on-resistance: let its output drive CMOS inputs only (common "
+                        "practice), never a load or a long line.")
     if all(c.reset_net in RAIL_NETS for c in counter_plan.chips):
         cautions.append("At power-up the counter starts at an arbitrary count: tick 0 is the "
                         "all-zero count, and the sequence repeats from wherever it starts.")

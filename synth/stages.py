@@ -5,7 +5,7 @@ shortage countable before mapping, at once), ``mapping_inputs(...)`` (the
 library with the counters' and switches' chips reserved, and the polarities
 the mapper sees), ``map_decode(...) -> Network``, ``add_analog_parts(plan,
 spec, stock, catalog)`` (oscillator, power-on reset, staircases, re-checked),
-``switch_polarity(spec)``, ``reserved_chips(...)`` and
+``switch_polarity(spec)``, ``reserved_chips(...)``, ``switch_sections(...)`` and
 ``async_reset_names(counter_plan)``.
 
 These are the steps; the order they run in is ``synth.flow``'s alone, and
@@ -51,10 +51,21 @@ def reserved_chips(counter_plan, spec, stock, catalog) -> dict[str, int]:
 
 def _switch_chips(spec, stock, catalog) -> dict[str, int]:
     """How many switch chips the spec's switches need (SPDT sections first)."""
+    return {part: chips for part, (chips, _) in _switch_use(spec, stock, catalog).items()}
+
+
+def switch_sections(spec, stock, catalog) -> dict[str, int]:
+    """SPDT sections the spec's switches take per part type (the rest may serve as logic)."""
+    return {part: used for part, (_, used) in _switch_use(spec, stock, catalog).items()
+            if catalog.parts[part].units_of("spdt")}
+
+
+def _switch_use(spec, stock, catalog) -> dict[str, tuple[int, int]]:
+    """Per switch part type: (chips, sections) the spec's switches take, SPDT sections first."""
     wanted = len(spec.switches)
     if not wanted:
         return {}
-    taken: dict[str, int] = {}
+    taken: dict[str, tuple[int, int]] = {}
     for unit_types, per_switch in ((("spdt",), 1), (("spst",), 2), (("analog_mux",), 1)):
         for part_type, count in sorted(stock.parts.items()):
             part = catalog.parts[part_type]
@@ -65,7 +76,7 @@ def _switch_chips(spec, stock, catalog) -> dict[str, int]:
             if not per_chip:
                 continue
             need = min(count, -(-wanted // per_chip))
-            taken[part_type] = need
+            taken[part_type] = (need, min(wanted, need * per_chip) * per_switch)
             wanted -= need * per_chip
     return taken
 
@@ -130,7 +141,8 @@ def _switch_sections(stock, catalog) -> int:
 
 def mapping_inputs(spec: Spec, stock: Bin, catalog: Catalog, counter_plan: CounterPlan, decode: Decode):
     """The library (counter and switch chips reserved) and polarities the mapper sees."""
-    library = build_library(stock, catalog, reserved=reserved_chips(counter_plan, spec, stock, catalog))
+    library = build_library(stock, catalog, reserved=reserved_chips(counter_plan, spec, stock, catalog),
+                            switch_sections=switch_sections(spec, stock, catalog))
     polarity = switch_polarity(spec)
     for function in decode.functions:
         polarity.setdefault(function.name, _internal_polarity(counter_plan, function.name))

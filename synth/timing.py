@@ -214,6 +214,17 @@ def _delay(part: Any, key: str, supply: float, corner: str) -> float | None:
     return part.delay_at_corner(key, supply, corner) if part is not None else None
 
 
+def _gate_delay(part: Any, gate: Gate, supply: float, corner: str) -> float | None:
+    """A gate's catalog delay; a switch section used as a 2:1 mux takes the slower of its
+    select-to-output and in-to-out figures for every input (one delay per gate model)."""
+    delay = _delay(part, "tpd", supply, corner)
+    if gate.op == "mux" and part is not None and part.units_of("spdt"):
+        select = _delay(part, "select", supply, corner)
+        if select is not None:
+            delay = select if delay is None else max(delay, select)
+    return delay
+
+
 def _chip_ref(counter_plan: Any, chip: Any) -> str:
     if isinstance(chip, int) and not isinstance(chip, bool):
         return str(counter_plan.chips[chip].ref)
@@ -347,7 +358,7 @@ def gate_models(network: Network, catalog: Any, supply: float, corner: str = "ty
         if gate.op == "rc":
             models.append(_rc_model(gate, network, corner, gate_names))
             continue
-        delay, borrowed = _delay(part, "tpd", supply, corner), None
+        delay, borrowed = _gate_delay(part, gate, supply, corner), None
         if delay is None:
             delay, borrowed = stand_in_delay(catalog, gate, supply, corner)
             borrowed = borrowed if corner == "typ" else None     # said once, at the typical corner

@@ -11,6 +11,9 @@ from __future__ import annotations
 
 import json
 import re
+import shutil
+
+import pytest
 
 from synth.cli import main
 
@@ -198,9 +201,38 @@ def test_the_hand_design_for_the_tight_drawer_meets_the_spec():
         assert hand_design(t) == (t % 16 == 15, 17 <= t % 64 < 49)
 
 
-def test_a_tight_drawer_that_fits_by_hand_is_never_called_impossible(tmp_path, capsys):
+def test_a_tight_drawer_plans_and_cosimulates(tmp_path, capsys, catalog):
+    # The case: it plans (exit 0) with a spare 4053 section as a 2:1 mux on the
+    # switch's own package, and the exported Verilog run in Icarus Verilog (an outside
+    # simulator) meets the spec tick by tick over two cycles.
     spec = write(tmp_path, "spec.yaml", TIGHT_SPEC)
     stock = write(tmp_path, "bin.yaml", TIGHT_BIN)
     code = main(["plan", str(spec), "--bin", str(stock), "--json", "-", "--lacks", "0"])
     doc = json.loads(capsys.readouterr().out)
-    assert code != 3 and doc["verdict"] != "impossible"
+    assert code == 0 and doc["verdict"] == "planned"
+    from synth.pipeline import make_plan
+
+    plan = make_plan(spec, stock, catalog=catalog).plan
+    switches = [c for c in plan.chips if c.role == "switch"]
+    assert len(switches) == 1 and switches[0].part == "4053"      # one package for both
+    purposes = sorted(switches[0].units_used.values())
+    assert "switch dut_in" in purposes and any(not p.startswith("switch ") for p in purposes)
+    assert sum(c.startswith("A switch section used as logic") for c in plan.cautions) == 1
+    # TI CD4053B: INH (pin 6) high turns every switch off, so it is held at VSS; VEE (pin 7)
+    # at VSS for a single supply; control low joins the common to the x throw (data 0)
+    chip = switches[0]
+    assert chip.pins[6] == "VSS" and chip.pins[7] == "VSS"
+    mux = next(g for g in plan.network.gates if g.part == "4053")
+    unit_id = next(u for u, purpose in chip.units_used.items() if purpose == mux.id)
+    pins = {"A": (11, 12, 13, 14), "B": (10, 2, 1, 15), "C": (9, 5, 3, 4)}[unit_id]
+    d0, d1, select = mux.inputs
+    assert [chip.pins[p] for p in pins] == [select, d0, d1, mux.output]
+    if shutil.which("iverilog") is None or shutil.which("vvp") is None:
+        pytest.skip("Icarus Verilog is not installed (Debian package iverilog)")
+    from cosim import run_plan
+
+    period = 50_000_000        # 20 kHz in ps
+    samples, _ = run_plan(plan, catalog, period, 512, tmp_path)
+    for name, want in (("strobe", lambda t: t % 16 == 15), ("reset", lambda t: 17 <= t % 64 < 49)):
+        high = plan.signals[name]["polarity"] == "high"
+        assert samples[name] == [want(t % 256) == high for t in range(512)], name

@@ -79,23 +79,34 @@ minterm each signal cares about; a mismatch raises ``InternalError``.
 
 Library rules (the mapper's choices):
 
-- Chips ``reserved`` for counters or switches are not offered at all; their
-  spare sections are not used for logic (a partly used 4053 keeps its spares).
+- Chips ``reserved`` for counters or switches are not offered to the gate
+  engines; the spare SPDT sections of reserved switch chips are offered to
+  the splits only (below).
 - A 4068/4078 offers its main (NAND/NOR) output only; the second (AND/OR)
   output is not used, since the network's gate record carries one function.
 - Mux units that share their select pins with other units of the chip (the
   74HC153, 74HC157) count as one logic element per chip.
 - Analog switch sections (4053 SPDT) appear in the library and in
-  ``substitute``, but ``map_design`` does not use them as logic (packing
-  places them for spec switches only); a signal that only drives a switch is
-  given polarity 'free' by the caller, and packing swaps the throws.
+  ``substitute``.  Sections of a switch chip the spec's switches already take
+  are prepaid cells (``build_library(switch_sections=...)``): the gate
+  engines do not see them; ``complete`` (the package's ``map_design``) splits
+  a signal on a counter bit (Shannon expansion, the XOR case first:
+  ``factor``) when the gate-only mapping fails, or leaves a gap to its lower
+  bound while spare sections exist, and joins the halves with a spare
+  section as a 2:1 mux (``switchmux``) or with gates synthesised exactly
+  over the cut's nets (``cutsplit``); the cofactors are mapped by the
+  engines and the whole is verified.  Packing puts such
+  a section on the switch chip beside the spec's switch.  A signal that only
+  drives a switch is given polarity 'free' by the caller, and packing swaps
+  the throws.
 """
 
 from __future__ import annotations
 
-from .core import EXACT_MAX_VARS, map_design
+from .core import EXACT_MAX_VARS
 from .exact import EXACT_MAX_GATES
 from .library import Cell, Library, build_library, cells_of_part, chips_of
+from .complete import map_design
 
 __all__ = ["Cell", "Library", "build_library", "cells_of_part", "chips_of", "map_design",
            "EXACT_MAX_VARS", "EXACT_MAX_GATES"]

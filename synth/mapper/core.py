@@ -284,6 +284,14 @@ def _name_signal_nets(gates: list[Gate], signals: dict[str, SignalOut], fixed: s
                     outputs=tuple(rename.get(n, n) for n in g.outputs)) for g in gates]
 
 
+def verify_design(network: Network, functions, var_nets: Sequence[str], library: Library,
+                  polarity: Mapping[str, str]) -> None:
+    """The self-check of ``map_design`` for a network built elsewhere (a decomposition):
+    every cared-for minterm of every function, the bin's limits, no loops."""
+    _, _, every = _problem(functions, len(var_nets), var_nets, polarity)
+    _verify(network, every, len(var_nets), library)
+
+
 def _verify(network: Network, signals: Sequence[Signal], nvars: int, lib: Library) -> None:
     """Zero-delay simulation on every cared-for minterm; bin limits; loop freedom."""
     for part, chips in network.chips.items():

@@ -1,6 +1,7 @@
 """The mapper's world: the bin's usable units as cells, at one supply.
 
-Interface: ``Cell``, ``Library``, ``build_library(bin, catalog, *, reserved=None)``,
+Interface: ``Cell``, ``Library``, ``build_library(bin, catalog, *, reserved=None,
+switch_sections=None)``, ``Library.spare_switches()``,
 ``cells_of_part(part, chips, supply)``, ``chips_of(gates, library)``, the gate kinds
 (``AND_FORM``: each AND-like op as an AND with input and output phases, De Morgan,
 common practice) and the inverting kinds.  Part data come from the catalog, never
@@ -9,7 +10,7 @@ from code.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from typing import Iterable, Literal, Mapping, Sequence
 
 from ..errors import InternalError
@@ -38,6 +39,8 @@ class Cell:
 
     ``op``: and nand or nor xor xnor not buf mux decoder spdt.  ``width`` is
     the number of logic inputs (data pins for a mux, selects for a decoder).
+    ``prepaid``: spare sections of a chip the spec's switches already take
+    (``units_per_chip`` of them, on ``chips`` chips): using one opens no chip.
     """
 
     part: str
@@ -55,6 +58,7 @@ class Cell:
     codes: int = 0
     shared_select: bool = False
     mapped: bool = True
+    prepaid: bool = False
 
     @property
     def capacity(self) -> int:
@@ -104,6 +108,27 @@ class Library:
         return Library(cells, self.supply, self.catalog, available, dict(self.reserved),
                        list(self.notes), self.source)
 
+    def spare_switches(self) -> list[Cell]:
+        """Spare SPDT sections on switch chips the plan already holds (2:1 muxes, no new chip)."""
+        return [c for c in self.cells if c.prepaid and c.op == "spdt" and c.capacity > 0]
+
+    def less_spare(self, cell: Cell) -> "Library":
+        """The same bin with one spare section of ``cell`` taken."""
+        fewer = replace(cell, units_per_chip=cell.units_per_chip - 1) if cell.chips == 1 else \
+            replace(cell, chips=cell.chips - 1)
+        cells = [fewer if c is cell else c for c in self.cells]
+        return Library(cells, self.supply, self.catalog, dict(self.available), dict(self.reserved),
+                       list(self.notes), self.source)
+
+    def less_chips(self, chips: Mapping[str, int]) -> "Library":
+        """The same bin with these whole chips set aside (for logic mapped separately)."""
+        available = {p: n - chips.get(p, 0) for p, n in self.available.items()}
+        cells = [c if c.prepaid or not chips.get(c.part) else replace(c, chips=available[c.part])
+                 for c in self.cells]
+        return Library([c for c in cells if c.chips > 0], self.supply, self.catalog,
+                       {p: n for p, n in available.items() if n > 0}, dict(self.reserved),
+                       list(self.notes), self.source)
+
     def mapped(self) -> "Library":
         """Only the cells packing can place in a plan."""
         lib = Library([c for c in self.cells if c.mapped], self.supply, self.catalog,
@@ -111,8 +136,14 @@ class Library:
         return lib
 
 
-def build_library(bin: Bin, catalog: Catalog, *, reserved: Mapping[str, int] | None = None) -> Library:
-    """Every logic unit kind of the bin's parts, minus the chips already reserved."""
+def build_library(bin: Bin, catalog: Catalog, *, reserved: Mapping[str, int] | None = None,
+                  switch_sections: Mapping[str, int] | None = None) -> Library:
+    """Every logic unit kind of the bin's parts, minus the chips already reserved.
+
+    ``switch_sections``: SPDT sections the spec's switches take per part type;
+    the rest of the reserved switch chips' sections come as prepaid cells (a
+    spare section used as a 2:1 mux shares the package, opening no chip).
+    """
     reserved = dict(reserved or {})
     cells: list[Cell] = []
     available: dict[str, int] = {}
@@ -128,7 +159,25 @@ def build_library(bin: Bin, catalog: Catalog, *, reserved: Mapping[str, int] | N
             continue
         available[part_type] = chips
         cells.extend(kinds)
+    cells[:0] = _spare_sections(bin, catalog, reserved, switch_sections or {})
     return Library(cells, bin.supply, catalog, available, reserved, notes, bin.path)
+
+
+def _spare_sections(bin: Bin, catalog: Catalog, reserved: Mapping[str, int],
+                    used: Mapping[str, int]) -> list[Cell]:
+    """Prepaid SPDT cells: the sections of reserved switch chips the spec's switches leave."""
+    cells = []
+    for part_type, taken in sorted(used.items()):
+        chips = reserved.get(part_type, 0)
+        part = catalog.parts[part_type]
+        per_chip = len(part.units_of("spdt"))
+        spare = chips * per_chip - taken
+        if spare <= 0 or not per_chip:
+            continue
+        for cell in cells_of_part(part, 1, bin.supply):
+            if cell.op == "spdt":
+                cells.append(replace(cell, units_per_chip=spare, chips=1, prepaid=True, mapped=False))
+    return cells
 
 
 def cells_of_part(part: Part, chips: int, supply: float) -> list[Cell]:
@@ -200,7 +249,7 @@ def _gate_width(gate: Gate) -> int:
 def chips_from_units(units: Mapping[int, int], cells: Sequence[Cell]) -> dict[str, int]:
     chips: dict[str, int] = {}
     for index, count in units.items():
-        if count <= 0:
+        if count <= 0 or cells[index].prepaid:
             continue
         cell = cells[index]
         need = -(-count // cell.units_per_chip)

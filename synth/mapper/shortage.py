@@ -62,7 +62,7 @@ class Failure:
         """A counting argument or a finished exhaustive search, or None."""
         lib, problem = self.lib, self.problem
         if self.spare_switch_note():
-            return None            # spare switch sections are not searched: no proof
+            return None            # spare switch sections are not searched exhaustively: no proof
         if not lib.cells:
             return ("the bin holds no logic gates besides the counter and switch chips",
                     Shortage("logic gate", None, 0, self.named_fix(prefer_inverting=True)))
@@ -98,14 +98,23 @@ class Failure:
         return None
 
     def spare_switch_note(self) -> str:
-        """The reserved switch chips' other sections are not used as logic (yet): say so."""
+        """The reserved switch chips' other sections are no part of a proof: say how far
+        they were searched (SPDT sections only as the 2:1 mux of a split on a counter bit)."""
         catalog = self.lib.catalog
         parts = sorted(p for p in self.lib.reserved
                        if catalog.parts[p].units_of("spdt", "spst", "analog_mux"))
         if not parts:
             return ""
-        return (f"; spare sections of the {', '.join(parts)} kept for the spec's switches were "
-                f"not searched as logic")
+        split = [p for p in parts if catalog.parts[p].units_of("spdt")]
+        other = [p for p in parts if p not in split]
+        said = []
+        if split:
+            said.append(f"spare sections of the {', '.join(split)} kept for the spec's switches were "
+                        f"tried as logic only as the 2:1 mux of a signal split on a counter bit")
+        if other:
+            said.append(f"spare sections of the {', '.join(other)} kept for the spec's switches were "
+                        f"not searched as logic")
+        return "; " + "; ".join(said)
 
     def named_fix(self, prefer_inverting: bool) -> str:
         candidates = _fix_candidates(self.lib, prefer_inverting)

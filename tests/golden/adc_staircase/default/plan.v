@@ -1,6 +1,6 @@
-// binsynth structural model of plan 'adc-staircase': 1 counter unit(s), 13 gate(s), typical delays at 5 V.
+// binsynth structural model of plan 'adc-staircase': 1 counter unit(s), 11 gate(s), typical delays at 5 V.
 // Counting edge: falling edge of clk. The count starts from all zeros; sample the outputs just before each counting edge.
-// clk is made on the board by an RC oscillator (40106 U6, nominal 11905.6 Hz); it stays an input here: drive it from the testbench.
+// clk is made on the board by an RC oscillator (40106 U2, nominal 11905.6 Hz); it stays an input here: drive it from the testbench.
 `timescale 1ns/1ps
 module adc_staircase (clk, sweep, convert, frame);
   input clk;
@@ -8,7 +8,7 @@ module adc_staircase (clk, sweep, convert, frame);
   output convert;
   output frame;
   reg Q6, Q5, Q7, Q4, Q3, Q2, Q1;
-  wire n9, convert_n, n11, n12, n13, n14, n15, n16, n17, n18, n19, n20;
+  wire n9, convert_n, n11, n12, n13, n14, n15, n16, n17, frame_Q7lo;
 
   // U1 unit A: 4040 12-stage binary ripple counter; counts on the falling edge of CLK, modulus 4096
   //   Q6 (pin 2) -> Q6: 505 ns after the counting edge
@@ -46,32 +46,28 @@ module adc_staircase (clk, sweep, convert, frame);
   end
 
   // decode logic: one primitive per physical gate, named chip_unit
-  // U2_A: 4011 nand, 55 ns (gate g1)
-  nand #(55) U2_A (n9, Q2, Q2);
-  // U2_B: 4011 nand, 55 ns (gate g2)
-  nand #(55) U2_B (convert_n, Q1, n9);
-  // U3_A: 4069 not, 55 ns (gate g3)
-  not #(55) U3_A (n11, Q3);
-  // U3_B: 4069 not, 55 ns (gate g4)
-  not #(55) U3_B (n12, Q4);
-  // U3_C: 4069 not, 55 ns (gate g5)
-  not #(55) U3_C (n13, Q5);
-  // U3_D: 4069 not, 55 ns (gate g6)
-  not #(55) U3_D (n14, Q6);
-  // U3_E: 4069 not, 55 ns (gate g7)
-  not #(55) U3_E (n15, Q7);
-  // U2_C: 4011 nand, 55 ns (gate g8)
-  nand #(55) U2_C (n16, n9, n11);
-  // U3_F: 4069 not, 55 ns (gate g9)
-  not #(55) U3_F (n17, n16);
-  // U4_A: 4081 and, 160 ns (gate g10)
-  and #(160) U4_A (n18, n12, n13);
-  // U4_B: 4081 and, 160 ns (gate g11)
-  and #(160) U4_B (n19, n14, n15);
-  // U4_C: 4081 and, 160 ns (gate g12)
-  and #(160) U4_C (n20, n18, n19);
-  // U4_D: 4081 and, 160 ns (gate g13)
-  and #(160) U4_D (frame, n17, n20);
+  // U2_A: 40106 not, 90 ns (gate g1)
+  not #(90) U2_A (n9, Q2);
+  // U3_A: 4011 nand, 55 ns (gate g2)
+  nand #(55) U3_A (convert_n, Q1, n9);
+  // U2_B: 40106 not, 90 ns (gate g3)
+  not #(90) U2_B (n11, Q3);
+  // U3_B: 4011 nand, 55 ns (gate g4)
+  nand #(55) U3_B (n12, Q4, Q4);
+  // U3_C: 4011 nand, 55 ns (gate g5)
+  nand #(55) U3_C (n13, Q5, Q5);
+  // U3_D: 4011 nand, 55 ns (gate g6)
+  nand #(55) U3_D (n14, Q6, Q6);
+  // U4_A: 4081 and, 160 ns (gate g7)
+  and #(160) U4_A (n15, n11, n12);
+  // U4_B: 4081 and, 160 ns (gate g8)
+  and #(160) U4_B (n16, n13, n14);
+  // U4_C: 4081 and, 160 ns (gate g9)
+  and #(160) U4_C (n17, n15, n16);
+  // U4_D: 4081 and, 160 ns (gate g10)
+  and #(160) U4_D (frame_Q7lo, n9, n17);
+  // U5_B: 4053 mux, 275 ns (gate sw1)
+  assign #(275) frame = (Q7 == 0) ? frame_Q7lo : 1'b0;
 
   assign sweep = Q7;  // sweep: active low
   assign convert = convert_n;  // convert: active low
