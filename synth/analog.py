@@ -23,6 +23,8 @@ Interface:
 - ``monte_carlo(ladder, tolerance, trials, seed) -> LadderStats``
 - ``choose_ladder_resistors(resistors, bits, *, r_out_driver=0.0) -> LadderChoice``
 - ``solve_linear(matrix, rhs) -> list[float]`` (Gaussian elimination)
+- ``with_tolerance(spread) -> Spread`` (an RC time's spread widened by
+  ``R_TOLERANCE`` and ``C_TOLERANCE``, the parts' own tolerances)
 - records: ``Spread``, ``RcOption``, ``DelayDesign``, ``OscillatorCorner``,
   ``OscillatorDesign``, ``CounterOscillatorDesign``, ``LadderElement``,
   ``Ladder``, ``Linearity``, ``WorstCase``, ``LadderStats``, ``LadderChoice``
@@ -54,6 +56,7 @@ __all__ = [
     "schmitt_period", "schmitt_oscillator_design", "counter_oscillator_design",
     "r2r_ladder", "binary_weighted_ladder", "ladder_levels", "linearity",
     "worst_case_linearity", "monte_carlo", "choose_ladder_resistors", "solve_linear",
+    "with_tolerance", "R_TOLERANCE", "C_TOLERANCE",
 ]
 
 # Timing resistors between 10 kOhm and 1 MOhm suit CMOS (common practice): below
@@ -76,6 +79,10 @@ GOOD_ENOUGH = 0.05
 # (common practice).
 PLAIN_VIL_FRACTION = 0.3
 PLAIN_VIH_FRACTION = 0.7
+# Component tolerance for an RC time: carbon/metal film resistors +-5 %, small
+# ceramic/film capacitors +-10 % (common practice; bins list values, not grades).
+R_TOLERANCE = 0.05
+C_TOLERANCE = 0.10
 
 
 @dataclass(frozen=True)
@@ -85,6 +92,18 @@ class Spread:
     min: float
     typ: float
     max: float
+
+
+def with_tolerance(spread: Spread) -> Spread:
+    """A threshold spread of an RC time widened by the R and C tolerances
+    (``R_TOLERANCE``, ``C_TOLERANCE``): min at R and C low, max at both high.
+
+    >>> s = with_tolerance(Spread(1.0, 2.0, 3.0))
+    >>> round(s.min, 4), s.typ, round(s.max, 4)
+    (0.855, 2.0, 3.465)
+    """
+    low, high = (1 - R_TOLERANCE) * (1 - C_TOLERANCE), (1 + R_TOLERANCE) * (1 + C_TOLERANCE)
+    return Spread(spread.min * low, spread.typ, spread.max * high)
 
 
 # ====================================================================== RC delay

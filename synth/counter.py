@@ -1,6 +1,8 @@
 """Counter allocation from the bin: which chips count, and what each tick looks like on their pins.
 
-Interface: ``allocate(spec, bin, catalog) -> CounterPlan``; the records
+Interface: ``allocate(spec, bin, catalog, *, decoded_carry=False) -> CounterPlan``;
+``carry_nets(counter_plan, network)`` (a decoded count enable's board net); the records
+``CarryDecode`` (a 4520/4518 cascade's decoded count enable),
 ``CounterVar`` (one counter output the decode may use), ``CounterChip`` (one
 counter unit as wired), ``ResetDecode`` (the state that cuts a cycle short)
 and ``CounterPlan``; ``bits_for(cycle)``; ``counter_fmax_mhz(part, supply)``;
@@ -29,7 +31,15 @@ weight); nets are the datasheet pin names, prefixed with the chip's ref
 dual counter share one ref and have distinct pin names).  Synchronous carry
 cascades: a 74HC161/163 counts on CLK while the unit below's TC is high
 (TC -> CEP and CET, the datasheet's synchronous cascade), so all outputs
-change on one edge; two units (8 stages) at most.
+change on one edge; any number of units (three 74HC163 count 4096), each
+unit's TC high only while its own CET is (the TCs ripple up the chain).
+Units with a count ENABLE but no carry pin (4520, 4518) cascade
+synchronously when ``decoded_carry`` asks for it: every unit on CLK, each
+upper unit's ENABLE on a decode (``CarryDecode``: every unit below at its last
+count; the mapper builds it from the bin's gates, hazard-free, like the reset
+decode).  The 4520 also counts when ENABLE falls while CLOCK is low, so the
+decode must settle while CLOCK is still high after the counting edge; the
+timing simulation models that.
 """
 
 from __future__ import annotations
@@ -109,6 +119,20 @@ class ResetDecode:
     transient: int | None = None    # minterm of the state shown while an asynchronous reset acts
 
 
+@dataclass(frozen=True)
+class CarryDecode:
+    """A decoded count enable of a synchronous cascade without carry pins (4520, 4518):
+    high exactly at the ticks after which the unit ``chip`` must count (every unit below
+    at its last count), mapped onto the bin's gates like the reset decode; ``net`` is
+    the name the counter plan gives the enable pin until the decode's net is known."""
+
+    name: str
+    on: frozenset[int]
+    dc: frozenset[int]
+    net: str
+    chip: int
+
+
 @dataclass
 class CounterPlan:
     """The counter chips and the tick <-> minterm map the decode works over."""
@@ -126,6 +150,7 @@ class CounterPlan:
     settle_ns: float | None = None
     transient_states: int = 0
     passing: dict[int, frozenset[int]] = field(default_factory=dict)  # tick -> states shown on the way to the next
+    carries: tuple[CarryDecode, ...] = ()   # decoded count enables (4520/4518 synchronous cascades)
 
     @property
     def nvars(self) -> int:
@@ -321,7 +346,9 @@ class _Element:
     divisor: int              # ticks per count
     source: tuple[int, int] | None   # None = CLK, else (element, stage) that clocks it
     via: str                  # 'clock', 'enable', or 'carry' (clocked by CLK, counting while
-                              # element ``carry_from``'s TC is high: a synchronous cascade)
+                              # element ``carry_from``'s TC is high: a synchronous cascade), or
+                              # 'decoded' (clocked by CLK, its ENABLE on a gate decoding every
+                              # unit below at its last count: 4520/4518 synchronous cascade)
     offset: int = 0           # binary chains: the bit of stage 1
     carry_from: int | None = None
 
@@ -355,7 +382,7 @@ def _chips_of(elements: tuple[_Element, ...]) -> int:
     return sum(-(-n // len(kind.units)) for kind, n in used.values())
 
 
-def _binary_chains(kinds: list[_Kind], n: int, max_chips: int) -> list[_Chain]:
+def _binary_chains(kinds: list[_Kind], n: int, max_chips: int, decoded: bool = False) -> list[_Chain]:
     """Binary chains covering bits 0..n-1: ripple cascades and parallel fill-ins."""
     binary = [k for k in kinds if k.mode == "binary"]
     found: dict[tuple, _Chain] = {}
@@ -401,6 +428,10 @@ def _binary_chains(kinds: list[_Kind], n: int, max_chips: int) -> list[_Chain]:
             if carry is not None:
                 element = _Element(kind, _used(elements, kind), 1 << top, None, "carry", top, carry)
                 grow(elements + (element,), edge)
+            below = _decoded_source(elements, kind, top, n) if decoded else None
+            if below is not None:
+                element = _Element(kind, _used(elements, kind), 1 << top, None, "decoded", top, below)
+                grow(elements + (element,), edge)
 
     grow((), None)
     return list(found.values())
@@ -416,14 +447,37 @@ def _carries(kind: _Kind) -> bool:
 
 def _carry_source(elements, kind: _Kind, top: int, n: int) -> int | None:
     """The element whose TC can enable ``kind`` as the next unit of a synchronous
-    cascade: the top unit, clocked by CLK, itself not carry-enabled (its TC would then
-    depend on its own enable, which the models do not carry: two units, 8 stages)."""
+    cascade: the top unit, clocked by CLK, counting freely or itself carry-enabled
+    (its TC is then CET and count 15, so the TCs ripple up: 74HC161 datasheet,
+    TC = CET . Q0 . Q1 . Q2 . Q3; ``timing`` models a TC that follows its CET)."""
     if not elements or top >= n or not _carries(kind):
         return None
     for i, e in enumerate(elements):
-        if e.offset + e.kind.width == top and e.source is None and e.via == "clock" \
-                and _carries(e.kind) and e.carry_from is None \
+        if e.offset + e.kind.width == top and e.source is None and e.via in ("clock", "carry") \
+                and _carries(e.kind) \
                 and _unit(e).clock.edge == kind.units[0].clock.edge:
+            return i
+    return None
+
+
+def _enable_counts(kind: _Kind) -> bool:
+    """A synchronous unit with a count ENABLE beside its CLOCK and every stage pinned out
+    (4520, 4518: counts on CLOCK rising while ENABLE is high), so a gate can decode its
+    enable from the units below: the data sheets' synchronous cascade."""
+    f = kind.units[0].fields
+    return kind.synchronous and kind.mode in ("binary", "bcd") and bool(f.get("enable")) \
+        and f.get("enable", {}).get("active", "high") == "high" and f["clock"]["edge"] == "rising" \
+        and set(kind.visible) == set(range(1, kind.width + 1))
+
+
+def _decoded_source(elements, kind: _Kind, top: int, n: int) -> int | None:
+    """The top element when ``kind`` can follow it in a decoded-enable synchronous cascade
+    (both on CLK, the same kind of counting unit)."""
+    if not elements or top >= n or not _enable_counts(kind):
+        return None
+    for i, e in enumerate(elements):
+        if e.offset + e.kind.width == top and e.source is None and e.via in ("clock", "decoded") \
+                and _enable_counts(e.kind) and e.kind.mode == kind.mode:
             return i
     return None
 
@@ -446,7 +500,7 @@ def _binary_chain(elements, seen: dict[int, tuple[int, int]], n: int) -> _Chain:
     return _Chain(tuple(elements), sources, "binary")
 
 
-def _bcd_chains(kinds: list[_Kind], cycle: int, max_chips: int) -> list[_Chain]:
+def _bcd_chains(kinds: list[_Kind], cycle: int, max_chips: int, decoded: bool = False) -> list[_Chain]:
     """BCD decades cascaded from Q4 (it falls on 9 -> 0), with an optional binary tail."""
     bcd = [k for k in kinds if k.mode == "bcd" and {1, 2, 3, 4} <= k.visible]
     binary = [k for k in kinds if k.mode == "binary"]
@@ -463,6 +517,11 @@ def _bcd_chains(kinds: list[_Kind], cycle: int, max_chips: int) -> list[_Chain]:
         for kind in bcd:
             if _used(elements, kind) >= kind.count * len(kind.units):
                 continue
+            if decoded and elements and all(e.source is None for e in elements) and _enable_counts(kind) \
+                    and all(_enable_counts(e.kind) for e in elements):
+                e = _Element(kind, _used(elements, kind), capacity, None, "decoded", 0, len(elements) - 1)
+                if _chips_of(elements + (e,)) <= max_chips:
+                    grow(elements + (e,), capacity * 10, edge)
             for want in ([needed_edge] if needed_edge else ["rising", "falling"]):
                 via = kind.clocking(want)
                 if via:
@@ -591,7 +650,7 @@ def _period(chain: _Chain) -> int:
 def _element_edge(e: _Element) -> Edge:
     """The edge of its input net that advances a unit."""
     unit = _unit(e)
-    if e.via in ("clock", "carry"):
+    if e.via in ("clock", "carry", "decoded"):
         return unit.clock.edge
     return _enable_edge(unit) or "falling"
 
@@ -647,7 +706,7 @@ def _fmax_problem(chain: _Chain, supply: float, frequency: float | None, verdict
     if not frequency:
         return ""
     for e in chain.elements:
-        f_in = frequency / (1 if e.via == "carry" else e.divisor) / 1e6
+        f_in = frequency / (1 if e.via in ("carry", "decoded") else e.divisor) / 1e6
         fmax, how = e.kind.fmax_mhz(supply)
         if fmax is None:
             verdict.fmax_notes.append(f"{e.kind.part.type}: no fmax in the catalog; "
@@ -727,8 +786,12 @@ def _settle_ns(chain: _Chain, supply: float) -> float | None:
 
 # ---------------------------------------------------------------- allocation
 
-def allocate(spec, stock: Bin, catalog: Catalog) -> CounterPlan:
-    """Choose counter chips and stages for the spec's cycle from what is on hand."""
+def allocate(spec, stock: Bin, catalog: Catalog, *, decoded_carry: bool = False) -> CounterPlan:
+    """Choose counter chips and stages for the spec's cycle from what is on hand.
+
+    ``decoded_carry``: also build synchronous cascades of 4520 / 4518 units whose
+    ENABLE a gate decodes from the units below (a decode the mapper must then place:
+    the glitch fix's synchronous-counter remedy asks for it)."""
     cycle = int(spec.cycle)
     if cycle == 1:
         return CounterPlan([], [], 1, (0,), frozenset(), "rising", True, None,
@@ -740,7 +803,7 @@ def allocate(spec, stock: Bin, catalog: Catalog) -> CounterPlan:
                         hint="split the sequence, or lower the clock and use fewer ticks")
     supply = float(spec.supply)
     frequency = _frequency(spec)
-    best, rejected = _search(spec, _kinds(stock, catalog), supply, frequency)
+    best, rejected = _search(spec, _kinds(stock, catalog), supply, frequency, decoded_carry)
     if best is None:
         raise _shortage(spec, stock, catalog, rejected, supply, frequency)
     return _plan_of(best, spec, stock, catalog, supply, frequency)
@@ -750,13 +813,13 @@ def _frequency(spec) -> float | None:
     return spec.clock.frequency_hz
 
 
-def _search(spec, kinds: list[_Kind], supply: float, frequency: float | None):
+def _search(spec, kinds: list[_Kind], supply: float, frequency: float | None, decoded: bool = False):
     """The best chain by the selection rule, and the verdicts that failed."""
     cycle = spec.cycle
     n = bits_for(cycle)
     rejected: list[_Verdict] = []
     for max_chips in range(1, MAX_CHIPS + 1):
-        chains = _binary_chains(kinds, n, max_chips) + _bcd_chains(kinds, cycle, max_chips)
+        chains = _binary_chains(kinds, n, max_chips, decoded) + _bcd_chains(kinds, cycle, max_chips, decoded)
         if max_chips == 1:
             chains += _johnson_chains(kinds, cycle)
         verdicts = [_assess(c, spec, supply, frequency) for c in chains if c.chips() == max_chips]
@@ -821,8 +884,7 @@ def _unchainable(kinds: list[_Kind], n: int) -> str:
     carry = sorted({k.part.type for k in short if k.clocking("falling") is None and _carries(k)})
     if carry and len(stuck) + len(carry) == len(short):
         return (f"the {_or_list(carry)} counts only on a rising clock edge; a synchronous carry "
-                f"cascade of two units gives {2 * min(k.width for k in short if _carries(k))} stages, "
-                "and longer cascades are not built")
+                "cascade needs enough of them on one clock edge")
     if not stuck or len(stuck) < len(short):
         return ""
     names = _or_list(sorted(set(stuck)))
@@ -879,7 +941,8 @@ def _plan_of(verdict: _Verdict, spec, stock: Bin, catalog: Catalog, supply: floa
     plan = CounterPlan(chips, vars_, cycle, state_of_tick, unreachable, verdict.edge,
                        verdict.synchronous, reset, settle_ns=verdict.settle_ns,
                        passing=_passing(chain, verdict, reset.transient if reset else None),
-                       transient_states=1 if verdict.reset_mode in ("async", "direct") else 0)
+                       transient_states=1 if verdict.reset_mode in ("async", "direct") else 0,
+                       carries=_carry_decodes(chain, state_of_tick, unreachable, cycle))
     plan.warnings += verdict.fmax_notes
     plan.notes += [c.how for c in chips]
     _explain(plan, verdict, frequency)
@@ -923,7 +986,11 @@ def _chips(chain: _Chain, vars_: list[CounterVar], refs: list[str], reset: Reset
         enable = unit.enable
         enable_pin = enable.pin if enable else None
         count_enable: tuple[int, ...] = ()
-        if e.via == "carry":
+        if e.via == "decoded":
+            clock_pin = unit.clock.pin
+            enable_net = _carry_placeholder(i)
+            ties.pop(enable_pin, None)
+        elif e.via == "carry":
             count_enable = unit.count_enable
             clock_pin = unit.clock.pin
             enable_pin, enable_net = count_enable[0], _carry_net(chain, e, refs, prefix)
@@ -946,18 +1013,47 @@ def _chips(chain: _Chain, vars_: list[CounterVar], refs: list[str], reset: Reset
             reset_net = "VSS" if unit.reset is None or unit.reset.active == "high" else "VDD"
             if reset_pin is not None:
                 ties[reset_pin] = reset_net
-        for pin in (clock_pin, enable_pin if e.via == "enable" else None, reset_pin if reset else None):
+        for pin in (clock_pin, enable_pin if e.via in ("enable", "decoded") else None,
+                    reset_pin if reset else None):
             ties.pop(pin, None)
         chip = CounterChip(refs[i], part.type, _unit_id(e), clock_net, clock_pin, edge, reset_pin,
                            reset_net, enable_pin, enable_net, ties, tuple(sorted(used[i])), e.divisor,
                            count_enable_pins=count_enable[1:])
         chips.append(chip)
     for i, e in enumerate(chain.elements):
-        if e.carry_from is not None:
+        if e.carry_from is not None and e.via == "carry":
             chips[e.carry_from].carry_net = chips[i].enable_net
     for chip, e in zip(chips, chain.elements):
         chip.how = _how(chip, e.kind.part, e, _unit(e))
     return chips
+
+
+def _carry_placeholder(index: int) -> str:
+    return f"_carry{index + 1}"
+
+
+def _carry_decodes(chain: _Chain, states: tuple[int, ...], unreachable: frozenset[int],
+                   cycle: int) -> tuple[CarryDecode, ...]:
+    """One decoded enable per 'decoded' unit: high at the ticks t with t + 1 a multiple of
+    the unit's divisor (every unit below at its last count, so the next edge carries)."""
+    out = []
+    for i, e in enumerate(chain.elements):
+        if e.via != "decoded":
+            continue
+        on = frozenset(states[t] for t in range(cycle) if (t + 1) % e.divisor == 0)
+        name = _carry_placeholder(i)
+        out.append(CarryDecode(name, on, frozenset(unreachable), name, i))
+    return tuple(out)
+
+
+def carry_nets(counter_plan: CounterPlan, network) -> dict[str, str]:
+    """Each decoded enable's name in the counter plan -> the board net the mapping gave it."""
+    out = {}
+    for carry in counter_plan.carries:
+        decoded = network.signals.get(carry.name)
+        if decoded is not None:
+            out[carry.net] = str(decoded.net)
+    return out
 
 
 def _carry_net(chain: _Chain, e: _Element, refs: list[str], prefix: bool) -> str:
@@ -973,10 +1069,14 @@ def _how(chip: CounterChip, part: Part, e: _Element, counter: Unit) -> str:
     unit = f" unit {chip.unit}" if len(e.kind.units) > 1 else ""
     text = (f"{chip.ref} {part.type}{unit} counts on the {chip.clock_edge} edge of {chip.clock_net} "
             f"at {name.get(chip.clock_pin, chip.clock_pin)} (pin {chip.clock_pin})")
-    if e.via == "carry":
+    if e.via == "decoded":
+        text += (f" while its {name.get(chip.enable_pin)} (pin {chip.enable_pin}) is high: a gate decodes "
+                 "every unit below at its last count (a synchronous cascade, every output changes on "
+                 "the same clock edge)")
+    elif e.via == "carry":
         pins = ", ".join(f"{name.get(p, p)} (pin {p})" for p in (chip.enable_pin, *chip.count_enable_pins))
         text += (f" while {chip.enable_net} is high ({pins} on it): a synchronous cascade, every "
-                 "output of both units changes on the same clock edge")
+                 "output of the cascade changes on the same clock edge")
     elif e.via == "enable":
         clock_pin = counter.clock.pin
         level = "low" if chip.ties.get(clock_pin) == "VSS" else "high"

@@ -274,6 +274,7 @@ def _functions(spec, plan: CounterPlan, chosen: dict[str, frozenset[int]],
     reset = plan.reset
     if reset is not None and not reset.direct:
         functions.append(Function(reset.name, reset.on, reset.dc))
+    functions += [Function(carry.name, carry.on, carry.dc) for carry in plan.carries]
     return functions
 
 

@@ -19,6 +19,7 @@ and the stage modules)::
     Plan       --add_analog_parts-> Plan             (oscillator, power-on reset, staircases)
     Design     --timing_report-->   TimingReport     (pure; written into a new Plan here)
     Design     --glitchfix.apply_fixes--> Design, FixReport   (remedies re-plan through us)
+    Design     --rcdelay.apply_delays-->  Design     (RC delays asked for; timing again here)
 
 A remedy never calls the stages itself: ``glitchfix`` is handed this
 sequencer and asks it to run them again from the counter plan (or from
@@ -40,6 +41,7 @@ from .glitchfix import apply_fixes
 from .inventory import Bin, Catalog, load_bin, load_catalog
 from .model import CounterPlan, Decode, Design, FixReport, Network, Plan, TimingReport
 from .packing import pack
+from .rcdelay import apply_delays
 from .spec import Spec, load_spec
 from .stages import add_analog_parts, async_reset_names, counted_first, map_decode, mapping_inputs
 from .timing import timing_report
@@ -96,6 +98,7 @@ class Sequencer:
                                  self.settings.effort)
             design = self._through_timing(spec, stock, catalog, counter_plan, decode, network)
             design = self._remedies(design)
+            design = apply_delays(design, self.settings.fix, retime)
         except BaseException:
             if search is not None:
                 search.cancel()
@@ -163,6 +166,11 @@ class Sequencer:
             return None
         return start_search(decode, counter_plan, library, polarity, stock, catalog,
                             glitch_free=async_reset_names(counter_plan), effort=self.settings.effort)
+
+
+def retime(design: Design) -> Design:
+    """The timing step again on a changed plan (an RC delay built in)."""
+    return with_timing(design, timing_report(design))
 
 
 def with_timing(design: Design, report: TimingReport) -> Design:

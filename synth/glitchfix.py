@@ -325,8 +325,11 @@ def _global_detail(remedy: str, design: Design) -> str:
 
 
 def _by_signal(glitch_records) -> dict[str, list[int]]:
+    """Signal -> its glitch ticks (a glitch marked harmless, ``synth.harmless``, left out)."""
     out: dict[str, list[int]] = {}
     for g in glitch_records:
+        if g.get("harmless"):
+            continue
         out.setdefault(g["signal"], []).append(int(g["at_tick"]))
     return {s: sorted(t) for s, t in out.items()}
 
@@ -434,7 +437,10 @@ def _is_ripple(part: Any) -> bool:
 
 
 def _synchronous(design: Design, replanner: Replanner) -> Design:
-    """The counter re-allocated from the bin's synchronous (or Johnson) counters only."""
+    """The counter re-allocated from the bin's synchronous (or Johnson) counters only:
+    first with 4520/4518 units cascaded through a decoded enable (every output on one
+    edge; the decode takes gates), then, when the bin cannot map that, as allocated
+    without it."""
     from .counter import allocate
     from .timing import synchronous_counter_parts
 
@@ -444,14 +450,21 @@ def _synchronous(design: Design, replanner: Replanner) -> Design:
     if not synchronous_counter_parts(catalog, stock):
         raise NotApplicable("the bin has no synchronous counter (e.g. 4520, 74HC161, 74HC163)")
     parts = {t: n for t, n in stock.parts.items() if not _is_ripple(catalog.parts[t])}
-    try:
-        cp = allocate(design.spec, dataclasses.replace(stock, parts=parts), catalog)
-    except SynthError as exc:
-        raise NotApplicable(f"the synchronous counters on hand cannot count the cycle: {exc.args[0]}") \
-            from None
-    if sorted(c.part for c in cp.chips) == sorted(c.part for c in design.counter.chips):
-        raise NotApplicable("without the ripple counters the allocation comes out the same")
-    return replanner.replan(design, counter_plan=cp)
+    why = "without the ripple counters the allocation comes out the same"
+    for decoded in (True, False):
+        try:
+            cp = allocate(design.spec, dataclasses.replace(stock, parts=parts), catalog, decoded_carry=decoded)
+        except SynthError as exc:
+            why = f"the synchronous counters on hand cannot count the cycle: {exc.args[0]}"
+            continue
+        if sorted(c.part for c in cp.chips) == sorted(c.part for c in design.counter.chips) \
+                and cp.synchronous == design.counter.synchronous:
+            continue
+        try:
+            return replanner.replan(design, counter_plan=cp)
+        except SynthError as exc:
+            why = str(exc.args[0] if exc.args else exc)
+    raise NotApplicable(why)
 
 
 # ---------------------------------------------------------------- (c) gating with the clock

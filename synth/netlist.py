@@ -118,6 +118,7 @@ class Plan:
     oscillator: Any = None          # clocksource.OscillatorPlan when the spec asks for one
     ladders: dict = field(default_factory=dict)   # staircase.LadderPlan by net name
     power_on_reset: Any = None      # poweron.PowerOnReset when the spec asks for one
+    rc_delays: list = field(default_factory=list)   # rcdelay.AppliedDelay, each RC delay built in
     # the timing step's results (timing.TimingReport) and the remedies' (glitchfix.FixReport)
     register_checks: list[dict] = field(default_factory=list)
     pulse_widths: list[dict] = field(default_factory=list)

@@ -18,7 +18,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from typing import Literal, Mapping
 
-Op = Literal["and", "nand", "or", "nor", "xor", "xnor", "not", "buf", "mux", "decoder", "flipflop"]
+Op = Literal["and", "nand", "or", "nor", "xor", "xnor", "not", "buf", "mux", "decoder", "flipflop", "rc"]
 RAILS = {"VDD": True, "VSS": False}
 
 
@@ -35,7 +35,10 @@ class Gate:
     clock, then its set and reset pins where the unit has them (their active
     levels in ``enables_active``), and ``outputs`` Q and, where pinned, Q-bar.
     Its output at tick t is its D at tick t-1: only tick-indexed words
-    (``evaluate_words`` over a whole cycle) can evaluate it.
+    (``evaluate_words`` over a whole cycle) can evaluate it.  An ``rc`` gate
+    is no chip: it is an applied RC delay (R from its input net to its output
+    net, C from there to VSS, ``synth.rcdelay``), a buffer at zero delay
+    whose timing ``Network.delays`` gives.
     """
 
     id: str
@@ -60,6 +63,16 @@ class SignalOut:
     polarity: Literal["high", "low"]
 
 
+@dataclass(frozen=True)
+class RcTiming:
+    """An applied RC delay's times (ns) from its input edge to the Schmitt input's switching:
+    ``rise`` charging to VT+, ``fall`` discharging to VT-, each (min, typ, max) over the
+    threshold spread and the R and C tolerances."""
+
+    rise: tuple[float, float, float]
+    fall: tuple[float, float, float]
+
+
 @dataclass
 class Network:
     """A mapped design: gates over counter nets, before packing into chips."""
@@ -72,6 +85,7 @@ class Network:
     lower_bound: int | None = None
     method: str = ""
     notes: list[str] = field(default_factory=list)
+    delays: dict[str, RcTiming] = field(default_factory=dict)   # rc gate id -> its timing
 
     def depth(self) -> int:
         """Logic depth: the longest chain of gates from an input to a signal."""
@@ -107,7 +121,7 @@ def evaluate_gate(gate: Gate, values: Mapping[str, bool]) -> dict[str, bool]:
         out = any(ins) ^ (op == "nor")
     elif op in ("xor", "xnor"):
         out = (sum(ins) % 2 == 1) ^ (op == "xnor")
-    elif op in ("not", "buf"):
+    elif op in ("not", "buf", "rc"):
         out = ins[0] ^ (op == "not")
     elif op == "mux":
         nsel = _select_count(len(ins))
@@ -219,7 +233,7 @@ def evaluate_words(network: Network, inputs: Mapping[str, int], width: int) -> d
 
 def _gate_words(gate: Gate, ins: list[int], full: int) -> dict[str, int]:
     op = gate.op
-    if op in ("and", "nand", "or", "nor", "xor", "xnor", "not", "buf"):
+    if op in ("and", "nand", "or", "nor", "xor", "xnor", "not", "buf", "rc"):
         if op in ("and", "nand"):
             out = full
             for w in ins:

@@ -26,6 +26,7 @@ import dataclasses
 from dataclasses import dataclass, field
 from typing import Any
 
+from .counter import carry_nets
 from .errors import InternalError, ShortError, SpecError
 from .inventory import Bin, Catalog, Part, Unit
 from .netlist import (CLOCK_NET, RAIL_NETS, ChipInstance, Plan, check_nets, is_passive, pin_direction,
@@ -163,6 +164,7 @@ class _Board:
 def _place_counters(board: _Board, counter_plan: Any, network: Network) -> None:
     """Counter chips keep the refs the counter plan gave them; every pin it names is wired."""
     reset_net = _reset_net(counter_plan, network)
+    decoded_enables = carry_nets(counter_plan, network)
     by_ref: dict[str, _Chip] = {}
     for cc in counter_plan.chips:
         part = _catalog_part(board.catalog, cc.part)
@@ -184,6 +186,9 @@ def _place_counters(board: _Board, counter_plan: Any, network: Network) -> None:
                     else "counts on this input")
             if _counts_on_carry(part, cc):
                 note = "count enable from the unit below's carry (TC): a synchronous cascade"
+            if enable_net in decoded_enables:
+                enable_net = decoded_enables[enable_net]
+                note = "count enable: every unit below at its last count (a synchronous cascade)"
             chip.set_pin(int(enable_pin), str(enable_net), note)
             for pin in carried:
                 chip.set_pin(int(pin), str(enable_net), note)

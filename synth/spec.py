@@ -95,6 +95,14 @@ choice open, this module decides as follows.
   Schmitt input that holds the counter reset that long after power-up, so
   the sequence starts at tick 0 (R and C from the bin; the counter's reset
   pin must be free, not used by the decode).
+- ``delay`` (per signal): a time (``2 us``): the output goes through an RC
+  delay between two Schmitt stages of about that length (R and C from the
+  bin, a Schmitt part from the bin); needs ``clock.frequency`` (the delay is
+  checked against the tick) and must stay under half a tick.
+- ``feeds`` (per signal): ``logic`` (default) or ``slow``: nothing that
+  latches, counts or reacts within 1 us reads the output (an LED, a lamp, a
+  relay); a glitch on it narrower than that is marked harmless
+  (``synth.harmless``).  ``steady: true`` with ``feeds: slow`` is refused.
 - ``cycle`` is at most ``MAX_CYCLE`` ticks: tick sets are built in memory.
 """
 
@@ -143,7 +151,14 @@ LEVEL_KEYS = ("bits", "kind", "tolerance", "load")
 LEVEL_KINDS = ("r2r", "binary")
 DEFAULT_LADDER_TOLERANCE = 0.05
 """Resistor tolerance assumed when a ``levels`` entry gives none (5 %, common stock)."""
-SIGNAL_KEYS = ("asserted", "every", "polarity", "dont_care", "clear_of", "stretch", "steady")
+MIN_SIGNAL_DELAY_S = 100e-9
+MAX_SIGNAL_DELAY_S = 1.0
+"""``delay:`` bounds: below 100 ns the two stages' own delays dominate; above 1 s no
+bin capacitor makes it (the RC sizing still checks the values on hand)."""
+SIGNAL_KEYS = ("asserted", "every", "polarity", "dont_care", "clear_of", "stretch", "steady", "delay", "feeds")
+FEEDS = ("logic", "slow")
+"""``feeds:``: what reads the output (``synth.harmless``): a logic input (the default), or a
+slow load that holds no state, on which a short glitch is harmless."""
 SWITCH_KEYS = ("select", "on", "off")
 POLARITIES = ("high", "low", "free")
 CLOCK_SOURCES = ("external", "oscillator")
@@ -185,6 +200,8 @@ class SignalSpec:
     stretch: int
     line: int
     steady: bool | None = None   # True: must hold its level through every tick; False: a pulse per tick will do
+    delay_s: float | None = None  # an RC delay between two Schmitt stages asked for on this output (seconds)
+    feeds: str = "logic"          # "slow": nothing that latches, counts or reacts within 1 us reads it
 
 
 @dataclass(frozen=True)
@@ -946,9 +963,32 @@ class _Reader:
             if not isinstance(steady, bool):
                 self.fail(f"{where}.steady: expected true or false, got {_kind(steady)}",
                           body.line_of("steady"), "steady: true (hold the level through every tick)")
+        delay = self.signal_delay(body, where) if "delay" in body else None
+        feeds = body.get("feeds", "logic")
+        if feeds not in FEEDS:
+            self.fail(f"{where}.feeds: expected logic or slow, got {_kind(feeds)}", body.line_of("feeds"),
+                      "feeds: slow (an LED, lamp, relay, meter: nothing that latches or counts)")
+        if feeds == "slow" and steady is True:
+            self.fail(f"{where}: steady: true and feeds: slow contradict (a slow load needs no steady level)",
+                      body.line_of("feeds"), "keep one of them")
         return SignalSpec(name=name, high=high, dont_care=dont_care, polarity=polarity,
                           every=every, windows=windows_of(high, cycle), clear_of=clear_of,
-                          stretch=stretch, line=line, steady=steady)
+                          stretch=stretch, line=line, steady=steady, delay_s=delay, feeds=feeds)
+
+    def signal_delay(self, body: MarkedDict, where: str) -> float:
+        """``delay: 2 us``: the output goes through an RC delay of about this long."""
+        value, line = body["delay"], body.line_of("delay")
+        expected = f"{where}.delay: expected a time such as '2 us'"
+        if not isinstance(value, str):
+            self.fail(f"{expected}, got {_kind(value)}", line)
+        try:
+            seconds = parse_quantity(value, "s")
+        except ValueError:
+            self.fail(f"{expected}, got {describe(value)}", line)
+        if not MIN_SIGNAL_DELAY_S <= seconds <= MAX_SIGNAL_DELAY_S:
+            self.fail(f"{where}.delay: expected between 100 ns and 1 s, got {describe(value)}", line,
+                      "a delay the passives of a bin can make, e.g. '2 us'")
+        return seconds
 
     def every(self, body: MarkedDict, where: str, cycle: int) -> int:
         line = body.line_of("every")

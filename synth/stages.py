@@ -190,10 +190,11 @@ def add_analog_parts(plan: Plan, spec: Spec, stock: Bin, catalog: Catalog) -> No
 
 def async_reset_names(counter_plan) -> tuple[str, ...]:
     """A decoded asynchronous reset must not pulse on a counter step (it would clear the count)."""
+    carries = tuple(c.name for c in counter_plan.carries)   # a decoded count enable must not pulse either
     reset = getattr(counter_plan, "reset", None)
     if reset is None or getattr(reset, "synchronous", False) or getattr(reset, "direct", False):
-        return ()
-    return (reset.name,)
+        return carries
+    return (reset.name, *carries)
 
 
 def _internal_polarity(counter_plan, name: str) -> str:

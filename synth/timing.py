@@ -24,6 +24,8 @@ Interface:
 - ``coincident_edges(delivered, cycle)`` and ``edge_skews(trace, records)``.
 - ``remedies(glitch, plan, *, catalog=None, stock=None, spec=None) -> list[str]``;
   ``spare_input(gate)``.
+- ``rc_filter_ns(network, net)``: the shortest delay of an applied RC delay the
+  net is taken through (a runt shorter than it never reaches the output).
 - ``timing_report(design) -> TimingReport``: the plan command's timing step,
   pure (glitches, coincident edges, register and pulse-width checks, warnings,
   the trace, remedies; the plan it reads is left unchanged);
@@ -52,6 +54,13 @@ The delay model (documented here once, used everywhere):
   the gate's delay is swallowed.  ``inertial=False`` gives transport delays,
   which show every pulse a real, faster part may pass: the glitch report
   uses both.
+- An applied RC delay (an ``rc`` gate, ``synth.rcdelay``) is a buffer with
+  separate rising and falling delays (``Network.delays``: typical, or the
+  longest of the spread at ``max``), always inertial: an RC swallows a pulse
+  shorter than its delay, whatever the model of the gates.
+- A carry-enabled 74HC161/163 (a synchronous cascade) counts only while its
+  enable is high at the edge, and its TC is count 15 AND that enable: it
+  follows the enable between edges, after the clock-to-output delay.
 - Times are kept in whole picoseconds; catalog delays are rounded to 1 ps.
 """
 
@@ -65,7 +74,10 @@ from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass, field
 from typing import Any
 
+from .analog import Spread, with_tolerance
+from .counter import carry_nets
 from .errors import InternalError
+from .harmless import check_slow_outputs, mark_harmless
 from .network import RAILS, Gate, Network, evaluate_gate
 from .packing import unit_logic_pins
 
@@ -77,6 +89,7 @@ __all__ = [
     "analyse", "timing_report", "TimingReport", "Remedies", "default_period_ns", "nice_period_ns",
     "ps", "expected_from_delivered", "registered_signals", "register_start_levels",
     "flipflop_requirement_ns", "register_checks", "pulse_width_checks", "pulse_warning_lines", "mark_races",
+    "rc_filter_ns",
 ]
 
 CORNERS = ("typ", "max")
@@ -152,6 +165,12 @@ class CounterModel:
     outputs: list[CounterOutput]
     notes: list[str] = field(default_factory=list)
     enable_net: str | None = None   # a count enable on a carry net: counts only while it is high
+    enable_clocks: bool = False     # 4520/4518: ENABLE falling while CLOCK is low also counts
+
+    def tc_follows_enable(self, output: CounterOutput) -> bool:
+        """A carry-enabled unit's TC is its CET and count 15 (the enable is on CET too):
+        it follows the enable net between clock edges."""
+        return output.kind == "tc" and self.enable_net is not None and not self.enable_clocks
 
     def level(self, output: CounterOutput, state: int) -> bool:
         """The output's level in a counter state."""
@@ -181,6 +200,11 @@ class GateModel:
     also_op: str | None = None     # second output of the same inputs (4068 AND, 4078 OR)
     borrowed: str | None = None    # the warning when the delay is a stand-in (``stand_in_delay``)
     edge: str | None = None        # a flip-flop's clocking edge ('rising'/'falling'); None for gates
+    fall_ps: int | None = None     # a different delay for a falling output (an applied RC delay)
+
+    def delay_to(self, level: bool) -> int:
+        """The delay of an output change to ``level``."""
+        return self.fall_ps if self.fall_ps is not None and not level else self.delay_ps
 
     @property
     def clocked(self) -> bool:
@@ -239,6 +263,7 @@ def counter_models(counter_plan: Any, network: Network, catalog: Any, supply: fl
         raise ValueError(f"expected a corner in {CORNERS}, got {corner!r}")
     reset = counter_plan.reset
     board_reset = reset_net_of(counter_plan, network)
+    decoded_enables = carry_nets(counter_plan, network)
     models = []
     for index, cc in enumerate(counter_plan.chips):
         part = catalog.parts[cc.part]
@@ -273,6 +298,9 @@ def counter_models(counter_plan: Any, network: Network, catalog: Any, supply: fl
         carry_in = None
         if cc.enable_pin in unit.count_enable and str(cc.enable_net or "VDD") not in RAILS:
             carry_in = str(cc.enable_net)
+        enable_clocks = False
+        if str(cc.enable_net) in decoded_enables:
+            carry_in, enable_clocks = decoded_enables[str(cc.enable_net)], True
         outputs = []
         synchronous = unit.synchronous
         for pin, net in sorted(pins.items()):
@@ -287,6 +315,10 @@ def counter_models(counter_plan: Any, network: Network, catalog: Any, supply: fl
                 outputs.append(CounterOutput(net, "carry", 0, pin, part.pins.get(pin, ""), ps(tcq)))
             else:
                 outputs.append(CounterOutput(net, "tc", 0, pin, part.pins.get(pin, ""), ps(tcq)))
+        if carry_in is not None and any(o.kind == "tc" for o in outputs):
+            notes.append(f"{cc.ref}: its TC follows its count enable (TC = CET and count "
+                         f"{2 ** len(stages) - 1}); the catalog gives no CET-to-TC delay for {part.type}, "
+                         "clock-to-output used")
         net = str(cc.reset_net) if cc.reset_net else None
         if net is not None and net not in RAILS and reset is not None and net == str(reset.net):
             net = board_reset
@@ -302,7 +334,7 @@ def counter_models(counter_plan: Any, network: Network, catalog: Any, supply: fl
             synchronous=synchronous or unit.mode == "johnson",
             clock_net=str(cc.clock_net), edge=edge, reset_net=net, reset_high=reset_high,
             reset_sync=unit.reset is not None and unit.reset.synchronous, reset_ps=ps(t_reset),
-            outputs=outputs, notes=notes, enable_net=carry_in))
+            outputs=outputs, notes=notes, enable_net=carry_in, enable_clocks=enable_clocks))
     return models
 
 
@@ -333,6 +365,9 @@ def gate_models(network: Network, catalog: Any, supply: float, corner: str = "ty
         if gate.op == "flipflop":
             models.append(_flipflop_model(gate, part, supply, corner, gate_names))
             continue
+        if gate.op == "rc":
+            models.append(_rc_model(gate, network, corner, gate_names))
+            continue
         delay, borrowed = _gate_delay(part, gate, supply, corner), None
         if delay is None:
             delay, borrowed = stand_in_delay(catalog, gate, supply, corner)
@@ -342,6 +377,19 @@ def gate_models(network: Network, catalog: Any, supply: float, corner: str = "ty
         name = (gate_names or {}).get(gate.id, gate.id)
         models.append(GateModel(gate, name, ps(delay), _also_op(part, gate), borrowed))
     return models
+
+
+def _rc_model(gate: Gate, network: Network, corner: str,
+              gate_names: Mapping[str, str] | None) -> GateModel:
+    """An applied RC delay: a buffer whose rising and falling delays are the RC
+    times to the Schmitt thresholds (typical, or the longest of the spread at
+    ``max``); inertial like a gate, as an RC swallows a pulse shorter than its delay."""
+    times = network.delays.get(gate.id)
+    if times is None:
+        raise InternalError(f"RC delay {gate.id}: the network gives no times for it")
+    pick = 1 if corner == "typ" else 2
+    name = (gate_names or {}).get(gate.id, gate.id)
+    return GateModel(gate, name, ps(times.rise[pick]), fall_ps=ps(times.fall[pick]))
 
 
 def _flipflop_model(gate: Gate, part: Any, supply: float, corner: str,
@@ -523,7 +571,7 @@ def default_period_ns(counters: Sequence[CounterModel], gates: Sequence[GateMode
     ripple = sum(max((o.delay_ps for o in c.outputs), default=0) for c in counters)
     resets = max((c.reset_ps for c in counters if c.reset_net), default=0)
     depth = _depth(gates)
-    slowest = max((g.delay_ps for g in gates), default=0)
+    slowest = max((max(g.delay_ps, g.fall_ps or 0) for g in gates), default=0)
     settle = ripple + resets + 3 * depth * slowest
     return max(1000.0, nice_period_ns(4 * _ns(settle)))
 
@@ -584,6 +632,11 @@ class _Engine:
         self.reset_started: list[int | None] = [None for _ in counters]
         self.reset_pulses: list[tuple[int, int, int]] = []
         self.warnings: list[str] = []
+        self.tc_levels: dict[tuple[int, str], bool] = {}      # a gated TC's last scheduled level
+        self.gated_by: dict[str, list[int]] = {}
+        for i, c in enumerate(counters):
+            if c.enable_net is not None and any(c.tc_follows_enable(o) for o in c.outputs):
+                self.gated_by.setdefault(c.enable_net, []).append(i)
 
     def schedule(self, time: int, net: str, level: bool, cause: tuple[str, int] | None,
                  kind: str) -> int:
@@ -623,7 +676,13 @@ class _Engine:
             self._react(t, changed)
 
     def _react(self, t: int, changed: dict[str, bool]) -> None:
+        for net in [n for n in changed if n in self.gated_by]:
+            for i in self.gated_by[net]:
+                self._gate_tc(i, self.counters[i], t, self.last_change(net))
         for i, c in enumerate(self.counters):
+            if c.enable_clocks and c.enable_net in changed and changed[c.enable_net] \
+                    and not self.levels[c.enable_net] and not self.levels[c.clock_net]:
+                self._count(i, c, t, by_enable=True)     # ENABLE fell while CLOCK was low: it counts
             if c.reset_net is not None and c.reset_net in changed:
                 self._reset_changed(i, c, t)
             if c.clock_net in changed:
@@ -654,23 +713,36 @@ class _Engine:
     def _reset_active(self, c: CounterModel) -> bool:
         return c.reset_net is not None and self.levels[c.reset_net] == c.reset_high
 
-    def _count(self, i: int, c: CounterModel, t: int) -> None:
+    def _count(self, i: int, c: CounterModel, t: int, by_enable: bool = False) -> None:
         if self._reset_active(c) and not c.reset_sync:
             self.warnings.append(f"{c.ref}: a counting edge at {_ns(t):.3f} ns came while the "
                                  "reset was still held; the count was lost")
             return
         old = self.state[i]
-        if c.enable_net is not None and not self.levels[c.enable_net] and \
+        if c.enable_net is not None and not by_enable and not self.levels[c.enable_net] and \
                 not (c.reset_sync and self._reset_active(c)):
             return          # a carry-enabled unit holds its count while the unit below is not at 15
         new = c.next_state(old, self._reset_active(c))
-        cause = self.last_change(c.clock_net)
+        cause = self.last_change(c.enable_net if by_enable else c.clock_net)   # type: ignore[arg-type]
+        self.state[i] = new
         for out in c.outputs:
+            if c.tc_follows_enable(out):
+                continue
             before, after = c.level(out, old), c.level(out, new)
             if before != after:
                 self.schedule(t + out.delay_ps, out.net, after, cause, "counter")
                 self.busy_until[i] = max(self.busy_until[i], t + out.delay_ps)
-        self.state[i] = new
+        self._gate_tc(i, c, t, cause)
+
+    def _gate_tc(self, i: int, c: CounterModel, t: int, cause: tuple[str, int] | None) -> None:
+        """A carry-enabled unit's TC: count 15 and its enable high, after the output delay."""
+        for out in c.outputs:
+            if not c.tc_follows_enable(out):
+                continue
+            level = c.level(out, self.state[i]) and bool(self.levels[c.enable_net])   # type: ignore[index]
+            if self.tc_levels.get((i, out.net), False) != level:
+                self.tc_levels[(i, out.net)] = level
+                self.schedule(t + out.delay_ps, out.net, level, cause, "counter")
 
     def _reset_changed(self, i: int, c: CounterModel, t: int) -> None:
         if c.reset_sync:
@@ -686,6 +758,8 @@ class _Engine:
             cause = self.last_change(c.reset_net)  # type: ignore[arg-type]
             for out in c.outputs:
                 self.schedule(t + c.reset_ps, out.net, c.level(out, 0), cause, "counter")
+                if c.tc_follows_enable(out):
+                    self.tc_levels[(i, out.net)] = False
         elif self.reset_started[i] is not None:
             self.reset_pulses.append((i, self.reset_started[i], t - self.reset_started[i]))
             self.reset_started[i] = None
@@ -701,14 +775,14 @@ class _Engine:
                 trigger = next((n for n in g.gate.inputs if n in changed), None)
                 cause = self.last_change(trigger) if trigger else None
             self.computed[(gi, net)] = value
-            if self.inertial:
+            if self.inertial or g.gate.op == "rc":     # an RC swallows a pulse shorter than its delay
                 pending = self.pending.pop(net, None)
                 if pending is not None:
                     self.cancelled.add(pending)
                 if value != self.levels[net]:
-                    self.pending[net] = self.schedule(t + g.delay_ps, net, value, cause, "gate")
+                    self.pending[net] = self.schedule(t + g.delay_to(value), net, value, cause, "gate")
             else:
-                self.schedule(t + g.delay_ps, net, value, cause, "gate")
+                self.schedule(t + g.delay_to(value), net, value, cause, "gate")
 
 
 def _compiled(model: GateModel):
@@ -726,7 +800,7 @@ def _compiled(model: GateModel):
     if simple and gate.op in ("or", "nor"):
         flip = gate.op == "nor"
         return lambda v: ((out, any(v[n] for n in ins) ^ flip),)
-    if simple and gate.op in ("not", "buf"):
+    if simple and gate.op in ("not", "buf", "rc"):
         only, flip = ins[0], gate.op == "not"
         return lambda v: ((out, v[only] ^ flip),)
     return lambda v: tuple(model.evaluate(v).items())
@@ -1636,6 +1710,9 @@ def timing_report(design: Any) -> TimingReport:
         plan.warnings.append(f"at worst-case delays the clock is too fast: {problems_max[0]}")
     found = merge_glitches(plan, expected, typ, run)
     plan.glitches = [g.as_json() for g in found]
+    check_slow_outputs(spec, plan)
+    mark_harmless(plan.glitches, spec, plan)
+    harmless = {(g["signal"], g["at_tick"]) for g in plan.glitches if g.get("harmless")}
     delivered = {n: t for n, t in delivered_sets(plan, levels).items() if n in typ.signals}
     plan.coincident_edges = mark_races(edge_skews(typ, coincident_edges(delivered, typ.cycle)),
                                        delivered, plan, typ.cycle)
@@ -1649,16 +1726,16 @@ def timing_report(design: Any) -> TimingReport:
             plan.warnings.append(f"{rec['signal']}: flip-flop {rec['flipflop']} ({rec['part']}) sees D change "
                                  f"{rec['hold_margin_ns']:g} ns after its clock edge, inside its "
                                  f"{rec['hold_needed_ns']:g} ns hold time")
-    plan.pulse_widths = pulse_width_checks(plan, typ, catalog)
+    plan.pulse_widths = pulse_width_checks(plan, typ, catalog, worst)
     for rec in plan.pulse_widths:
         plan.warnings += pulse_warning_lines(rec)
     plan.warnings += [w for w in dict.fromkeys(typ.warnings + worst.warnings) if w not in plan.warnings]
     stock = getattr(design, "stock", None)
     by_glitch = {(g.signal, g.at_tick): remedies(g, plan, catalog=catalog, stock=stock, spec=spec)
-                 for g in found}
+                 for g in found if (g.signal, g.at_tick) not in harmless}
     text: list[str] = []
     for g in found:
-        for line in by_glitch[(g.signal, g.at_tick)]:
+        for line in by_glitch.get((g.signal, g.at_tick), ()):
             entry = f"{g.signal} tick {g.at_tick}: {line}"
             if not line.startswith("note:") and entry not in text:
                 text.append(entry)
@@ -1684,10 +1761,14 @@ def pulse_warning_lines(rec: dict) -> list[str]:
     """A runt clock or reset pulse, said once, with the remedy; a reset pulse the
     catalog has no figure for is said to be unchecked."""
     if rec["what"] == "reset" and rec["ok"] is None:
-        return [f"the counter reset pulse on {rec['ref']} lasts {rec['width_ns']:.0f} ns at typical delays "
+        return [f"the counter reset pulse on {rec['ref']} lasts {rec['width_ns']:.0f} ns at its narrowest "
                 f"(the catalog gives no minimum reset pulse width for {rec['part']} to check)"]
     if rec["ok"] is not False:
         return []
+    if rec["what"] == "power-on reset":
+        return [f"the power-on reset pulse on {rec['ref']} ({rec['part']}) may be as short as "
+                f"{rec['width_ns']:.0f} ns, shorter than the {rec['needed_ns']:g} ns minimum reset pulse "
+                "at this supply; remedy: a longer power_on_reset time"]
     if rec["what"] == "reset":
         return [f"the counter reset pulse on {rec['ref']} ({rec['part']}) lasts {rec['width_ns']:.0f} ns, "
                 f"shorter than the {rec['needed_ns']:g} ns minimum at this supply: the count may not "
@@ -1732,6 +1813,8 @@ def merge_glitches(plan: Any, expected: Mapping[str, Sequence[bool]], typ: Trace
         key = (h.signal, h.at_tick)
         if key not in merged:
             lasts = _state_duration(typ, h.at_tick or typ.cycle, h.transient)
+            if lasts < rc_filter_ns(plan.network, typ.signals[h.signal][0]):
+                continue        # an applied RC delay on the output swallows a pulse this short
             merged[key] = Glitch(h.signal, h.at_tick, lasts,
                                  f"the counter outputs pass through count {h.transient} for {lasts:g} ns "
                                  f"({h.order}); at the catalog's delays the gate paths smooth it away, "
@@ -1741,6 +1824,25 @@ def merge_glitches(plan: Any, expected: Mapping[str, Sequence[bool]], typ: Trace
             merged[key].transient_state = h.transient
         merged[key].models.add("states")
     return sorted(merged.values(), key=lambda g: (g.signal, g.at_tick))
+
+
+def rc_filter_ns(network: Network, net: str) -> float:
+    """The shortest delay of an applied RC delay the net is taken through (through
+    single-input stages such as its Schmitt gates), 0 when none: a pulse shorter
+    than that never brings the RC node to a threshold."""
+    by_output = {n: g for g in network.gates for n in g.outputs if n}
+    seen = set()
+    while net in by_output and net not in seen:
+        seen.add(net)
+        gate = by_output[net]
+        if gate.op == "rc" and gate.id in network.delays:
+            times = network.delays[gate.id]
+            return min(times.rise[0], times.fall[0])
+        inputs = [n for n in gate.inputs if n not in RAILS]
+        if gate.op == "flipflop" or len(set(inputs)) != 1:
+            return 0.0
+        net = inputs[0]
+    return 0.0
 
 
 def registered_signals(network: Network) -> dict[str, Gate]:
@@ -1793,13 +1895,21 @@ def register_checks(plan: Any, traces: Sequence[Trace], catalog: Any) -> list[di
     return out
 
 
-def pulse_width_checks(plan: Any, trace: Trace, catalog: Any) -> list[dict]:
-    """Every clock input and every asynchronous reset pulse against the catalog's
-    minimum width at the plan's supply (``clock_width``, ``reset_width``).
+def pulse_width_checks(plan: Any, trace: Trace, catalog: Any, worst: Trace | None = None) -> list[dict]:
+    """Every clock input, every asynchronous reset pulse and the power-on reset
+    against the catalog's minimum width at the plan's supply (``clock_width``,
+    ``reset_width``).
 
     The clock's narrower half is half the period (the simulator's square wave);
-    a counter reset decoded from a count lasts as long as that count shows.
-    A part with no width figure is listed as not checked, never as passed.
+    a counter reset decoded from a count lasts as long as that count shows, and
+    is measured on the typical trace and on ``worst`` (worst-case delays); the
+    narrower of the two is checked (``width_ns``; ``width_typ_ns`` and
+    ``width_max_ns`` beside it).  The catalog has no minimum delays, so the
+    corner that would make a self-ending pulse narrower still (faster parts)
+    cannot be simulated: the record's ``basis`` says so.  The power-on reset is
+    checked at its shortest over the threshold spread and the R and C
+    tolerances.  A part with no width figure is listed as not checked, never as
+    passed.
     """
     out = []
     half = trace.period_ns / 2
@@ -1811,17 +1921,56 @@ def pulse_width_checks(plan: Any, trace: Trace, catalog: Any) -> list[dict]:
         out.append({"what": "clock", "ref": ref, "part": part_type, "width_ns": round(half, 1),
                     "needed_ns": None if need is None else round(need, 1),
                     "ok": None if need is None else half >= need})
-    seen = set()
-    for pulse in trace.resets:
-        if pulse.ref in seen:
-            continue
-        seen.add(pulse.ref)
-        part_type = next((c.part for c in plan.counter.chips if c.ref == pulse.ref), "")
+    out += _reset_pulse_checks(plan, trace, worst, catalog)
+    out += _power_on_checks(plan, catalog)
+    return out
+
+
+def _narrowest_resets(trace: Trace | None) -> dict[str, ResetPulse]:
+    """Counter ref -> its narrowest reset pulse on the trace."""
+    found: dict[str, ResetPulse] = {}
+    for pulse in trace.resets if trace is not None else ():
+        if pulse.ref not in found or pulse.width_ns < found[pulse.ref].width_ns:
+            found[pulse.ref] = pulse
+    return found
+
+
+def _reset_pulse_checks(plan: Any, typ: Trace, worst: Trace | None, catalog: Any) -> list[dict]:
+    at_typ, at_max = _narrowest_resets(typ), _narrowest_resets(worst)
+    out = []
+    for ref, pulse in at_typ.items():
+        other = at_max.get(ref)
+        narrow = other if other is not None and other.width_ns < pulse.width_ns else pulse
+        part_type = next((c.part for c in plan.counter.chips if c.ref == ref), "")
         need = flipflop_requirement_ns(catalog.parts.get(part_type), "reset_width", plan.supply)
-        out.append({"what": "reset", "ref": pulse.ref, "part": part_type,
-                    "width_ns": round(pulse.width_ns, 1), "at_tick": pulse.at_tick,
+        out.append({"what": "reset", "ref": ref, "part": part_type,
+                    "width_ns": round(narrow.width_ns, 1), "at_tick": narrow.at_tick,
+                    "width_typ_ns": round(pulse.width_ns, 1),
+                    "width_max_ns": None if other is None else round(other.width_ns, 1),
+                    "corner": "max" if narrow is other else "typ",
+                    "basis": "the narrower of the pulses simulated at typical and at worst-case (max) "
+                             "delays; the catalog gives no minimum delays to simulate faster parts",
                     "needed_ns": None if need is None else round(need, 1),
-                    "ok": None if need is None else pulse.width_ns >= need})
+                    "ok": None if need is None else narrow.width_ns >= need})
+    return out
+
+
+def _power_on_checks(plan: Any, catalog: Any) -> list[dict]:
+    """The power-on reset pulse, at its shortest, against each held counter's minimum reset width."""
+    por = plan.power_on_reset
+    if por is None:
+        return []
+    shortest_ns = with_tolerance(Spread(*por.width_s)).min * 1e9
+    out = []
+    for ref, _pin in por.resets:
+        part_type = next((c.part for c in plan.counter.chips if c.ref == ref), "")
+        need = flipflop_requirement_ns(catalog.parts.get(part_type), "reset_width", plan.supply)
+        out.append({"what": "power-on reset", "ref": ref, "part": part_type,
+                    "width_ns": round(shortest_ns, 1), "width_typ_ns": round(por.width_s[1] * 1e9, 1),
+                    "basis": "the shortest pulse over the Schmitt threshold spread and the R and C "
+                             "tolerances (R_TOLERANCE, C_TOLERANCE: common practice)",
+                    "needed_ns": None if need is None else round(need, 1),
+                    "ok": None if need is None else shortest_ns >= need})
     return out
 
 

@@ -89,3 +89,4 @@ class CounterPlan:
     synchronous: bool
     reset: object = None
     unreachable: frozenset = frozenset()
+    carries: tuple = ()

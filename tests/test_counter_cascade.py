@@ -1,4 +1,4 @@
-"""Synchronous carry cascades: two 74HC163 (or 74HC161) counting as one 8-bit counter.
+"""Synchronous carry cascades: two or three 74HC163 (or 74HC161) counting as one counter.
 
 Outside references: the Motorola MC54/74HC161A/163A data sheet function table
 (shared/reference/hc-74.md, 74HC161 rows, read from
@@ -112,6 +112,150 @@ def test_cascade_cosimulates(cycle, counter, catalog, tmp_path):
     for name, sig in spec.signals.items():
         active = plan.signals[name]["polarity"] == "high"
         assert samples[name] == [(t % cycle in sig.high) == active for t in range(2 * cycle)], name
+    half = period // 2
+    for net, ident in verilog_names(plan, catalog).items():
+        ours = [(timing.ps(t), "1" if v else "0") for t, v in trace.changes.get(net, []) if timing.ps(t) >= half]
+        assert [(t, v) for t, v in waves[ident] if t >= half] == ours, f"net {net}"
+
+
+THREE = """\
+name: three-163
+cycle: {cycle}
+clock: {{frequency: 1 MHz}}
+signals:
+  fire:
+    high: [[0, 2]]
+"""
+
+
+def _three(tmp_path: Path, cycle: int, counter: str) -> tuple[Path, Path]:
+    spec, stock = tmp_path / "spec.yaml", tmp_path / "bin.yaml"
+    spec.write_text(THREE.format(cycle=cycle))
+    stock.write_text(BIN.replace("{counter}: 2", "{counter}: 3").format(counter=counter))
+    return spec, stock
+
+
+@pytest.fixture(scope="module")
+def three_163(catalog, tmp_path_factory):
+    spec_path, bin_path = _three(tmp_path_factory.mktemp("three"), 4096, "74HC163")
+    return make_plan(spec_path, bin_path, catalog=catalog)
+
+
+def test_three_163_give_a_cycle_of_4096(three_163):
+    """The data sheet's multistage counting: unit 2 counts while TC1 is high, unit 3 while
+    TC2 = CET2 . (unit 2 at 15) is high; no reset decode is needed for 4096 = 16^3."""
+    cp = three_163.plan.counter
+    assert [c.part for c in cp.chips] == ["74HC163"] * 3 and cp.reset is None and cp.synchronous
+    assert [c.enable_net for c in cp.chips[1:]] == ["U1.TC", "U2.TC"]
+    assert [c.carry_net for c in cp.chips[:2]] == ["U1.TC", "U2.TC"]
+
+
+def test_the_upper_tc_follows_its_own_enable(three_163, catalog):
+    """TC2 is high only while unit 2 shows 15 AND its CET (TC1) is high: counts 255, 511, ...;
+    unit 2 alone at 15 (counts 240..254) must not raise it."""
+    plan = three_163.plan
+    trace = timing.simulate(plan.counter, plan.network, catalog, plan.supply, cycles=1,
+                            clock_period_ns=1000.0)
+    tc2 = trace.sample("U2.TC")
+    assert [t for t in range(4096) if tc2[t]] == [t for t in range(4096) if t % 256 == 255]
+    counts = [trace.count_value(k * 1000.0 + 999.0) for k in range(4096)]
+    assert counts == list(range(4096))
+    # Entry to 256: all twelve outputs change at one instant (glitch analysis sees one move).
+    moves = {n: trace.window(n, 256) for n in trace.counter_nets}
+    assert len({t for rows in moves.values() for t, _ in rows}) == 1
+
+
+@needs_iverilog
+def test_three_163_cosimulate(three_163, catalog, tmp_path):
+    """Icarus runs the exported model for a whole cycle and a bit: the output matches the
+    spec tick by tick and every net, TC2 included, agrees with binsynth's simulation."""
+    plan, spec = three_163.plan, three_163.spec
+    ticks = 4096 + 300
+    trace = timing.simulate(plan.counter, plan.network, catalog, plan.supply, cycles=2,
+                            clock_period_ns=1000.0, gate_names=timing.gate_names_of(plan))
+    period = timing.ps(trace.period_ns)
+    samples, waves = run_plan(plan, catalog, period, ticks, tmp_path)
+    sig = spec.signals["fire"]
+    active = plan.signals["fire"]["polarity"] == "high"
+    assert samples["fire"] == [(t % 4096 in sig.high) == active for t in range(ticks)]
+    half, end = period // 2, ticks * period
+    for net, ident in verilog_names(plan, catalog).items():
+        ours = [(timing.ps(t), "1" if v else "0") for t, v in trace.changes.get(net, [])
+                if half <= timing.ps(t) < end]
+        assert [(t, v) for t, v in waves[ident] if half <= t < end] == ours, f"net {net}"
+
+
+# ---------------------------------------------------------------- 4520 / 4518: a decoded enable
+#
+# Outside references: Nexperia HEF4520B / Motorola MC14520B (shared/reference/cmos-4000b.md,
+# 4520 rows): each unit counts on CLOCK rising while ENABLE is HIGH, or on ENABLE falling while
+# CLOCK is LOW; the 4518 is the BCD twin (counts 0-9).  Cascading both units on one clock with
+# the upper ENABLE from a gate that decodes the lower unit at its last count (15, or 9 for BCD)
+# is the synchronous way (common practice; the data sheets show the ripple way, Q4 into ENABLE).
+
+SYNC = """\
+name: sync-4520
+cycle: {cycle}
+clock: {{frequency: 100 kHz}}
+signals:
+  frame:
+    high: [[16, 48]]
+"""
+
+
+def _sync_plan(tmp_path: Path, catalog, cycle: int, counter: str):
+    from synth.decode import derive
+    from synth.packing import pack
+    from synth.pipeline import map_decode, mapping_inputs
+
+    (tmp_path / "s.yaml").write_text(SYNC.format(cycle=cycle))
+    (tmp_path / "b.yaml").write_text(f"parts: {{'{counter}': 1, '4081': 2, '4082': 1, '4011': 2, '4069': 1}}\n")
+    spec = load_spec(tmp_path / "s.yaml")
+    stock = load_bin(tmp_path / "b.yaml", catalog, spec.supply)
+    cp = allocate(spec, stock, catalog, decoded_carry=True)
+    decode = derive(spec, cp)
+    library, polarity = mapping_inputs(spec, stock, catalog, cp, decode)
+    network = map_decode(decode, cp, library, polarity, "auto")
+    return spec, pack(network, cp, spec, stock, catalog)
+
+
+@pytest.mark.parametrize("cycle, counter, last", [(256, "4520", 15), (100, "4518", 9)])
+def test_decoded_enable_cascade_counts(cycle, counter, last, catalog, tmp_path):
+    spec, plan = _sync_plan(tmp_path, catalog, cycle, counter)
+    cp = plan.counter
+    assert cp.synchronous and [c.clock_net for c in cp.chips] == ["CLK", "CLK"]
+    carry, = cp.carries
+    enable = plan.network.signals[carry.name].net
+    assert plan.chip("U1").pins[cp.chips[1].enable_pin] == enable
+    trace = timing.simulate(cp, plan.network, catalog, plan.supply, cycles=1, clock_period_ns=10000.0)
+    assert [trace.count_value(k * 10000.0 + 9999.0) for k in range(cycle)] == list(range(cycle))
+    high = trace.sample(enable)[:cycle]
+    assert [t for t in range(cycle) if high[t]] == [t for t in range(cycle) if t % (last + 1) == last]
+    moves = {n: trace.window(n, last + 1) for n in trace.counter_nets}      # the entry to the carry
+    assert len({t for rows in moves.values() for t, _ in rows}) == 1
+
+
+def test_enable_falling_while_clock_is_low_counts(catalog, tmp_path):
+    """At a clock so fast that the enable decode falls after CLOCK has gone low again, the
+    4520's second counting mode steps the upper unit once more: the simulator shows it."""
+    _, plan = _sync_plan(tmp_path, catalog, 256, "4520")
+    trace = timing.simulate(plan.counter, plan.network, catalog, plan.supply, cycles=1,
+                            clock_period_ns=300.0)
+    counts = [trace.count_value(k * 300.0 + 299.0) for k in range(40)]
+    assert counts[:16] == list(range(16)) and counts[16:20] != [16, 17, 18, 19]
+
+
+@needs_iverilog
+@pytest.mark.parametrize("cycle, counter", [(256, "4520"), (100, "4518")])
+def test_decoded_enable_cascade_cosimulates(cycle, counter, catalog, tmp_path):
+    spec, plan = _sync_plan(tmp_path, catalog, cycle, counter)
+    trace = timing.simulate(plan.counter, plan.network, catalog, plan.supply, cycles=2,
+                            clock_period_ns=10000.0, gate_names=timing.gate_names_of(plan))
+    period = timing.ps(trace.period_ns)
+    samples, waves = run_plan(plan, catalog, period, 2 * cycle, tmp_path)
+    sig = spec.signals["frame"]
+    active = plan.signals["frame"]["polarity"] == "high"
+    assert samples["frame"] == [(t % cycle in sig.high) == active for t in range(2 * cycle)]
     half = period // 2
     for net, ident in verilog_names(plan, catalog).items():
         ours = [(timing.ps(t), "1" if v else "0") for t, v in trace.changes.get(net, []) if timing.ps(t) >= half]

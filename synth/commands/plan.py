@@ -21,8 +21,9 @@ from ..errors import NotFoundError, ShortError, UsageError
 from ..exports import EXPORTERS, Exporter, Output, OutputTransaction, check_outputs
 from ..exports.plan_json import verdict_reason
 from ..limits import check_seconds, os_reason
-from ..render import counted
+from ..render import Text, counted
 from ..timing import MODEL_NAMES
+from ..units import format_si
 
 NAME = "plan"
 HELP = "plan the circuit for a spec from the chips in a bin: chips, pins, wiring list and checks"
@@ -46,10 +47,11 @@ def add_output_arguments(parser: argparse.ArgumentParser) -> None:
         parser.add_argument(entry.option, metavar="FILE", help=entry.description)
     parser.add_argument("--take", action="store_true",
                         help="write the bin back with the parts this plan uses removed (keeps a .bak)")
-    parser.add_argument("--fix", action="append", choices=["glitches"], default=[],
+    parser.add_argument("--fix", action="append", choices=["glitches", "races"], default=[],
                         help="apply remedies: 'glitches' tries another decode choice, a synchronous "
                              "counter, then gating with the clock's still half (the signal is then "
-                             "asserted only in the second half of each tick), and says what it did")
+                             "asserted only in the second half of each tick), and says what it did; "
+                             "'races' builds the offered RC delay (two Schmitt stages) into each race")
     add_effort_argument(parser)
     # the former seconds option: 0 still skips what-the-bin-lacks, other values only warn
     parser.add_argument("--lacks", type=seconds, default=None, metavar="SECONDS", help=argparse.SUPPRESS)
@@ -154,7 +156,8 @@ def write_outputs(design, requests: list[tuple[Exporter, Output]], *, take: bool
 
 
 def _gate_count(plan) -> int:
-    return len(plan.network.gates)
+    """Gates on chips (an applied RC delay's R and C are no gate)."""
+    return len([g for g in plan.network.gates if g.op != "rc"])
 
 
 def summary_text(design) -> str:
@@ -243,7 +246,8 @@ def plan_blocks(design) -> list:
     for name, sw in plan.switches.items():
         blocks.append(Text(f"switch {name}: {sw.get('ref')} section {sw.get('unit', '?')}; common joins "
                            f"{sw.get('when_control_high')} while its control is high"))
-    blocks += oscillator_blocks(plan) + power_on_blocks(plan) + ladder_blocks(plan) + passive_blocks(plan)
+    blocks += oscillator_blocks(plan) + power_on_blocks(plan) + rc_delay_blocks(plan) + ladder_blocks(plan) \
+        + passive_blocks(plan)
     for chip in plan.chips:
         part = plan.part_of(chip.ref)
         rows = [(r.pin, r.function, r.net or "(open)", ", ".join(r.goes_to)) for r in pin_table(plan, chip.ref)]
@@ -264,7 +268,10 @@ def plan_blocks(design) -> list:
     if races:
         blocks.append(Table("races (one signal gates what the other drives, and both switch on one clock edge)",
                             ("signals", "tick"), [(" & ".join(e["signals"]), e["at_tick"]) for e in races]))
-    others = len(plan.coincident_edges) - len(races)
+    separated = [e for e in map(_as_dict, plan.coincident_edges) if e.get("separated_by")]
+    for e in separated:
+        blocks.append(Text(f"race {' & '.join(e['signals'])} at tick {e['at_tick']}: separated, {e['separated_by']}"))
+    others = len(plan.coincident_edges) - len(races) - len(separated)
     if others:
         blocks.append(Text(f"{counted(others, 'pair')} of outputs switch on the same clock edge without one gating "
                            "the other (complementary or independent): no race on this board; see "
@@ -288,13 +295,16 @@ def glitch_rows(plan) -> list[tuple]:
     count, or unequal gate paths), its ticks listed together, the widest pulse."""
     groups: dict[tuple, list[dict]] = {}
     for g in map(_as_dict, plan.glitches):
-        groups.setdefault((g.get("signal"), g.get("mechanism", "")), []).append(g)
+        groups.setdefault((g.get("signal"), g.get("mechanism", ""), bool(g.get("harmless"))), []).append(g)
     rows = []
-    for (signal, _), items in groups.items():
+    for (signal, _, _), items in groups.items():
         ticks = ", ".join(str(g.get("at_tick")) for g in sorted(items, key=lambda g: g.get("at_tick")))
         widest = max(float(g.get("width_max_ns") or g.get("width_ns") or 0) for g in items)
         models = sorted({MODEL_NAMES.get(m, m).replace("_", " ") for g in items for m in g.get("models", ())})
-        rows.append((signal, ticks, round(widest, 1), ", ".join(models), items[0].get("cause", "")))
+        cause = items[0].get("cause", "")
+        if all(g.get("harmless") for g in items):
+            cause = f"harmless: {items[0]['harmless_why']}; {cause}"
+        rows.append((signal, ticks, round(widest, 1), ", ".join(models), cause))
     return rows
 
 
@@ -330,7 +340,7 @@ def _fix_blocks(plan) -> list:
                                                      for t in r["tried"] if "not applicable" in t["result"])
                                              if not r["applied"] else ""))
                              for r in fixes]))
-    offers = getattr(plan, "rc_offers", None) or []
+    offers = [o for o in plan.rc_offers if not o.get("applied")]
     races = [o for o in offers if o["problem"] in ("race", "coincident") and o.get("applicable")]
     if races:
         blocks.append(Text(_race_offers_text(races)))
@@ -432,6 +442,23 @@ def power_on_blocks(plan) -> list:
                  f"{', '.join(f'{ref} = {plan.passive(ref).label()}' for ref in por.passives)}; holds "
                  f"{resets} {por.active} for {typ} after power-up ({low} .. {high} over the threshold "
                  f"spread; wanted {format_si(por.wanted_s, 's')}): {por.formula}")]
+
+
+def rc_delay_blocks(plan) -> list:
+    """Each RC delay built into the plan: who asked, stages, R and C, and its times."""
+    blocks = []
+    for d in plan.rc_delays:
+        stages = " and ".join(f"{ref} unit {unit}" for ref, unit in d.stages)
+        new = f" ({', '.join(d.new_chips)} new from the bin)" if d.new_chips else ""
+        rise = " .. ".join(format_si(t, "s") for t in (d.rise_s[0], d.rise_s[2]))
+        fall = " .. ".join(format_si(t, "s") for t in (d.fall_s[0], d.fall_s[2]))
+        blocks.append(Text(
+            f"RC delay on {d.signal} ({d.asked_by}): Schmitt {d.part} stages {stages}{new}; "
+            f"{', '.join(f'{ref} = {plan.passive(ref).label()}' for ref in d.passives)}; the delayed "
+            f"output is net {d.nets['output']}; rising edge {format_si(d.rise_s[1], 's')} ({rise}), "
+            f"falling {format_si(d.fall_s[1], 's')} ({fall}) over the threshold spread and R, C "
+            f"tolerance: {d.formula}"))
+    return blocks
 
 
 def ladder_blocks(plan) -> list:

@@ -162,6 +162,7 @@ def plan_to_json(plan: Plan) -> dict:
         "timing_fixes": _plain(list(getattr(plan, "timing_fixes", None) or [])),
         "clock_gated": _plain(dict(getattr(plan, "strobed", None) or {})),
         "rc_offers": _plain(list(getattr(plan, "rc_offers", None) or [])),
+        "rc_delays": [d.as_json() for d in plan.rc_delays],
         "registered": _plain(dict(getattr(plan, "registered", None) or {})),
         "register_checks": _plain(list(getattr(plan, "register_checks", None) or [])),
         "pulse_widths": _plain(list(getattr(plan, "pulse_widths", None) or [])),

@@ -346,6 +346,42 @@ def _delay(plan: Any, catalog: Any, index: int, offer: dict) -> _Section:
     return _Section(lines, checks, start + width + 6 * rc, rc / 1000)
 
 
+def _applied_delay(plan: Any, catalog: Any, index: int, d: Any) -> _Section:
+    """An RC delay built into the plan, from the plan's own R, C and nets: a step on the
+    decoded net into Schmitt stage 1, its output through R to the node (C to VSS), the
+    node into Schmitt stage 2.  Checked: stage 2's output edges against the RC law."""
+    supply = plan.supply
+    r, c = plan.passive(d.passives[0]).value, plan.passive(d.passives[1]).value
+    vtp, vtm = _receiver_thresholds(catalog, d.part, supply)
+    rc = r * c
+    start, width, edge = 10 * rc, 12 * rc, rc * 1e-4     # the node is full (within e^-10) before the step
+    nets = {k: _node(v) for k, v in d.nets.items()}
+    tag = f"a{index}"
+    lines = [f"* RC delay applied on {d.signal} ({d.asked_by}): {nets['input']} (a step here) -> Schmitt "
+             f"{d.part} stage 1 -> {nets['drive']} -> {d.passives[0]} -> {nets['node']} ({d.passives[1]} to "
+             f"VSS) -> Schmitt stage 2 -> {nets['output']} (VT+ {vtp:.4g} V, VT- {vtm:.4g} V typical)",
+             f"* binsynth: {d.formula}",
+             f"V{tag} {nets['input']} 0 PULSE(0 {_num(supply)} {_num(start)} {_num(edge)} {_num(edge)} "
+             f"{_num(width)} {_num(4 * width)})"]
+    lines += _inverter(f"{tag.upper()}1", f"{tag}_schmitt", nets["input"], nets["drive"])
+    lines += [_passive_line(plan.passive(ref)) for ref in d.passives]
+    lines += _inverter(f"{tag.upper()}2", f"{tag}_schmitt", nets["node"], nets["output"], input_high=False)
+    lines += _schmitt_models(f"{tag}_schmitt", vtp, vtm)
+    half = _num(supply / 2)
+    why = ("the RC time constant law t = RC ln(VDD / (VDD - VT+)) charging and RC ln(VDD / VT-) "
+           "discharging (common practice; any circuits handbook) at the typical thresholds; the crossing "
+           "is placed to within one time step (RC / 1000) and the step's 1e-4 RC ramp shifts it: 0.5 % allowed")
+    # the input falls -> stage 1's output rises -> the node charges to VT+ -> the output falls
+    charging, discharging = d.rise_s[1], d.fall_s[1]
+    checks = [SpiceCheck(f"app{index}_charge", f"TRIG v({nets['input']}) VAL={half} FALL=1 "
+                         f"TARG v({nets['output']}) VAL={half} TD={_num(start + width)} FALL=1", charging, "s",
+                         charging * 0.005, why),
+              SpiceCheck(f"app{index}_discharge", f"TRIG v({nets['input']}) VAL={half} RISE=1 "
+                         f"TARG v({nets['output']}) VAL={half} TD={_num(start)} RISE=1", discharging, "s",
+                         discharging * 0.005, why)]
+    return _Section(lines, checks, start + width + 6 * rc, rc / 1000)
+
+
 # ---------------------------------------------------------------- the power-on reset
 
 def _power_on(plan: Any) -> _Section | None:
@@ -395,9 +431,12 @@ def _sections(plan: Any, catalog: Any, tick_ns: float | None) -> list[_Section]:
         section = _switch(plan, catalog, name, sw, tick)
         if section is not None:
             sections.append(section)
-    offers = [o for o in getattr(plan, "rc_offers", None) or [] if o.get("applicable") and "r_ohm" in o]
+    offers = [o for o in plan.rc_offers
+              if o.get("applicable") and "r_ohm" in o and not o.get("applied")]
     for index, offer in enumerate(offers, 1):
         sections.append(_delay(plan, catalog, index, offer))
+    for index, applied in enumerate(plan.rc_delays, 1):
+        sections.append(_applied_delay(plan, catalog, index, applied))
     return sections
 
 

@@ -185,6 +185,9 @@ def _counter_block(plan: Any, c: CounterModel, names: dict[str, str], catalog: A
     condition = f"{was} === {before} && {clock} === {now}"
     if c.reset_net and not c.reset_sync:
         condition += f" && {names[c.reset_net]} !== {active}"
+    if c.enable_clocks:
+        lines.append("  // its ENABLE falling while CLOCK is low would also count (4520/4518); the timing "
+                     "check keeps the enable decode settling while CLOCK is high, so this model leaves it out")
     if c.enable_net:        # a synchronous cascade: count only while the unit below's TC is high
         enabled = f"{names[c.enable_net]} === 1'b1"
         if c.reset_net and c.reset_sync:
@@ -197,12 +200,19 @@ def _counter_block(plan: Any, c: CounterModel, names: dict[str, str], catalog: A
         step = f"({names[c.reset_net]} === {active}) ? {width}'d0 : {step}"
     lines.append(f"      {nxt} = {step};")
     for o in c.outputs:
+        if c.tc_follows_enable(o):
+            continue
         new, old = _output_value(c, o, nxt), _output_value(c, o, count)
         lines.append(f"      if ({new} != {old}) {names[o.net]} <= #({delay_text(o.delay_ps)}) {new};")
     lines.append(f"      {count} = {nxt};")
     lines.append("    end")
     lines.append(f"    {was} = {clock};")
     lines.append("  end")
+    for o in c.outputs:
+        if c.tc_follows_enable(o):      # TC = CET and count 15: it follows the enable between edges
+            enable = names[c.enable_net]    # type: ignore[index]
+            lines.append(f"  always @({count} or {enable}) {names[o.net]} <= #({delay_text(o.delay_ps)}) "
+                         f"{_output_value(c, o, count)} && {enable} === 1'b1;")
     if c.reset_net and not c.reset_sync:
         reset = names[c.reset_net]
         lines.append(f"  always @({reset}) if ({reset} === {active}) begin")
@@ -235,6 +245,11 @@ def _gate_lines(g: GateModel, names: dict[str, str], taken: set[str]) -> list[st
         return [comment] + _decoder_lines(gate, ins, names, delay)
     if gate.op == "flipflop":
         return _flipflop_lines(g, names, label, delay)
+    if gate.op == "rc":
+        fall = delay_text(g.fall_ps if g.fall_ps is not None else g.delay_ps)
+        return [f"  // {g.name}: applied RC delay (R and C, no chip), {delay} ns rising to the Schmitt "
+                f"VT+, {fall} ns falling to VT- (typical)",
+                f"  buf #({delay}, {fall}) {label} ({names[gate.output]}, {', '.join(ins)});"]
     raise ValueError(f"expected a gate op Verilog can model, got {gate.op!r}")
 
 
