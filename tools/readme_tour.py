@@ -33,8 +33,12 @@ GLITCH_PROSE = (
     "edge), a synchronous counter from the bin, and gating with the clock's still half only "
     "where a pulse per tick is acceptable: `steady: false` or one-tick windows; never for a "
     'switch select), re-checks the plan tick by tick, re-analyses it, and says per signal '
-    'what it did and what it cost; what no remedy removes'
-    ' gets a note.  RC delays between two stages are offered, never applied (shortened here):')
+    'what it did and what it cost; what no remedy removes gets a note; a glitch on an output '
+    'the spec marks `feeds: slow` (an LED, a lamp, a relay: nothing that latches or counts) '
+    'narrower than 1 µs is listed as harmless and left alone.  RC delays between two Schmitt '
+    "stages are offered; `--fix races` builds one into each race, and a signal's `delay: 2 us` "
+    'asks for one (R and C from the bin, both stages packed, wired, simulated and checked '
+    'again; shortened here):')
 
 # (prose, shown command, argv after 'binsynth', head lines kept or None (or the titles of
 # the output blocks to keep), tail prefixes kept)
