@@ -38,6 +38,7 @@ from typing import Any
 from .effort import Effort, effort_named
 from .errors import SafetyCapError, SynthError
 from .mapper import cells_of_part, map_design
+from .mapper.objective import Cost
 from .stages import async_reset_names, mapping_inputs
 
 LOGIC_CATEGORIES = ("gate", "inverter", "mux", "decoder")
@@ -258,7 +259,7 @@ def _judge(design: Any, inputs: _Inputs, results, seconds: float) -> BinLacks:
         if outcome is None or part in spare or not design.network.gates:
             continue
         chips, gates = outcome
-        if (sum(chips.values()), gates) < (now_chips, now_gates) and part in chips:
+        if Cost(sum(chips.values()), gates).beats_on_size(Cost(now_chips, now_gates)) and part in chips:
             found.append(Suggestion(part, design.catalog.parts[part].function, now_chips,
                                     sum(chips.values()), now_gates, gates, chips))
     found.sort(key=lambda s: (-s.saving[0], -s.saving[1], s.part))
