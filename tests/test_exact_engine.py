@@ -26,7 +26,7 @@ from synth.effort import Meter
 from synth.inventory import Bin, load_catalog
 from synth.minimize import Function
 from synth.mapper import build_library, map_design
-from synth.mapper.bounds import sat_kinds
+from synth.mapper.bounds import counting_bounds, sat_kinds
 from synth.mapper.exact import ExactEncoding
 from synth.mapper.objective import Cost
 from synth.mapper.problem import Problem, Signal
@@ -154,3 +154,20 @@ def test_sizes_answer_alike_in_any_order(parts, ons, nvars, source):
         solver.delete()
     assert all(len(seen) == 1 for seen in answers.values()), source
     assert fewest_gates == min(cost.gates for cost in costs), source
+
+
+def test_counting_bound_lets_two_signals_share_one_gate_where_their_cared_levels_agree():
+    """Two signals that differ only in a tick one of them does not care about are one
+    AND2's output (checked here over every cared-for minterm), so no lower bound may
+    ask for two output gates: the bound counts signals whose cared-for levels disagree,
+    not distinct (on, care) pairs.  Source: the truth table itself, by enumeration."""
+    full = frozenset(range(8))
+    and2 = frozenset(m for m in full if m & 1 and m & 2)
+    some = frozenset({0, 3, 4, 7})
+    a = Signal("a", and2, full, "high")
+    b = Signal("b", and2 & some, some, "high")
+    assert all((m in a.on) == bool(m & 1 and m & 2) for m in a.care)
+    assert all((m in b.on) == bool(m & 1 and m & 2) for m in b.care)
+    problem = Problem(3, ("x0", "x1", "x2"), [a, b])
+    _, gates = counting_bounds(problem, library({"74HC08": 1}).cells)
+    assert gates <= 1

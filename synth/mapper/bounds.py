@@ -134,8 +134,8 @@ def counting_bounds(problem: Problem, cells: Sequence[Cell], max_chips: int = 6)
     """Lower bounds on (chips, gates) for any circuit of the bin, by counting.
 
     A signal that depends on s counter bits needs a tree of gates joining
-    them (at least ceil((s-1)/(w-1)) gates of fan-in <= w), distinct signals
-    need distinct output gates, and a signal no monotone function delivers
+    them (at least ceil((s-1)/(w-1)) gates of fan-in <= w), signals whose
+    cared-for levels disagree need distinct output gates, and a signal no monotone function delivers
     needs an inverting unit.  The chip bound is the fewest chips of which some
     choice from the bin passes all three tests.
     """
@@ -143,7 +143,7 @@ def counting_bounds(problem: Problem, cells: Sequence[Cell], max_chips: int = 6)
     if not profiles:
         return float("inf"), float("inf")
     n = problem.nvars
-    distinct = len({(s.on, s.care) for s in problem.signals})
+    distinct = output_gate_bound(problem)   # signals one gate output cannot serve together
     widest_support = max((len(needed_support(s, n)) for s in problem.signals), default=0)
     needs_inversion = any(
         not any(_monotone_possible(s, n, low) for low in ((False, True) if s.polarity == "free"
