@@ -309,3 +309,17 @@ def _flipflop_words(gate: Gate, ins: list[int], full: int) -> dict[str, int]:
     if len(gate.outputs) > 1 and gate.outputs[1]:
         out[gate.outputs[1]] = qn
     return out
+
+
+def fresh_name(base: str, taken) -> str:
+    """``base``, or ``base2``, ``base3``... when taken (a net or gate name not yet in use).
+
+    >>> fresh_name("sel_n", {"sel_n"})
+    'sel_n2'
+    """
+    if base not in taken:
+        return base
+    k = 2
+    while f"{base}{k}" in taken:
+        k += 1
+    return f"{base}{k}"

@@ -31,7 +31,7 @@ from .errors import InternalError, ShortError, SpecError
 from .inventory import Bin, Catalog, Part, Unit
 from .netlist import (CLOCK_NET, RAIL_NETS, ChipInstance, Plan, check_nets, is_passive, pin_direction,
                       pin_directions, ref_key, self_check)
-from .network import Gate, Network, evaluate_gate
+from .network import Gate, Network, evaluate_gate, fresh_name
 
 __all__ = ["pack", "place_logic", "unit_logic_pins", "flipflop_controls", "spec_net", "check_nets", "add_chip", "rewire_pin", "refresh"]
 
@@ -552,7 +552,7 @@ def _complement_net(board: _Board, network: Network, net: str, switch: str) -> s
         if gate.outputs and _inverts(gate, net):
             return gate.output
     taken = {n for g in list(network.gates) + board.added_gates for n in (*g.inputs, *g.outputs)}
-    out = _fresh_net(f"{net}_n", taken | {c for chip in board.chips for c in chip.pins.values()})
+    out = fresh_name(f"{net}_n", taken | {c for chip in board.chips for c in chip.pins.values()})
     gate_id = f"inv_{switch}"
     for chip in board.of_role("logic"):
         if _place_inverter(board, chip, net, out, gate_id):
@@ -588,20 +588,6 @@ def _place_inverter(board: _Board, chip: _Chip, net: str, out: str, gate_id: str
             board.added_gates.append(gate)
             return True
     return False
-
-
-def _fresh_net(base: str, taken: set[str]) -> str:
-    """``base``, or ``base2``, ``base3``... when taken.
-
-    >>> _fresh_net("sel_n", {"sel_n"})
-    'sel_n2'
-    """
-    if base not in taken:
-        return base
-    k = 2
-    while f"{base}{k}" in taken:
-        k += 1
-    return f"{base}{k}"
 
 
 # ---------------------------------------------------------------- finishing each chip

@@ -42,7 +42,7 @@ from dataclasses import dataclass
 from .analog import rc_delay_design, thresholds_at, with_tolerance
 from .clocksource import place_schmitt, spare_schmitt_sites
 from .errors import ShortError, SpecError, SynthError
-from .network import Gate, RcTiming, SignalOut
+from .network import Gate, RcTiming, SignalOut, fresh_name
 from .netlist import Passive, check_nets, self_check
 from .packing import refresh, rewire_pin
 from .units import format_si
@@ -279,12 +279,7 @@ def _pin(plan, ref: str, net: str) -> int:
 def _fresh(plan, base: str) -> str:
     taken = {n for c in plan.chips for n in c.pins.values()} | set(plan.nets) | \
         {n for g in plan.network.gates for n in (*g.inputs, *g.outputs)}
-    if base not in taken:
-        return base
-    k = 2
-    while f"{base}{k}" in taken:
-        k += 1
-    return f"{base}{k}"
+    return fresh_name(base, taken)
 
 
 def _fresh_gate(plan, base: str) -> str:

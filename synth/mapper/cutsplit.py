@@ -16,10 +16,10 @@ map_piece)`` (called by ``complete``), ``joining_function(name, xor)``.
 from __future__ import annotations
 
 from dataclasses import replace
-from typing import Callable, Mapping, Sequence
+from typing import Callable, Sequence
 
 from ..minimize import Function
-from ..network import Network, SignalOut
+from ..network import Network, SignalOut, fresh_name
 from .core import verify_design
 from .factor import Split
 from .library import Library, chips_of
@@ -39,7 +39,7 @@ def gate_split(split: Split, functions, nvars: int, var_nets: Sequence[str], lib
     parts = (("lo", split.on0, split.dc0),) if split.xor else \
         (("lo", split.on0, split.dc0), ("hi", split.on1, split.dc1))
     for level, on, dc in parts:
-        name = _fresh(f"{split.name}_{bit}{level}", names)
+        name = fresh_name(f"{split.name}_{bit}{level}", names)
         names.add(name)
         halves.append(Function(name, on, dc))
     cut = [bit] + [h.name for h in halves]
@@ -82,7 +82,7 @@ def _merged(sub: Network, joined: Network, split: Split, halves: Sequence[Functi
         for net in gate.outputs:
             if net and net not in rename:
                 wanted = net if net not in taken else f"{split.name}_j"
-                rename[net] = _fresh(wanted, taken)
+                rename[net] = fresh_name(wanted, taken)
                 taken.add(rename[net])
     for half in halves:
         rename[half.name] = sub.signals[half.name].net
@@ -103,12 +103,3 @@ def _merged(sub: Network, joined: Network, split: Split, halves: Sequence[Functi
     return Network(gates, signals, tuple(var_nets), chips_of(gates, library), False, 1,
                    "split on a counter bit, joined by gates: best found", list(sub.notes) + [note])
 
-
-def _fresh(base: str, taken: set[str] | Mapping) -> str:
-    """``base``, or ``base2``, ``base3``... when taken."""
-    if base not in taken:
-        return base
-    k = 2
-    while f"{base}{k}" in taken:
-        k += 1
-    return f"{base}{k}"

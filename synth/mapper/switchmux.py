@@ -20,7 +20,7 @@ from typing import Callable, Mapping, Sequence
 
 from ..errors import InternalError
 from ..minimize import Function
-from ..network import Gate, Network, SignalOut
+from ..network import Gate, Network, SignalOut, fresh_name
 from .core import verify_design
 from .factor import Split
 from .library import Cell, Library, chips_of
@@ -42,7 +42,7 @@ def switch_split(split: Split, functions, nvars: int, var_nets: Sequence[str], l
     bit = var_nets[split.var]
     halves = []
     for level, on, dc in (("lo", split.on0, split.dc0), ("hi", split.on1, split.dc1)):
-        name = _fresh(f"{split.name}_{bit}{level}", names)
+        name = fresh_name(f"{split.name}_{bit}{level}", names)
         names.add(name)
         delivered = (frozenset(range(1 << nvars)) - on - dc) if low else on
         halves.append(Function(name, delivered, dc))
@@ -69,7 +69,7 @@ def _joined(sub: Network, split: Split, halves: Sequence[Function], cell: Cell,
         data.append(out.net)
     taken = {n for g in sub.gates for n in (*g.inputs, *g.outputs)} | set(var_nets)
     taken |= {s.net for s in signals.values()}
-    out_net = _fresh(f"{split.name}_n" if low else split.name, taken)
+    out_net = fresh_name(f"{split.name}_n" if low else split.name, taken)
     ids = {g.id for g in sub.gates}
     gate_id = next(f"sw{k}" for k in range(1, len(ids) + 2) if f"sw{k}" not in ids)
     mux = Gate(gate_id, cell.part, "mux", (data[0], data[1], var_nets[split.var]), (out_net,))
@@ -97,12 +97,3 @@ def _chip_floor(signals: Mapping[str, SignalOut], var_nets: Sequence[str], funct
                  for f in functions)
     return 1 if outputs > spare or -(-(widest - 1) // 2) > spare else 0
 
-
-def _fresh(base: str, taken: set[str]) -> str:
-    """``base``, or ``base2``, ``base3``... when taken."""
-    if base not in taken:
-        return base
-    k = 2
-    while f"{base}{k}" in taken:
-        k += 1
-    return f"{base}{k}"
