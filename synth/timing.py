@@ -609,10 +609,13 @@ class _Engine:
         self.clock_net = clock_net
         self.levels = {**initial, **RAILS}
         self.compiled = [_compiled(g) for g in gates]
+        self.plain = [_plain(g, inertial) for g in gates]
+        self.outputs: list[bool | None] = [initial[p[2]] if p else None for p in self.plain]
         self.changes: dict[str, list[tuple[int, bool]]] = {n: [] for n in initial}
         self.causes: dict[tuple[str, int], tuple[str, int] | None] = {}
         self.queue: list[_Event] = []
         self.seq = 0
+        self.steps = 0
         self.pending: dict[str, int] = {}
         self.cancelled: set[int] = set()
         self.computed: dict[tuple[int, str], bool] = {}
@@ -648,55 +651,163 @@ class _Engine:
         n = len(self.changes.get(net, ()))
         return (net, n - 1) if n else None
 
-    def run(self, end: int, period: int) -> None:
+    def run(self, end: int, period: int, cycle_ps: int = 0) -> None:
+        """Every event up to ``end``.  With ``cycle_ps`` (one counter cycle), when the
+        whole state at the second counting edge of a cycle equals the state one cycle
+        earlier, the later cycles are the first one again, shifted: they are copied
+        instead of simulated (same changes, causes and reset pulses as simulating)."""
         limit = 200_000 + 400 * len(self.gates) * (end // max(period, 1) + 1)
-        steps = 0
+        self.steps = 0
+        start = period
+        if cycle_ps and (end + 1 - start) % cycle_ps == 0 and end + 1 - start >= 2 * cycle_ps:
+            self._advance(start - 1, limit)
+            first = self._snapshot(start)
+            marks = (len(self.causes), {n: len(r) for n, r in self.changes.items()}, self.steps,
+                     len(self.reset_pulses), len(self.warnings))
+            self._advance(start + cycle_ps - 1, limit)
+            if first is not None and self._snapshot(start + cycle_ps) == first \
+                    and len(self.warnings) == marks[4] \
+                    and self._repeat(start, cycle_ps, (end + 1 - start) // cycle_ps - 1, marks):
+                if self.steps > limit:
+                    raise InternalError("timing simulation did not settle (an oscillating loop?)",
+                                        hint="a bug in binsynth or a feedback loop in the plan")
+                return
+        self._advance(end, limit)
+
+    def _snapshot(self, at: int) -> tuple | None:
+        """Everything that decides what happens from time ``at`` on, times taken relative
+        to ``at``; None when an event other than the clock is still queued."""
+        if self.pending or self.cancelled or any(e[5] != "clock" for e in self.queue):
+            return None
+        return (dict(self.levels), list(self.state), [max(b - at, 0) for b in self.busy_until],
+                list(self.reset_started), list(self.outputs), dict(self.computed), dict(self.tc_levels))
+
+    def _repeat(self, start: int, cycle_ps: int, copies: int, marks: tuple) -> bool:
+        """Append ``copies`` shifted copies of the cycle simulated from ``start``; False
+        (nothing appended) when a cause reaches back before it."""
+        n_causes, first_index, steps, n_pulses, _ = marks
+        entries = list(self.causes.items())[n_causes:]
+        if any(c is not None and c[1] < first_index.get(c[0], 0) for _, c in entries):
+            return False
+        rows = {n: r[first_index.get(n, 0):] for n, r in self.changes.items()}
+        pulses = self.reset_pulses[n_pulses:]
+        seg_steps = self.steps - steps
+        for m in range(1, copies + 1):
+            shift = m * cycle_ps
+            base = {n: len(r) - first_index.get(n, 0) for n, r in self.changes.items()}
+            for (net, i), c in entries:
+                self.causes[(net, i + base[net])] = None if c is None else (c[0], c[1] + base[c[0]])
+            for net, seg in rows.items():
+                if seg:
+                    self.changes[net].extend((t + shift, v) for t, v in seg)
+            self.reset_pulses += [(i, t + shift, w) for i, t, w in pulses]
+            self.steps += seg_steps
+        self.queue[:] = []
+        return True
+
+    def _advance(self, end: int, limit: int) -> None:
+        """Process every queued event up to time ``end``."""
+        steps = self.steps
         queue, levels, changes, causes = self.queue, self.levels, self.changes, self.causes
         cancelled, pending = self.cancelled, self.pending
+        pop = heapq.heappop
         while queue and queue[0][0] <= end:
             t = queue[0][0]
             changed: dict[str, bool] = {}
             while queue and queue[0][0] == t:
-                _, seq, net, level, cause, _kind = heapq.heappop(queue)
+                _, seq, net, level, cause, _kind = pop(queue)
                 steps += 1
-                if seq in cancelled:
+                if cancelled and seq in cancelled:
                     cancelled.discard(seq)
                     continue
-                if pending.get(net) == seq:
+                if pending and pending.get(net) == seq:
                     del pending[net]
-                if levels[net] != level:
-                    before = changed.get(net, levels[net])
+                was = levels[net]
+                if was != level:
                     levels[net] = level
-                    changes[net].append((t, level))
-                    causes[(net, len(changes[net]) - 1)] = cause
-                    changed.setdefault(net, before)
+                    rows = changes[net]
+                    causes[(net, len(rows))] = cause
+                    rows.append((t, level))
+                    if net not in changed:
+                        changed[net] = was
             if steps > limit:
                 raise InternalError("timing simulation did not settle (an oscillating loop?)",
                                     hint="a bug in binsynth or a feedback loop in the plan")
+            self.steps = steps
             self._react(t, changed)
+        self.steps = steps
 
     def _react(self, t: int, changed: dict[str, bool]) -> None:
-        for net in [n for n in changed if n in self.gated_by]:
-            for i in self.gated_by[net]:
-                self._gate_tc(i, self.counters[i], t, self.last_change(net))
+        levels = self.levels
+        if self.gated_by:
+            for net in [n for n in changed if n in self.gated_by]:
+                for i in self.gated_by[net]:
+                    self._gate_tc(i, self.counters[i], t, self.last_change(net))
         for i, c in enumerate(self.counters):
             if c.enable_clocks and c.enable_net in changed and changed[c.enable_net] \
-                    and not self.levels[c.enable_net] and not self.levels[c.clock_net]:
+                    and not levels[c.enable_net] and not levels[c.clock_net]:
                 self._count(i, c, t, by_enable=True)     # ENABLE fell while CLOCK was low: it counts
             if c.reset_net is not None and c.reset_net in changed:
                 self._reset_changed(i, c, t)
             if c.clock_net in changed:
-                was, now = changed[c.clock_net], self.levels[c.clock_net]
+                was, now = changed[c.clock_net], levels[c.clock_net]
                 if was != now and now == (c.edge == "rising"):
                     self._count(i, c, t)
-        for net in [n for n in changed if n in self.clocked]:
-            if changed[net] != self.levels[net]:
-                for gi in self.clocked[net]:
-                    if self.levels[net] == (self.gates[gi].edge == "rising"):
-                        self._clock_flipflop(gi, t, changed)
-        touched = sorted({g for net in changed for g in self.fanout.get(net, ())})
+        if self.clocked:
+            for net in [n for n in changed if n in self.clocked]:
+                if changed[net] != levels[net]:
+                    for gi in self.clocked[net]:
+                        if levels[net] == (self.gates[gi].edge == "rising"):
+                            self._clock_flipflop(gi, t, changed)
+        fanout = self.fanout
+        if len(changed) == 1:
+            touched = fanout.get(next(iter(changed)), ())     # already ascending, no repeats
+        else:
+            touched = sorted({g for net in changed for g in fanout.get(net, ())})
+        plain, outputs, changes, pending = self.plain, self.outputs, self.changes, self.pending
+        push, queue = heapq.heappush, self.queue
         for gi in touched:
-            self._evaluate(gi, t, changed)
+            fast = plain[gi]
+            if fast is None:
+                self._evaluate(gi, t, changed)
+                continue
+            op, ins, net, flip, inert, rise, fall = fast
+            if op == _AND:
+                value = True
+                for n in ins:
+                    if not levels[n]:
+                        value = False
+                        break
+            elif op == _OR:
+                value = False
+                for n in ins:
+                    if levels[n]:
+                        value = True
+                        break
+            else:
+                value = levels[ins[0]]
+            value = value != flip
+            if outputs[gi] == value:
+                continue
+            # the computed output changed: schedule it by ``_evaluate``'s rule, inline
+            cause = None
+            for n in ins:
+                if n in changed:
+                    rows = changes.get(n)
+                    if rows:
+                        cause = (n, len(rows) - 1)
+                    break
+            outputs[gi] = value
+            if inert:
+                was = pending.pop(net, None)
+                if was is not None:
+                    self.cancelled.add(was)
+                if value == levels[net]:
+                    continue
+            self.seq += 1
+            push(queue, (t + (rise if value else fall), self.seq, net, value, cause, "gate"))
+            if inert:
+                pending[net] = self.seq
 
     def _clock_flipflop(self, gi: int, t: int, changed: dict[str, bool]) -> None:
         """A flip-flop's clocking edge: D as it was just before the edge goes to Q
@@ -806,6 +917,25 @@ def _compiled(model: GateModel):
     return lambda v: tuple(model.evaluate(v).items())
 
 
+_AND, _OR, _WIRE = 0, 1, 2
+
+
+def _plain(model: GateModel, inertial: bool) -> tuple | None:
+    """A one-output AND/NAND/OR/NOR/NOT/buffer/RC as (op, inputs, output, invert, inertial,
+    rise delay, fall delay): the simulator evaluates these inline, the rest by ``_evaluate``."""
+    gate = model.gate
+    outs = [n for n in gate.outputs if n]
+    if model.clocked or model.also_op or len(outs) != 1 or gate.outputs[0] != outs[0]:
+        return None
+    ops = {"and": (_AND, False), "nand": (_AND, True), "or": (_OR, False), "nor": (_OR, True),
+           "not": (_WIRE, True), "buf": (_WIRE, False), "rc": (_WIRE, False)}
+    if gate.op not in ops or not gate.inputs:
+        return None
+    op, flip = ops[gate.op]
+    return (op, tuple(gate.inputs), outs[0], flip, inertial or gate.op == "rc",
+            model.delay_to(True), model.delay_to(False))
+
+
 def _settled_levels(counters: list[CounterModel], gates: list[GateModel], clock_net: str,
                     clock_level: bool, extra_inputs: Sequence[str],
                     registers: Mapping[str, bool] | None = None) -> dict[str, bool]:
@@ -862,7 +992,7 @@ def simulate(counter_plan: Any, network: Network, catalog: Any, supply: float, *
         engine.schedule(k * period + half, clock_net, not after_edge, None, "clock")
         if k:
             engine.schedule(k * period, clock_net, after_edge, None, "clock")
-    engine.run(end - 1, period)
+    engine.run(end - 1, period, cycle * period)
     return _trace_of(engine, counter_plan, network, counters, gates, period, cycle, cycles,
                      corner, supply, inertial, clock_net, edge, initial, end)
 
@@ -905,7 +1035,7 @@ def _trace_of(engine: _Engine, counter_plan: Any, network: Network, counters: li
     internal = [n for n in initial if n not in shown and n not in RAILS]
     drivers = {o.net: c.ref for c in counters for o in c.outputs}
     drivers.update({n: g.name for g in gates for n in g.gate.outputs if n})
-    changes = {net: [(_ns(t), v) for t, v in rows] for net, rows in engine.changes.items()}
+    changes = {net: [(t / PS_PER_NS, v) for t, v in rows] for net, rows in engine.changes.items()}
     resets = [ResetPulse(counters[i].ref, _ns(start), _ns(width), (start // period) % cycle)
               for i, start, width in engine.reset_pulses]
     warnings = list(dict.fromkeys(engine.warnings + [n for c in counters for n in c.notes]))
@@ -1039,7 +1169,7 @@ def glitches(trace: Trace, expected_levels: Mapping[str, Sequence[bool]] | None 
         if net in RAILS:
             continue
         inactive = (strobed or {}).get(name)
-        for k in range(1, trace.ticks):
+        for k in _busy_windows(trace, net):
             glitch = _glitch_at(trace, name, net, k, expected_levels, inactive)
             if glitch is None:
                 continue
@@ -1047,6 +1177,31 @@ def glitches(trace: Trace, expected_levels: Mapping[str, Sequence[bool]] | None 
             if key not in found or glitch.width_ns > found[key].width_ns:
                 found[key] = glitch
     return sorted(found.values(), key=lambda g: (g.signal, g.at_tick))
+
+
+def _busy_windows(trace: Trace, net: str) -> list[int]:
+    """The tick windows k (1 <= k < ticks) in which the net changes at least twice, in
+    order: a pulse needs two changes in one window, so the others cannot hold a glitch."""
+    changes = trace.changes.get(net, [])
+    period = trace.period_ns
+    found: list[int] = []
+    last = None
+    for i in range(len(changes) - 1):
+        k = _window_of(changes[i][0], period)
+        if k == _window_of(changes[i + 1][0], period) and k != last and 1 <= k < trace.ticks:
+            found.append(k)
+            last = k
+    return found
+
+
+def _window_of(time_ns: float, period_ns: float) -> int:
+    """The k with k * period <= time < (k + 1) * period, by the products ``_glitch_at`` uses."""
+    k = int(time_ns // period_ns)
+    while k * period_ns > time_ns:
+        k -= 1
+    while (k + 1) * period_ns <= time_ns:
+        k += 1
+    return k
 
 
 def settle_mismatches(trace: Trace, expected_levels: Mapping[str, Sequence[bool]]) -> list[str]:
