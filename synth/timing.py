@@ -117,6 +117,7 @@ MODEL_NAMES = {
 """What the output calls each analysis (plan JSON ``models``, the glitch table's
 "found by" with ``_`` read as a space): plain words, not the ids above."""
 PS_PER_NS = 1000
+REPEAT_CYCLES = True    # copy a cycle that repeats the first exactly (``_Engine.run``); tests turn it off
 
 
 def ps(ns: float) -> int:
@@ -992,7 +993,7 @@ def simulate(counter_plan: Any, network: Network, catalog: Any, supply: float, *
         engine.schedule(k * period + half, clock_net, not after_edge, None, "clock")
         if k:
             engine.schedule(k * period, clock_net, after_edge, None, "clock")
-    engine.run(end - 1, period, cycle * period)
+    engine.run(end - 1, period, cycle * period if REPEAT_CYCLES else 0)
     return _trace_of(engine, counter_plan, network, counters, gates, period, cycle, cycles,
                      corner, supply, inertial, clock_net, edge, initial, end)
 
