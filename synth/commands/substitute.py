@@ -1,6 +1,6 @@
 """``binsynth substitute TARGET --bin BIN``: build a gate the bin lacks from what it has.
 
-Interface: ``NAME``, ``HELP``, ``add_arguments(parser)``, ``run(args) -> int``;
+Interface: ``NAME``, ``add_arguments(parser)``, ``run(args) -> int``;
 ``substitute_blocks(target, ways, bin_path)`` (what a person sees) and
 ``substitute_json(target, ways)`` (what a script reads).  The logic lives in
 ``synth.substitute``.
@@ -20,8 +20,6 @@ from ..substitute import draw_way, parse_target, substitute, way_json, wiring_ro
 from ..units import parse_quantity
 
 NAME = "substitute"
-HELP = ("the cheapest ways to build a gate the bin lacks (nand4, and8, xor2, nor3, inv) or a "
-        "boolean expression ('a & ~b | c') from the bin's gates, with pin-level wiring")
 
 
 def add_arguments(parser: argparse.ArgumentParser) -> None:
