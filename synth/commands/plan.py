@@ -28,7 +28,7 @@ from ..netlist import endpoint_text, pin_table, wire_list
 from ..render import counted, print_json, progress, show, Table, Text
 from ..timing import MODEL_NAMES
 from ..units import format_si
-from .substitute import add_effort_argument
+from .options import add_effort_argument
 
 NAME = "plan"
 

@@ -10,7 +10,6 @@ from __future__ import annotations
 
 import argparse
 
-from ..effort import DEFAULT_EFFORT, EFFORTS
 from ..errors import UsageError
 from ..inventory import load_bin, load_catalog
 from ..limits import check_expression, check_supply
@@ -18,6 +17,7 @@ from ..mapper import build_library
 from ..render import counted, print_json, progress, show, Table, Text
 from ..substitute import draw_way, parse_target, substitute, way_json, wiring_rows
 from ..units import parse_quantity
+from .options import add_effort_argument
 
 NAME = "substitute"
 
@@ -37,16 +37,7 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     add_effort_argument(parser)
 
 
-def add_effort_argument(parser: argparse.ArgumentParser) -> None:
-    """``--effort LEVEL``: how much search work (counted, never timed) the mapper may spend."""
-    levels = "; ".join(f"{e.name}: {e.summary}" for e in EFFORTS.values())
-    parser.add_argument("--effort", choices=list(EFFORTS), default=DEFAULT_EFFORT,
-                        help=f"how hard the search tries, counted in work so every run gives the same "
-                             f"answer ({levels}; default {DEFAULT_EFFORT})")
-
-
 def run(args: argparse.Namespace) -> int:
-
     check_expression(args.target, "target", error=UsageError,
                      fix="a gate of at most 8 inputs needs a short expression; write a shorter one")
     target = parse_target(args.target)
