@@ -1,7 +1,11 @@
 """Start-up benchmark: the demo as a fresh process, timed several times, the
 median beside the issue-12 target (under 1.0 s without what-the-bin-lacks).
 
-Run from the checkout: ``python3 bench/bench_startup.py [--runs N]``.
+Run from the checkout: ``python3 bench/bench_startup.py [--runs N] [--root DIR]
+[--before DIR]``.  ``--root`` times another checkout instead of this one;
+``--before`` times a second checkout (e.g. an earlier commit unpacked with
+``git archive``) alternately with the first and prints it beside it, so
+before/after figures meet the same load.
 
 - Each row runs ``python -m synth ...`` as a new process N times (default 5)
   and prints the median wall time and the median CPU time of the child (user
@@ -13,7 +17,7 @@ Run from the checkout: ``python3 bench/bench_startup.py [--runs N]``.
   ``--lacks 0`` (what the bin lacks skipped; the target row), with
   ``--effort quick``, and at the default effort with what the bin lacks;
   ``binsynth demo`` (every output file written into a temporary folder).
-- A second part runs the same plan in this process, one stage at a time, and
+- A second part runs the same plan in one fresh process, stage by stage, and
   prints where the CPU time goes (imports, catalog, spec and bin, mapping, the
   rest), so the next saving is easy to find.
 
@@ -40,10 +44,10 @@ BIN = "inventory/bins/sample_hold.yaml"
 TARGET_SECONDS = 1.0
 
 
-def byte_compile() -> None:
+def byte_compile(root: Path) -> None:
     """As installed: every module compiled once, not at each start."""
-    subprocess.run([sys.executable, "-m", "compileall", "-q", str(ROOT / "synth")], check=True,
-                   cwd=ROOT, env=child_env())
+    subprocess.run([sys.executable, "-m", "compileall", "-q", str(root / "synth")], check=True,
+                   cwd=root, env=child_env())
 
 
 def child_env() -> dict[str, str]:
@@ -52,11 +56,11 @@ def child_env() -> dict[str, str]:
     return env
 
 
-def fresh_process(args: list[str]) -> tuple[float, float]:
+def fresh_process(args: list[str], root: Path = ROOT) -> tuple[float, float]:
     """(wall seconds, CPU seconds of the child) of one ``python -m synth ARGS`` run."""
     before = resource.getrusage(resource.RUSAGE_CHILDREN)
     start = time.perf_counter()
-    done = subprocess.run([sys.executable, "-m", "synth", *args], cwd=ROOT, env=child_env(),
+    done = subprocess.run([sys.executable, "-m", "synth", *args], cwd=root, env=child_env(),
                           stdout=subprocess.DEVNULL, stderr=subprocess.PIPE, text=True)
     wall = time.perf_counter() - start
     after = resource.getrusage(resource.RUSAGE_CHILDREN)
@@ -65,30 +69,32 @@ def fresh_process(args: list[str]) -> tuple[float, float]:
     return wall, (after.ru_utime - before.ru_utime) + (after.ru_stime - before.ru_stime)
 
 
-def timed_rows(runs: int) -> list[tuple[str, float, float, float, float]]:
-    """(label, median wall, median CPU, fastest wall, slowest wall) per row."""
+ROWS = [
+    ("binsynth --help", ["--help"]),
+    ("plan sample_hold --lacks 0", ["plan", SPEC, "--bin", BIN, "--lacks", "0"]),
+    ("plan sample_hold --effort quick", ["plan", SPEC, "--bin", BIN, "--effort", "quick"]),
+    ("plan sample_hold (with what the bin lacks)", ["plan", SPEC, "--bin", BIN]),
+    ("demo (every output, with what the bin lacks)", ["demo", "--out", "DIR"]),
+]
+
+
+def timed_rows(runs: int, roots: list[Path], rows=ROWS) -> list[tuple[str, list[tuple[float, float]]]]:
+    """Per row and per checkout: (median wall, median CPU).  With two checkouts the
+    runs alternate between them, so both meet the same load."""
+    results = []
     with tempfile.TemporaryDirectory() as tmp:
-        rows = [
-            ("binsynth --help", ["--help"]),
-            ("plan sample_hold --lacks 0", ["plan", SPEC, "--bin", BIN, "--lacks", "0"]),
-            ("plan sample_hold --effort quick", ["plan", SPEC, "--bin", BIN, "--effort", "quick"]),
-            ("plan sample_hold (with what the bin lacks)", ["plan", SPEC, "--bin", BIN]),
-            ("demo (every output, with what the bin lacks)", ["demo", "--out", str(Path(tmp) / "demo")]),
-        ]
-        results = []
         for label, args in rows:
-            times = []
+            times: list[list[tuple[float, float]]] = [[] for _ in roots]
             for i in range(runs):
-                if args[0] == "demo":
-                    args = ["demo", "--out", str(Path(tmp) / f"demo{i}")]
-                times.append(fresh_process(args))
-            walls = [w for w, _ in times]
-            results.append((label, statistics.median(walls), statistics.median(c for _, c in times),
-                            min(walls), max(walls)))
+                for k, root in enumerate(roots):
+                    run = [str(Path(tmp) / f"demo{k}-{i}") if word == "DIR" else word for word in args]
+                    times[k].append(fresh_process(run, root))
+            results.append((label, [(statistics.median(w for w, _ in t), statistics.median(c for _, c in t))
+                                    for t in times]))
     return results
 
 
-def stages() -> list[tuple[str, float]]:
+def stages(root: Path = ROOT) -> list[tuple[str, float]]:
     """One plan in this process, stage by stage (a fresh interpreter, so imports count)."""
     code = r"""
 import time, sys
@@ -112,7 +118,7 @@ flow.make_plan(sys.argv[1], sys.argv[2], lacks=False, catalog=catalog)
 t3 = time.process_time()
 print(t1 - t0, t2 - t1, spent["mapping"], t3 - start - spent["mapping"])
 """
-    done = subprocess.run([sys.executable, "-c", code, SPEC, BIN], cwd=ROOT, env=child_env(),
+    done = subprocess.run([sys.executable, "-c", code, SPEC, BIN], cwd=root, env=child_env(),
                           capture_output=True, text=True, check=True)
     imports, catalog, mapping, rest = (float(x) for x in done.stdout.split())
     return [("imports (the plan command and the flow)", imports), ("catalog load", catalog),
@@ -122,22 +128,36 @@ print(t1 - t0, t2 - t1, spent["mapping"], t3 - start - spent["mapping"])
 def main(argv: list[str]) -> int:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--runs", type=int, default=5, help="fresh processes per row (default 5)")
+    parser.add_argument("--root", type=Path, default=ROOT, help="the checkout to time (default: this one)")
+    parser.add_argument("--before", type=Path, default=None,
+                        help="another checkout timed alternately with it, printed beside it")
     args = parser.parse_args(argv)
-    byte_compile()
+    roots = [args.root.resolve()] + ([args.before.resolve()] if args.before else [])
+    for root in roots:
+        byte_compile(root)
     load = os.getloadavg()[0]
-    print(f"binsynth start-up, fresh processes, median of {args.runs} (load average {load:.1f} "
-          f"on {os.cpu_count()} cores)")
-    print(f"{'run':48} {'wall':>7} {'cpu':>7} {'fastest':>8} {'slowest':>8}   target")
+    print(f"binsynth start-up ({roots[0]}), fresh processes, median of {args.runs} "
+          f"(load average {load:.1f} on {os.cpu_count()} cores)")
+    if args.before:
+        print(f"beside: {roots[1]} (runs alternate, so both meet the same load)")
+    head = f"{'run':46} {'wall':>7} {'cpu':>7}"
+    if args.before:
+        head += f" {'before':>8} {'cpu':>7} {'ratio':>6}"
+    print(head + "   target")
     met = True
-    for label, wall, cpu, fast, slow in timed_rows(args.runs):
-        target = ""
+    for label, figures in timed_rows(args.runs, roots):
+        wall, cpu = figures[0]
+        line = f"{label:46} {wall:6.2f}s {cpu:6.2f}s"
+        if args.before:
+            old_wall, old_cpu = figures[1]
+            line += f" {old_wall:7.2f}s {old_cpu:6.2f}s {cpu / old_cpu:6.2f}"
         if "--lacks 0" in label:
             ok = wall < TARGET_SECONDS
             met = met and ok
-            target = f"< {TARGET_SECONDS:.1f} s: {'met' if ok else 'MISSED'} (x{wall / TARGET_SECONDS:.2f})"
-        print(f"{label:48} {wall:6.2f}s {cpu:6.2f}s {fast:7.2f}s {slow:7.2f}s   {target}")
+            line += f"   wall < {TARGET_SECONDS:.1f} s: {'met' if ok else 'MISSED'}"
+        print(line)
     print("\nwhere the CPU time goes (one run in one fresh process, --lacks 0):")
-    for label, seconds in stages():
+    for label, seconds in stages(roots[0]):
         print(f"  {label:56} {seconds:6.3f} s")
     return 0 if met else 1
 
