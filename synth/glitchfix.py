@@ -59,9 +59,16 @@ import dataclasses
 from collections.abc import Callable, Iterable
 from typing import Any
 
+from .analog import plain_input_thresholds, rc_delay_design, thresholds_at
+from .counter import allocate
 from .errors import ShortError, SynthError
 from .model import Design, FixReport, Replanner, Spec
 from .network import RAILS, Gate, Network, SignalOut
+from .packing import unit_logic_pins
+from .registers import COUNTER_CLOCK_NET, prepare_registering, pulse_per_tick_ok, with_flipflops
+from .timing import (counter_models, entry_sequence, gate_names_of, registered_signals, spare_input,
+                     spare_input_place, synchronous_counter_parts, var_roles)
+from .units import format_si
 
 __all__ = ["apply_fixes", "rc_offers", "strobe_network", "FIXES", "NotApplicable"]
 
@@ -165,8 +172,6 @@ def _fix_glitches(design: Design, replanner: Replanner) -> tuple[Design, list[di
 def _key(design: Design, spec: Spec) -> tuple:
     """How good a fixed design is: glitches left on signals that must hold their level
     (no pulse per tick acceptable), glitches left, chips, gates."""
-    from .registers import pulse_per_tick_ok
-
     left = _by_signal(design.plan.glitches)
     strobed = design.plan.strobed
     must_hold = sum(len(t) for s, t in left.items() if not pulse_per_tick_ok(spec, s))
@@ -179,8 +184,6 @@ def _best_plan(records: dict, current: Design, remaining: list[str], replanner: 
     (``registers.pulse_per_tick_ok``) may be gated with the clock; every other one is
     registered in a flip-flop of the bin; a synchronous counter is tried first where
     the bin has one.  Returns the cheapest sequence of (remedy, design) steps."""
-    from .registers import pulse_per_tick_ok
-
     spec = current.spec
     gateable = [s for s in remaining if pulse_per_tick_ok(spec, s)]
     for signal in remaining:
@@ -351,8 +354,6 @@ def _gates(design: Design) -> int:
 def _register(design: Design, signals, replanner: Replanner) -> Design:
     """The design with ``signals`` decoded one tick early and clocked into D flip-flops
     (``synth.registers``); packed, self-checked and re-analysed like the others."""
-    from .registers import prepare_registering, with_flipflops
-
     if design.plan.strobed:
         raise NotApplicable("the plan already gates signals with the clock")
     names = [s for s in signals if s not in design.plan.registered]
@@ -374,8 +375,6 @@ def _register(design: Design, signals, replanner: Replanner) -> Design:
 
 def register_records(plan: Any, reg: Any) -> dict[str, dict]:
     """Signal -> how it is registered (flip-flop, its clock, the counter's clock), for the report."""
-    from .timing import gate_names_of, registered_signals
-
     names = gate_names_of(plan)
     flops = registered_signals(plan.network)
     inverter = next((g for g in plan.network.gates if g.outputs and g.outputs[0] == "CLK_n"), None)
@@ -404,8 +403,6 @@ def register_records(plan: Any, reg: Any) -> dict[str, dict]:
 
 def _decode_choice(design: Design, replanner: Replanner) -> Design:
     """Re-derive with the glitching entries' transient states passed at the steady level."""
-    from .timing import entry_sequence, var_roles
-
     cp = design.counter
     functions = {f.name: f for f in design.decode.functions}
     roles = var_roles(cp, design.catalog)
@@ -441,9 +438,6 @@ def _synchronous(design: Design, replanner: Replanner) -> Design:
     first with 4520/4518 units cascaded through a decoded enable (every output on one
     edge; the decode takes gates), then, when the bin cannot map that, as allocated
     without it."""
-    from .counter import allocate
-    from .timing import synchronous_counter_parts
-
     if getattr(design.counter, "synchronous", False):
         raise NotApplicable("the counter is already synchronous")
     stock, catalog = design.stock, design.catalog
@@ -535,8 +529,6 @@ def strobe_network(network: Network, signal: str, plan: Any, stock: Any, catalog
 
 def _clock_net(counter: Any) -> str:
     """The board clock: the counters' clock net, or CLK where they take an inverted copy."""
-    from .registers import COUNTER_CLOCK_NET
-
     var_nets = {str(v.net) for v in counter.vars}
     net = next((str(c.clock_net) for c in counter.chips if str(c.clock_net) not in var_nets), "CLK")
     return "CLK" if net == COUNTER_CLOCK_NET else net
@@ -548,8 +540,6 @@ def _phase_text(clock: str, level: bool) -> str:
 
 def _spare_input_rewrite(network, signal, out, clock, settle, plan, stock, catalog):
     """Use a spare input of the signal's last gate when its controlling level is the inactive one."""
-    from .timing import spare_input, spare_input_place
-
     gate = next((g for g in network.gates if out.net in g.outputs), None)
     if gate is None or gate.op not in _CONTROLLING or len(gate.outputs) != 1:
         return None
@@ -675,16 +665,12 @@ def _too_slow(catalog, part_type: str, plan) -> bool:
 
 def _first_counter_move_ns(plan, catalog, corner: str = "typ") -> float:
     """The earliest a counter output moves after a counting edge."""
-    from .timing import counter_models
-
     models = counter_models(plan.counter, plan.network, catalog, plan.supply, corner)
     return min((o.delay_ps / 1000 for c in models for o in c.outputs), default=0.0)
 
 
 def _unit_options(plan, stock, catalog, op: str, min_inputs: int) -> list[tuple[str, int, bool]]:
     """(part, inputs, needs a new chip) for every unit of ``op`` the board or the bin has spare."""
-    from .packing import unit_logic_pins
-
     out = []
     for part_type in sorted(stock.parts):
         part = catalog.parts.get(part_type)
@@ -809,9 +795,6 @@ def _glitch_offer(design: Design, signal: str, width_ns: float, period: float | 
 
 
 def _rc_design(design: Design, signal: str, wanted_ns: float, period: float) -> dict:
-    from .analog import plain_input_thresholds, rc_delay_design, thresholds_at
-    from .units import format_si
-
     plan, stock, catalog = design.plan, design.stock, design.catalog
     try:
         receiver, where = _schmitt_pair(plan, stock, catalog)

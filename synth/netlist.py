@@ -31,6 +31,7 @@ from .errors import InternalError
 from .inventory import Part
 from .network import Network, evaluate_words
 from .spec import SignalSpec, Spec
+from .units import format_si
 from .verilog_names import VERILOG_KEYWORDS, verilog_module_name  # noqa: F401 - re-exported
 
 RAIL_NETS = ("VDD", "VSS")
@@ -73,8 +74,6 @@ class Passive:
     purpose: str
 
     def label(self) -> str:
-        from .units import format_si
-
         return format_si(self.value, "Ω" if self.kind == "resistor" else "F")
 
 

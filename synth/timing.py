@@ -78,7 +78,8 @@ from .analog import Spread, with_tolerance
 from .counter import carry_nets
 from .errors import InternalError
 from .harmless import check_slow_outputs, mark_harmless
-from .network import RAILS, Gate, Network, evaluate_gate
+from .netlist import delivered_sets, simulate_ticks
+from .network import RAILS, Gate, Network, counting_words, evaluate_gate, evaluate_words
 from .packing import unit_logic_pins
 
 __all__ = [
@@ -873,8 +874,6 @@ def register_start_levels(counter_plan: Any, network: Network, sampled_clock: bo
     its level just before a counting edge)."""
     if not any(g.op == "flipflop" for g in network.gates):
         return {}
-    from .network import evaluate_words
-
     states = [int(s) for s in counter_plan.state_of_tick]
     width = len(states)
     full = (1 << width) - 1
@@ -1300,8 +1299,6 @@ def _natural_next(a: int, roles: list[_VarRole]) -> int | None:
 
 def _function_values(counter_plan: Any, functions_or_network: Any) -> Callable[[str, int], bool]:
     if isinstance(functions_or_network, Network):
-        from .network import counting_words, evaluate_words
-
         net = functions_or_network
         if any(g.op == "flipflop" for g in net.gates):     # registered outputs follow no transient
             net = Network([g for g in net.gates if g.op != "flipflop"], net.signals, net.inputs)
@@ -1687,8 +1684,6 @@ def timing_report(design: Any) -> TimingReport:
     settles first), warnings (a clock too fast, setup / hold of registered
     outputs, runt clock and reset pulses) and the remedies per glitch.
     """
-    from .netlist import delivered_sets, simulate_ticks
-
     catalog = design.catalog
     plan = dataclasses.replace(design.plan, warnings=list(design.plan.warnings))   # read, never written
     spec = getattr(design, "spec", None)
