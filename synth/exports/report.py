@@ -653,10 +653,10 @@ def _bom(design, data: dict) -> str:
 def _remedies(design) -> str:
     plan = design.plan
     items = []
-    for fix in getattr(plan, "timing_fixes", None) or []:
-        applied = " + ".join(fix.get("remedies_applied") or ["note"]).replace("_", " ")
-        items.append(f"<li>{escape(fix['signal'])}: {escape(applied)} (+{fix['cost']['chips']} chips, "
-                     f"+{fix['cost']['gates']} gates): {escape(fix.get('detail', ''))}</li>")
+    for fix in plan.timing_fixes or ():
+        applied = " + ".join(fix.remedies_applied or ["note"]).replace("_", " ")
+        items.append(f"<li>{escape(fix.signal)}: {escape(applied)} (+{fix.cost.chips} chips, "
+                     f"+{fix.cost.gates} gates): {escape(fix.detail)}</li>")
     for text in design.remedies.text if design.remedies else ():
         items.append(f"<li>{escape(text)}</li>")
     if not items:
