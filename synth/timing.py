@@ -1055,8 +1055,8 @@ def _settle(changes: dict[str, list[tuple[int, bool]]], skip: set[str], period: 
     for net, rows in changes.items():
         if net in skip:
             continue
-        for t, _ in rows:
-            worst = max(worst, t % period)
+        if rows:
+            worst = max(worst, max(t % period for t, _ in rows))
     return worst
 
 
@@ -1642,11 +1642,9 @@ def _driver(network: Network, net: str) -> Gate | None:
     return next((g for g in network.gates if net in g.outputs), None)
 
 
-def _ticks_of_states(counter_plan: Any) -> dict[int, list[int]]:
-    ticks: dict[int, list[int]] = {}
-    for t, s in enumerate(counter_plan.state_of_tick):
-        ticks.setdefault(int(s), []).append(t)
-    return ticks
+def _ticks_of_state(counter_plan: Any, state: int) -> list[int]:
+    """The ticks at which the counter shows ``state``, in order."""
+    return [t for t, s in enumerate(counter_plan.state_of_tick) if int(s) == state]
 
 
 def synchronous_counter_parts(catalog: Any, stock: Any) -> list[str]:
@@ -1725,7 +1723,7 @@ def _register_remedy(glitch: Glitch, plan: Any, catalog: Any, stock: Any) -> lis
 def _decode_choice_remedy(glitch: Glitch, counter: Any, spec: Any) -> list[str]:
     """Remedy 1: the transient state is a don't-care for this signal."""
     state = glitch.transient_state
-    ticks = _ticks_of_states(counter).get(int(state), [])  # type: ignore[arg-type]
+    ticks = _ticks_of_state(counter, int(state))  # type: ignore[arg-type]
     sig = getattr(spec, "signals", {}).get(glitch.signal) if spec is not None else None
     dont_care = set(getattr(sig, "dont_care", ()) or ())
     never_held = not ticks and int(state) in counter.unreachable  # type: ignore[arg-type]
