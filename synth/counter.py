@@ -133,9 +133,9 @@ class CarryDecode:
     chip: int
 
 
-@dataclass
+@dataclass(frozen=True)
 class CounterPlan:
-    """The counter chips and the tick <-> minterm map the decode works over."""
+    """The counter chips and the tick <-> minterm map the decode works over (frozen)."""
 
     chips: list[CounterChip]
     vars: list[CounterVar]
@@ -943,10 +943,8 @@ def _plan_of(verdict: _Verdict, spec, stock: Bin, catalog: Catalog, supply: floa
                        passing=_passing(chain, verdict, reset.transient if reset else None),
                        transient_states=1 if verdict.reset_mode in ("async", "direct") else 0,
                        carries=_carry_decodes(chain, state_of_tick, unreachable, cycle))
-    plan.warnings += verdict.fmax_notes
-    plan.notes += [c.how for c in chips]
-    _explain(plan, verdict, frequency)
-    return plan
+    notes, warnings = _explain(plan, verdict, frequency)
+    return replace(plan, warnings=[*verdict.fmax_notes, *warnings], notes=[*(c.how for c in chips), *notes])
 
 
 def _refs(chain: _Chain) -> list[str]:
@@ -1275,30 +1273,33 @@ def _precedence(chain: _Chain) -> list[set[int]]:
     return before
 
 
-def _explain(plan: CounterPlan, verdict: _Verdict, frequency: float | None) -> None:
+def _explain(plan: CounterPlan, verdict: _Verdict, frequency: float | None) -> tuple[list[str], list[str]]:
     """Notes and warnings a person should read beside the counter choice."""
     cycle = plan.cycle
+    notes: list[str] = []
+    warnings: list[str] = []
     if plan.reset is not None:
-        plan.notes.append(plan.reset.caution)
-        plan.warnings += plan.reset.warnings
+        notes.append(plan.reset.caution)
+        warnings += plan.reset.warnings
         if plan.reset.direct:
-            plan.notes.append(f"cycle {cycle}: {plan.reset.net} resets the count to 0")
+            notes.append(f"cycle {cycle}: {plan.reset.net} resets the count to 0")
     elif verdict.chain.style == "johnson":
-        plan.notes.append(f"cycle {cycle}: the decoded counter wraps by itself")
+        notes.append(f"cycle {cycle}: the decoded counter wraps by itself")
     else:
-        plan.notes.append(f"cycle {cycle}: the used stages wrap by themselves, no reset needed")
+        notes.append(f"cycle {cycle}: the used stages wrap by themselves, no reset needed")
     never = len(plan.unreachable)
     if never:
-        plan.notes.append(f"{never} of the {1 << plan.nvars} output states are never held: don't-cares")
+        notes.append(f"{never} of the {1 << plan.nvars} output states are never held: don't-cares")
     if not plan.synchronous:
-        plan.notes.append("ripple counting: the outputs change one after another after each "
-                          f"counting edge (all settled after about {_ns(plan.settle_ns)} ns typ)")
+        notes.append("ripple counting: the outputs change one after another after each "
+                     f"counting edge (all settled after about {_ns(plan.settle_ns)} ns typ)")
     if frequency and plan.settle_ns:
         period_ns = 1e9 / frequency
         if plan.settle_ns > period_ns:
-            plan.warnings.append(f"the counter outputs settle about {plan.settle_ns:.0f} ns after the "
-                                 f"counting edge, longer than the {period_ns:.0f} ns clock period")
+            warnings.append(f"the counter outputs settle about {plan.settle_ns:.0f} ns after the "
+                            f"counting edge, longer than the {period_ns:.0f} ns clock period")
     if any(e.kind.mode == "binary" and not set(range(1, e.kind.width + 1)) <= e.kind.visible
            for e in verdict.chain.elements):
         missing = _missing_stages(verdict.chain)
-        plan.notes.append(f"stages not brought out ({missing}) are not used by the decode")
+        notes.append(f"stages not brought out ({missing}) are not used by the decode")
+    return notes, warnings

@@ -122,8 +122,7 @@ class Sequencer:
     def pack(self, design: Design, network: Network) -> Plan:
         """A changed network packed with the analog parts added, as in ``plan`` (no timing)."""
         plan = pack(network, design.counter, design.spec, design.stock, design.catalog)
-        add_analog_parts(plan, design.spec, design.stock, design.catalog)
-        return plan
+        return add_analog_parts(plan, design.spec, design.stock, design.catalog)
 
     def replan(self, design: Design, *, counter_plan: CounterPlan | None = None,
                decode: Decode | None = None, network: Network | None = None,
@@ -148,8 +147,8 @@ class Sequencer:
                         registered: dict[str, dict] | None = None) -> Design:
         """Packing, the analog parts, then the timing analysis written into a new plan."""
         plan = pack(network, counter_plan, spec, stock, catalog)
-        plan.warnings[:0] = list(stock.warnings) + list(counter_plan.warnings)
-        add_analog_parts(plan, spec, stock, catalog)
+        plan = dataclasses.replace(plan, warnings=[*stock.warnings, *counter_plan.warnings, *plan.warnings])
+        plan = add_analog_parts(plan, spec, stock, catalog)
         plan = dataclasses.replace(plan, strobed=dict(strobed or {}), registered=dict(registered or {}))
         design = Design(plan, spec, stock, catalog, counter_plan, decode, network)
         return with_timing(design, timing_report(design))

@@ -8,9 +8,10 @@ ties wired, a 100 nF decoupling capacitor listed per chip; the plan passes
 ``spec_net(name)``; ``check_nets`` (re-exported from ``netlist``).
 Later stages that add parts to a packed plan (the clock oscillator, the
 ladders) use ``add_chip(plan, part, role, units, pins, notes)`` (a new chip,
-finished like the others), ``rewire_pin(plan, ref, pin, net, note)`` (a spare
-unit's pin taken off its tie) and ``refresh(plan, bin)`` (nets, BOM,
-decoupling and cautions rebuilt from the chips and passives).
+finished like the others) and ``rewire_pin(plan, ref, pin, net, note)`` (a spare
+unit's pin taken off its tie) on a ``working_copy(plan)``, then
+``refresh(plan, bin) -> Plan`` (a new record: nets, BOM, decoupling and cautions
+rebuilt from the chips and passives).
 
 Switch routing, for each spec switch in turn: an SPDT section; else two SPST
 sections with complementary controls (the complement comes from the network,
@@ -33,7 +34,8 @@ from .netlist import (CLOCK_NET, RAIL_NETS, ChipInstance, Plan, check_nets, is_p
                       pin_directions, ref_key, self_check)
 from .network import Gate, Network, evaluate_gate, fresh_name
 
-__all__ = ["pack", "place_logic", "unit_logic_pins", "flipflop_controls", "spec_net", "check_nets", "add_chip", "rewire_pin", "refresh"]
+__all__ = ["pack", "place_logic", "unit_logic_pins", "flipflop_controls", "spec_net", "check_nets", "add_chip", "rewire_pin", "refresh",
+           "working_copy"]
 
 # Common practice: an unused CMOS input is tied to a rail, never left floating;
 # either rail is fine for a gate input, and binsynth always uses VSS.
@@ -706,12 +708,12 @@ def _build_plan(board: _Board, network: Network, counter_plan: Any, spec: Any,
         clock_edge=str(counter_plan.edge), counter=counter_plan, network=network,
         warnings=list(board.warnings), proven_minimal=bool(network.proven_minimal),
         lower_bound=network.lower_bound, method=network.method, parts=parts)
-    plan.signals = _signals(plan, network, spec)
-    plan.switches = {r.name: _switch_record(r, board.net_for) for r in routes}
-    plan.external = _external_nets(plan, routes, board.net_for)
-    plan.cautions = _cautions(plan, counter_plan)
-    plan.warnings += _capacitor_warnings(board.bin, len(chips))
-    return plan
+    signals, constant = _signals(plan, network, spec)
+    plan = dataclasses.replace(plan, signals=signals, warnings=[*plan.warnings, *constant],
+                               switches={r.name: _switch_record(r, board.net_for) for r in routes})
+    plan = dataclasses.replace(plan, external=_external_nets(plan, routes, board.net_for))
+    return dataclasses.replace(plan, cautions=_cautions(plan, counter_plan),
+                               warnings=plan.warnings + _capacitor_warnings(board.bin, len(chips)))
 
 
 def _collect_nets(chips: list[ChipInstance], counter_plan: Any,
@@ -754,20 +756,22 @@ def _decoupling_note(part: Part) -> str:
             "the board allows (common practice)")
 
 
-def _signals(plan: Plan, network: Network, spec: Any) -> dict[str, dict]:
-    """The spec's signals (internal decodes such as the counter reset stay out)."""
+def _signals(plan: Plan, network: Network, spec: Any) -> tuple[dict[str, dict], list[str]]:
+    """The spec's signals (internal decodes such as the counter reset stay out), and a
+    warning for each one no chip pin carries."""
     wanted = set(getattr(spec, "signals", None) or network.signals)
     out = {}
+    warnings = []
     for name, sig in network.signals.items():
         if name not in wanted:
             continue
         drivers = [(r, p) for r, p in plan.nets.get(sig.net, [])
                    if pin_direction(plan, r, p) == "out"]
         if not drivers:
-            plan.warnings.append(f"signal {name} is constant ({sig.net}); no chip pin carries it")
+            warnings.append(f"signal {name} is constant ({sig.net}); no chip pin carries it")
         out[name] = {"polarity": sig.polarity, "net": sig.net,
                      "source": drivers[0] if drivers else None}
-    return out
+    return out, warnings
 
 
 def _switch_record(route: _Route, net_for: Any) -> dict:
@@ -880,13 +884,27 @@ def rewire_pin(plan: Plan, ref: str, pin: int, net: str | None, note: str) -> No
     chip.notes = dict(sorted(chip.notes.items()))
 
 
-def refresh(plan: Plan, bin: Bin) -> None:
-    """Nets, BOM, decoupling and cautions again after chips or passives were added."""
-    plan.nets = _collect_nets(plan.chips, plan.counter, tuple(plan.passives))
-    plan.bom = _bom(plan.chips)
-    plan.decoupling = [(c.ref, _decoupling_note(plan.parts[c.part])) for c in plan.chips]
-    plan.cautions = _cautions(plan, plan.counter)
+def refresh(plan: Plan, bin: Bin) -> Plan:
+    """A new plan record with nets, BOM, decoupling and cautions made again after chips or
+    passives were added (to a ``working_copy``)."""
     stale = [w for w in plan.warnings if w.startswith("the bin lists no capacitor near 100 nF")]
-    plan.warnings = [w for w in plan.warnings if w not in stale]
+    warnings = [w for w in plan.warnings if w not in stale]
     if stale:
-        plan.warnings += _capacitor_warnings(bin, len(plan.chips))
+        warnings += _capacitor_warnings(bin, len(plan.chips))
+    return dataclasses.replace(
+        plan, nets=_collect_nets(plan.chips, plan.counter, tuple(plan.passives)), bom=_bom(plan.chips),
+        decoupling=[(c.ref, _decoupling_note(plan.parts[c.part])) for c in plan.chips],
+        cautions=_cautions(plan, plan.counter), warnings=warnings)
+
+
+def working_copy(plan: Plan) -> Plan:
+    """A new plan record whose chips (pins, notes, units), passives, parts, signals, switches,
+    external nets and warnings are copies: a stage that adds parts fills these
+    (``add_chip``, ``rewire_pin``) and the record it was given stays as it was."""
+    chips = [dataclasses.replace(c, pins=dict(c.pins), notes=dict(c.notes), units_used=dict(c.units_used))
+             for c in plan.chips]
+    return dataclasses.replace(
+        plan, chips=chips, passives=list(plan.passives), signals={k: dict(v) for k, v in plan.signals.items()},
+        switches={k: dict(v) for k, v in plan.switches.items()}, external=dict(plan.external),
+        warnings=list(plan.warnings), parts=dict(plan.parts), ladders=dict(plan.ladders),
+        rc_offers=list(plan.rc_offers))

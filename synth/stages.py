@@ -4,7 +4,7 @@ Interface: ``counted_first(spec, stock, catalog) -> CounterPlan`` (every
 shortage countable before mapping, at once), ``mapping_inputs(...)`` (the
 library with the counters' and switches' chips reserved, and the polarities
 the mapper sees), ``map_decode(...) -> Network``, ``add_analog_parts(plan,
-spec, stock, catalog)`` (oscillator, power-on reset, staircases, re-checked),
+spec, stock, catalog) -> Plan`` (a new plan: oscillator, power-on reset, staircases, re-checked),
 ``switch_polarity(spec)``, ``reserved_chips(...)``, ``switch_sections(...)`` and
 ``async_reset_names(counter_plan)``.
 
@@ -15,6 +15,8 @@ again with changed inputs instead of calling them in its own order.
 
 from __future__ import annotations
 
+import dataclasses
+
 from .clocksource import add_oscillator
 from .counter import CounterPlan, allocate
 from .decode import Decode
@@ -23,7 +25,7 @@ from .inventory import Bin, Catalog
 from .mapper import build_library, map_design
 from .netlist import Plan, check_nets
 from .network import Network
-from .packing import refresh
+from .packing import refresh, working_copy
 from .poweron import add_power_on_reset
 from .spec import Spec
 from .staircase import add_ladders
@@ -157,35 +159,40 @@ def map_decode(decode: Decode, counter_plan: CounterPlan, library, polarity: dic
                       glitch_free=async_reset_names(counter_plan))
 
 
-def add_analog_parts(plan: Plan, spec: Spec, stock: Bin, catalog: Catalog) -> None:
-    """The clock oscillator, the power-on reset and the staircases, added to the packed
-    plan and re-checked."""
+def add_analog_parts(plan: Plan, spec: Spec, stock: Bin, catalog: Catalog) -> Plan:
+    """A new plan: the packed one with the clock oscillator, the power-on reset and the
+    staircases added, re-checked (the plan given stays as it was)."""
     wants_oscillator = spec.clock.source == "oscillator"
     if wants_oscillator and not plan.counter.chips:
-        plan.warnings.append("clock.source: oscillator, but a cycle of 1 tick needs no clock")
+        plan = dataclasses.replace(plan, warnings=[*plan.warnings, "clock.source: oscillator, but a cycle "
+                                                   "of 1 tick needs no clock"])
         wants_oscillator = False
-    wants_reset = bool(getattr(spec, "power_on_reset", None)) and bool(plan.counter.chips)
+    wants_reset = bool(spec.power_on_reset) and bool(plan.counter.chips)
     if not wants_oscillator and not spec.levels and not wants_reset:
-        return
+        return plan
+    plan = working_copy(plan)
     if wants_oscillator:
-        plan.oscillator = add_oscillator(plan, spec, stock, catalog)
-        refresh(plan, stock)
-        plan.warnings += [f"oscillator: {w}" for w in plan.oscillator.warnings]
+        oscillator = add_oscillator(plan, spec, stock, catalog)
+        plan = refresh(dataclasses.replace(plan, oscillator=oscillator), stock)
+        plan.warnings.extend(f"oscillator: {w}" for w in oscillator.warnings)
     if wants_reset:
-        plan.power_on_reset = add_power_on_reset(plan, spec, stock, catalog)
-        refresh(plan, stock)
-        plan.warnings += [f"power-on reset: {w}" for w in plan.power_on_reset.warnings]
+        reset = add_power_on_reset(plan, spec, stock, catalog)
+        plan = refresh(dataclasses.replace(plan, power_on_reset=reset), stock)
+        plan.warnings.extend(f"power-on reset: {w}" for w in reset.warnings)
     if spec.levels:
-        plan.ladders = add_ladders(plan, spec, stock, catalog)
-        for ladder in plan.ladders.values():
-            plan.warnings += ladder.warnings
-    refresh(plan, stock)
-    if getattr(plan, "power_on_reset", None) is not None:
-        plan.cautions = [c for c in plan.cautions if not c.startswith("At power-up the counter starts")]
-        plan.cautions.append("At power-up the power-on reset holds the counter at tick 0 for about "
-                             f"{plan.power_on_reset.width_s[1] * 1e3:.3g} ms; after switching off, wait "
-                             "a few seconds before switching on again so its capacitor can empty.")
+        ladders = add_ladders(plan, spec, stock, catalog)
+        plan = dataclasses.replace(plan, ladders=ladders)
+        for ladder in ladders.values():
+            plan.warnings.extend(ladder.warnings)
+    plan = refresh(plan, stock)
+    if plan.power_on_reset is not None:
+        cautions = [c for c in plan.cautions if not c.startswith("At power-up the counter starts")]
+        cautions.append("At power-up the power-on reset holds the counter at tick 0 for about "
+                        f"{plan.power_on_reset.width_s[1] * 1e3:.3g} ms; after switching off, wait "
+                        "a few seconds before switching on again so its capacitor can empty.")
+        plan = dataclasses.replace(plan, cautions=cautions)
     check_nets(plan)
+    return plan
 
 
 def async_reset_names(counter_plan) -> tuple[str, ...]:

@@ -78,7 +78,7 @@ class Suggestion:
                 "logic_chips_by_part": dict(self.chips_with)}
 
 
-@dataclass
+@dataclass(frozen=True)
 class BinLacks:
     """The best suggestion (None: no single chip type helps) and the search's reach."""
 

@@ -7,6 +7,7 @@ section 3); pin names in the expected wiring line are the datasheets'
 
 from __future__ import annotations
 
+import dataclasses
 import json
 import os
 import re
@@ -83,8 +84,8 @@ class Glitch:
 
 
 def test_json_takes_glitch_records(plan):
-    plan.glitches = [Glitch("row3", 4, 120.0)]
-    plan.coincident_edges = [{"signals": ("row3", "pair"), "at_tick": 3}]
+    plan = dataclasses.replace(plan, glitches=[Glitch("row3", 4, 120.0)],
+                               coincident_edges=[{"signals": ("row3", "pair"), "at_tick": 3}])
     doc = plan_to_json(plan)
     assert doc["glitches"] == [{"signal": "row3", "at_tick": 4, "width_ns": 120.0}]
     assert doc["coincident_edges"] == [{"signals": ["row3", "pair"], "at_tick": 3}]
