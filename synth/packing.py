@@ -24,15 +24,16 @@ while the select is asserted.
 from __future__ import annotations
 
 import dataclasses
+from collections.abc import Callable
 from dataclasses import dataclass, field
-from typing import Any
 
-from .counter import carry_nets
+from .counter import CounterChip, CounterPlan, carry_nets
 from .errors import InternalError, ShortError, SpecError
 from .inventory import Bin, Catalog, Part, Unit
 from .netlist import (CLOCK_NET, RAIL_NETS, ChipInstance, Plan, check_nets, is_passive, pin_direction,
                       pin_directions, ref_key, self_check)
-from .network import Gate, Network, evaluate_gate, fresh_name
+from .network import Gate, Network, SignalOut, evaluate_gate, fresh_name
+from .spec import Spec, SwitchSpec
 
 __all__ = ["pack", "place_logic", "unit_logic_pins", "flipflop_controls", "spec_net", "check_nets", "add_chip", "rewire_pin", "refresh",
            "working_copy"]
@@ -163,7 +164,7 @@ class _Board:
 
 # ---------------------------------------------------------------- counters
 
-def _place_counters(board: _Board, counter_plan: Any, network: Network) -> None:
+def _place_counters(board: _Board, counter_plan: CounterPlan, network: Network) -> None:
     """Counter chips keep the refs the counter plan gave them; every pin it names is wired."""
     reset_net = _reset_net(counter_plan, network)
     decoded_enables = carry_nets(counter_plan, network)
@@ -214,21 +215,21 @@ def _place_counters(board: _Board, counter_plan: Any, network: Network) -> None:
         chip.set_pin(int(direct[1]), reset_net.get(reset.net, reset.net), "drives the counter reset")
 
 
-def _counts_on_carry(part: Part, cc: Any) -> bool:
+def _counts_on_carry(part: Part, cc: CounterChip) -> bool:
     """Whether a counter unit's enable pin is one of its count enables on a carry net."""
     unit = next((u for u in part.units if str(u.id) == str(cc.unit)), None)
     pins = unit.count_enable if unit is not None else ()
     return cc.enable_pin in pins and str(cc.enable_net) not in RAIL_NETS
 
 
-def _chip_ref(counter_plan: Any, chip: Any) -> str:
+def _chip_ref(counter_plan: CounterPlan, chip: CounterChip) -> str:
     """A counter variable's chip: an index into ``counter_plan.chips`` or a ref."""
     if isinstance(chip, int) and not isinstance(chip, bool):
         return counter_plan.chips[chip].ref
     return str(chip)
 
 
-def _reset_net(counter_plan: Any, network: Network) -> dict[str, str]:
+def _reset_net(counter_plan: CounterPlan, network: Network) -> dict[str, str]:
     """The board net of the counter reset: the mapped reset decode's net, or the
     counter output that drives the reset pins directly."""
     reset = counter_plan.reset
@@ -320,7 +321,7 @@ class _Route:
     """One spec switch as the packing wires it (before refs are known)."""
 
     name: str
-    spec: Any
+    spec: SwitchSpec
     kind: str
     sections: list[tuple[_Chip, str]]
     control_net: str
@@ -330,9 +331,9 @@ class _Route:
     complement_net: str = ""
 
 
-def _route_switches(board: _Board, network: Network, spec: Any, internal_nets: set[str]) -> list[_Route]:
+def _route_switches(board: _Board, network: Network, spec: Spec, internal_nets: set[str]) -> list[_Route]:
     routes = []
-    for name, sw in (getattr(spec, "switches", None) or {}).items():
+    for name, sw in spec.switches.items():
         select = network.signals.get(sw.select)
         if select is None:
             raise InternalError(f"switch {name}: its select signal {sw.select} was not mapped")
@@ -349,26 +350,25 @@ def _route_switches(board: _Board, network: Network, spec: Any, internal_nets: s
     return routes
 
 
-def _check_switch_names(name: str, sw: Any, spec: Any, internal_nets: set[str]) -> None:
+def _check_switch_names(name: str, sw: SwitchSpec, spec: Spec, internal_nets: set[str]) -> None:
     """A switch's outside nets must not collide with the board's own net names."""
-    signals = set(getattr(spec, "signals", None) or ())
+    signals = set(spec.signals)
     for label, net in (("name", name), ("on", sw.on), ("off", sw.off)):
         board_net = spec_net(net) if label != "name" else name
         if board_net in RAIL_NETS or (label != "name" and board_net in signals):
             continue
         if board_net in internal_nets:
             raise SpecError(f"switch {name}: {label} net {net!r} has the name of an internal net "
-                            "of the plan", file=getattr(spec, "path", None),
-                            line=getattr(sw, "line", None),
+                            "of the plan", file=spec.path, line=sw.line,
                             hint="rename it, e.g. with an '_ext' ending")
 
 
-def _throw_nets(sw: Any, active_high: bool) -> tuple[str, str]:
+def _throw_nets(sw: SwitchSpec, active_high: bool) -> tuple[str, str]:
     """(spec net joined while the control is high, spec net joined while low)."""
     return (sw.on, sw.off) if active_high else (sw.off, sw.on)
 
 
-def _route_spdt(board: _Board, name: str, sw: Any, select: Any) -> _Route | None:
+def _route_spdt(board: _Board, name: str, sw: SwitchSpec, select: SignalOut) -> _Route | None:
     high, low = _throw_nets(sw, select.polarity == "high")
 
     def assignment(unit: Unit) -> dict[int, str]:
@@ -387,8 +387,8 @@ def _route_spdt(board: _Board, name: str, sw: Any, select: Any) -> _Route | None
     return _Route(name, sw, "spdt", [placed], select.net, name, high, paths)
 
 
-def _route_spst_pair(board: _Board, network: Network, name: str, sw: Any,
-                     select: Any) -> _Route | None:
+def _route_spst_pair(board: _Board, network: Network, name: str, sw: SwitchSpec,
+                     select: SignalOut) -> _Route | None:
     if _free_sections(board, "spst") < 2:
         return None
     complement = _complement_net(board, network, select.net, name)
@@ -423,7 +423,7 @@ def _route_spst_pair(board: _Board, network: Network, name: str, sw: Any,
     return _Route(name, sw, "spst pair", sections, select.net, name, high, paths, complement)
 
 
-def _route_mux(board: _Board, name: str, sw: Any, select: Any) -> _Route | None:
+def _route_mux(board: _Board, name: str, sw: SwitchSpec, select: SignalOut) -> _Route | None:
     high, low = _throw_nets(sw, select.polarity == "high")
 
     def assignment(unit: Unit) -> dict[int, str]:
@@ -460,7 +460,7 @@ def _note(chip: _Chip, notes: dict[int, str]) -> None:
 
 
 def _place_section(board: _Board, types: tuple[str, ...], purpose: str,
-                   assignment_of: Any) -> tuple[_Chip, str] | None:
+                   assignment_of: Callable[[Unit], dict[int, str]]) -> tuple[_Chip, str] | None:
     """Fill switch chips already opened before opening a new one."""
     for chip in board.of_role("switch"):
         placed = _try_section(chip, types, purpose, assignment_of)
@@ -477,7 +477,7 @@ def _place_section(board: _Board, types: tuple[str, ...], purpose: str,
 
 
 def _try_section(chip: _Chip, types: tuple[str, ...], purpose: str,
-                 assignment_of: Any) -> tuple[_Chip, str] | None:
+                 assignment_of: Callable[[Unit], dict[int, str]]) -> tuple[_Chip, str] | None:
     for unit in chip.part.units_of(*types):
         if unit.id in chip.units_used:
             continue
@@ -645,7 +645,7 @@ def _free_input_level(unit: Unit, role: str, used: bool) -> tuple[str, str]:
 
 # ---------------------------------------------------------------- the plan
 
-def pack(network: Network, counter_plan: Any, spec: Any, bin: Bin, catalog: Catalog) -> Plan:
+def pack(network: Network, counter_plan: CounterPlan, spec: Spec, bin: Bin, catalog: Catalog) -> Plan:
     """Chips, pins and nets for a mapped network; checked before it is returned."""
     board = _Board(catalog, bin, signal_nets={n: s.net for n, s in network.signals.items()})
     _place_counters(board, counter_plan, network)
@@ -693,15 +693,14 @@ def _assign_refs(board: _Board) -> None:
     board.chips.sort(key=lambda c: (order[c.role], ref_key(c.ref or "")))
 
 
-def _build_plan(board: _Board, network: Network, counter_plan: Any, spec: Any,
+def _build_plan(board: _Board, network: Network, counter_plan: CounterPlan, spec: Spec,
                 routes: list[_Route]) -> Plan:
     chips = [ChipInstance(c.ref or "", c.part.type, c.role, dict(c.units_used), dict(sorted(c.pins.items())),
                           dict(sorted(c.notes.items()))) for c in board.chips]
     nets = _collect_nets(chips, counter_plan)
     parts = {c.part.type: c.part for c in board.chips}
     plan = Plan(
-        name=str(getattr(spec, "name", "") or "plan"),
-        spec_path=str(getattr(spec, "path", "") or ""),
+        name=str(spec.name or "plan"), spec_path=str(spec.path or ""),
         bin_path=str(board.bin.path), supply=float(board.bin.supply),
         chips=chips, nets=nets, signals={}, switches={},
         bom=_bom(chips), decoupling=[(c.ref, _decoupling_note(parts[c.part])) for c in chips],
@@ -716,7 +715,7 @@ def _build_plan(board: _Board, network: Network, counter_plan: Any, spec: Any,
                                warnings=plan.warnings + _capacitor_warnings(board.bin, len(chips)))
 
 
-def _collect_nets(chips: list[ChipInstance], counter_plan: Any,
+def _collect_nets(chips: list[ChipInstance], counter_plan: CounterPlan,
                   passives: tuple = ()) -> dict[str, list[tuple[str, int]]]:
     """Net -> pins; rails first, then the clock, the counter outputs, the rest by first pin."""
     nets: dict[str, list[tuple[str, int]]] = {}
@@ -756,10 +755,10 @@ def _decoupling_note(part: Part) -> str:
             "the board allows (common practice)")
 
 
-def _signals(plan: Plan, network: Network, spec: Any) -> tuple[dict[str, dict], list[str]]:
+def _signals(plan: Plan, network: Network, spec: Spec) -> tuple[dict[str, dict], list[str]]:
     """The spec's signals (internal decodes such as the counter reset stay out), and a
     warning for each one no chip pin carries."""
-    wanted = set(getattr(spec, "signals", None) or network.signals)
+    wanted = set(spec.signals or network.signals)
     out = {}
     warnings = []
     for name, sig in network.signals.items():
@@ -774,7 +773,7 @@ def _signals(plan: Plan, network: Network, spec: Any) -> tuple[dict[str, dict], 
     return out, warnings
 
 
-def _switch_record(route: _Route, net_for: Any) -> dict:
+def _switch_record(route: _Route, net_for: Callable[[str], str]) -> dict:
     chip, unit_id = route.sections[0]
     unit = _unit(chip, unit_id)
     common = unit.common if unit.common is not None else unit.terminals[0]
@@ -790,7 +789,7 @@ def _switch_record(route: _Route, net_for: Any) -> dict:
     }
 
 
-def _external_nets(plan: Plan, routes: list[_Route], net_for: Any) -> dict[str, str]:
+def _external_nets(plan: Plan, routes: list[_Route], net_for: Callable[[str], str]) -> dict[str, str]:
     """Nets that leave the board, with where they go."""
     external: dict[str, str] = {}
     for net, pins in plan.nets.items():
@@ -819,7 +818,7 @@ def _logic_sections(chip: ChipInstance) -> list[str]:
             if chip.role == "switch" and not str(purpose).startswith("switch ")]
 
 
-def _cautions(plan: Plan, counter_plan: Any) -> list[str]:
+def _cautions(plan: Plan, counter_plan: CounterPlan) -> list[str]:
     lo = max(p.supply[0] for p in plan.parts.values()) if plan.parts else 3.0
     hi = min(p.supply[1] for p in plan.parts.values()) if plan.parts else 15.0
     cautions = [

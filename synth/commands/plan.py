@@ -278,9 +278,8 @@ def plan_blocks(design) -> list:
                            "coincident_edges in the plan JSON"))
     for remedy in remedy_lines(design):
         blocks.append(Text(f"remedy: {remedy}"))
-    lacks = getattr(design, "lacks", None)
-    if lacks is not None:
-        blocks.append(Text(lacks.text()))
+    if design.lacks is not None:
+        blocks.append(Text(design.lacks.text()))
     for warning in plan.warnings:
         blocks.append(Text(f"warning: {warning}"))
     for caution in dict.fromkeys(plan.cautions):
@@ -432,7 +431,7 @@ def power_on_blocks(plan) -> list:
     from ..render import Text
     from ..units import format_si
 
-    por = getattr(plan, "power_on_reset", None)
+    por = plan.power_on_reset
     if por is None:
         return []
     where = "a new chip from the bin" if por.opened else "a spare unit of a chip already in the plan"
