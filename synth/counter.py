@@ -73,7 +73,7 @@ class CounterVar:
     weight: int | None        # binary/BCD weight in the count; None for a decoded output
 
 
-@dataclass
+@dataclass(frozen=True)
 class CounterChip:
     """One counter unit as wired: what clocks it, what resets it, what is held."""
 
@@ -95,7 +95,7 @@ class CounterChip:
     count_enable_pins: tuple[int, ...] = ()   # pins joined to enable_net (CEP, CET of a carry cascade)
 
 
-@dataclass
+@dataclass(frozen=True)
 class ResetDecode:
     """The counter state decoded into the reset pins to cut a cycle short.
 
@@ -137,16 +137,16 @@ class CarryDecode:
 class CounterPlan:
     """The counter chips and the tick <-> minterm map the decode works over (frozen)."""
 
-    chips: list[CounterChip]
-    vars: list[CounterVar]
+    chips: tuple[CounterChip, ...]
+    vars: tuple[CounterVar, ...]
     cycle: int
     state_of_tick: tuple[int, ...]
     unreachable: frozenset[int]
     edge: Edge
     synchronous: bool
     reset: ResetDecode | None
-    warnings: list[str] = field(default_factory=list)
-    notes: list[str] = field(default_factory=list)
+    warnings: tuple[str, ...] = ()
+    notes: tuple[str, ...] = ()
     settle_ns: float | None = None
     transient_states: int = 0
     passing: dict[int, frozenset[int]] = field(default_factory=dict)  # tick -> states shown on the way to the next
@@ -794,8 +794,8 @@ def allocate(spec, stock: Bin, catalog: Catalog, *, decoded_carry: bool = False)
     the glitch fix's synchronous-counter remedy asks for it)."""
     cycle = int(spec.cycle)
     if cycle == 1:
-        return CounterPlan([], [], 1, (0,), frozenset(), "rising", True, None,
-                           notes=["a cycle of 1 tick needs no counter: every signal is constant"])
+        return CounterPlan((), (), 1, (0,), frozenset(), "rising", True, None,
+                           notes=("a cycle of 1 tick needs no counter: every signal is constant",))
     n = bits_for(cycle)
     if n > MAX_VARIABLES:
         raise SpecError(f"expected a cycle of at most {1 << MAX_VARIABLES} ticks, got {cycle} "
@@ -938,13 +938,13 @@ def _plan_of(verdict: _Verdict, spec, stock: Bin, catalog: Catalog, supply: floa
     reset = _reset_decode(verdict, chain, vars_, refs, held, unreachable, stock, catalog, supply) \
         if verdict.reset_mode != "none" else None
     chips = _chips(chain, vars_, refs, reset, prefix)
-    plan = CounterPlan(chips, vars_, cycle, state_of_tick, unreachable, verdict.edge,
+    plan = CounterPlan(tuple(chips), tuple(vars_), cycle, state_of_tick, unreachable, verdict.edge,
                        verdict.synchronous, reset, settle_ns=verdict.settle_ns,
                        passing=_passing(chain, verdict, reset.transient if reset else None),
                        transient_states=1 if verdict.reset_mode in ("async", "direct") else 0,
                        carries=_carry_decodes(chain, state_of_tick, unreachable, cycle))
     notes, warnings = _explain(plan, verdict, frequency)
-    return replace(plan, warnings=[*verdict.fmax_notes, *warnings], notes=[*(c.how for c in chips), *notes])
+    return replace(plan, warnings=(*verdict.fmax_notes, *warnings), notes=(*(c.how for c in chips), *notes))
 
 
 def _refs(chain: _Chain) -> list[str]:
@@ -1020,10 +1020,8 @@ def _chips(chain: _Chain, vars_: list[CounterVar], refs: list[str], reset: Reset
         chips.append(chip)
     for i, e in enumerate(chain.elements):
         if e.carry_from is not None and e.via == "carry":
-            chips[e.carry_from].carry_net = chips[i].enable_net
-    for chip, e in zip(chips, chain.elements):
-        chip.how = _how(chip, e.kind.part, e, _unit(e))
-    return chips
+            chips[e.carry_from] = replace(chips[e.carry_from], carry_net=chips[i].enable_net)
+    return [replace(chip, how=_how(chip, e.kind.part, e, _unit(e))) for chip, e in zip(chips, chain.elements)]
 
 
 def _carry_placeholder(index: int) -> str:

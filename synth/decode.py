@@ -21,7 +21,7 @@ internal function ``_reset``.
 from __future__ import annotations
 
 import dataclasses
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 
 from .counter import CounterPlan
 from .errors import InternalError, ShortError, SpecError
@@ -58,13 +58,13 @@ class Decode:
     """The minimized decode of every signal (and of the counter reset)."""
 
     plan: CounterPlan
-    functions: list[Function]
+    functions: tuple[Function, ...]
     cover: Cover
     signals: dict[str, SignalDecode]
     reset: SignalDecode | None
     free_phase: frozenset[str]
-    warnings: list[str] = field(default_factory=list)
-    notes: list[str] = field(default_factory=list)
+    warnings: tuple[str, ...] = ()
+    notes: tuple[str, ...] = ()
 
     @property
     def delivered(self) -> dict[str, frozenset[int]]:
@@ -328,8 +328,8 @@ def derive(spec, plan: CounterPlan, *, exact: str = "auto") -> Decode:
     signals = {name: _signal_decode(cover, name, plan, patterns, unreachable, sig, chosen[name])
                for name, sig in spec.signals.items()}
     reset = _reset_decode(cover, plan, patterns) if plan.reset is not None and not plan.reset.direct else None
-    decode = Decode(plan, functions, cover, signals, reset, free)
-    return dataclasses.replace(decode, notes=_notes(spec, decode, dont_care))
+    decode = Decode(plan, tuple(functions), cover, signals, reset, free)
+    return dataclasses.replace(decode, notes=tuple(_notes(spec, decode, dont_care)))
 
 
 def _signal_decode(cover: Cover, name: str, plan: CounterPlan, patterns: list[int],

@@ -32,7 +32,7 @@ expected.
 from __future__ import annotations
 
 import time
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from typing import Any
 
 from .effort import Effort, effort_named
@@ -87,7 +87,7 @@ class BinLacks:
     candidates: int
     seconds: float
     total_chips: int
-    others: list[Suggestion] = field(default_factory=list)
+    others: tuple[Suggestion, ...] = ()
     skipped: str = ""
 
     @property
@@ -224,9 +224,9 @@ class Search:
         seconds = time.monotonic() - self.start
         total = len(design.plan.chips)
         n = len(self.inputs.candidates)
-        if getattr(design.plan, "strobed", None) or design.decode is not self.decode:
+        if design.plan.strobed or design.decode is not self.decode:
             # --fix glitches re-derived the decode or added gating gates: no like-for-like baseline
-            return BinLacks(None, 0, n, seconds, total, [],
+            return BinLacks(None, 0, n, seconds, total, (),
                             skipped="not searched: --fix glitches changed the design")
         return _judge(design, self.inputs, self.results, seconds)
 
@@ -267,7 +267,7 @@ def _judge(design: Any, inputs: _Inputs, results, seconds: float) -> BinLacks:
     tried = len(judged) if not design.network.gates else \
         len([p for p, _ in results if p not in spare])
     return BinLacks(found[0] if found else None, tried, len(judged), seconds,
-                    len(design.plan.chips), found[1:4])
+                    len(design.plan.chips), tuple(found[1:4]))
 
 
 def _mapping_inputs(design):
