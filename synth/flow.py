@@ -147,7 +147,7 @@ class Sequencer:
                         registered: dict[str, dict] | None = None) -> Design:
         """Packing, the analog parts, then the timing analysis written into a new plan."""
         plan = pack(network, counter_plan, spec, stock, catalog)
-        plan = dataclasses.replace(plan, warnings=[*stock.warnings, *counter_plan.warnings, *plan.warnings])
+        plan = dataclasses.replace(plan, warnings=(*stock.warnings, *counter_plan.warnings, *plan.warnings))
         plan = add_analog_parts(plan, spec, stock, catalog)
         plan = dataclasses.replace(plan, strobed=dict(strobed or {}), registered=dict(registered or {}))
         design = Design(plan, spec, stock, catalog, counter_plan, decode, network)
@@ -177,7 +177,7 @@ def with_timing(design: Design, report: TimingReport) -> Design:
     plan = dataclasses.replace(design.plan, glitches=list(report.glitches),
                                coincident_edges=list(report.coincident_edges),
                                register_checks=list(report.register_checks),
-                               pulse_widths=list(report.pulse_widths), warnings=list(report.warnings))
+                               pulse_widths=list(report.pulse_widths), warnings=report.warnings)
     return dataclasses.replace(design, plan=plan, trace=report.trace, remedies=report.remedies)
 
 

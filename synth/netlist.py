@@ -106,14 +106,14 @@ class Plan:
     signals: dict[str, dict]
     switches: dict[str, dict]
     bom: dict[str, int]
-    decoupling: list[tuple[str, str]]
+    decoupling: tuple[tuple[str, str], ...]
     clock_edge: str
     counter: CounterPlan
     network: Network
     glitches: list = field(default_factory=list)
     coincident_edges: list = field(default_factory=list)
-    warnings: list[str] = field(default_factory=list)
-    cautions: list[str] = field(default_factory=list)
+    warnings: tuple[str, ...] = ()
+    cautions: tuple[str, ...] = ()
     proven_minimal: bool = False
     lower_bound: int | None = None
     method: str = ""

@@ -703,16 +703,16 @@ def _build_plan(board: _Board, network: Network, counter_plan: CounterPlan, spec
         name=str(spec.name or "plan"), spec_path=str(spec.path or ""),
         bin_path=str(board.bin.path), supply=float(board.bin.supply),
         chips=chips, nets=nets, signals={}, switches={},
-        bom=_bom(chips), decoupling=[(c.ref, _decoupling_note(parts[c.part])) for c in chips],
+        bom=_bom(chips), decoupling=tuple((c.ref, _decoupling_note(parts[c.part])) for c in chips),
         clock_edge=str(counter_plan.edge), counter=counter_plan, network=network,
-        warnings=list(board.warnings), proven_minimal=bool(network.proven_minimal),
+        warnings=tuple(board.warnings), proven_minimal=bool(network.proven_minimal),
         lower_bound=network.lower_bound, method=network.method, parts=parts)
     signals, constant = _signals(plan, network, spec)
-    plan = dataclasses.replace(plan, signals=signals, warnings=[*plan.warnings, *constant],
+    plan = dataclasses.replace(plan, signals=signals, warnings=(*plan.warnings, *constant),
                                switches={r.name: _switch_record(r, board.net_for) for r in routes})
     plan = dataclasses.replace(plan, external=_external_nets(plan, routes, board.net_for))
-    return dataclasses.replace(plan, cautions=_cautions(plan, counter_plan),
-                               warnings=plan.warnings + _capacitor_warnings(board.bin, len(chips)))
+    return dataclasses.replace(plan, cautions=tuple(_cautions(plan, counter_plan)),
+                               warnings=(*plan.warnings, *_capacitor_warnings(board.bin, len(chips))))
 
 
 def _collect_nets(chips: list[ChipInstance], counter_plan: CounterPlan,
@@ -892,18 +892,18 @@ def refresh(plan: Plan, bin: Bin) -> Plan:
         warnings += _capacitor_warnings(bin, len(plan.chips))
     return dataclasses.replace(
         plan, nets=_collect_nets(plan.chips, plan.counter, tuple(plan.passives)), bom=_bom(plan.chips),
-        decoupling=[(c.ref, _decoupling_note(plan.parts[c.part])) for c in plan.chips],
-        cautions=_cautions(plan, plan.counter), warnings=warnings)
+        decoupling=tuple((c.ref, _decoupling_note(plan.parts[c.part])) for c in plan.chips),
+        cautions=tuple(_cautions(plan, plan.counter)), warnings=tuple(warnings))
 
 
 def working_copy(plan: Plan) -> Plan:
     """A new plan record whose chips (pins, notes, units), passives, parts, signals, switches,
-    external nets and warnings are copies: a stage that adds parts fills these
+    external nets are copies: a stage that adds parts fills these
     (``add_chip``, ``rewire_pin``) and the record it was given stays as it was."""
     chips = [dataclasses.replace(c, pins=dict(c.pins), notes=dict(c.notes), units_used=dict(c.units_used))
              for c in plan.chips]
     return dataclasses.replace(
         plan, chips=chips, passives=list(plan.passives), signals={k: dict(v) for k, v in plan.signals.items()},
         switches={k: dict(v) for k, v in plan.switches.items()}, external=dict(plan.external),
-        warnings=list(plan.warnings), parts=dict(plan.parts), ladders=dict(plan.ladders),
+        parts=dict(plan.parts), ladders=dict(plan.ladders),
         rc_offers=list(plan.rc_offers))

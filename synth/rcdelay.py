@@ -72,10 +72,10 @@ def apply_delays(design: Design, fix: Iterable[str], retime: Callable[[Design], 
     self_check(plan, design.spec)
     plan = dataclasses.replace(
         plan, rc_delays=tuple(applied),
-        warnings=plan.warnings + [f"RC delay on {d.signal}: {w}" for d in applied for w in d.warnings],
+        warnings=(*plan.warnings, *(f"RC delay on {d.signal}: {w}" for d in applied for w in d.warnings)),
         rc_offers=[{**o, "applied": True} if o.get("delayed") in wanted else o for o in plan.rc_offers])
     design = retime(dataclasses.replace(design, plan=plan, network=plan.network))
-    plan = dataclasses.replace(design.plan, warnings=list(dict.fromkeys(design.plan.warnings)))  # timing ran twice
+    plan = dataclasses.replace(design.plan, warnings=tuple(dict.fromkeys(design.plan.warnings)))  # timing ran twice
     _separated_races(plan, applied)
     return dataclasses.replace(design, plan=plan)
 

@@ -165,8 +165,8 @@ def add_analog_parts(plan: Plan, spec: Spec, stock: Bin, catalog: Catalog) -> Pl
     staircases added, re-checked (the plan given stays as it was)."""
     wants_oscillator = spec.clock.source == "oscillator"
     if wants_oscillator and not plan.counter.chips:
-        plan = dataclasses.replace(plan, warnings=[*plan.warnings, "clock.source: oscillator, but a cycle "
-                                                   "of 1 tick needs no clock"])
+        plan = dataclasses.replace(plan, warnings=(*plan.warnings, "clock.source: oscillator, but a cycle "
+                                                   "of 1 tick needs no clock"))
         wants_oscillator = False
     wants_reset = bool(spec.power_on_reset) and bool(plan.counter.chips)
     if not wants_oscillator and not spec.levels and not wants_reset:
@@ -175,23 +175,22 @@ def add_analog_parts(plan: Plan, spec: Spec, stock: Bin, catalog: Catalog) -> Pl
     if wants_oscillator:
         oscillator = add_oscillator(plan, spec, stock, catalog)
         plan = refresh(dataclasses.replace(plan, oscillator=oscillator), stock)
-        plan.warnings.extend(f"oscillator: {w}" for w in oscillator.warnings)
+        plan = dataclasses.replace(plan, warnings=(*plan.warnings, *(f"oscillator: {w}" for w in oscillator.warnings)))
     if wants_reset:
         reset = add_power_on_reset(plan, spec, stock, catalog)
         plan = refresh(dataclasses.replace(plan, power_on_reset=reset), stock)
-        plan.warnings.extend(f"power-on reset: {w}" for w in reset.warnings)
+        plan = dataclasses.replace(plan, warnings=(*plan.warnings, *(f"power-on reset: {w}" for w in reset.warnings)))
     if spec.levels:
         ladders = add_ladders(plan, spec, stock, catalog)
-        plan = dataclasses.replace(plan, ladders=ladders)
-        for ladder in ladders.values():
-            plan.warnings.extend(ladder.warnings)
+        plan = dataclasses.replace(plan, ladders=ladders, warnings=(
+            *plan.warnings, *(w for ladder in ladders.values() for w in ladder.warnings)))
     plan = refresh(plan, stock)
     if plan.power_on_reset is not None:
         cautions = [c for c in plan.cautions if not c.startswith("At power-up the counter starts")]
         cautions.append("At power-up the power-on reset holds the counter at tick 0 for about "
                         f"{plan.power_on_reset.width_s[1] * 1e3:.3g} ms; after switching off, wait "
                         "a few seconds before switching on again so its capacitor can empty.")
-        plan = dataclasses.replace(plan, cautions=cautions)
+        plan = dataclasses.replace(plan, cautions=tuple(cautions))
     check_nets(plan)
     return plan
 

@@ -13,6 +13,7 @@ whole run, the take from the bin included, succeeded.
 from __future__ import annotations
 
 import argparse
+import dataclasses
 import sys
 from pathlib import Path
 
@@ -81,7 +82,8 @@ def run(args: argparse.Namespace) -> int:
         _write_verdict(exc, args.json)
         raise
     if args.lacks:
-        design.plan.warnings.append(LACKS_NOTE)
+        design = dataclasses.replace(design, plan=dataclasses.replace(
+            design.plan, warnings=(*design.plan.warnings, LACKS_NOTE)))
     show_spec_notes(design.spec)
     if not any(output.to_stdout for _, output in requests):
         show(plan_blocks(design))
