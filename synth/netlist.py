@@ -42,7 +42,7 @@ Direction = Literal["in", "out", "analog", "power", "nc", "other"]
 
 # ---------------------------------------------------------------- records
 
-@dataclass
+@dataclass(frozen=True)
 class ChipInstance:
     """One physical chip on the board.
 

@@ -872,15 +872,15 @@ def add_chip(plan: Plan, part: Part, role: str, units: dict[str, str], pins: dic
 
 
 def rewire_pin(plan: Plan, ref: str, pin: int, net: str | None, note: str) -> None:
-    """Move a pin of a spare unit (tied or open after packing) onto ``net`` (None: open)."""
-    chip = plan.chip(ref)
-    if net is None:
-        chip.pins.pop(pin, None)
-    else:
-        chip.pins[pin] = net
-    chip.notes[pin] = note
-    chip.pins = dict(sorted(chip.pins.items()))
-    chip.notes = dict(sorted(chip.notes.items()))
+    """Move a pin of a spare unit (tied or open after packing) onto ``net`` (None: open):
+    a new chip record in the chips of a ``working_copy``."""
+    index = next(i for i, chip in enumerate(plan.chips) if chip.ref == ref)
+    chip = plan.chips[index]
+    pins = {p: n for p, n in chip.pins.items() if p != pin}
+    if net is not None:
+        pins[pin] = net
+    plan.chips[index] = dataclasses.replace(chip, pins=dict(sorted(pins.items())),
+                                            notes=dict(sorted({**chip.notes, pin: note}.items())))
 
 
 def refresh(plan: Plan, bin: Bin) -> Plan:
