@@ -37,6 +37,7 @@ from pathlib import Path
 
 from .decode import derive
 from .effort import Effort, effort_named
+from .findings import Registered, Strobed
 from .glitchfix import apply_fixes
 from .inventory import Bin, Catalog, load_bin, load_catalog
 from .model import CounterPlan, Decode, Design, FixReport, Network, Plan, TimingReport
@@ -126,8 +127,8 @@ class Sequencer:
 
     def replan(self, design: Design, *, counter_plan: CounterPlan | None = None,
                decode: Decode | None = None, network: Network | None = None,
-               strobed: dict[str, dict] | None = None,
-               registered: dict[str, dict] | None = None) -> Design:
+               strobed: dict[str, Strobed] | None = None,
+               registered: dict[str, Registered] | None = None) -> Design:
         """The stages again from the counter plan on (from packing on, given a network),
         then the timing analysis; the plan keeps the design's registered outputs unless
         ``registered`` says otherwise.  Raises what the stages raise."""
@@ -143,8 +144,8 @@ class Sequencer:
     # ------------------------------------------------------------ the steps after mapping
 
     def _through_timing(self, spec: Spec, stock: Bin, catalog: Catalog, counter_plan: CounterPlan,
-                        decode: Decode, network: Network, *, strobed: dict[str, dict] | None = None,
-                        registered: dict[str, dict] | None = None) -> Design:
+                        decode: Decode, network: Network, *, strobed: dict[str, Strobed] | None = None,
+                        registered: dict[str, Registered] | None = None) -> Design:
         """Packing, the analog parts, then the timing analysis written into a new plan."""
         plan = pack(network, counter_plan, spec, stock, catalog)
         plan = dataclasses.replace(plan, warnings=(*stock.warnings, *counter_plan.warnings, *plan.warnings))

@@ -59,9 +59,17 @@ import dataclasses
 from collections.abc import Callable, Iterable
 from typing import Any
 
+from .analog import plain_input_thresholds, rc_delay_design, thresholds_at
+from .counter import allocate
 from .errors import ShortError, SynthError
+from .findings import CoincidentEdge, Cost, RcOffer, RcValues, Registered, Strobed, TimingFix, TriedRemedy
 from .model import Design, FixReport, Replanner, Spec
 from .network import RAILS, Gate, Network, SignalOut
+from .packing import unit_logic_pins
+from .registers import COUNTER_CLOCK_NET, prepare_registering, pulse_per_tick_ok, with_flipflops
+from .timing import (counter_models, entry_sequence, gate_names_of, registered_signals, spare_input,
+                     spare_input_place, synchronous_counter_parts, var_roles)
+from .units import format_si
 
 __all__ = ["apply_fixes", "rc_offers", "strobe_network", "FIXES", "NotApplicable"]
 
@@ -73,7 +81,12 @@ _KEEPS_LEVEL = {"and": True, "or": True, "nand": False, "nor": False}
 
 
 class NotApplicable(Exception):
-    """A remedy this plan and bin cannot use; the message says why."""
+    """A remedy this plan and bin cannot use; the message says why (``per_signal``: why,
+    signal by signal, when the reasons differ)."""
+
+    def __init__(self, message: str, per_signal: dict[str, str] | None = None) -> None:
+        super().__init__(message)
+        self.per_signal = per_signal or {}
 
 
 # ---------------------------------------------------------------- the fixing loop
@@ -93,12 +106,12 @@ def apply_fixes(design: Design, fix: Iterable[str], replanner: Replanner) -> tup
                              dict(plan.registered))
 
 
-def _steady_signals(design: Design, replanner: Replanner) -> tuple[Design, list[dict] | None]:
+def _steady_signals(design: Design, replanner: Replanner) -> tuple[Design, list[TimingFix] | None]:
     """Signals the spec marks ``steady: true`` that glitch are registered without ``--fix``;
     a bin that cannot register them is short (exit 3), never a silent glitch."""
     spec = design.spec
     wanted = sorted(s for s in _by_signal(design.plan.glitches)
-                    if getattr(spec.signals.get(s), "steady", None))
+                    if _steady(spec, s))
     if not wanted:
         return design, design.plan.timing_fixes
     before = _by_signal(design.plan.glitches)
@@ -110,26 +123,32 @@ def _steady_signals(design: Design, replanner: Replanner) -> tuple[Design, list[
                          "at 4000B supplies), or drop steady: true") from None
     after = _by_signal(new.plan.glitches)
     return new, [
-        {"signal": s, "glitches_before": before[s], "tried": [], "glitches_after": after.get(s, []),
-         "remedies_applied": ["registered"], "remedy": "registered", "applied": True,
-         "cost": {"chips": _chips(new) - _chips(design), "gates": _gates(new) - _gates(design)},
-         "cost_shared": "the decode was re-derived for the early signals: its change counts for every signal",
-         "detail": new.plan.registered[s]["detail"], "asked_by": "steady: true"}
+        TimingFix(s, tuple(before[s]), (), tuple(after.get(s, [])), ("registered",), "registered", True,
+                  Cost(_chips(new) - _chips(design), _gates(new) - _gates(design)),
+                  new.plan.registered[s].detail,
+                  cost_shared="the decode was re-derived for the early signals: its change counts for "
+                              "every signal",
+                  asked_by="steady: true")
         for s in wanted]
+
+
+def _steady(spec: Spec, signal: str) -> bool:
+    """Whether the spec says ``signal`` must hold its level through every tick."""
+    sig = spec.signals.get(signal)
+    return sig is not None and bool(sig.steady)
 
 
 def _widest(glitch_records) -> dict[str, float]:
     """Signal -> its widest glitch (worst-case width where the max corner shows it)."""
     out: dict[str, float] = {}
     for g in glitch_records:
-        width = g.get("width_max_ns") or g.get("width_ns") or 0.0
-        out[g["signal"]] = max(out.get(g["signal"], 0.0), float(width))
+        out[g.signal] = max(out.get(g.signal, 0.0), float(g.widest_ns))
     return out
 
 
-def _fix_glitches(design: Design, replanner: Replanner) -> tuple[Design, list[dict]]:
+def _fix_glitches(design: Design, replanner: Replanner) -> tuple[Design, list[TimingFix]]:
     before = _by_signal(design.plan.glitches)
-    records = {s: {"signal": s, "glitches_before": ticks, "tried": []} for s, ticks in before.items()}
+    records = {s: _Attempts(s, tuple(ticks)) for s, ticks in before.items()}
     if not before:
         return design, []
     current, fixed_by = design, {}
@@ -151,10 +170,10 @@ def _fix_glitches(design: Design, replanner: Replanner) -> tuple[Design, list[di
             current = best[-1][1]
     fixes = _finish_records(records, fixed_by, design, current)
     unsteady = sorted(s for s in _by_signal(current.plan.glitches)
-                      if getattr(current.spec.signals.get(s), "steady", None))
+                      if _steady(current.spec, s))
     if unsteady:
-        tried = "; ".join(f"{t['remedy'].replace('_', ' ')}: {t['result']}"
-                          for t in records[unsteady[0]]["tried"] if "not applicable" in t["result"])
+        tried = "; ".join(f"{t.remedy.replace('_', ' ')}: {t.result}"
+                          for t in records[unsteady[0]].tried if "not applicable" in t.result)
         raise ShortError(f"{', '.join(unsteady)} must hold a steady level (steady: true) but still "
                          f"glitch after every remedy the bin allows ({tried or 'none removed them'})",
                          hint="add a 74HC74 or 74HC174 (4013 or 40174 at 4000B supplies), or drop "
@@ -165,8 +184,6 @@ def _fix_glitches(design: Design, replanner: Replanner) -> tuple[Design, list[di
 def _key(design: Design, spec: Spec) -> tuple:
     """How good a fixed design is: glitches left on signals that must hold their level
     (no pulse per tick acceptable), glitches left, chips, gates."""
-    from .registers import pulse_per_tick_ok
-
     left = _by_signal(design.plan.glitches)
     strobed = design.plan.strobed
     must_hold = sum(len(t) for s, t in left.items() if not pulse_per_tick_ok(spec, s))
@@ -179,15 +196,13 @@ def _best_plan(records: dict, current: Design, remaining: list[str], replanner: 
     (``registers.pulse_per_tick_ok``) may be gated with the clock; every other one is
     registered in a flip-flop of the bin; a synchronous counter is tried first where
     the bin has one.  Returns the cheapest sequence of (remedy, design) steps."""
-    from .registers import pulse_per_tick_ok
-
     spec = current.spec
     gateable = [s for s in remaining if pulse_per_tick_ok(spec, s)]
     for signal in remaining:
         if signal not in gateable:
-            records[signal]["tried"].append({"remedy": "clock_gating", "result": (
+            records[signal].tried.append(TriedRemedy("clock_gating", (
                 f"not applicable: {signal} has windows of several ticks; gated with the clock it would "
-                "pulse once per tick instead of holding its level (say steady: false to allow it)")})
+                "pulse once per tick instead of holding its level (say steady: false to allow it)")))
     candidates: list[list[tuple[str, Design]]] = []
 
     def extend(base: Design, steps: list, left: list[str]) -> None:
@@ -221,11 +236,9 @@ def _attempt(records: dict, remedy: str, build: Callable[[], Design], base: Desi
     try:
         result = build()
     except NotApplicable as exc:
-        per_signal = getattr(exc, "per_signal", None)
-        if per_signal:
+        if exc.per_signal:
             for signal, rec in records.items():
-                rec["tried"].append({"remedy": remedy,
-                                     "result": f"not applicable: {per_signal.get(signal, exc)}"})
+                rec.tried.append(TriedRemedy(remedy, f"not applicable: {exc.per_signal.get(signal, exc)}"))
         else:
             _note_all(records, remedy, f"not applicable: {exc}")
         return None
@@ -240,7 +253,7 @@ def _attempt(records: dict, remedy: str, build: Callable[[], Design], base: Desi
 
 def _note_all(records: dict, remedy: str, text: str) -> None:
     for rec in records.values():
-        rec["tried"].append({"remedy": remedy, "result": text})
+        rec.tried.append(TriedRemedy(remedy, text))
 
 
 def _credit(fixed_by: dict, old: Design, new: Design, remedy: str, only_strobed: bool = False) -> None:
@@ -254,44 +267,53 @@ def _credit(fixed_by: dict, old: Design, new: Design, remedy: str, only_strobed:
             fixed_by.setdefault(signal, []).append((remedy, old, new))
 
 
-def _finish_records(records: dict, fixed_by: dict, start: Design, final: Design) -> list[dict]:
+@dataclasses.dataclass
+class _Attempts:
+    """A signal's glitch ticks and the remedies tried on it so far (the fixing loop's
+    working state; ``_finish_records`` turns it into a ``TimingFix``)."""
+
+    signal: str
+    glitches_before: tuple[int, ...]
+    tried: list[TriedRemedy] = dataclasses.field(default_factory=list)
+
+
+def _finish_records(records: dict[str, _Attempts], fixed_by: dict, start: Design,
+                    final: Design) -> list[TimingFix]:
     """The per-signal records of what was tried and applied, finished against ``final``."""
-    after = _by_signal(final.plan.glitches)
+    return [_finished(records[s], fixed_by.get(s, []), final) for s in sorted(records)]
+
+
+def _finished(rec: _Attempts, steps: list, final: Design) -> TimingFix:
+    signal = rec.signal
+    after = _by_signal(final.plan.glitches).get(signal, [])
     strobed = final.plan.strobed
     skipped = final.plan.strobe_skipped
-    for signal, rec in records.items():
-        if signal in skipped:
-            rec["tried"].append({"remedy": "clock_gating", "result": f"not applicable to {signal}: "
-                                 f"{skipped[signal]}"})
-        rec["glitches_after"] = after.get(signal, [])
-        steps = fixed_by.get(signal, [])
-        rec["remedies_applied"] = [remedy for remedy, _, _ in steps]
-        rec["remedy"] = steps[-1][0] if steps else "note"
-        rec["applied"] = bool(steps)
-        chips = gates = 0
-        details = []
-        registered = final.plan.registered
-        for remedy, old, new in steps:
-            if remedy == "clock_gating" and signal in strobed:
-                chips += strobed[signal]["cost"]["chips"]
-                gates += strobed[signal]["cost"]["gates"]
-                details.append(strobed[signal]["detail"] + _pulse_reason(final.spec, signal))
-            elif remedy == "registered" and signal in registered:
-                chips += _chips(new) - _chips(old)
-                gates += _gates(new) - _gates(old)
-                details.append(registered[signal]["detail"])
-                rec["cost_shared"] = ("the flip-flops and the early decode are shared by the "
-                                      "registered signals: the change counts for every one")
-            else:
-                chips += _chips(new) - _chips(old)
-                gates += _gates(new) - _gates(old)
-                details.append(_global_detail(remedy, new))
-                rec["cost_shared"] = "the whole design was re-derived: its change counts for every signal"
-        rec["cost"] = {"chips": chips, "gates": gates}
-        rec["detail"] = "; then ".join(details) if details else _note_text(final, signal)
-        if rec["glitches_after"] and steps:
-            rec["note"] = _note_text(final, signal)
-    return [records[s] for s in sorted(records)]
+    if signal in skipped:
+        rec.tried.append(TriedRemedy("clock_gating", f"not applicable to {signal}: {skipped[signal]}"))
+    chips = gates = 0
+    details = []
+    shared = None
+    registered = final.plan.registered
+    for remedy, old, new in steps:
+        if remedy == "clock_gating" and signal in strobed:
+            chips += strobed[signal].cost.chips
+            gates += strobed[signal].cost.gates
+            details.append(strobed[signal].detail + _pulse_reason(final.spec, signal))
+        elif remedy == "registered" and signal in registered:
+            chips += _chips(new) - _chips(old)
+            gates += _gates(new) - _gates(old)
+            details.append(registered[signal].detail)
+            shared = ("the flip-flops and the early decode are shared by the "
+                      "registered signals: the change counts for every one")
+        else:
+            chips += _chips(new) - _chips(old)
+            gates += _gates(new) - _gates(old)
+            details.append(_global_detail(remedy, new))
+            shared = "the whole design was re-derived: its change counts for every signal"
+    return TimingFix(signal, rec.glitches_before, tuple(rec.tried), tuple(after),
+                     tuple(remedy for remedy, _, _ in steps), steps[-1][0] if steps else "note", bool(steps),
+                     Cost(chips, gates), "; then ".join(details) if details else _note_text(final, signal),
+                     cost_shared=shared, note=_note_text(final, signal) if after and steps else None)
 
 
 def _pulse_reason(spec: Spec | None, signal: str) -> str:
@@ -303,11 +325,9 @@ def _pulse_reason(spec: Spec | None, signal: str) -> str:
 
 
 def _note_text(design: Design, signal: str) -> str:
-    widths = [g.get("width_max_ns") or g.get("width_ns") or 0 for g in design.plan.glitches
-              if g.get("signal") == signal]
+    widths = [g.widest_ns for g in design.plan.glitches if g.signal == signal]
     widest = max(widths, default=0)
-    switches = [n for n, sw in (getattr(design.spec, "switches", None) or {}).items()
-                if getattr(sw, "select", None) == signal]
+    switches = [n for n, sw in design.spec.switches.items() if sw.select == signal]
     if switches:
         return (f"{signal} selects switch {', '.join(switches)}: for up to {widest:.0f} ns it conducts the "
                 "wrong way; a slow analog stage averages that away, a sample-and-hold or a "
@@ -328,9 +348,9 @@ def _by_signal(glitch_records) -> dict[str, list[int]]:
     """Signal -> its glitch ticks (a glitch marked harmless, ``synth.harmless``, left out)."""
     out: dict[str, list[int]] = {}
     for g in glitch_records:
-        if g.get("harmless"):
+        if g.harmless:
             continue
-        out.setdefault(g["signal"], []).append(int(g["at_tick"]))
+        out.setdefault(g.signal, []).append(int(g.at_tick))
     return {s: sorted(t) for s, t in out.items()}
 
 
@@ -351,8 +371,6 @@ def _gates(design: Design) -> int:
 def _register(design: Design, signals, replanner: Replanner) -> Design:
     """The design with ``signals`` decoded one tick early and clocked into D flip-flops
     (``synth.registers``); packed, self-checked and re-analysed like the others."""
-    from .registers import prepare_registering, with_flipflops
-
     if design.plan.strobed:
         raise NotApplicable("the plan already gates signals with the clock")
     names = [s for s in signals if s not in design.plan.registered]
@@ -372,10 +390,8 @@ def _register(design: Design, signals, replanner: Replanner) -> Design:
     return dataclasses.replace(new, plan=dataclasses.replace(new.plan, registered=registered))
 
 
-def register_records(plan: Any, reg: Any) -> dict[str, dict]:
+def register_records(plan: Any, reg: Any) -> dict[str, Registered]:
     """Signal -> how it is registered (flip-flop, its clock, the counter's clock), for the report."""
-    from .timing import gate_names_of, registered_signals
-
     names = gate_names_of(plan)
     flops = registered_signals(plan.network)
     inverter = next((g for g in plan.network.gates if g.outputs and g.outputs[0] == "CLK_n"), None)
@@ -394,9 +410,8 @@ def register_records(plan: Any, reg: Any) -> dict[str, dict]:
                              f"({inverter.part}), so it advances on CLK's {plan.clock_edge} edge one gate "
                              "delay after the flip-flops have sampled (their D cannot change before "
                              "their own edge)")
-        out[signal] = {"flipflop": name, "part": gate.part, "d_net": gate.inputs[0],
-                       "clock_net": gate.inputs[1], "edge": plan.clock_edge,
-                       "counter_clock": counter_clock, "detail": how}
+        out[signal] = Registered(name, gate.part, gate.inputs[0], gate.inputs[1], plan.clock_edge,
+                                 counter_clock, how)
     return out
 
 
@@ -404,21 +419,18 @@ def register_records(plan: Any, reg: Any) -> dict[str, dict]:
 
 def _decode_choice(design: Design, replanner: Replanner) -> Design:
     """Re-derive with the glitching entries' transient states passed at the steady level."""
-    from .timing import entry_sequence, var_roles
-
     cp = design.counter
     functions = {f.name: f for f in design.decode.functions}
     roles = var_roles(cp, design.catalog)
-    reset = getattr(cp, "reset", None)
-    async_reset = reset is not None and not getattr(reset, "synchronous", False)
+    async_reset = cp.reset is not None and not cp.reset.synchronous
     states = [int(s) for s in cp.state_of_tick]
     passing = {t: frozenset(s) for t, s in (cp.passing or {}).items()}
     usable = False
     for g in design.plan.glitches:
-        k = int(g["at_tick"])
+        k = int(g.at_tick)
         seq = entry_sequence(states[k - 1], states[k], roles, async_reset)
         shown = frozenset(seq[1:-1])
-        function = functions.get(g["signal"])
+        function = functions.get(g.signal)
         if function is not None and shown & function.dc:
             usable = True
         t = (k - 1) % cp.cycle
@@ -441,10 +453,7 @@ def _synchronous(design: Design, replanner: Replanner) -> Design:
     first with 4520/4518 units cascaded through a decoded enable (every output on one
     edge; the decode takes gates), then, when the bin cannot map that, as allocated
     without it."""
-    from .counter import allocate
-    from .timing import synchronous_counter_parts
-
-    if getattr(design.counter, "synchronous", False):
+    if design.counter.synchronous:
         raise NotApplicable("the counter is already synchronous")
     stock, catalog = design.stock, design.catalog
     if not synchronous_counter_parts(catalog, stock):
@@ -488,14 +497,12 @@ def _strobe_all(design: Design, signals: list[str], replanner: Replanner) -> Des
         except SynthError as exc:          # the re-packed plan failed a check: keep the decode
             skipped.append(f"{signal}: the gated plan failed a check ({exc.args[0] if exc.args else exc})")
             continue
-        info["cost"] = {"chips": len(new_plan.chips) - len(plan.chips),
-                        "gates": len(new_plan.network.gates) - len(plan.network.gates)}
-        strobed[signal] = info
+        strobed[signal] = dataclasses.replace(info, cost=Cost(len(new_plan.chips) - len(plan.chips),
+                                                              len(new_plan.network.gates) - len(plan.network.gates)))
         network, plan, applied = new_net, new_plan, applied + 1
     if not applied:
-        failure = NotApplicable("; ".join(skipped) or "no signal to gate")
-        failure.per_signal = dict(item.split(": ", 1) for item in skipped)
-        raise failure
+        raise NotApplicable("; ".join(skipped) or "no signal to gate",
+                            per_signal=dict(item.split(": ", 1) for item in skipped))
     new = replanner.replan(design, network=network, strobed=strobed)
     skipped_by_signal = dict(s.split(": ", 1) for s in skipped)
     return dataclasses.replace(new, plan=dataclasses.replace(new.plan, strobe_skipped=skipped_by_signal))
@@ -510,7 +517,7 @@ def _pack(design: Design, network: Network, replanner: Replanner):
 
 
 def strobe_network(network: Network, signal: str, plan: Any, stock: Any, catalog: Any,
-                   spec: Any = None) -> tuple[Network, dict]:
+                   spec: Any = None) -> tuple[Network, Strobed]:
     """The network with ``signal`` held inactive while the clock is in the counter's
     moving half; returns it and a record (how, which gate, which clock phase)."""
     out = network.signals.get(signal)
@@ -521,12 +528,11 @@ def strobe_network(network: Network, signal: str, plan: Any, stock: Any, catalog
     others = [n for n, s in network.signals.items() if s.net == out.net and n != signal]
     if others:
         raise NotApplicable(f"its net also carries {', '.join(others)}")
-    switches = [n for n, sw in (getattr(spec, "switches", None) or {}).items()
-                if getattr(sw, "select", None) == signal]
+    switches = [n for n, sw in (spec.switches if spec is not None else {}).items() if sw.select == signal]
     if switches:
         raise NotApplicable(f"it selects switch {', '.join(switches)}, which would then throw over "
                             "twice in every tick of the window")
-    free = spec is not None and getattr(spec.signals.get(signal), "polarity", "") == "free"
+    free = spec is not None and signal in spec.signals and spec.signals[signal].polarity == "free"
     spare = _spare_input_rewrite(network, signal, out, clock, settle, plan, stock, catalog)
     if spare is not None:
         return spare
@@ -535,8 +541,6 @@ def strobe_network(network: Network, signal: str, plan: Any, stock: Any, catalog
 
 def _clock_net(counter: Any) -> str:
     """The board clock: the counters' clock net, or CLK where they take an inverted copy."""
-    from .registers import COUNTER_CLOCK_NET
-
     var_nets = {str(v.net) for v in counter.vars}
     net = next((str(c.clock_net) for c in counter.chips if str(c.clock_net) not in var_nets), "CLK")
     return "CLK" if net == COUNTER_CLOCK_NET else net
@@ -548,8 +552,6 @@ def _phase_text(clock: str, level: bool) -> str:
 
 def _spare_input_rewrite(network, signal, out, clock, settle, plan, stock, catalog):
     """Use a spare input of the signal's last gate when its controlling level is the inactive one."""
-    from .timing import spare_input, spare_input_place
-
     gate = next((g for g in network.gates if out.net in g.outputs), None)
     if gate is None or gate.op not in _CONTROLLING or len(gate.outputs) != 1:
         return None
@@ -675,16 +677,12 @@ def _too_slow(catalog, part_type: str, plan) -> bool:
 
 def _first_counter_move_ns(plan, catalog, corner: str = "typ") -> float:
     """The earliest a counter output moves after a counting edge."""
-    from .timing import counter_models
-
     models = counter_models(plan.counter, plan.network, catalog, plan.supply, corner)
     return min((o.delay_ps / 1000 for c in models for o in c.outputs), default=0.0)
 
 
 def _unit_options(plan, stock, catalog, op: str, min_inputs: int) -> list[tuple[str, int, bool]]:
     """(part, inputs, needs a new chip) for every unit of ``op`` the board or the bin has spare."""
-    from .packing import unit_logic_pins
-
     out = []
     for part_type in sorted(stock.parts):
         part = catalog.parts.get(part_type)
@@ -713,21 +711,21 @@ def _fresh(base: str, taken: set[str]) -> str:
 
 
 def _record(how: str, signal: str, polarity: str, clock: str, settle: bool, text: str,
-            added: list[Gate]) -> dict:
+            added: list[Gate]) -> Strobed:
     still = _phase_text(clock, not settle)
     if added:
         inv = added[0]
         text += f" (the inverted clock from a {inv.part} {inv.op.upper()} unit)"
-    return {"how": how, "still_phase": still, "polarity": polarity,
-            "detail": (f"{text}: {signal} is asserted only while {still} (the second half of each "
-                       "asserted tick, when the counter is still), so a window of several ticks "
-                       "becomes one pulse per tick; sampled just before each counting edge it "
-                       "matches the spec tick by tick")}
+    return Strobed(how, still, polarity,
+                   f"{text}: {signal} is asserted only while {still} (the second half of each "
+                   "asserted tick, when the counter is still), so a window of several ticks "
+                   "becomes one pulse per tick; sampled just before each counting edge it "
+                   "matches the spec tick by tick")
 
 
 # ---------------------------------------------------------------- RC delay offers
 
-def rc_offers(design: Design, widths: dict[str, float] | None = None) -> list[dict]:
+def rc_offers(design: Design, widths: dict[str, float] | None = None) -> list[RcOffer]:
     """RC delays between Schmitt stages for races and for glitches a logic fix cannot
     remove without a new chip; offered with values, spread and wiring, never applied.
 
@@ -738,96 +736,91 @@ def rc_offers(design: Design, widths: dict[str, float] | None = None) -> list[di
     period = _period_ns(design)
     widths = dict(widths if widths is not None else _widest(plan.glitches))
     offers = []
-    races: dict[str, list[dict]] = {}
+    races: dict[str, list[CoincidentEdge]] = {}
     for edge in plan.coincident_edges:
-        if edge.get("relation") == "complementary":
+        if edge.relation == "complementary":
             continue            # one edge seen twice: nothing to delay
-        a, b = edge["signals"]
-        races.setdefault(b if edge.get("first") == a else a, []).append(edge)
+        a, b = edge.signals
+        races.setdefault(b if edge.first == a else a, []).append(edge)
     for signal, edges in sorted(races.items()):
         offers.append(_race_offer(design, signal, edges, period))
-    fixes = getattr(plan, "timing_fixes", None)
+    fixes = plan.timing_fixes
     if fixes is None:
         costly = set()          # the costs are known once --fix glitches has tried the remedies
     else:
-        costly = {r["signal"] for r in fixes if r.get("glitches_after") or r["cost"].get("chips", 0) > 0}
+        costly = {r.signal for r in fixes if r.glitches_after or r.cost.chips > 0}
     for signal in sorted(costly):
         offers.append(_glitch_offer(design, signal, widths.get(signal, 0.0), period))
     return [o for o in offers if o is not None]
 
 
 def _period_ns(design: Design) -> float | None:
-    freq = getattr(getattr(design.spec, "clock", None), "frequency_hz", None)
+    freq = design.spec.clock.frequency_hz
     if freq:
         return 1e9 / freq
-    trace = getattr(design, "trace", None)
-    return getattr(trace, "period_ns", None)
+    return design.trace.period_ns if design.trace is not None else None
 
 
-def _race_offer(design: Design, later: str, edges: list[dict], period: float | None) -> dict | None:
+def _race_offer(design: Design, later: str, edges: list[CoincidentEdge], period: float | None) -> RcOffer | None:
     if period is None:
         return None
-    others = sorted({n for e in edges for n in e["signals"] if n != later})
-    ticks = sorted({e["at_tick"] for e in edges})
+    others = sorted({n for e in edges for n in e.signals if n != later})
+    ticks = sorted({e.at_tick for e in edges})
     offer = _rc_design(design, later, period / 4, period)
-    race = any(e.get("race", True) for e in edges)
+    race = any(e.race is not False for e in edges)
     condition = "" if race else (" (needed only if your circuit clocks, resets or gates one of them "
                                  "with the other: on this board neither reads the other)")
-    offer.update({"problem": "race" if race else "coincident", "signals": [later, *others], "at_ticks": ticks,
-                  "why": (f"{later} switches on the same clock edge as {', '.join(others)} (ticks "
-                          f"{', '.join(map(str, ticks))}); delayed by about a quarter tick its edges "
-                          "come clear of theirs and the level sampled at the end of each tick is "
-                          f"unchanged{condition}")})
-    return offer
+    return dataclasses.replace(
+        offer, problem="race" if race else "coincident", signals=(later, *others), at_ticks=tuple(ticks),
+        why=(f"{later} switches on the same clock edge as {', '.join(others)} (ticks "
+             f"{', '.join(map(str, ticks))}); delayed by about a quarter tick its edges "
+             "come clear of theirs and the level sampled at the end of each tick is "
+             f"unchanged{condition}"))
 
 
-def _glitch_offer(design: Design, signal: str, width_ns: float, period: float | None) -> dict | None:
+def _glitch_offer(design: Design, signal: str, width_ns: float, period: float | None) -> RcOffer | None:
     if period is None:
         return None
     wanted_ns = max(4 * width_ns, 1000.0)
     if wanted_ns > period / 4:
-        return {"problem": "glitch", "signal": signal, "delayed": signal, "applicable": False,
-                "applied": False, "why": f"a filter slower than the {width_ns:.0f} ns pulse would take more than a "
-                       f"quarter of the {period:.0f} ns tick"}
+        return RcOffer("glitch", signal, False, signal=signal,
+                       why=f"a filter slower than the {width_ns:.0f} ns pulse would take more than a "
+                           f"quarter of the {period:.0f} ns tick")
     offer = _rc_design(design, signal, wanted_ns, period)
-    fixed = next((r for r in getattr(design.plan, "timing_fixes", None) or [] if r["signal"] == signal
-                  and r["applied"] and not r["glitches_after"]), None)
-    instead = (f"instead of the {fixed['remedy'].replace('_', ' ')} applied, which took "
-               f"{fixed['cost']['chips']} new chip(s): " if fixed else "")
-    offer.update({"problem": "glitch", "signal": signal,
-                  "why": (f"{instead}an RC low-pass between two Schmitt stages swallows a pulse shorter than its "
-                          f"delay: the {width_ns:.0f} ns (worst case) pulse never charges C to the "
-                          "threshold, while each real edge arrives one RC delay later")})
-    if offer.get("receiver") == "plain-input":
-        offer["why"] = offer["why"].replace("two Schmitt stages", "two inverting stages (the bin has no "
-                                            "Schmitt part; a Schmitt second stage is the better receiver)")
-    if offer.get("applicable") and min(offer["delay_ns"]["rising"][0], offer["delay_ns"]["falling"][0]) \
-            <= width_ns:
-        offer["applicable"] = False
-        offer["why"] += "; the shortest delay over the threshold spread is not longer than the pulse"
-    return offer
+    fixed = next((r for r in design.plan.timing_fixes or [] if r.signal == signal
+                  and r.applied and not r.glitches_after), None)
+    instead = (f"instead of the {fixed.remedy.replace('_', ' ')} applied, which took "
+               f"{fixed.cost.chips} new chip(s): " if fixed else "")
+    why = (f"{instead}an RC low-pass between two Schmitt stages swallows a pulse shorter than its "
+           f"delay: the {width_ns:.0f} ns (worst case) pulse never charges C to the "
+           "threshold, while each real edge arrives one RC delay later")
+    if offer.receiver == "plain-input":
+        why = why.replace("two Schmitt stages", "two inverting stages (the bin has no "
+                          "Schmitt part; a Schmitt second stage is the better receiver)")
+    applicable = offer.applicable
+    if applicable and min(offer.rising_ns[0], offer.falling_ns[0]) <= width_ns:
+        applicable = False
+        why += "; the shortest delay over the threshold spread is not longer than the pulse"
+    return dataclasses.replace(offer, problem="glitch", signal=signal, why=why, applicable=applicable)
 
 
-def _rc_design(design: Design, signal: str, wanted_ns: float, period: float) -> dict:
-    from .analog import plain_input_thresholds, rc_delay_design, thresholds_at
-    from .units import format_si
-
+def _rc_design(design: Design, signal: str, wanted_ns: float, period: float) -> RcOffer:
+    """The RC delay for ``signal`` sized from the bin (``problem`` and ``why`` left for the caller)."""
     plan, stock, catalog = design.plan, design.stock, design.catalog
     try:
         receiver, where = _schmitt_pair(plan, stock, catalog)
     except NotApplicable as exc:
-        return {"delayed": signal, "wanted_ns": round(wanted_ns, 1), "applied": False,
-                "applicable": False, "why_not": str(exc)}
+        return RcOffer("", signal, False, "", wanted_ns=round(wanted_ns, 1), why_not=str(exc))
     thresholds = (thresholds_at(catalog.parts[receiver].thresholds, plan.supply) if receiver
                   else plain_input_thresholds(plan.supply, design.catalog.plain_input_levels(
                       {p.family for p in plan.parts.values()}, plan.supply)))
-    base = {"delayed": signal, "wanted_ns": round(wanted_ns, 1), "receiver": receiver or "plain-input",
-            "stages": where, "applied": False}
+    base = RcOffer("", signal, False, "", wanted_ns=round(wanted_ns, 1), receiver=receiver or "plain-input",
+                   stages=tuple(where))
     try:
         d = rc_delay_design(wanted_ns * 1e-9, supply=plan.supply, thresholds=thresholds,
                             resistors=stock.resistors, capacitors=stock.capacitors)
     except SynthError as exc:
-        return {**base, "applicable": False, "why_not": str(exc.args[0] if exc.args else exc)}
+        return dataclasses.replace(base, why_not=str(exc.args[0] if exc.args else exc))
     source = plan.signals.get(signal, {}).get("source")
     src = f"{source[0]} pin {source[1]}" if source else signal
     r, c = format_si(d.r, "Ω"), format_si(d.c, "F")
@@ -836,16 +829,14 @@ def _rc_design(design: Design, signal: str, wanted_ns: float, period: float) -> 
               f"C {c} from the delay node to VSS, short leads",
               f"delay node -> stage 2 input ({where[1]}); stage 2 output is the delayed {signal}, "
               "same polarity (two inversions); move its loads there"]
-    spread = {"rising": [round(x * 1e9, 1) for x in (d.rising.min, d.rising.typ, d.rising.max)],
-              "falling": [round(x * 1e9, 1) for x in (d.falling.min, d.falling.typ, d.falling.max)]}
+    values = RcValues(d.r, d.c, r, c, tuple(round(x * 1e9, 1) for x in (d.rising.min, d.rising.typ, d.rising.max)),
+                      tuple(round(x * 1e9, 1) for x in (d.falling.min, d.falling.typ, d.falling.max)),
+                      d.formula, tuple(wiring), tuple(d.warnings), round(period, 1))
     longest = max(d.rising.max, d.falling.max) * 1e9
     fits = longest < period / 2
-    if not fits:
-        base["why_not"] = (f"the nearest values on hand ({r}, {c}) give up to {longest:.0f} ns, more than "
-                           f"half the {period:.0f} ns tick: the delayed level would be sampled late")
-    return {**base, "applicable": fits, "r_ohm": d.r, "c_farad": d.c, "r": r, "c": c,
-            "delay_ns": spread, "formula": d.formula, "wiring": wiring, "warnings": list(d.warnings),
-            "tick_ns": round(period, 1)}
+    why_not = None if fits else (f"the nearest values on hand ({r}, {c}) give up to {longest:.0f} ns, more "
+                                 f"than half the {period:.0f} ns tick: the delayed level would be sampled late")
+    return dataclasses.replace(base, applicable=fits, why_not=why_not, values=values)
 
 
 def _schmitt_pair(plan: Any, stock: Any, catalog: Any) -> tuple[str | None, list[str]]:

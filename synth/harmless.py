@@ -1,7 +1,7 @@
 """Harmless glitches: a glitch on an output whose load the spec says is slow.
 
-Interface: ``mark_harmless(glitch_records, spec, plan) -> None`` (adds
-``harmless`` and ``harmless_why`` to each glitch record it clears);
+Interface: ``mark_harmless(glitch_records, spec) -> list[GlitchRecord]`` (the
+records with ``harmless`` and ``harmless_why`` set on each ``feeds: slow`` one);
 ``check_slow_outputs(spec, plan)`` (a ``feeds: slow`` output that something
 on this board reads is an input error); ``SLOW_LOAD_NS``.
 
@@ -28,7 +28,10 @@ and left alone by ``--fix glitches`` and ``steady``; ``steady: true`` with
 
 from __future__ import annotations
 
+from dataclasses import replace
+
 from .errors import SpecError
+from .findings import GlitchRecord
 
 __all__ = ["mark_harmless", "check_slow_outputs", "SLOW_LOAD_NS"]
 
@@ -42,21 +45,22 @@ def _slow(spec, name: str) -> bool:
     return signal is not None and signal.feeds == "slow"
 
 
-def mark_harmless(glitch_records: list[dict], spec, plan) -> None:
-    """Mark each glitch on a ``feeds: slow`` output narrower than ``SLOW_LOAD_NS`` harmless."""
-    for rec in glitch_records:
-        if not _slow(spec, rec["signal"]):
-            continue
-        widest = max(float(rec.get("width_ns") or 0.0), float(rec.get("width_max_ns") or 0.0))
-        if widest < SLOW_LOAD_NS:
-            rec["harmless"] = True
-            rec["harmless_why"] = (f"{rec['signal']} feeds only a slow load (feeds: slow): its widest "
-                                   f"pulse, {widest:.0f} ns, is shorter than the {SLOW_LOAD_NS:.0f} ns "
-                                   "such a load needs to respond, and nothing on the board reads it")
-        else:
-            rec["harmless"] = False
-            rec["harmless_why"] = (f"{rec['signal']} says feeds: slow, but this pulse lasts up to "
-                                   f"{widest:.0f} ns, as long as a slow load's response: it counts")
+def mark_harmless(glitch_records: list[GlitchRecord], spec) -> list[GlitchRecord]:
+    """The records, each glitch on a ``feeds: slow`` output narrower than ``SLOW_LOAD_NS``
+    marked harmless (a wider one marked as counting, with the reason)."""
+    return [_judged(rec) if _slow(spec, rec.signal) else rec for rec in glitch_records]
+
+
+def _judged(rec: GlitchRecord) -> GlitchRecord:
+    widest = max(float(rec.width_ns or 0.0), float(rec.width_max_ns or 0.0))
+    if widest < SLOW_LOAD_NS:
+        return replace(rec, harmless=True, harmless_why=(
+            f"{rec.signal} feeds only a slow load (feeds: slow): its widest "
+            f"pulse, {widest:.0f} ns, is shorter than the {SLOW_LOAD_NS:.0f} ns "
+            "such a load needs to respond, and nothing on the board reads it"))
+    return replace(rec, harmless=False, harmless_why=(
+        f"{rec.signal} says feeds: slow, but this pulse lasts up to "
+        f"{widest:.0f} ns, as long as a slow load's response: it counts"))
 
 
 def check_slow_outputs(spec, plan) -> None:

@@ -33,6 +33,7 @@ from .analogparts import AppliedDelay, LadderPlan, OscillatorPlan, PowerOnReset
 from .counter import CounterPlan
 from .decode import Decode
 from .errors import NotFoundError, ShortError
+from .findings import RcOffer, Registered, Strobed, TimingFix
 from .inventory import Bin, Catalog
 from .netlist import Plan
 from .network import Network
@@ -77,11 +78,11 @@ class FixReport:
     signal -> its flip-flop.
     """
 
-    strobed: dict[str, dict] = field(default_factory=dict)
-    rc_offers: tuple[dict, ...] = ()
-    timing_fixes: tuple[dict, ...] | None = None
+    strobed: dict[str, Strobed] = field(default_factory=dict)
+    rc_offers: tuple[RcOffer, ...] = ()
+    timing_fixes: tuple[TimingFix, ...] | None = None
     strobe_skipped: dict[str, str] = field(default_factory=dict)
-    registered: dict[str, dict] = field(default_factory=dict)
+    registered: dict[str, Registered] = field(default_factory=dict)
 
 
 class Replanner(Protocol):
@@ -99,8 +100,8 @@ class Replanner(Protocol):
 
     def replan(self, design: Design, *, counter_plan: CounterPlan | None = None,
                decode: Decode | None = None, network: Network | None = None,
-               strobed: dict[str, dict] | None = None,
-               registered: dict[str, dict] | None = None) -> Design:
+               strobed: dict[str, Strobed] | None = None,
+               registered: dict[str, Registered] | None = None) -> Design:
         """The stages again from the counter plan on (from packing on, given a network),
         timing included."""
         ...

@@ -29,9 +29,12 @@ from typing import Any, Literal, NamedTuple
 from .analogparts import AppliedDelay, LadderPlan, OscillatorPlan, PowerOnReset
 from .counter import CounterPlan
 from .errors import InternalError
+from .findings import (CoincidentEdge, GlitchRecord, PulseWidth, RcOffer, RegisterCheck, Registered, Strobed,
+                       TimingFix)
 from .inventory import Part
 from .network import Network, evaluate_words
 from .spec import SignalSpec, Spec
+from .units import format_si
 from .verilog_names import VERILOG_KEYWORDS, verilog_module_name  # noqa: F401 - re-exported
 
 RAIL_NETS = ("VDD", "VSS")
@@ -74,8 +77,6 @@ class Passive:
     purpose: str
 
     def label(self) -> str:
-        from .units import format_si
-
         return format_si(self.value, "Ω" if self.kind == "resistor" else "F")
 
 
@@ -110,8 +111,8 @@ class Plan:
     clock_edge: str
     counter: CounterPlan
     network: Network
-    glitches: list = field(default_factory=list)
-    coincident_edges: list = field(default_factory=list)
+    glitches: list[GlitchRecord] = field(default_factory=list)
+    coincident_edges: list[CoincidentEdge] = field(default_factory=list)
     warnings: tuple[str, ...] = ()
     cautions: tuple[str, ...] = ()
     proven_minimal: bool = False
@@ -126,13 +127,13 @@ class Plan:
     power_on_reset: PowerOnReset | None = None       # when the spec asks for one
     rc_delays: tuple[AppliedDelay, ...] = ()        # each RC delay built in
     # the timing step's results (timing.TimingReport) and the remedies' (glitchfix.FixReport)
-    register_checks: list[dict] = field(default_factory=list)
-    pulse_widths: list[dict] = field(default_factory=list)
-    strobed: dict[str, dict] = field(default_factory=dict)        # signal -> how it is gated with the clock
+    register_checks: list[RegisterCheck] = field(default_factory=list)
+    pulse_widths: list[PulseWidth] = field(default_factory=list)
+    strobed: dict[str, Strobed] = field(default_factory=dict)     # signal -> how it is gated with the clock
     strobe_skipped: dict[str, str] = field(default_factory=dict)  # signal -> why it could not be gated
-    registered: dict[str, dict] = field(default_factory=dict)     # signal -> its flip-flop
-    rc_offers: list[dict] = field(default_factory=list)
-    timing_fixes: list[dict] | None = None   # None: --fix glitches not asked (nor steady: true)
+    registered: dict[str, Registered] = field(default_factory=dict)   # signal -> its flip-flop
+    rc_offers: list[RcOffer] = field(default_factory=list)
+    timing_fixes: list[TimingFix] | None = None   # None: --fix glitches not asked (nor steady: true)
 
     def passive(self, ref: str) -> Passive:
         for item in self.passives:

@@ -43,6 +43,7 @@ from .analog import rc_delay_design, thresholds_at, with_tolerance
 from .analogparts import AppliedDelay
 from .clocksource import place_schmitt, spare_schmitt_sites
 from .errors import ShortError, SpecError, SynthError
+from .findings import CoincidentEdge
 from .model import Design
 from .network import Gate, RcTiming, SignalOut, fresh_name
 from .netlist import Passive, Plan, check_nets, self_check
@@ -73,32 +74,34 @@ def apply_delays(design: Design, fix: Iterable[str], retime: Callable[[Design], 
     plan = dataclasses.replace(
         plan, rc_delays=tuple(applied),
         warnings=(*plan.warnings, *(f"RC delay on {d.signal}: {w}" for d in applied for w in d.warnings)),
-        rc_offers=[{**o, "applied": True} if o.get("delayed") in wanted else o for o in plan.rc_offers])
+        rc_offers=[o.as_applied() if o.delayed in wanted else o for o in plan.rc_offers])
     design = retime(dataclasses.replace(design, plan=plan, network=plan.network))
     plan = dataclasses.replace(design.plan, warnings=tuple(dict.fromkeys(design.plan.warnings)))  # timing ran twice
-    _separated_races(plan, applied)
-    return dataclasses.replace(design, plan=plan)
+    return dataclasses.replace(design, plan=_separated_races(plan, applied))
 
 
-def _separated_races(plan, applied: list[AppliedDelay]) -> None:
-    """A race whose later signal now goes through an RC delay is kept in the list,
+def _separated_races(plan: Plan, applied: list[AppliedDelay]) -> Plan:
+    """The plan with a race whose later signal now goes through an RC delay kept in the list,
     marked separated (``race`` false, ``separated_by``) with the gap at the shortest delay."""
     shortest = {d.signal: (min(d.rise_s[0], d.fall_s[0]) * 1e9, d) for d in applied}
-    for rec in plan.coincident_edges:
-        if not rec.get("race"):
-            continue
-        delayed = [n for n in rec["signals"] if n in shortest]
-        if len(delayed) != 1:
-            continue
-        name = delayed[0]
-        other = next(n for n in rec["signals"] if n != name)
-        settle = (rec.get("settle_ns") or {}).get(other)
-        low, d = shortest[name]
-        if settle is None or low <= settle:
-            continue
-        rec["race"] = False
-        rec["separated_by"] = (f"RC delay on {name} ({', '.join(d.passives)}): its edge comes at least "
-                               f"{low - settle:.0f} ns after {other}'s at the shortest delay")
+    return dataclasses.replace(plan, coincident_edges=[_separated(rec, shortest) for rec in plan.coincident_edges])
+
+
+def _separated(rec: CoincidentEdge, shortest: dict[str, tuple[float, AppliedDelay]]) -> CoincidentEdge:
+    if not rec.race:
+        return rec
+    delayed = [n for n in rec.signals if n in shortest]
+    if len(delayed) != 1:
+        return rec
+    name = delayed[0]
+    other = next(n for n in rec.signals if n != name)
+    settle = rec.settle_of(other)
+    low, d = shortest[name]
+    if settle is None or low <= settle:
+        return rec
+    return dataclasses.replace(rec, race=False, separated_by=(
+        f"RC delay on {name} ({', '.join(d.passives)}): its edge comes at least "
+        f"{low - settle:.0f} ns after {other}'s at the shortest delay"))
 
 
 def _wanted(design, fix: set[str]) -> dict[str, tuple[float, str]]:
@@ -108,8 +111,8 @@ def _wanted(design, fix: set[str]) -> dict[str, tuple[float, str]]:
               for name, s in spec.signals.items() if s.delay_s}
     if FIX in fix:
         for offer in design.plan.rc_offers:
-            if offer.get("problem") == "race" and offer.get("applicable") and offer["delayed"] not in wanted:
-                wanted[offer["delayed"]] = (offer["wanted_ns"] * 1e-9, "--fix races")
+            if offer.problem == "race" and offer.applicable and offer.delayed not in wanted:
+                wanted[offer.delayed] = (offer.wanted_ns * 1e-9, "--fix races")
     return wanted
 
 

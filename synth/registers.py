@@ -30,9 +30,10 @@ from dataclasses import dataclass
 from typing import Any
 
 from .errors import ShortError
-from .netlist import CLOCK_NET
+from .netlist import CLOCK_NET, delivered_sets
 from .packing import flipflop_controls
 from .network import RAILS, Gate, Network, SignalOut
+from .spec import windows_of
 
 __all__ = ["FlipFlopOption", "Registering", "flipflop_options", "pulse_per_tick_ok",
            "prepare_registering", "with_flipflops", "COUNTER_CLOCK_NET"]
@@ -148,8 +149,6 @@ def _early_spec(spec: Any, delivered: dict[str, frozenset[int]], polarity: dict[
     """The spec with each registered signal asserted one tick sooner (exactly the ticks the
     plan delivered, so its stretch and don't-care choices stay as they were); signals
     with a ``clear_of`` tie to one of them keep their delivered ticks too."""
-    from .spec import windows_of
-
     cycle = spec.cycle
     tied = set(signals)
     for name, sig in spec.signals.items():
@@ -220,8 +219,6 @@ def _with_flipflops(network: Network, signals: tuple[str, ...], option: FlipFlop
 def prepare_registering(design: Any, signals) -> Registering:
     """The early spec and the counter plan for registering ``signals`` (see the module
     text).  Raises ``ShortError`` when the bin lacks the flip-flops or the clock inverter."""
-    from .netlist import delivered_sets
-
     plan, spec, stock, catalog = design.plan, design.spec, design.stock, design.catalog
     names = tuple(sorted(s for s in signals if plan.signals[s]["net"] not in RAILS))
     if not names:

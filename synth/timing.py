@@ -76,8 +76,11 @@ from typing import Any
 from .analog import Spread, with_tolerance
 from .counter import carry_nets
 from .errors import InternalError
+from .findings import (MODEL_NAMES, MODEL_TEXT, MODELS, CoincidentEdge, GlitchRecord, PulseWidth,  # noqa: F401
+                       RegisterCheck)
 from .harmless import check_slow_outputs, mark_harmless
-from .network import RAILS, Gate, Network, evaluate_gate
+from .netlist import delivered_sets, simulate_ticks
+from .network import RAILS, Gate, Network, counting_words, evaluate_gate, evaluate_words
 from .packing import unit_logic_pins
 
 __all__ = [
@@ -92,29 +95,6 @@ __all__ = [
 ]
 
 CORNERS = ("typ", "max")
-MODELS = ("transport_typ", "transport_max", "inertial_typ", "states")
-MODEL_TEXT = {
-    "transport_typ": "event simulation, typical catalog delays, every pulse passed (transport delays)",
-    "transport_max": "event simulation, worst-case (max) catalog delays, every pulse passed",
-    "inertial_typ": "event simulation, typical delays, a pulse shorter than a gate's delay swallowed "
-                    "(as a Verilog primitive; what the exported Verilog shows)",
-    "states": "the decode evaluated on every state the ripple count passes through, "
-              "independent of gate delays",
-}
-"""The analyses behind a glitch report: the event simulation with transport
-delays at typical and worst-case (max) catalog delays (every pulse a part may
-pass), with inertial delays at typical (what a Verilog primitive and a real
-gate of exactly that delay pass), and the state enumeration of the ripple
-transients (``ripple_hazards``: the decode evaluated on every state the count
-passes through, independent of gate delays)."""
-MODEL_NAMES = {
-    "transport_typ": "typical_delays",
-    "transport_max": "worst_case_delays",
-    "inertial_typ": "short_pulses_swallowed",
-    "states": "count_states",
-}
-"""What the output calls each analysis (plan JSON ``models``, the glitch table's
-"found by" with ``_`` read as a space): plain words, not the ids above."""
 PS_PER_NS = 1000
 
 
@@ -872,8 +852,6 @@ def register_start_levels(counter_plan: Any, network: Network, sampled_clock: bo
     its level just before a counting edge)."""
     if not any(g.op == "flipflop" for g in network.gates):
         return {}
-    from .network import evaluate_words
-
     states = [int(s) for s in counter_plan.state_of_tick]
     width = len(states)
     full = (1 << width) - 1
@@ -986,21 +964,14 @@ class Glitch:
         'gate_paths': every state is right, unequal gate delays make the pulse."""
         return "transient_state" if self.transient_state is not None else "gate_paths"
 
-    def as_json(self) -> dict:
-        record = {"signal": self.signal, "at_tick": self.at_tick, "width_ns": round(self.width_ns, 1),
-                  "cause": self.cause, "path": self.path, "kind": self.kind,
-                  "wrong_level": "high" if self.wrong_level else "low",
-                  "start_ns": round(self.start_ns, 1)}
-        if self.width_max_ns is not None:
-            record["width_max_ns"] = round(self.width_max_ns, 1)
-        if self.seen_inertial is not None:
-            record["passes_gate_delay"] = self.seen_inertial
-        record["mechanism"] = self.mechanism
-        if self.transient_state is not None:
-            record["transient_state"] = self.transient_state
-        if self.models:
-            record["models"] = [m for m in MODELS if m in self.models]
-        return record
+    def record(self) -> GlitchRecord:
+        """The glitch as reported (widths rounded to 0.1 ns, the models in ``MODELS`` order)."""
+        return GlitchRecord(self.signal, self.at_tick, round(self.width_ns, 1), self.cause, self.path,
+                            self.kind, "high" if self.wrong_level else "low", round(self.start_ns, 1),
+                            self.mechanism,
+                            width_max_ns=None if self.width_max_ns is None else round(self.width_max_ns, 1),
+                            passes_gate_delay=self.seen_inertial, transient_state=self.transient_state,
+                            models=tuple(m for m in MODELS if m in self.models))
 
 
 def expected_from_delivered(delivered: Mapping[str, frozenset[int]], polarity: Mapping[str, str],
@@ -1299,8 +1270,6 @@ def _natural_next(a: int, roles: list[_VarRole]) -> int | None:
 
 def _function_values(counter_plan: Any, functions_or_network: Any) -> Callable[[str, int], bool]:
     if isinstance(functions_or_network, Network):
-        from .network import counting_words, evaluate_words
-
         net = functions_or_network
         if any(g.op == "flipflop" for g in net.gates):     # registered outputs follow no transient
             net = Network([g for g in net.gates if g.op != "flipflop"], net.signals, net.inputs)
@@ -1408,23 +1377,24 @@ def _edges(ticks: frozenset[int], cycle: int) -> list[int]:
     return [b for b in range(cycle) if ((b - 1) % cycle in ticks) != (b in ticks)]
 
 
-def coincident_edges(delivered: Mapping[str, frozenset[int]], cycle: int) -> list[dict]:
+def coincident_edges(delivered: Mapping[str, frozenset[int]], cycle: int) -> list[CoincidentEdge]:
     """Every pair of signals with an edge on the same boundary (between tick b-1 and b).
 
-    >>> coincident_edges({"a": frozenset({0, 1}), "b": frozenset({2}), "c": frozenset({1})}, 4)
-    [{'signals': ['a', 'b'], 'at_tick': 2}, {'signals': ['a', 'c'], 'at_tick': 2}, {'signals': ['b', 'c'], 'at_tick': 2}]
+    >>> [(e.signals, e.at_tick) for e in
+    ...  coincident_edges({"a": frozenset({0, 1}), "b": frozenset({2}), "c": frozenset({1})}, 4)]
+    [(('a', 'b'), 2), (('a', 'c'), 2), (('b', 'c'), 2)]
     """
     edges = {name: set(_edges(frozenset(t), cycle)) for name, t in delivered.items()}
     names = sorted(edges)
     out = []
     for i, a in enumerate(names):
         for b in names[i + 1:]:
-            out += [{"signals": [a, b], "at_tick": tick} for tick in sorted(edges[a] & edges[b])]
+            out += [CoincidentEdge((a, b), tick) for tick in sorted(edges[a] & edges[b])]
     return out
 
 
-def mark_races(records: list[dict], delivered: Mapping[str, frozenset[int]], plan: Any,
-               cycle: int) -> list[dict]:
+def mark_races(records: Sequence[CoincidentEdge], delivered: Mapping[str, frozenset[int]], plan: Any,
+               cycle: int) -> list[CoincidentEdge]:
     """Each coincident pair with ``relation`` and ``race``: a race only where one signal
     gates what the other drives on the board (it selects a switch that routes the
     other); complementary signals (one asserted exactly when the other is not) are
@@ -1438,33 +1408,33 @@ def mark_races(records: list[dict], delivered: Mapping[str, frozenset[int]], pla
     everything = frozenset(range(cycle))
     out = []
     for rec in records:
-        a, b = rec["signals"]
+        a, b = rec.signals
         if frozenset(delivered.get(a, ())) == everything - frozenset(delivered.get(b, ())):
             relation = "complementary"
         elif b in routes.get(a, ()) or a in routes.get(b, ()):
             relation = "gates"
         else:
             relation = "independent"
-        out.append({**rec, "relation": relation, "race": relation == "gates"})
+        out.append(dataclasses.replace(rec, relation=relation, race=relation == "gates"))
     return out
 
 
-def edge_skews(trace: Trace, records: list[dict]) -> list[dict]:
+def edge_skews(trace: Trace, records: Sequence[CoincidentEdge]) -> list[CoincidentEdge]:
     """Each coincident pair with, from the trace, which signal settles first and by how much."""
     out = []
     for rec in records:
-        a, b = rec["signals"]
-        k = rec["at_tick"] or trace.cycle
-        entry = dict(rec)
+        a, b = rec.signals
+        k = rec.at_tick or trace.cycle
+        entry = rec
         times = {}
         for name in (a, b):
             net = trace.signals.get(name, ("",))[0]
             rows = trace.window(net, k) if net and k < trace.ticks else []
             times[name] = rows[-1][0] - k * trace.period_ns if rows else None
         if times[a] is not None and times[b] is not None:
-            entry.update({"first": a if times[a] <= times[b] else b,
-                          "skew_ns": round(abs(times[a] - times[b]), 1),
-                          "settle_ns": {a: round(times[a], 1), b: round(times[b], 1)}})
+            entry = dataclasses.replace(rec, first=a if times[a] <= times[b] else b,
+                                        skew_ns=round(abs(times[a] - times[b]), 1),
+                                        settle_ns=((a, round(times[a], 1)), (b, round(times[b], 1))))
         out.append(entry)
     return out
 
@@ -1653,17 +1623,17 @@ class Remedies:
 class TimingReport:
     """What the timing analysis found; the plan it read is left as it was.
 
-    ``glitches`` are ``Glitch.as_json`` records, ``coincident_edges`` the
+    ``glitches`` are ``Glitch.record()`` records, ``coincident_edges`` the
     pairs with ``relation`` and ``race``, ``warnings`` the plan's warnings
     with the timing ones added (in order), ``trace`` the typical-delay
     inertial simulation of two cycles (what the VCD and SVG show) and
     ``remedies`` the remedies named per glitch (``Remedies``).
     """
 
-    glitches: tuple[dict, ...]
-    coincident_edges: tuple[dict, ...]
-    register_checks: tuple[dict, ...]
-    pulse_widths: tuple[dict, ...]
+    glitches: tuple[GlitchRecord, ...]
+    coincident_edges: tuple[CoincidentEdge, ...]
+    register_checks: tuple[RegisterCheck, ...]
+    pulse_widths: tuple[PulseWidth, ...]
     warnings: tuple[str, ...]
     trace: Trace
     remedies: Remedies
@@ -1677,8 +1647,6 @@ def timing_report(design: Any) -> TimingReport:
     settles first), warnings (a clock too fast, setup / hold of registered
     outputs, runt clock and reset pulses) and the remedies per glitch.
     """
-    from .netlist import delivered_sets, simulate_ticks
-
     catalog = design.catalog
     plan = dataclasses.replace(design.plan, warnings=list(design.plan.warnings))   # read, never written
     spec = getattr(design, "spec", None)
@@ -1699,23 +1667,22 @@ def timing_report(design: Any) -> TimingReport:
     elif problems_max:
         plan.warnings.append(f"at worst-case delays the clock is too fast: {problems_max[0]}")
     found = merge_glitches(plan, expected, typ, run)
-    plan = dataclasses.replace(plan, glitches=[g.as_json() for g in found])
     check_slow_outputs(spec, plan)
-    mark_harmless(plan.glitches, spec, plan)
-    harmless = {(g["signal"], g["at_tick"]) for g in plan.glitches if g.get("harmless")}
+    plan = dataclasses.replace(plan, glitches=mark_harmless([g.record() for g in found], spec))
+    harmless = {(g.signal, g.at_tick) for g in plan.glitches if g.harmless}
     delivered = {n: t for n, t in delivered_sets(plan, levels).items() if n in typ.signals}
     plan = dataclasses.replace(plan, coincident_edges=mark_races(edge_skews(typ, coincident_edges(delivered, typ.cycle)),
                                        delivered, plan, typ.cycle))
     plan = dataclasses.replace(plan, register_checks=register_checks(plan, [typ, worst], catalog))
     for rec in plan.register_checks:
-        if not rec["setup_ok"]:
-            plan.warnings.append(f"{rec['signal']}: flip-flop {rec['flipflop']} ({rec['part']}) sees D settle "
-                                 f"{-rec['setup_slack_ns']:.0f} ns too late for its {rec['setup_needed_ns']:g} ns "
+        if not rec.setup_ok:
+            plan.warnings.append(f"{rec.signal}: flip-flop {rec.flipflop} ({rec.part}) sees D settle "
+                                 f"{-rec.setup_slack_ns:.0f} ns too late for its {rec.setup_needed_ns:g} ns "
                                  "setup time at worst-case delays; slow the clock")
-        if not rec["hold_ok"]:
-            plan.warnings.append(f"{rec['signal']}: flip-flop {rec['flipflop']} ({rec['part']}) sees D change "
-                                 f"{rec['hold_margin_ns']:g} ns after its clock edge, inside its "
-                                 f"{rec['hold_needed_ns']:g} ns hold time")
+        if not rec.hold_ok:
+            plan.warnings.append(f"{rec.signal}: flip-flop {rec.flipflop} ({rec.part}) sees D change "
+                                 f"{rec.hold_margin_ns:g} ns after its clock edge, inside its "
+                                 f"{rec.hold_needed_ns:g} ns hold time")
     plan = dataclasses.replace(plan, pulse_widths=pulse_width_checks(plan, typ, catalog, worst))
     for rec in plan.pulse_widths:
         plan.warnings.extend(pulse_warning_lines(rec))
@@ -1734,25 +1701,25 @@ def timing_report(design: Any) -> TimingReport:
                         Remedies(tuple(text), by_glitch, tuple(found)))
 
 
-def pulse_warning_lines(rec: dict) -> list[str]:
+def pulse_warning_lines(rec: PulseWidth) -> list[str]:
     """A runt clock or reset pulse, said once, with the remedy; a reset pulse the
     catalog has no figure for is said to be unchecked."""
-    if rec["what"] == "reset" and rec["ok"] is None:
-        return [f"the counter reset pulse on {rec['ref']} lasts {rec['width_ns']:.0f} ns at its narrowest "
-                f"(the catalog gives no minimum reset pulse width for {rec['part']} to check)"]
-    if rec["ok"] is not False:
+    if rec.what == "reset" and rec.ok is None:
+        return [f"the counter reset pulse on {rec.ref} lasts {rec.width_ns:.0f} ns at its narrowest "
+                f"(the catalog gives no minimum reset pulse width for {rec.part} to check)"]
+    if rec.ok is not False:
         return []
-    if rec["what"] == "power-on reset":
-        return [f"the power-on reset pulse on {rec['ref']} ({rec['part']}) may be as short as "
-                f"{rec['width_ns']:.0f} ns, shorter than the {rec['needed_ns']:g} ns minimum reset pulse "
+    if rec.what == "power-on reset":
+        return [f"the power-on reset pulse on {rec.ref} ({rec.part}) may be as short as "
+                f"{rec.width_ns:.0f} ns, shorter than the {rec.needed_ns:g} ns minimum reset pulse "
                 "at this supply; remedy: a longer power_on_reset time"]
-    if rec["what"] == "reset":
-        return [f"the counter reset pulse on {rec['ref']} ({rec['part']}) lasts {rec['width_ns']:.0f} ns, "
-                f"shorter than the {rec['needed_ns']:g} ns minimum at this supply: the count may not "
+    if rec.what == "reset":
+        return [f"the counter reset pulse on {rec.ref} ({rec.part}) lasts {rec.width_ns:.0f} ns, "
+                f"shorter than the {rec.needed_ns:g} ns minimum at this supply: the count may not "
                 "clear every time; remedy: a counter with a synchronous clear (74HC163) or a reset "
                 "stretched by an RC delay between two Schmitt stages, or a higher supply"]
-    return [f"the clock's {rec['width_ns']:.0f} ns half period is shorter than the {rec['needed_ns']:g} ns "
-            f"minimum clock pulse of {rec['ref']} ({rec['part']}) at this supply; remedy: a slower "
+    return [f"the clock's {rec.width_ns:.0f} ns half period is shorter than the {rec.needed_ns:g} ns "
+            f"minimum clock pulse of {rec.ref} ({rec.part}) at this supply; remedy: a slower "
             "clock or a higher supply"]
 
 
@@ -1828,7 +1795,7 @@ def registered_signals(network: Network) -> dict[str, Gate]:
     return {name: by_output[sig.net] for name, sig in network.signals.items() if sig.net in by_output}
 
 
-def register_checks(plan: Any, traces: Sequence[Trace], catalog: Any) -> list[dict]:
+def register_checks(plan: Any, traces: Sequence[Trace], catalog: Any) -> list[RegisterCheck]:
     """Setup and hold of every registered output's flip-flop, measured on the traces.
 
     Setup: the last change of D before each clocking edge, at the slowest
@@ -1858,21 +1825,18 @@ def register_checks(plan: Any, traces: Sequence[Trace], catalog: Any) -> list[di
                 if i < len(d_times) and d_times[i] < te + trace.period_ns:
                     hold_margin = min(hold_margin, d_times[i] - te)
         names = gate_names_of(plan)
-        record = {"signal": signal, "flipflop": names.get(gate.id, gate.id), "part": gate.part,
-                  "clock": clock, "edge": edge, "d": d, "setup_needed_ns": round(setup, 1),
-                  "hold_needed_ns": round(hold, 1),
-                  "setup_slack_ns": None if setup_slack == math.inf else round(setup_slack, 1),
-                  "hold_margin_ns": None if hold_margin == math.inf else round(hold_margin, 1)}
-        record["setup_ok"] = record["setup_slack_ns"] is None or record["setup_slack_ns"] >= 0
-        record["hold_ok"] = record["hold_margin_ns"] is None or record["hold_margin_ns"] >= hold
-        record["hold_basis"] = ("the simulated margin at typical and worst-case delays; the datasheets give "
-                                "no minimum delays, so it rests on D being decoded from outputs that "
-                                "change only after this flip-flop's own clocking edge")
-        out.append(record)
+        slack = None if setup_slack == math.inf else round(setup_slack, 1)
+        margin = None if hold_margin == math.inf else round(hold_margin, 1)
+        out.append(RegisterCheck(
+            signal, names.get(gate.id, gate.id), gate.part, clock, edge, d, round(setup, 1), round(hold, 1),
+            slack, margin, setup_ok=slack is None or slack >= 0, hold_ok=margin is None or margin >= hold,
+            hold_basis=("the simulated margin at typical and worst-case delays; the datasheets give "
+                        "no minimum delays, so it rests on D being decoded from outputs that "
+                        "change only after this flip-flop's own clocking edge")))
     return out
 
 
-def pulse_width_checks(plan: Any, trace: Trace, catalog: Any, worst: Trace | None = None) -> list[dict]:
+def pulse_width_checks(plan: Any, trace: Trace, catalog: Any, worst: Trace | None = None) -> list[PulseWidth]:
     """Every clock input, every asynchronous reset pulse and the power-on reset
     against the catalog's minimum width at the plan's supply (``clock_width``,
     ``reset_width``).
@@ -1895,9 +1859,9 @@ def pulse_width_checks(plan: Any, trace: Trace, catalog: Any, worst: Trace | Non
                 ((gate_names_of(plan).get(g.id, g.id), g) for g in plan.network.gates if g.op == "flipflop")]
     for ref, part_type in dict.fromkeys(clocked):
         need = flipflop_requirement_ns(catalog.parts.get(part_type), "clock_width", plan.supply)
-        out.append({"what": "clock", "ref": ref, "part": part_type, "width_ns": round(half, 1),
-                    "needed_ns": None if need is None else round(need, 1),
-                    "ok": None if need is None else half >= need})
+        out.append(PulseWidth("clock", ref, part_type, round(half, 1),
+                              needed_ns=None if need is None else round(need, 1),
+                              ok=None if need is None else half >= need))
     out += _reset_pulse_checks(plan, trace, worst, catalog)
     out += _power_on_checks(plan, catalog)
     return out
@@ -1912,7 +1876,7 @@ def _narrowest_resets(trace: Trace | None) -> dict[str, ResetPulse]:
     return found
 
 
-def _reset_pulse_checks(plan: Any, typ: Trace, worst: Trace | None, catalog: Any) -> list[dict]:
+def _reset_pulse_checks(plan: Any, typ: Trace, worst: Trace | None, catalog: Any) -> list[PulseWidth]:
     at_typ, at_max = _narrowest_resets(typ), _narrowest_resets(worst)
     out = []
     for ref, pulse in at_typ.items():
@@ -1920,19 +1884,19 @@ def _reset_pulse_checks(plan: Any, typ: Trace, worst: Trace | None, catalog: Any
         narrow = other if other is not None and other.width_ns < pulse.width_ns else pulse
         part_type = next((c.part for c in plan.counter.chips if c.ref == ref), "")
         need = flipflop_requirement_ns(catalog.parts.get(part_type), "reset_width", plan.supply)
-        out.append({"what": "reset", "ref": ref, "part": part_type,
-                    "width_ns": round(narrow.width_ns, 1), "at_tick": narrow.at_tick,
-                    "width_typ_ns": round(pulse.width_ns, 1),
-                    "width_max_ns": None if other is None else round(other.width_ns, 1),
-                    "corner": "max" if narrow is other else "typ",
-                    "basis": "the narrower of the pulses simulated at typical and at worst-case (max) "
-                             "delays; the catalog gives no minimum delays to simulate faster parts",
-                    "needed_ns": None if need is None else round(need, 1),
-                    "ok": None if need is None else narrow.width_ns >= need})
+        out.append(PulseWidth(
+            "reset", ref, part_type, round(narrow.width_ns, 1),
+            needed_ns=None if need is None else round(need, 1),
+            ok=None if need is None else narrow.width_ns >= need, at_tick=narrow.at_tick,
+            width_typ_ns=round(pulse.width_ns, 1),
+            width_max_ns=None if other is None else round(other.width_ns, 1),
+            corner="max" if narrow is other else "typ",
+            basis="the narrower of the pulses simulated at typical and at worst-case (max) "
+                  "delays; the catalog gives no minimum delays to simulate faster parts"))
     return out
 
 
-def _power_on_checks(plan: Any, catalog: Any) -> list[dict]:
+def _power_on_checks(plan: Any, catalog: Any) -> list[PulseWidth]:
     """The power-on reset pulse, at its shortest, against each held counter's minimum reset width."""
     por = plan.power_on_reset
     if por is None:
@@ -1942,12 +1906,12 @@ def _power_on_checks(plan: Any, catalog: Any) -> list[dict]:
     for ref, _pin in por.resets:
         part_type = next((c.part for c in plan.counter.chips if c.ref == ref), "")
         need = flipflop_requirement_ns(catalog.parts.get(part_type), "reset_width", plan.supply)
-        out.append({"what": "power-on reset", "ref": ref, "part": part_type,
-                    "width_ns": round(shortest_ns, 1), "width_typ_ns": round(por.width_s[1] * 1e9, 1),
-                    "basis": "the shortest pulse over the Schmitt threshold spread and the R and C "
-                             "tolerances (R_TOLERANCE, C_TOLERANCE: common practice)",
-                    "needed_ns": None if need is None else round(need, 1),
-                    "ok": None if need is None else shortest_ns >= need})
+        out.append(PulseWidth(
+            "power-on reset", ref, part_type, round(shortest_ns, 1),
+            needed_ns=None if need is None else round(need, 1),
+            ok=None if need is None else shortest_ns >= need, width_typ_ns=round(por.width_s[1] * 1e9, 1),
+            basis="the shortest pulse over the Schmitt threshold spread and the R and C "
+                  "tolerances (R_TOLERANCE, C_TOLERANCE: common practice)"))
     return out
 
 

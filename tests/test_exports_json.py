@@ -11,12 +11,12 @@ import dataclasses
 import json
 import os
 import re
-from dataclasses import dataclass
 
 import pytest
 
 from synth.exports import atomic_write_text
 from synth.exports.plan_json import FORMAT, plan_to_json, write_json
+from synth.findings import CoincidentEdge, GlitchRecord
 from synth.exports.wiring import driver_first, wire_line, wiring_markdown, write_wiring
 from synth.netlist import wire_list
 from test_packing import plan_for
@@ -76,19 +76,19 @@ def test_json_round_trips(plan):
     assert json.loads(json.dumps(doc)) == doc
 
 
-@dataclass
-class Glitch:
-    signal: str
-    at_tick: int
-    width_ns: float
-
-
 def test_json_takes_glitch_records(plan):
-    plan = dataclasses.replace(plan, glitches=[Glitch("row3", 4, 120.0)],
-                               coincident_edges=[{"signals": ("row3", "pair"), "at_tick": 3}])
+    plan = dataclasses.replace(plan, glitches=[GlitchRecord(
+        "row3", 4, 120.0, "count 3->4", "Q1 -> g1 -> row3", "static", "high", 12.5, "transient_state",
+        width_max_ns=180.0, transient_state=3, models=("states", "transport_typ"))],
+        coincident_edges=[CoincidentEdge(("pair", "row3"), 3, relation="independent", race=False)])
     doc = plan_to_json(plan)
-    assert doc["glitches"] == [{"signal": "row3", "at_tick": 4, "width_ns": 120.0}]
-    assert doc["coincident_edges"] == [{"signals": ["row3", "pair"], "at_tick": 3}]
+    assert doc["glitches"] == [{"signal": "row3", "at_tick": 4, "width_ns": 120.0, "cause": "count 3->4",
+                                "path": "Q1 -> g1 -> row3", "kind": "static", "wrong_level": "high",
+                                "start_ns": 12.5, "width_max_ns": 180.0, "mechanism": "transient_state",
+                                "transient_state": 3, "models": ["count_states", "typical_delays"]}]
+    assert doc["glitches_by_model"]["count_states"] == [["row3", 4]]
+    assert doc["coincident_edges"] == [{"signals": ["pair", "row3"], "at_tick": 3, "relation": "independent",
+                                        "race": False}]
 
 
 def test_json_extras(plan):

@@ -107,9 +107,9 @@ def test_example_deck_agrees_with_ngspice(example, tmp_path):
     assert osc.expected == pytest.approx(3 / plan.oscillator.f_nom)
     ladder = plan.ladders["ramp"]
     assert [c.expected for c in checks if c.name.startswith("lad_ramp_c")] == list(ladder.levels)
-    offer = next(o for o in plan.rc_offers if o.get("applicable"))
+    offer = next(o for o in plan.rc_offers if o.applicable)
     rise = next(c for c in checks if c.name == "dly1_rise")
-    assert rise.expected * 1e9 == pytest.approx(offer["delay_ns"]["rising"][1], abs=0.1)
+    assert rise.expected * 1e9 == pytest.approx(offer.rising_ns[1], abs=0.1)
 
 
 def test_example_deck_is_built_from_the_wiring(example):

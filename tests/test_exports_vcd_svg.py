@@ -46,7 +46,7 @@ def design(catalog):
     run = dict(catalog=catalog, supply=5.0, clock_period_ns=None, cycles=2,
                gate_names=timing.gate_names_of(plan))
     found = timing.merge_glitches(plan, None, trace, run)
-    plan.glitches = [g.as_json() for g in found]
+    plan.glitches = [g.record() for g in found]
     delivered = {n: frozenset(t for t in range(16) if trace.sample(s.net)[t] == (s.polarity == "high"))
                  for n, s in net.signals.items()}
     plan.coincident_edges = timing.edge_skews(trace, timing.coincident_edges(delivered, 16))
@@ -131,7 +131,7 @@ def test_svg_marks_each_glitch_and_offers_a_view_per_marked_tick(design):
     main = _main(root)
     marks = [a for a in main.iter(f"{SVG}a") if a.find(f"{SVG}g/{SVG}path[@class='glitch']") is not None]
     assert len(marks) == len(plan.glitches)
-    ticks = sorted({g["at_tick"] for g in plan.glitches} | {c["at_tick"] for c in plan.coincident_edges})
+    ticks = sorted({g.at_tick for g in plan.glitches} | {c.at_tick for c in plan.coincident_edges})
     views = [v.get("id") for v in root.iter(f"{SVG}view")]
     assert views == [f"tick-{t}" for t in ticks]
     links = {a.get("href") for a in main.iter(f"{SVG}a")}

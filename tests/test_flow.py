@@ -49,7 +49,7 @@ def _zero_ticks(design) -> list[bool]:
 
 def test_the_plan_matches_an_independent_tick_count(plain):
     assert _zero_ticks(plain) == [t == 0 for t in range(16)]
-    assert sorted(g["at_tick"] for g in plain.plan.glitches) == ZERO_SPIKES
+    assert sorted(g.at_tick for g in plain.plan.glitches) == ZERO_SPIKES
 
 
 def test_the_design_record_is_frozen(plain):
@@ -95,7 +95,7 @@ def test_the_remedies_remap_at_the_users_effort(tmp_path, catalog, monkeypatch):
     fixed = flow.make_plan(spec, stock, catalog=catalog, fix=["glitches"], effort="quick")
     assert len(seen) > 1 and set(seen) == {"quick"}, seen
     record, = fixed.plan.timing_fixes
-    assert record["remedies_applied"][0] == "decode_choice"
+    assert record.remedies_applied[0] == "decode_choice"
     got = simulate_ticks(fixed.plan)["s"]
     assert [got[t] for t in range(16) if t != 6] == [t == 14 for t in range(16) if t != 6]
 

@@ -21,6 +21,7 @@ import pytest
 
 from synth import timing
 from synth.exports.plan_json import plan_to_json
+from synth.findings import Cost
 from synth.exports.verilog import spec_signals, verilog_names, write_verilog
 from synth.netlist import simulate_ticks, verilog_module_name
 from synth.pipeline import make_plan
@@ -42,7 +43,7 @@ def _files(tmp_path, parts: dict[str, int], passives: str = ""):
 
 
 def _ticks(design, signal="zero"):
-    return sorted(g["at_tick"] for g in design.plan.glitches if g["signal"] == signal)
+    return sorted(g.at_tick for g in design.plan.glitches if g.signal == signal)
 
 
 @pytest.fixture(scope="module")
@@ -60,22 +61,22 @@ def test_zero_decode_spikes_on_the_entries_to_2_4_8(fixed):
     by_model = plan_to_json(before.plan)["glitches_by_model"]
     assert by_model["count_states"] == [["zero", t] for t in ZERO_SPIKES]
     for g in before.plan.glitches:
-        assert g["mechanism"] == "transient_state" and g["transient_state"] == 0
-        assert "states" in g["models"] and "transport_typ" in g["models"]
+        assert g.mechanism == "transient_state" and g.transient_state == 0
+        assert "states" in g.models and "transport_typ" in g.models
 
 
 def test_clock_gating_removes_every_glitch_and_says_what_it_cost(fixed):
     before, after = fixed
     assert after.plan.glitches == []
     record, = after.plan.timing_fixes
-    assert record["signal"] == "zero" and record["remedy"] == "clock_gating" and record["applied"]
-    assert record["glitches_before"] == ZERO_SPIKES and record["glitches_after"] == []
+    assert record.signal == "zero" and record.remedy == "clock_gating" and record.applied
+    assert list(record.glitches_before) == ZERO_SPIKES and record.glitches_after == ()
     # One AND gate on a 74HC08 that the plan did not use before: one chip, one gate.
-    assert record["cost"] == {"chips": 1, "gates": 1}
+    assert record.cost == Cost(chips=1, gates=1)
     assert len(after.plan.chips) == len(before.plan.chips) + 1
     assert "74HC08" in after.plan.bom
-    assert "asserted only while CLK high" in record["detail"]
-    tried = {t["remedy"]: t["result"] for t in record["tried"]}
+    assert "asserted only while CLK high" in record.detail
+    tried = {t.remedy: t.result for t in record.tried}
     assert tried["decode_choice"].startswith("not applicable")
     assert tried["synchronous_counter"].startswith("not applicable")
 
@@ -145,23 +146,23 @@ def test_not_applicable_when_no_gate_is_left_and_the_rc_offer(tmp_path, catalog)
                          "resistors: [10k, 22k]\ncapacitors: [220p, 330p, 1n]\n")
     design = make_plan(spec, stock, catalog=catalog, fix=["glitches"])
     record, = design.plan.timing_fixes
-    assert record["remedy"] == "note" and not record["applied"]
-    assert record["glitches_after"] == ZERO_SPIKES
-    assert any(t["remedy"] == "clock_gating" and t["result"].startswith("not applicable")
-               for t in record["tried"])
-    offer, = [o for o in design.plan.rc_offers if o["problem"] == "glitch"]
-    assert offer["applicable"] and offer["receiver"] == "74HC14" and offer["applied"] is False
-    assert "unit A" in offer["stages"][0] and "unit B" in offer["stages"][1]
+    assert record.remedy == "note" and not record.applied
+    assert list(record.glitches_after) == ZERO_SPIKES
+    assert any(t.remedy == "clock_gating" and t.result.startswith("not applicable")
+               for t in record.tried)
+    offer, = [o for o in design.plan.rc_offers if o.problem == "glitch"]
+    assert offer.applicable and offer.receiver == "74HC14" and offer.applied is False
+    assert "unit A" in offer.stages[0] and "unit B" in offer.stages[1]
     # The RC time constant with the catalog's typical VT+ (74HC14 at 5 V) reproduces the offer.
     vt = catalog.parts["74HC14"].thresholds
     from synth.analog import thresholds_at
 
     row = thresholds_at(vt, 5.0)["vt_plus"]
-    t_typ = offer["r_ohm"] * offer["c_farad"] * math.log(5.0 / (5.0 - row["typ"]))
-    assert offer["delay_ns"]["rising"][1] == pytest.approx(t_typ * 1e9, abs=0.1)
-    assert offer["delay_ns"]["rising"][0] > max(g["width_max_ns"] for g in design.plan.glitches)
-    assert offer["delay_ns"]["rising"][2] < 10_000 / 2          # well inside the 10 us tick
-    assert any("R 10 kΩ" in w or "R 22 kΩ" in w for w in offer["wiring"])
+    t_typ = offer.values.r_ohm * offer.values.c_farad * math.log(5.0 / (5.0 - row["typ"]))
+    assert offer.rising_ns[1] == pytest.approx(t_typ * 1e9, abs=0.1)
+    assert offer.rising_ns[0] > max(g.width_max_ns for g in design.plan.glitches)
+    assert offer.rising_ns[2] < 10_000 / 2          # well inside the 10 us tick
+    assert any("R 10 kΩ" in w or "R 22 kΩ" in w for w in offer.values.wiring)
 
 
 # ---------------------------------------------------------------- a shipped example, fixed
@@ -210,18 +211,18 @@ def test_fixed_example_cosimulates_without_unreported_spikes(catalog, tmp_path):
                        catalog=catalog, fix=["glitches"])
     plan, spec = design.plan, design.spec
     assert set(plan.strobed) == {"frame"}
-    ready, = [r for r in plan.timing_fixes if r["signal"] == "ready"]
-    assert ready["remedy"] == "note"
-    assert any(t["remedy"] == "clock_gating" and "several ticks" in t["result"] for t in ready["tried"])
-    assert any(t["remedy"] == "registered" and "flip-flop" in t["result"] for t in ready["tried"])
-    track, = [r for r in plan.timing_fixes if r["signal"] == "track"]
-    assert track["remedy"] == "note" and any("several ticks" in t["result"] for t in track["tried"])
+    ready, = [r for r in plan.timing_fixes if r.signal == "ready"]
+    assert ready.remedy == "note"
+    assert any(t.remedy == "clock_gating" and "several ticks" in t.result for t in ready.tried)
+    assert any(t.remedy == "registered" and "flip-flop" in t.result for t in ready.tried)
+    track, = [r for r in plan.timing_fixes if r.signal == "track"]
+    assert track.remedy == "note" and any("several ticks" in t.result for t in track.tried)
     period_ps = timing.ps(1e9 / spec.clock.frequency_hz)
     cycle = spec.cycle
     samples, waves = _icarus(plan, catalog, tmp_path, period_ps, 2 * cycle)
     zero_delay = simulate_ticks(plan)
     names = verilog_names(plan, catalog)
-    reported = {(g["signal"], g["at_tick"]) for g in plan.glitches}
+    reported = {(g.signal, g.at_tick) for g in plan.glitches}
     for name, sig in spec.signals.items():
         assert samples[name] == [zero_delay[name][t % cycle] for t in range(2 * cycle)]
         active = plan.signals[name]["polarity"] == "high"
@@ -254,9 +255,9 @@ def test_synchronous_counter_from_the_bin_when_no_gate_is_left(tmp_path, catalog
     assert _ticks(before) == [2, 4, 8, 16, 32, 64, 128, 256]
     after = make_plan(spec, stock, catalog=catalog, fix=["glitches"])
     record, = after.plan.timing_fixes
-    assert record["remedy"] == "synchronous_counter" and record["cost"]["chips"] == 1
+    assert record.remedy == "synchronous_counter" and record.cost.chips == 1
     assert {c.part for c in after.counter.chips} == {"4520"}
-    states = {g["at_tick"] for g in after.plan.glitches if "states" in g["models"]}
+    states = {g.at_tick for g in after.plan.glitches if "states" in g.models}
     assert states == {16, 256}
     assert list(simulate_ticks(after.plan)["zero"]) == [t == 0 for t in range(512)]
 
@@ -273,12 +274,12 @@ def test_another_decode_choice_where_the_transient_is_a_dont_care(tmp_path, cata
     stock = tmp_path / "b.yaml"
     stock.write_text("parts:\n  74HC4040: 1\n  74HC21: 1\n  74HC04: 1\n")
     before = make_plan(spec, stock, catalog=catalog)
-    assert {(g["at_tick"], g["transient_state"]) for g in before.plan.glitches} == {(0, 14), (8, 6)}
+    assert {(g.at_tick, g.transient_state) for g in before.plan.glitches} == {(0, 14), (8, 6)}
     after = make_plan(spec, stock, catalog=catalog, fix=["glitches"])
     record, = after.plan.timing_fixes
-    assert record["remedies_applied"] == ["decode_choice", "clock_gating"]
-    assert record["tried"][0] == {"remedy": "decode_choice", "result": record["tried"][0]["result"]}
-    assert record["tried"][0]["result"].startswith("tried: 1 glitches left (was 2), +0 chips")
-    assert after.plan.glitches == [] and record["cost"] == {"chips": 0, "gates": 1}
+    assert record.remedies_applied == ("decode_choice", "clock_gating")
+    assert record.tried[0].remedy == "decode_choice"
+    assert record.tried[0].result.startswith("tried: 1 glitches left (was 2), +0 chips")
+    assert after.plan.glitches == [] and record.cost == Cost(chips=0, gates=1)
     got = simulate_ticks(after.plan)["s"]
     assert [got[t] for t in range(16) if t != 6] == [t == 14 for t in range(16) if t != 6]

@@ -17,6 +17,7 @@ import pytest
 
 from synth.cli import main
 from synth.commands.plan import glitch_rows
+from synth.findings import GlitchRecord
 from synth.harmless import SLOW_LOAD_NS, mark_harmless
 from synth.inventory import load_catalog
 from synth.pipeline import make_plan
@@ -49,26 +50,27 @@ def plans(tmp_path_factory):
 
 def test_a_short_glitch_on_a_slow_output_is_harmless(plans):
     plan, _ = plans
-    lamp = [g for g in plan.glitches if g["signal"] == "lamp"]
-    frame = [g for g in plan.glitches if g["signal"] == "frame"]
-    assert lamp and frame and [g["at_tick"] for g in lamp] == [g["at_tick"] for g in frame]
-    assert all(g["harmless"] and "feeds: slow" in g["harmless_why"] for g in lamp)
-    assert not any(g.get("harmless") for g in frame)
+    lamp = [g for g in plan.glitches if g.signal == "lamp"]
+    frame = [g for g in plan.glitches if g.signal == "frame"]
+    assert lamp and frame and [g.at_tick for g in lamp] == [g.at_tick for g in frame]
+    assert all(g.harmless and "feeds: slow" in g.harmless_why for g in lamp)
+    assert not any(g.harmless for g in frame)
     row, = [r for r in glitch_rows(plan) if r[0] == "lamp"]
     assert row[4].startswith("harmless:")
 
 
 def test_the_fix_leaves_a_harmless_glitch_alone(plans):
     _, fixed = plans
-    assert {r["signal"] for r in fixed.timing_fixes} == {"frame"}
+    assert {r.signal for r in fixed.timing_fixes} == {"frame"}
 
 
 def test_a_wide_pulse_still_counts():
     spec = type("S", (), {})()
     spec.signals = {"lamp": type("G", (), {"feeds": "slow"})()}
-    records = [{"signal": "lamp", "at_tick": 3, "width_ns": 12.0, "width_max_ns": SLOW_LOAD_NS + 1}]
-    mark_harmless(records, spec, None)
-    assert records[0]["harmless"] is False and "it counts" in records[0]["harmless_why"]
+    records = [GlitchRecord("lamp", 3, 12.0, "", "", "static", "high", 0.0, "gate_paths",
+                            width_max_ns=SLOW_LOAD_NS + 1)]
+    marked, = mark_harmless(records, spec)
+    assert marked.harmless is False and "it counts" in marked.harmless_why
 
 
 @pytest.mark.parametrize("body, words", [

@@ -48,20 +48,20 @@ def cut(tmp_path_factory):
 
 
 def test_reset_width_measured_at_both_corners(cut):
-    reset, = [c for c in cut.plan.pulse_widths if c["what"] == "reset"]
-    assert reset["width_typ_ns"] > 0 and reset["width_max_ns"] > 0
-    assert reset["width_ns"] == min(reset["width_typ_ns"], reset["width_max_ns"])
-    assert reset["corner"] in ("typ", "max") and "no minimum delays" in reset["basis"]
-    assert reset["needed_ns"] == 16 and reset["ok"]
+    reset, = [c for c in cut.plan.pulse_widths if c.what == "reset"]
+    assert reset.width_typ_ns > 0 and reset.width_max_ns > 0
+    assert reset.width_ns == min(reset.width_typ_ns, reset.width_max_ns)
+    assert reset.corner in ("typ", "max") and "no minimum delays" in reset.basis
+    assert reset.needed_ns == 16 and reset.ok
 
 
 def test_the_narrower_corner_decides(cut):
     """Called with the typical trace alone the figure is the typical one; with the
     worst-case trace too, never wider."""
-    alone, = [c for c in pulse_width_checks(cut.plan, cut.trace, CATALOG) if c["what"] == "reset"]
-    assert alone["width_max_ns"] is None and alone["width_ns"] == alone["width_typ_ns"]
-    both, = [c for c in cut.plan.pulse_widths if c["what"] == "reset"]
-    assert both["width_ns"] <= alone["width_ns"]
+    alone, = [c for c in pulse_width_checks(cut.plan, cut.trace, CATALOG) if c.what == "reset"]
+    assert alone.width_max_ns is None and alone.width_ns == alone.width_typ_ns
+    both, = [c for c in cut.plan.pulse_widths if c.what == "reset"]
+    assert both.width_ns <= alone.width_ns
 
 
 POR = """\
@@ -87,12 +87,12 @@ def _por(tmp_path, width):
 def test_power_on_reset_checked_against_the_minimum_reset_width(tmp_path):
     design = _por(tmp_path, "10 ms")
     por = design.plan.power_on_reset
-    rec, = [c for c in design.plan.pulse_widths if c["what"] == "power-on reset"]
+    rec, = [c for c in design.plan.pulse_widths if c.what == "power-on reset"]
     low = (1 - R_TOLERANCE) * (1 - C_TOLERANCE)
     vt_min = por.thresholds["vt_plus"]["min"]
     shortest = por.r * por.c * math.log(5.0 / (5.0 - vt_min)) * low * 1e9
-    assert rec["width_ns"] == pytest.approx(shortest, rel=1e-3)
-    assert rec["needed_ns"] == 140 and rec["ok"] is True and rec["part"] == "4040"
+    assert rec.width_ns == pytest.approx(shortest, rel=1e-3)
+    assert rec.needed_ns == 140 and rec.ok is True and rec.part == "4040"
 
 
 def test_a_short_power_on_pulse_is_a_runt(tmp_path):
@@ -102,7 +102,7 @@ def test_a_short_power_on_pulse_is_a_runt(tmp_path):
     part = CATALOG.parts["4040"]
     slow = dataclasses.replace(part, timing={**part.timing, "reset_width": {5: {"typ": 2500, "max": 5000}}})
     catalog = dataclasses.replace(CATALOG, parts={**CATALOG.parts, "4040": slow})
-    rec, = [c for c in pulse_width_checks(design.plan, design.trace, catalog) if c["what"] == "power-on reset"]
-    assert rec["ok"] is False and rec["needed_ns"] == 5000
+    rec, = [c for c in pulse_width_checks(design.plan, design.trace, catalog) if c.what == "power-on reset"]
+    assert rec.ok is False and rec.needed_ns == 5000
     text = " ".join(pulse_warning_lines(rec))
     assert "shorter than the 5000 ns minimum" in text and "remedy" in text

@@ -137,7 +137,7 @@ def test_the_tick_by_tick_levels_are_unchanged(design):
     levels = simulate_ticks(design.plan)
     assert [t for t, v in enumerate(levels["frame"]) if v] == [0, 1, 2, 3]
     assert design.trace.sample(design.plan.signals["frame"]["net"])[:16] == list(levels["frame"])
-    assert not [g for g in design.plan.glitches if g["signal"] == "frame"]
+    assert not [g for g in design.plan.glitches if g.signal == "frame"]
 
 
 @needs_ngspice
@@ -203,16 +203,16 @@ RACE_BIN = BIN.replace("74HC20: 1}", "74HC20: 1, 74HC4053: 1}")
 def test_fix_races_applies_the_offered_delay(tmp_path):
     spec, stock = _write(tmp_path, "s.yaml", RACE), _write(tmp_path, "b.yaml", RACE_BIN)
     offered = make_plan(spec, stock, catalog=CATALOG).plan
-    offer, = [o for o in offered.rc_offers if o["problem"] == "race"]
-    assert offer["delayed"] == "sel" and not offered.rc_delays
+    offer, = [o for o in offered.rc_offers if o.problem == "race"]
+    assert offer.delayed == "sel" and not offered.rc_delays
     fixed = make_plan(spec, stock, catalog=CATALOG, fix=["races"]).plan
     d, = fixed.rc_delays
-    assert d.signal == "sel" and d.asked_by == "--fix races" and (d.r, d.c) == (offer["r_ohm"], offer["c_farad"])
+    assert d.signal == "sel" and d.asked_by == "--fix races" and (d.r, d.c) == (offer.values.r_ohm, offer.values.c_farad)
     assert fixed.switches["sw"]["control_net"] == d.nets["output"]
     pin = fixed.switches["sw"]["control_pin"]
     assert fixed.chip(fixed.switches["sw"]["ref"]).pins[pin] == d.nets["output"]
     edge, = fixed.coincident_edges
-    assert edge["race"] is False and "RC delay on sel" in edge["separated_by"]
+    assert edge.race is False and "RC delay on sel" in edge.separated_by
 
 
 @pytest.mark.parametrize("edit, code, words", [

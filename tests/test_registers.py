@@ -95,10 +95,10 @@ def test_arm_plans_without_a_glitch(key, catalog, tmp_path):
     plan = design.plan
     assert plan.glitches == []
     assert "74HC74" in plan.bom
-    assert plan.registered["arm"]["part"] == "74HC74"
-    assert not getattr(plan, "strobed", {})
+    assert plan.registered["arm"].part == "74HC74"
+    assert not plan.strobed
     rec = plan.register_checks[0]
-    assert rec["setup_ok"] and rec["hold_ok"] and rec["hold_margin_ns"] > rec["hold_needed_ns"]
+    assert rec.setup_ok and rec.hold_ok and rec.hold_margin_ns > rec.hold_needed_ns
     # The 74HC74 counts on CLK's rising edge, the 74HC4040 on a falling one: the counter
     # takes CLK through an inverter and the plan's ticks start on CLK's rising edge.
     assert plan.clock_edge == "rising"
@@ -117,7 +117,7 @@ def test_registered_output_is_steady_in_icarus(bin_text, supply, part, catalog, 
     spec, bin_path = _files(tmp_path, ARM_SPEC % "steady: true", bin_text, supply)
     design = make_plan(spec, bin_path, catalog=catalog)
     plan = design.plan
-    assert plan.registered["arm"]["part"] == part and plan.glitches == []
+    assert plan.registered["arm"].part == part and plan.glitches == []
     trace = timing.simulate(plan.counter, plan.network, catalog, plan.supply, cycles=2,
                             clock_period_ns=1000.0, gate_names=timing.gate_names_of(plan))
     period = timing.ps(trace.period_ns)

@@ -17,6 +17,7 @@ import pytest
 from conftest import Chip, CounterPlan, Reset, Var
 
 from synth.errors import InternalError
+from synth.findings import CoincidentEdge
 from synth.network import Gate, Network, SignalOut
 from synth import timing
 
@@ -242,7 +243,7 @@ def test_coincident_edges_every_pair_on_the_same_boundary():
     delivered = {"phase_a": frozenset({0, 1, 2}), "index": frozenset({0}),
                  "phase_b": frozenset({4, 5, 6})}
     got = timing.coincident_edges(delivered, 16)
-    assert got == [{"signals": ["index", "phase_a"], "at_tick": 0}]
+    assert got == [CoincidentEdge(("index", "phase_a"), 0)]
 
 
 def test_coincident_edges_cyclic_boundary_and_skew(catalog):
@@ -251,13 +252,13 @@ def test_coincident_edges_cyclic_boundary_and_skew(catalog):
                  Gate("g2", "4001", "nor", ("Q3", "Q4"), ("early",)))
     delivered = {"late": frozenset({12, 13, 14, 15}), "early": frozenset({0, 1, 2, 3})}
     records = timing.coincident_edges(delivered, 16)
-    assert records == [{"signals": ["early", "late"], "at_tick": 0}]
+    assert records == [CoincidentEdge(("early", "late"), 0)]
     trace = timing.simulate(cp, net, catalog, 5.0)
     skewed, = timing.edge_skews(trace, records)
     # late falls with Q3 (105 + 2 x 80 ns) through the 4081 (160 ns): 425 ns;
     # early rises with Q4 (105 + 3 x 80 ns) through the 4001 (120 ns): 465 ns.
-    assert skewed["first"] == "late" and skewed["skew_ns"] == 40.0
-    assert skewed["settle_ns"] == {"early": 465.0, "late": 425.0}
+    assert skewed.first == "late" and skewed.skew_ns == 40.0
+    assert skewed.to_json()["settle_ns"] == {"early": 465.0, "late": 425.0}
 
 
 # ---------------------------------------------------------------- remedies
@@ -366,21 +367,21 @@ def test_timing_report_of_a_stand_in_design(catalog):
     spec = SimpleNamespace(clock=SimpleNamespace(frequency_hz=100e3), signals={})
     design = SimpleNamespace(plan=plan, catalog=catalog, spec=spec, stock=Stock({"4040": 1, "4520": 1}))
     report = timing.timing_report(design)
-    got = {(g["signal"], g["at_tick"]): g for g in report.glitches}
+    got = {(g.signal, g.at_tick): g for g in report.glitches}
     assert sorted(got) == [("z13", 4), ("z13", 12), ("zero", 2), ("zero", 4), ("zero", 8)]
-    assert got[("z13", 4)]["passes_gate_delay"] is True and got[("z13", 4)]["width_ns"] == 160.0
-    assert got[("zero", 2)]["passes_gate_delay"] is False and got[("zero", 2)]["width_max_ns"] == 160.0
-    assert got[("zero", 2)]["path"] == "Q1 -> U2_A -> zero"
+    assert got[("z13", 4)].passes_gate_delay is True and got[("z13", 4)].width_ns == 160.0
+    assert got[("zero", 2)].passes_gate_delay is False and got[("zero", 2)].width_max_ns == 160.0
+    assert got[("zero", 2)].path == "Q1 -> U2_A -> zero"
     # zero rises on boundary 0 and falls on 1; z13 switches on both too (ticks 0, 2, 8, 10 high).
-    assert [(c["signals"], c["at_tick"]) for c in report.coincident_edges] == [
-        (["z13", "zero"], 0), (["z13", "zero"], 1)]
-    assert report.coincident_edges[1]["first"] == "z13"     # 4001 (120 ns) beats 4002 (160 ns)
+    assert [(c.signals, c.at_tick) for c in report.coincident_edges] == [
+        (("z13", "zero"), 0), (("z13", "zero"), 1)]
+    assert report.coincident_edges[1].first == "z13"     # 4001 (120 ns) beats 4002 (160 ns)
     assert report.trace.period_ns == 10_000 and report.trace.cycles == 2
     assert any("a synchronous counter: the bin has 4520" in line for line in report.remedies.text)
     # Each record names the analyses that found it (formats.md section 3 `glitches`).
-    assert got[("zero", 2)]["models"] == ["transport_typ", "transport_max", "states"]
-    assert got[("z13", 4)]["models"] == ["transport_typ", "transport_max", "inertial_typ", "states"]
-    assert {g["mechanism"] for g in report.glitches} == {"transient_state"}
+    assert got[("zero", 2)].models == ("transport_typ", "transport_max", "states")
+    assert got[("z13", 4)].models == ("transport_typ", "transport_max", "inertial_typ", "states")
+    assert {g.mechanism for g in report.glitches} == {"transient_state"}
     assert plan.glitches == []          # the report is new records; the plan given is not changed
 
 

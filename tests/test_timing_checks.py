@@ -14,6 +14,7 @@ from pathlib import Path
 import pytest
 
 from synth.commands.plan import glitch_rows, remedy_lines
+from synth.findings import CoincidentEdge, GlitchRecord
 from synth.inventory import load_catalog
 from synth.pipeline import make_plan
 from synth.timing import Remedies, mark_races, pulse_warning_lines, pulse_width_checks
@@ -38,11 +39,11 @@ def design(tmp_path_factory):
 
 
 def test_clock_and_reset_widths_checked_against_the_catalog(design):
-    checks = {(c["what"], c["ref"]): c for c in design.plan.pulse_widths}
+    checks = {(c.what, c.ref): c for c in design.plan.pulse_widths}
     clock = checks[("clock", "U1")]
-    assert clock["needed_ns"] == 16 and clock["width_ns"] == 50000.0 and clock["ok"]
+    assert clock.needed_ns == 16 and clock.width_ns == 50000.0 and clock.ok
     reset = checks[("reset", "U1")]
-    assert reset["needed_ns"] == 16 and reset["width_ns"] > 0 and reset["at_tick"] == 0
+    assert reset.needed_ns == 16 and reset.width_ns > 0 and reset.at_tick == 0
 
 
 def test_a_runt_reset_gets_a_warning_and_a_remedy(design):
@@ -52,34 +53,33 @@ def test_a_runt_reset_gets_a_warning_and_a_remedy(design):
     slow = dataclasses.replace(part, timing={**part.timing, "reset_width": {5: {"typ": 500, "max": 1000}}})
     catalog = dataclasses.replace(catalog, parts={**catalog.parts, "74HC4040": slow})
     checks = pulse_width_checks(design.plan, design.trace, catalog)
-    reset, = [c for c in checks if c["what"] == "reset"]
-    assert reset["ok"] is False and reset["needed_ns"] == 1000
+    reset, = [c for c in checks if c.what == "reset"]
+    assert reset.ok is False and reset.needed_ns == 1000
     text = " ".join(pulse_warning_lines(reset))
     assert "shorter than the 1000 ns minimum" in text and "remedy" in text
 
 
 def test_complementary_signals_are_no_race(design):
     edges = design.plan.coincident_edges
-    pair, = {tuple(e["signals"]) for e in edges}
+    pair, = {tuple(e.signals) for e in edges}
     assert pair == ("s", "s_n")
-    assert all(e["relation"] == "complementary" and not e["race"] for e in edges)
-    assert not [o for o in design.plan.rc_offers if o.get("problem") in ("race", "coincident")]
+    assert all(e.relation == "complementary" and not e.race for e in edges)
+    assert not [o for o in design.plan.rc_offers if o.problem in ("race", "coincident")]
 
 
 def test_a_switch_select_races_the_signal_it_routes():
     plan = type("P", (), {})()
     plan.signals = {"a": {"net": "a"}, "b": {"net": "b"}}
     plan.switches = {"sw": {"select": "a", "on": "b", "off": "GND", "on_net": "b", "off_net": "VSS"}}
-    records = [{"signals": ["a", "b"], "at_tick": 4}]
+    records = [CoincidentEdge(("a", "b"), 4)]
     marked, = mark_races(records, {"a": frozenset({4, 5}), "b": frozenset({0, 4})}, plan, 8)
-    assert marked["relation"] == "gates" and marked["race"]
+    assert marked.relation == "gates" and marked.race
 
 
 def test_one_glitch_line_per_signal_and_cause():
     plan = type("P", (), {})()
-    plan.glitches = [
-        {"signal": "f", "at_tick": t, "width_ns": 10.0 * t, "mechanism": "transient_state",
-         "models": ["states"], "cause": f"count {t - 1}->{t}"} for t in (2, 4, 8)]
+    plan.glitches = [GlitchRecord("f", t, 10.0 * t, f"count {t - 1}->{t}", "", "static", "high", 0.0,
+                                  "transient_state", models=("states",)) for t in (2, 4, 8)]
     rows = glitch_rows(plan)
     assert rows == [("f", "2, 4, 8", 80.0, "count states", "count 1->2")]   # the analysis in plain words
     design = type("D", (), {})()

@@ -23,7 +23,7 @@ from ..exports import EXPORTERS, Exporter, Output, OutputTransaction, check_outp
 from ..exports.plan_json import verdict_reason
 from ..limits import check_seconds, os_reason
 from ..render import Text, counted
-from ..timing import MODEL_NAMES
+from ..findings import MODEL_NAMES, GlitchRecord, RcOffer
 from ..units import format_si
 
 NAME = "plan"
@@ -191,12 +191,12 @@ def signal_rows(design) -> list[tuple]:
         source = info.get("source")
         where = f"{source[0]} pin {source[1]}" if source else "-"
         expression = _asserted_expression(decode.signals[name]) if name in decode.signals else ""
-        gated = (getattr(plan, "strobed", None) or {}).get(name)
+        gated = plan.strobed.get(name)
         if gated:
-            expression = f"({expression}) and {gated['still_phase']} (gated with the clock)"
-        registered = (getattr(plan, "registered", None) or {}).get(name)
+            expression = f"({expression}) and {gated.still_phase} (gated with the clock)"
+        registered = plan.registered.get(name)
         if registered:
-            expression = (f"registered in {registered['flipflop']} ({registered['part']}): its D is "
+            expression = (f"registered in {registered.flipflop} ({registered.part}): its D is "
                           f"{expression}, one tick early")
         rows.append((name, info.get("polarity"), where, expression))
     return rows
@@ -266,13 +266,13 @@ def plan_blocks(design) -> list:
                             ("signal", "ticks", "widest ns", "found by", "cause (first entry)"),
                             glitch_rows(plan)))
     blocks += _fix_blocks(plan)
-    races = [e for e in map(_as_dict, plan.coincident_edges) if e.get("race", True)]
+    races = [e for e in plan.coincident_edges if e.race is not False]
     if races:
         blocks.append(Table("races (one signal gates what the other drives, and both switch on one clock edge)",
-                            ("signals", "tick"), [(" & ".join(e["signals"]), e["at_tick"]) for e in races]))
-    separated = [e for e in map(_as_dict, plan.coincident_edges) if e.get("separated_by")]
+                            ("signals", "tick"), [(" & ".join(e.signals), e.at_tick) for e in races]))
+    separated = [e for e in plan.coincident_edges if e.separated_by]
     for e in separated:
-        blocks.append(Text(f"race {' & '.join(e['signals'])} at tick {e['at_tick']}: separated, {e['separated_by']}"))
+        blocks.append(Text(f"race {' & '.join(e.signals)} at tick {e.at_tick}: separated, {e.separated_by}"))
     others = len(plan.coincident_edges) - len(races) - len(separated)
     if others:
         blocks.append(Text(f"{counted(others, 'pair')} of outputs switch on the same clock edge without one gating "
@@ -294,17 +294,17 @@ def plan_blocks(design) -> list:
 def glitch_rows(plan) -> list[tuple]:
     """The glitches grouped: one row per signal and mechanism (a transient state of the
     count, or unequal gate paths), its ticks listed together, the widest pulse."""
-    groups: dict[tuple, list[dict]] = {}
-    for g in map(_as_dict, plan.glitches):
-        groups.setdefault((g.get("signal"), g.get("mechanism", ""), bool(g.get("harmless"))), []).append(g)
+    groups: dict[tuple, list[GlitchRecord]] = {}
+    for g in plan.glitches:
+        groups.setdefault((g.signal, g.mechanism, bool(g.harmless)), []).append(g)
     rows = []
     for (signal, _, _), items in groups.items():
-        ticks = ", ".join(str(g.get("at_tick")) for g in sorted(items, key=lambda g: g.get("at_tick")))
-        widest = max(float(g.get("width_max_ns") or g.get("width_ns") or 0) for g in items)
-        models = sorted({MODEL_NAMES.get(m, m).replace("_", " ") for g in items for m in g.get("models", ())})
-        cause = items[0].get("cause", "")
-        if all(g.get("harmless") for g in items):
-            cause = f"harmless: {items[0]['harmless_why']}; {cause}"
+        ticks = ", ".join(str(g.at_tick) for g in sorted(items, key=lambda g: g.at_tick))
+        widest = max(float(g.widest_ns) for g in items)
+        models = sorted({MODEL_NAMES.get(m, m).replace("_", " ") for g in items for m in g.models})
+        cause = items[0].cause
+        if all(g.harmless for g in items):
+            cause = f"harmless: {items[0].harmless_why}; {cause}"
         rows.append((signal, ticks, round(widest, 1), ", ".join(models), cause))
     return rows
 
@@ -328,71 +328,73 @@ def _fix_blocks(plan) -> list:
     from ..render import Table, Text
 
     blocks = []
-    fixes = getattr(plan, "timing_fixes", None) or []
+    fixes = plan.timing_fixes or []
     if fixes:
-        asked = " or steady: true" if any(r.get("asked_by") for r in fixes) else ""
+        asked = " or steady: true" if any(r.asked_by for r in fixes) else ""
         blocks.append(Table(f"glitch fixes (--fix glitches{asked}; glitches re-analysed after the fix)",
                             ("signal", "fix applied", "cost", "glitch ticks before", "after", "how"),
-                            [(r["signal"], " + ".join(r.get("remedies_applied") or ["note"]).replace("_", " "),
-                              f"+{counted(r['cost']['chips'], 'chip')}, +{counted(r['cost']['gates'], 'gate')}",
-                              ", ".join(map(str, r["glitches_before"])),
-                              ", ".join(map(str, r["glitches_after"])) or "none",
-                              r["detail"] + ("".join(f"; {t['remedy'].replace('_', ' ')}: {t['result']}"
-                                                     for t in r["tried"] if "not applicable" in t["result"])
-                                             if not r["applied"] else ""))
+                            [(r.signal, " + ".join(r.remedies_applied or ["note"]).replace("_", " "),
+                              f"+{counted(r.cost.chips, 'chip')}, +{counted(r.cost.gates, 'gate')}",
+                              ", ".join(map(str, r.glitches_before)),
+                              ", ".join(map(str, r.glitches_after)) or "none",
+                              r.detail + ("".join(f"; {t.remedy.replace('_', ' ')}: {t.result}"
+                                                  for t in r.tried if "not applicable" in t.result)
+                                          if not r.applied else ""))
                              for r in fixes]))
-    offers = [o for o in plan.rc_offers if not o.get("applied")]
-    races = [o for o in offers if o["problem"] in ("race", "coincident") and o.get("applicable")]
+    offers = [o for o in plan.rc_offers if not o.applied]
+    races = [o for o in offers if o.problem in ("race", "coincident") and o.applicable]
     if races:
         blocks.append(Text(_race_offers_text(races)))
     refused: dict[str, list[str]] = {}
     for offer in offers:
-        if not offer.get("applicable"):
-            why = offer.get("why_not") or offer.get("why", "")
-            refused.setdefault(why, []).append(f"{offer['delayed']} ({offer['problem']})")
+        if not offer.applicable:
+            why = offer.why_not or offer.why
+            refused.setdefault(why, []).append(f"{offer.delayed} ({offer.problem})")
         elif offer not in races:
             blocks.append(Text(_offer_text(offer)))
     for why, names in refused.items():
         blocks.append(Text(f"RC delay on {', '.join(names)}: not offered, {why}"))
-    if plan.glitches and getattr(plan, "timing_fixes", None) is None:
+    if plan.glitches and plan.timing_fixes is None:
         blocks.append(Text("glitches: --fix glitches tries the remedies, says what each costs, and "
                            "offers an RC delay where a logic fix would take a new chip"))
     return blocks
 
 
-def _race_offers_text(races: list[dict]) -> str:
+def _race_offers_text(races: list[RcOffer]) -> str:
     """The race offers share one R and C (a quarter tick): one block for all of them."""
     first = races[0]
-    rise, fall = first["delay_ns"]["rising"], first["delay_ns"]["falling"]
-    names = ", ".join(o["delayed"] for o in races)
-    only_if = "" if any(o["problem"] == "race" for o in races) else (
+    values = first.values
+    rise, fall = values.rising_ns, values.falling_ns
+    names = ", ".join(o.delayed for o in races)
+    only_if = "" if any(o.problem == "race" for o in races) else (
         "; needed only if your circuit clocks, resets or gates one of these with the other")
     return "\n".join([
         f"offer (not applied): an RC delay of about a quarter tick on {names}, each of which switches "
         "on the same clock edge as another signal: its edges then come clear "
         f"of the other's and the level sampled at the end of each tick is unchanged{only_if}",
-        f"  R {first['r']}, C {first['c']} into {_receiver(first)}: {first['formula']}; delay min / typ / "
+        f"  R {values.r}, C {values.c} into {_receiver(first)}: {values.formula}; delay min / typ / "
         f"max rising {rise[0]:g} / {rise[1]:g} / {rise[2]:g} ns, falling {fall[0]:g} / {fall[1]:g} / "
         f"{fall[2]:g} ns",
-        "  wiring: " + "; ".join(first["wiring"]) + (
+        "  wiring: " + "; ".join(values.wiring) + (
             "; likewise for the others from their own source pins" if len(races) > 1 else "")])
 
 
-def _offer_text(offer: dict) -> str:
-    head = f"offer (not applied): an RC delay on {offer['delayed']} for the {offer['problem']}"
-    if not offer.get("applicable"):
-        return f"{head}: not applicable, {offer.get('why_not') or offer.get('why')}"
-    rise, fall = offer["delay_ns"]["rising"], offer["delay_ns"]["falling"]
+def _offer_text(offer: RcOffer) -> str:
+    head = f"offer (not applied): an RC delay on {offer.delayed} for the {offer.problem}"
+    if not offer.applicable or offer.values is None:
+        return f"{head}: not applicable, {offer.why_not or offer.why}"
+    values = offer.values
+    rise, fall = values.rising_ns, values.falling_ns
     return "\n".join([
-        f"{head}: {offer['why']}",
-        f"  R {offer['r']}, C {offer['c']} into {_receiver(offer)}: {offer['formula']}; delay min / typ / "
+        f"{head}: {offer.why}",
+        f"  R {values.r}, C {values.c} into {_receiver(offer)}: {values.formula}; delay min / typ / "
         f"max rising {rise[0]:g} / {rise[1]:g} / {rise[2]:g} ns, falling {fall[0]:g} / {fall[1]:g} / "
         f"{fall[2]:g} ns",
-        "  wiring: " + "; ".join(offer["wiring"])])
+        "  wiring: " + "; ".join(values.wiring)])
 
 
-def _receiver(offer: dict) -> str:
-    return "a plain CMOS input" if offer["receiver"] == "plain-input" else f"a {offer['receiver']} Schmitt input"
+def _receiver(offer: RcOffer) -> str:
+    return "a plain CMOS input" if offer.receiver == "plain-input" else f"a {offer.receiver} Schmitt input"
 
 
 def oscillator_blocks(plan) -> list:
@@ -507,14 +509,6 @@ def passive_blocks(plan) -> list:
     return [Table(f"resistors and capacitors ({len(plan.passives)})",
                   ("ref", "value", "end 1", "end 2", "purpose"),
                   [(p.ref, p.label(), p.ends[0], p.ends[1], p.purpose) for p in plan.passives])]
-
-
-def _as_dict(item) -> dict:
-    if isinstance(item, dict):
-        return item
-    from dataclasses import asdict, is_dataclass
-
-    return asdict(item) if is_dataclass(item) else dict(item)
 
 
 def _end(plan, end) -> str:

@@ -24,15 +24,13 @@ kinds are plain words of ours (``typical_delays``), not internal ids.
 
 from __future__ import annotations
 
-import dataclasses
 import json
 from pathlib import Path
-from typing import Any
 
 from ..breadboard import plan_breadboard
 from ..errors import NotFoundError, ShortError
 from ..netlist import Plan, ref_key, verilog_module_name
-from ..timing import MODEL_NAMES, MODEL_TEXT, MODELS
+from ..findings import MODEL_NAMES, MODEL_TEXT, MODELS
 from .files import atomic_write_text
 
 FORMAT = "binsynth-plan/2"
@@ -40,21 +38,6 @@ FORMAT = "binsynth-plan/2"
 
 def _endpoint(ref_pin: tuple[str, int] | None) -> dict | None:
     return None if ref_pin is None else {"ref": ref_pin[0], "pin": int(ref_pin[1])}
-
-
-def _plain(value: Any) -> Any:
-    """Records, tuples and sets -> JSON values (glitch and edge records included)."""
-    if dataclasses.is_dataclass(value) and not isinstance(value, type):
-        return _plain(dataclasses.asdict(value))
-    if isinstance(value, dict):
-        return {str(k): _plain(v) for k, v in value.items()}
-    if isinstance(value, (list, tuple)):
-        return [_plain(v) for v in value]
-    if isinstance(value, (set, frozenset)):
-        return sorted(_plain(v) for v in value)
-    if value is None or isinstance(value, (bool, int, float, str)):
-        return value
-    return str(value)
 
 
 def _switch(sw: dict) -> dict:
@@ -96,8 +79,7 @@ def _glitch_models() -> dict:
 
 def _glitches(glitches) -> list[dict]:
     """Glitch records with each analysis under its plain name (``typical_delays`` ...)."""
-    return [{**g, "models": [MODEL_NAMES.get(m, m) for m in g["models"]]} if "models" in g else g
-            for g in _plain(list(glitches))]
+    return [g.to_json() for g in glitches]
 
 
 def _glitches_by_model(glitches) -> dict:
@@ -159,14 +141,14 @@ def plan_to_json(plan: Plan) -> dict:
         "glitches": _glitches(plan.glitches),
         "glitch_models": _glitch_models(),
         "glitches_by_model": _glitches_by_model(_glitches(plan.glitches)),
-        "coincident_edges": _plain(list(plan.coincident_edges)),
-        "timing_fixes": _plain(list(getattr(plan, "timing_fixes", None) or [])),
-        "clock_gated": _plain(dict(getattr(plan, "strobed", None) or {})),
-        "rc_offers": _plain(list(getattr(plan, "rc_offers", None) or [])),
+        "coincident_edges": [e.to_json() for e in plan.coincident_edges],
+        "timing_fixes": [f.to_json() for f in plan.timing_fixes or ()],
+        "clock_gated": {name: s.to_json() for name, s in plan.strobed.items()},
+        "rc_offers": [o.to_json() for o in plan.rc_offers],
         "rc_delays": [d.as_json() for d in plan.rc_delays],
-        "registered": _plain(dict(getattr(plan, "registered", None) or {})),
-        "register_checks": _plain(list(getattr(plan, "register_checks", None) or [])),
-        "pulse_widths": _plain(list(getattr(plan, "pulse_widths", None) or [])),
+        "registered": {name: r.to_json() for name, r in plan.registered.items()},
+        "register_checks": [r.to_json() for r in plan.register_checks],
+        "pulse_widths": [p.to_json() for p in plan.pulse_widths],
         "warnings": list(plan.warnings),
         "supply_v": plan.supply,
         "spec": plan.spec_path,

@@ -32,6 +32,7 @@ from ..netlist import RAIL_NETS, ref_key
 from ..packing import unit_logic_pins
 from .plan_json import plan_to_json
 from .files import atomic_write_text
+from .svg import trace_to_svg
 
 __all__ = ["report_html", "write_report", "plan_hash"]
 
@@ -651,10 +652,10 @@ def _bom(design, data: dict) -> str:
 def _remedies(design) -> str:
     plan = design.plan
     items = []
-    for fix in getattr(plan, "timing_fixes", None) or []:
-        applied = " + ".join(fix.get("remedies_applied") or ["note"]).replace("_", " ")
-        items.append(f"<li>{escape(fix['signal'])}: {escape(applied)} (+{fix['cost']['chips']} chips, "
-                     f"+{fix['cost']['gates']} gates): {escape(fix.get('detail', ''))}</li>")
+    for fix in plan.timing_fixes or ():
+        applied = " + ".join(fix.remedies_applied or ["note"]).replace("_", " ")
+        items.append(f"<li>{escape(fix.signal)}: {escape(applied)} (+{fix.cost.chips} chips, "
+                     f"+{fix.cost.gates} gates): {escape(fix.detail)}</li>")
     for text in design.remedies.text if design.remedies else ():
         items.append(f"<li>{escape(text)}</li>")
     if not items:
@@ -665,8 +666,6 @@ def _remedies(design) -> str:
 def _timing(design) -> str:
     if design.trace is None:
         return "<p>No timing trace was made for this plan.</p>"
-    from .svg import trace_to_svg
-
     svg = trace_to_svg(design.trace, design.plan)
     encoded = base64.b64encode(svg.encode()).decode()
     return f'<img class="timing" alt="timing diagram" src="data:image/svg+xml;base64,{encoded}">'

@@ -40,6 +40,7 @@ from pathlib import Path
 from .. import __version__
 from ..analog import thresholds_at
 from ..analogparts import AppliedDelay, LadderPlan, OscillatorPlan
+from ..findings import RcOffer, RcValues
 from ..inventory import Catalog
 from ..netlist import Plan, simulate_nets
 from ..units import format_si
@@ -309,23 +310,23 @@ def _is_schmitt(catalog: Catalog, receiver: str | None) -> bool:
     return part is not None and bool(part.thresholds)
 
 
-def _delay(plan: Plan, catalog: Catalog, index: int, offer: dict) -> _Section:
+def _delay(plan: Plan, catalog: Catalog, index: int, offer: RcOffer, values: RcValues) -> _Section:
     supply = plan.supply
-    r, c = float(offer["r_ohm"]), float(offer["c_farad"])
-    vtp, vtm = _receiver_thresholds(catalog, offer.get("receiver", ""), supply)
+    r, c = float(values.r_ohm), float(values.c_farad)
+    vtp, vtm = _receiver_thresholds(catalog, offer.receiver or "", supply)
     rc = r * c
     start, width, edge = 2 * rc, 12 * rc, rc * 1e-4
     tag = f"d{index}"
     src, mid, out = f"{tag}_in", f"{tag}_node", f"{tag}_out"
-    state = "applied" if offer.get("applied") else "offered"
-    receiver = offer.get("receiver")
+    state = "applied" if offer.applied else "offered"
+    receiver = offer.receiver
     schmitt = _is_schmitt(catalog, receiver)
     into = (f"{receiver} input (VT+ {vtp:.4g} V, VT- {vtm:.4g} V typical)" if schmitt
             else f"a plain CMOS input (modelled as switching at {vtp:.4g} V rising, {vtm:.4g} V falling)")
     model = f"{tag}_{'schmitt' if schmitt else 'plain'}"
-    lines = [f"* RC delay {state} on {offer['delayed']} ({offer.get('problem', '')}): stage 1's output "
+    lines = [f"* RC delay {state} on {offer.delayed} ({offer.problem}): stage 1's output "
              f"(a step) -> R -> node, C to VSS, node -> {into}; stage 2's output inverts",
-             f"* binsynth: {offer.get('formula', '')}",
+             f"* binsynth: {values.formula}",
              f"V{tag} {src} 0 PULSE(0 {_num(supply)} {_num(start)} {_num(edge)} {_num(edge)} "
              f"{_num(width)} {_num(4 * width)})",
              f"R{tag} {src} {mid} {_num(r)}",
@@ -432,10 +433,9 @@ def _sections(plan: Plan, catalog: Catalog, tick_ns: float | None) -> list[_Sect
         section = _switch(plan, catalog, name, sw, tick)
         if section is not None:
             sections.append(section)
-    offers = [o for o in plan.rc_offers
-              if o.get("applicable") and "r_ohm" in o and not o.get("applied")]
+    offers = [o for o in plan.rc_offers if o.applicable and o.values is not None and not o.applied]
     for index, offer in enumerate(offers, 1):
-        sections.append(_delay(plan, catalog, index, offer))
+        sections.append(_delay(plan, catalog, index, offer, offer.values))
     for index, applied in enumerate(plan.rc_delays, 1):
         sections.append(_applied_delay(plan, catalog, index, applied))
     return sections

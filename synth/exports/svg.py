@@ -22,14 +22,14 @@ elements inside ``<g id="main">``, one per counter output and per signal.
 from __future__ import annotations
 
 import math
-from dataclasses import asdict, is_dataclass
 from pathlib import Path
 from typing import Any
 from xml.sax.saxutils import escape, quoteattr
 
 from ..analogwave import analog_waves
+from ..findings import CoincidentEdge, GlitchRecord
 from ..netlist import Plan
-from ..timing import Trace, nice_period_ns
+from ..timing import Glitch, Trace, nice_period_ns
 from ..units import format_si
 from .files import atomic_write_text
 
@@ -68,11 +68,12 @@ text { font-family: 'DejaVu Sans Mono', Menlo, Consolas, monospace; font-size: 1
 
 # ---------------------------------------------------------------- marks
 
-def _record(item: Any) -> dict:
-    if isinstance(item, dict):
-        return item
-    if is_dataclass(item):
-        return asdict(item)
+def _record(item: GlitchRecord | CoincidentEdge | Glitch | dict) -> dict:
+    """A glitch or coincident-edge record as the plan JSON gives it (a dict passes as it is)."""
+    if isinstance(item, Glitch):
+        return item.record().to_json()
+    if isinstance(item, (GlitchRecord, CoincidentEdge)):
+        return item.to_json()
     return dict(item)
 
 

@@ -37,7 +37,7 @@ from typing import Any
 from ..inventory import Catalog
 from ..netlist import VERILOG_KEYWORDS, Plan, verilog_module_name
 from ..network import RAILS
-from ..timing import CounterModel, GateModel, counter_models, gate_models, gate_names_of
+from ..timing import CounterModel, GateModel, counter_models, gate_models, gate_names_of, register_start_levels
 from .files import atomic_write_text
 
 __all__ = ["plan_to_verilog", "write_verilog", "verilog_names", "spec_signals", "delay_text"]
@@ -277,8 +277,6 @@ def _flipflop_lines(g: GateModel, names: dict[str, str], label: str, delay: str)
 
 def _flipflop_start(plan: Plan, gates: list[GateModel], names: dict[str, str]) -> list[str]:
     """The flip-flop outputs' levels at time 0 (tick 0), as the simulator starts them."""
-    from ..timing import register_start_levels
-
     if not any(g.clocked for g in gates):
         return []
     clock_level = plan.counter.edge == "falling"
