@@ -138,8 +138,8 @@ def _switch(trace: Any, plan: Any, name: str, sw: dict, volts: dict[str, AnalogW
 
 def analog_waves(trace: Any, plan: Any) -> list[AnalogWave]:
     """Every staircase, then every switch's position (and common voltage where known)."""
-    waves = [_staircase(trace, name, lad) for name, lad in sorted(getattr(plan, "ladders", {}).items())]
+    waves = [_staircase(trace, name, lad) for name, lad in sorted(plan.ladders.items())]
     volts = {wave.name: wave for wave in waves}
-    for name, sw in sorted(getattr(plan, "switches", {}).items()):
+    for name, sw in sorted(plan.switches.items()):
         waves += _switch(trace, plan, name, sw, volts)
     return waves
