@@ -8,8 +8,8 @@ answer and how far the search went), ``start_search(..., steps) -> Search``
 
 The answer is never guessed from part names: every candidate part type is
 added to the bin (one chip of it) and the plan's decode is mapped again by
-the same mapper the plan used, which checks its result on every counter
-state.  The saving is the logic-chip count of the plan minus that of the
+the mapper's gate engines (``mapper.core``), which check their result on
+every counter state.  The saving is the logic-chip count of the plan minus that of the
 re-mapped design (the added chip counted), then gates.  Counters and switch
 chips are left as planned: a different counter chip changes the decode
 itself and is outside this search.
@@ -21,23 +21,28 @@ first; types the plan leaves chips of unused cannot help and are not judged.
 Every candidate gets the same work budget (the effort level's
 ``lacks_steps``: solver conflicts and search steps, never seconds), and the
 whole candidate list is always re-planned, so the advice is the same on an
-idle or a busy machine.  A candidate's mapping is a quick one (no exact
-search), so a reported saving is real but a missed one is possible.  Where
-the platform can fork, the search runs in a child process started before the
-plan's own mapping, so on two cores it costs little wall time; the effort's
-wall-clock safety cap stops it (said plainly) on a machine far slower than
-expected.
+idle or a busy machine.  A candidate's mapping is a quick one (the gate
+engines only: no exact search, no split on a spare switch section), so a
+reported saving is real but a missed one is possible.  Where the platform
+can fork, a child process starts on the list before the plan's own mapping
+and the planning process joins in from the other end of the list once its
+plan is done, so both cores map candidates; each candidate's mapping depends
+on that candidate alone, so who maps which does not change the answer.  The
+effort's wall-clock safety cap stops the search (said plainly) on a machine
+far slower than expected.
 """
 
 from __future__ import annotations
 
+import multiprocessing
 import time
 from dataclasses import dataclass, field
 from typing import Any
 
 from .effort import Effort, effort_named
 from .errors import SafetyCapError, SynthError
-from .mapper import cells_of_part, map_design
+from .mapper import cells_of_part
+from .mapper.core import map_design as map_gates
 from .mapper.objective import Cost
 from .stages import async_reset_names, mapping_inputs
 
@@ -136,7 +141,7 @@ class _SafetyCap(Exception):
 def _remap(inputs: _Inputs, part: str, effort: Effort) -> tuple[dict, int] | None:
     """(logic chips by part, gates) with one more ``part`` chip; None if it cannot map."""
     try:
-        network = map_design(inputs.functions, inputs.nvars, list(inputs.var_nets),
+        network = map_gates(inputs.functions, inputs.nvars, list(inputs.var_nets),
                              inputs.library.with_extra(part), polarity=inputs.polarity,
                              cover=inputs.cover, exact="no", effort=effort, steps=effort.lacks_steps,
                              glitch_free=inputs.glitch_free)
@@ -147,12 +152,60 @@ def _remap(inputs: _Inputs, part: str, effort: Effort) -> tuple[dict, int] | Non
     return dict(network.chips), len(network.gates)
 
 
-def _child(conn, inputs: _Inputs, effort: Effort) -> None:
-    """The forked worker: one message per candidate, then None."""
+class _Claims:
+    """Which candidates are taken: the worker claims from the front of the list, the
+    planning process (once its own plan is done) from the back, so both cores map
+    candidates until the two meet.  ``skip`` marks candidates the finished plan shows
+    cannot help (types it leaves chips of unused); whoever claims one passes it over.
+
+    Each candidate's mapping depends on the candidate alone, so the answer is the
+    same whichever process maps which candidate, and however busy the machine is.
+    """
+
+    def __init__(self, count: int, ctx=None) -> None:
+        if ctx is None:
+            self.bounds, self.skip, self.lock = [0, count], [0] * count, None
+        else:
+            self.bounds = ctx.Array("i", [0, count], lock=False)
+            self.skip = ctx.Array("b", count, lock=False)
+            self.lock = ctx.Lock()
+
+    def _take(self, front: bool) -> int | None:
+        if self.bounds[0] >= self.bounds[1]:
+            return None
+        if front:
+            self.bounds[0] += 1
+            return self.bounds[0] - 1
+        self.bounds[1] -= 1
+        return self.bounds[1]
+
+    def take(self, front: bool) -> int | None:
+        """The next unclaimed candidate's index from the front (or back); None when none is left."""
+        if self.lock is None:
+            return self._take(front)
+        with self.lock:
+            return self._take(front)
+
+
+def _map_claimed(inputs: _Inputs, effort: Effort, claims: _Claims, front: bool):
+    """(index, part, result) for each candidate this process claims, until none is left;
+    skipped candidates are passed over (never judged, so never mapped)."""
+    while True:
+        index = claims.take(front)
+        if index is None:
+            return
+        if claims.skip[index]:
+            continue
+        part = inputs.candidates[index]
+        yield index, part, _remap(inputs, part, effort)
+
+
+def _child(conn, inputs: _Inputs, effort: Effort, claims: _Claims) -> None:
+    """The forked worker: one message per candidate it maps, then None."""
     try:
-        for part in inputs.candidates:
-            conn.send((part, _remap(inputs, part, effort)))
-    except Exception:          # the parent treats a dead worker as the end of the search
+        for message in _map_claimed(inputs, effort, claims, front=True):
+            conn.send(message)
+    except Exception:          # the parent treats a dead worker as the end of its share
         pass
     finally:
         try:
@@ -167,31 +220,36 @@ class Search:
     def __init__(self, inputs: _Inputs, decode: Any, effort: Effort) -> None:
         self.inputs, self.decode, self.effort = inputs, decode, effort
         self.start = time.monotonic()
-        self.results: list[tuple[str, tuple[dict, int] | None]] = []
+        self.results: dict[int, tuple[str, tuple[dict, int] | None]] = {}
         self.process = self.conn = None
         try:
-            import multiprocessing
-
             ctx = multiprocessing.get_context("fork")
-        except (ValueError, ImportError):
-            return                          # no fork here: run in finish()
+        except ValueError:
+            self.claims = _Claims(len(inputs.candidates))
+            return                          # no fork here: all in finish()
+        self.claims = _Claims(len(inputs.candidates), ctx)
         receiver, sender = ctx.Pipe(duplex=False)
-        self.process = ctx.Process(target=_child, args=(sender, inputs, effort), daemon=True)
+        self.process = ctx.Process(target=_child, args=(sender, inputs, self.effort, self.claims),
+                                   daemon=True)
         self.process.start()
         sender.close()
         self.conn = receiver
 
-    def _collect(self) -> None:
-        """Every candidate's result; only the wall-clock safety cap cuts the list short."""
+    def _collect(self, spare: set[str]) -> None:
+        """Every candidate's result, this process mapping from the back of the list while
+        the worker maps from the front; only the wall-clock safety cap cuts it short."""
         deadline = self.start + self.effort.wall_cap
+        for index, part in enumerate(self.inputs.candidates):
+            if part in spare:
+                self.claims.skip[index] = 1
+        try:
+            for index, part, outcome in _map_claimed(self.inputs, self.effort, self.claims, front=False):
+                self.results[index] = (part, outcome)
+                if time.monotonic() >= deadline:
+                    break
+        except _SafetyCap:
+            pass
         if self.process is None:
-            try:
-                for part in self.inputs.candidates:
-                    if time.monotonic() >= deadline:
-                        break
-                    self.results.append((part, _remap(self.inputs, part, self.effort)))
-            except _SafetyCap:
-                pass
             return
         try:
             while True:
@@ -201,7 +259,8 @@ class Search:
                 message = self.conn.recv()
                 if message is None:
                     break
-                self.results.append(message)
+                index, part, outcome = message
+                self.results[index] = (part, outcome)
         except (EOFError, OSError):
             pass
         finally:
@@ -220,15 +279,19 @@ class Search:
 
     def finish(self, design: Any) -> "BinLacks":
         """Gather what the search found in its budget and judge it against the plan."""
-        self._collect()
-        seconds = time.monotonic() - self.start
         total = len(design.plan.chips)
         n = len(self.inputs.candidates)
         if getattr(design.plan, "strobed", None) or design.decode is not self.decode:
             # --fix glitches re-derived the decode or added gating gates: no like-for-like baseline
-            return BinLacks(None, 0, n, seconds, total, [],
+            self.cancel()
+            return BinLacks(None, 0, n, time.monotonic() - self.start, total, [],
                             skipped="not searched: --fix glitches changed the design")
-        return _judge(design, self.inputs, self.results, seconds)
+        spare = _spare_part_types(design, self.inputs.library)
+        if not design.network.gates:
+            spare = set(self.inputs.candidates)      # nothing to shrink: no candidate is mapped
+        self._collect(spare)
+        results = [self.results[i] for i in sorted(self.results)]
+        return _judge(design, self.inputs, results, time.monotonic() - self.start)
 
 
 def start_search(decode: Any, counter_plan: Any, library: Any, polarity: dict, stock: Any,

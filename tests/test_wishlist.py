@@ -15,6 +15,7 @@ import pytest
 
 from synth.cli import main
 from synth.pipeline import make_plan
+from synth import wishlist
 from synth.wishlist import bin_lacks, candidate_parts
 
 SPEC = """\
@@ -133,3 +134,19 @@ def test_a_negative_budget_is_a_usage_error(tmp_path, capsys):
     stock = write(tmp_path, "nands.yaml", "parts:\n  4520: 1\n  4011: 2\n")
     assert main(["plan", str(spec), "--bin", str(stock), "--lacks", "-1"]) == 2
     assert "argument --lacks: expected a number of seconds from 0 up" in capsys.readouterr().err
+
+
+def test_the_answer_does_not_depend_on_which_process_maps_which_candidate(tmp_path, monkeypatch):
+    # both cores share the list (a worker from the front, the planning process from the
+    # back); where the platform cannot fork, this process maps it all: the same answer
+    spec = write(tmp_path, "count15.yaml", SPEC)
+    stock = write(tmp_path, "nands.yaml", "parts:\n  4520: 1\n  4011: 2\n  4069: 1\n")
+    design = make_plan(spec, stock)
+    shared = bin_lacks(design).to_json()
+
+    def no_fork(method):
+        raise ValueError(method)
+
+    monkeypatch.setattr(wishlist.multiprocessing, "get_context", no_fork)
+    alone = bin_lacks(design).to_json()
+    assert shared == alone and shared["complete"] and shared["best"]["part"] == "4082"
