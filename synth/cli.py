@@ -12,7 +12,6 @@ calls it EX_SOFTWARE).  ``--debug`` lets the traceback through instead.
 from __future__ import annotations
 
 import argparse
-import importlib
 import os
 import platform
 import re
@@ -20,10 +19,9 @@ import sys
 import tempfile
 import traceback
 from pathlib import Path
-from types import ModuleType
 
 from . import __version__
-from .commands import COMMANDS
+from .commands import REGISTRY
 from .errors import SynthError
 from .limits import ECHO_CHARS, shown
 
@@ -49,30 +47,36 @@ class _Parser(argparse.ArgumentParser):
         raise SystemExit(2)
 
 
-def _command_modules() -> dict[str, ModuleType]:
-    modules = {}
-    for name in COMMANDS:
-        try:
-            modules[name] = importlib.import_module(f"synth.commands.{name}")
-        except ModuleNotFoundError as exc:
-            if exc.name != f"synth.commands.{name}":
-                raise
-    return modules
+def command_named(argv: list[str]) -> str | None:
+    """The command word of a command line, as argparse will read it: the first
+    word that is not an option (no top-level option takes a value); '' when
+    there is none (``binsynth --help``), None when unsure (every command is built)."""
+    for word in argv:
+        if word == "--":
+            return None
+        if not word.startswith("-"):
+            return word
+    return ""
 
 
-def build_parser() -> argparse.ArgumentParser:
+def build_parser(wanted: str | None = None) -> argparse.ArgumentParser:
+    """The whole command line; with ``wanted`` (a name, or '' for none) only that
+    command's options are built, so a run imports the one command module it
+    needs (the others are listed by name and help from the registry)."""
     parser = _Parser(prog="binsynth", description=(
         "Waveforms in clock ticks + the chips in your drawer -> a circuit you can build."))
     parser.add_argument("--version", action="version", version=f"binsynth {__version__}")
     parser.add_argument("--debug", action="store_true", help=DEBUG_HELP)
     parser.set_defaults(_run=None)
     sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
-    for name, module in _command_modules().items():
-        child = sub.add_parser(name, help=module.HELP, description=module.HELP)
-        module.add_arguments(child)
+    for entry in REGISTRY:
+        child = sub.add_parser(entry.name, help=entry.help, description=entry.help)
+        if wanted is None or wanted == entry.name:
+            module = entry.load()
+            module.add_arguments(child)
+            child.set_defaults(_run=module.run)
         # accepted after the command too; SUPPRESS keeps a flag given before it
         child.add_argument("--debug", action="store_true", default=argparse.SUPPRESS, help=DEBUG_HELP)
-        child.set_defaults(_run=module.run)
     return parser
 
 
@@ -123,7 +127,7 @@ def report_internal_error(exc: BaseException, argv: list[str]) -> int:
 
 def main(argv: list[str] | None = None) -> int:
     argv = list(sys.argv[1:] if argv is None else argv)
-    parser = build_parser()
+    parser = build_parser(command_named(argv))
     try:
         args = parser.parse_args(argv)
     except SystemExit as exc:

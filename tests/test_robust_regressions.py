@@ -302,18 +302,18 @@ def test_dash_means_standard_output_for_every_text_output(tmp_path, capsys, step
 
 def test_a_failed_take_writes_no_output(tmp_path, capsys, stepper, monkeypatch):
     """The bin changes while the plan is made: the take refuses, and no output is replaced."""
-    import synth.flow
+    import synth.commands.plan
 
     argv, bin_path = _plan_args(tmp_path, stepper, "--json", str(tmp_path / "p.json"), "--take")
     (tmp_path / "p.json").write_text("old")
-    real = synth.flow.make_plan
+    real = synth.commands.plan.make_plan
 
     def plan_then_edit(*args, **kwargs):
         design = real(*args, **kwargs)
         bin_path.write_text(bin_path.read_text() + "# edited meanwhile\n")
         return design
 
-    monkeypatch.setattr(synth.flow, "make_plan", plan_then_edit)
+    monkeypatch.setattr(synth.commands.plan, "make_plan", plan_then_edit)   # as plan's run calls it
     line = _error_line(capsys, main(argv))
     assert "the bin changed after the plan read it" in line
     assert (tmp_path / "p.json").read_text() == "old"

@@ -17,7 +17,7 @@ import yaml
 
 from synth.errors import InputError
 from synth.inventory import data_path, example_path
-from synth.yamlsrc import MarkedDict, MarkedList, line_of, load_yaml, parse_yaml
+from synth.yamlsrc import MarkedDict, MarkedList, line_of, load_yaml, parse_yaml, parse_yaml_nodes
 
 SHIPPED = sorted([*data_path("bins").glob("*.yaml"), *data_path("catalog").glob("*.yaml"),
                   *example_path().glob("*.yaml")])
@@ -94,3 +94,43 @@ def test_missing_and_unreadable_files(tmp_path):
     with pytest.raises(InputError, match="not UTF-8 text .byte 0xe9.") as caught:
         load_yaml(latin)
     assert caught.value.line == 1 and "save the file as UTF-8" in str(caught.value)
+
+
+# ---------------------------------------------------------------- the two readings agree
+
+def shape(value):
+    """Values, types and every line mark, for comparing the two readings."""
+    if isinstance(value, dict):
+        return ("map", value.line, value.key_lines, [(k, shape(v)) for k, v in value.items()])
+    if isinstance(value, list):
+        return ("seq", value.line, value.item_lines, [shape(v) for v in value])
+    return (type(value).__name__, repr(value))
+
+
+def outcome(read, text):
+    try:
+        return ("value", shape(read(text, "f.yaml")))
+    except InputError as exc:
+        return ("error", str(exc), exc.line)
+
+
+UNUSUAL = ["", "# only a comment\n", "---\n", "a: 1\n...\n", "a: 1\n---\nb: 2\n", "a: &x 1\nb: *x\n",
+           "a: &x [1]\n", "a: !!str 1\n", "a: !custom 1\n", "<<: {a: 1}\n", "a: {<<: {b: 1}}\n",
+           "a: 1\na: 2\n", "1: a\ntrue: b\n", "? [1, 2]\n: x\n", "? {a: 1}\n: x\n", "a: [1, 2\n",
+           "a: b: c\n", "a:\n\t- x\n", "a: !!python/object/apply:os.system ['true']\n", "a: =\n",
+           "a: 'x'\nb: \"1\"\nc: 1.5\nd: .inf\ne: ~\nf: 2001-12-14\ng: yes\nh: 0x1f\ni: 1_000\n",
+           "a: |\n  text\n  more\nb: >\n  folded\n", "- a\n- b: c\n  d: e\n- - x\n  - y\n",
+           "x: " + "[" * 100 + "]" * 100 + "\n", "null: 1\n~: 2\n", "{a: 1, a: 2}\n", "a: !!binary aGVsbG8=\n",
+           "%YAML 1.1\n---\na: 1\n", "a:\n", "- \n- x\n", "'': 1\n"]
+
+
+@pytest.mark.parametrize("text", UNUSUAL)
+def test_the_event_reading_and_the_node_reading_agree_on_unusual_text(text):
+    # the fast event reading hands anything unusual to the node reading: same values, lines, messages
+    assert outcome(parse_yaml, text) == outcome(parse_yaml_nodes, text)
+
+
+@pytest.mark.parametrize("path", SHIPPED, ids=lambda p: f"{p.parent.name}/{p.name}")
+def test_the_two_readings_agree_on_every_shipped_file(path: Path):
+    text = path.read_text(encoding="utf-8")
+    assert shape(parse_yaml(text, path)) == shape(parse_yaml_nodes(text, path))

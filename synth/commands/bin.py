@@ -6,15 +6,17 @@ import argparse
 from collections import defaultdict
 from pathlib import Path
 
+from ..bincsv import bin_text_from_csv
 from ..bintake import diff_bins
 from ..errors import UsageError
-from ..inventory import load_bin, load_catalog
+from ..exports import atomic_write_text
+from ..inventory import bin_from_yaml, load_bin, load_catalog
 from ..limits import check_supply
 from ..render import print_json, show, Table, Text
 from ..units import format_si, parse_quantity
+from ..yamlsrc import parse_yaml
 
 NAME = "bin"
-HELP = "validate a bin file and show the gates, counters, switches and passives it provides"
 
 
 def add_arguments(parser: argparse.ArgumentParser) -> None:
@@ -30,7 +32,6 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
-
     try:
         supply = parse_quantity(args.supply, "V")
     except ValueError as exc:
@@ -52,13 +53,6 @@ def run(args: argparse.Namespace) -> int:
 
 def run_from_csv(args: argparse.Namespace, catalog, supply: float) -> int:
     """``--from-csv FILE``: the bin file written from the spreadsheet, then shown as checked."""
-    from ..bincsv import bin_text_from_csv
-    from ..errors import UsageError
-    from ..exports import atomic_write_text
-    from ..inventory import bin_from_yaml
-    from ..render import Text, print_json, show
-    from ..yamlsrc import parse_yaml
-
     target = Path(args.bin)
     if target.exists() or target.resolve() == Path(args.from_csv).resolve():
         raise UsageError(f"{args.bin}: the file exists; --from-csv writes a new bin and never "
@@ -81,7 +75,6 @@ def run_from_csv(args: argparse.Namespace, catalog, supply: float) -> int:
 
 def run_diff(stock, other, as_json: bool) -> int:
     """``--diff OTHER``: what changed in BIN since OTHER; '+' is added to the bin."""
-
     diff = diff_bins(other, stock)
     if as_json:
         print_json({"bin": stock.path, "other": other.path, **diff.as_dict()})
@@ -91,7 +84,6 @@ def run_diff(stock, other, as_json: bool) -> int:
 
 
 def diff_blocks(stock, other, diff) -> list:
-
     if not diff.changed:
         return [Text(f"{stock.path} and {other.path} hold the same parts and passives")]
     blocks = [Text(f"changes in {stock.path} since {other.path} (+ added to the bin, - taken out)")]
@@ -181,7 +173,6 @@ def _stage_text(stages: list[int]) -> str:
 
 
 def summary_blocks(stock, summary: dict) -> list:
-
     blocks = [Text(f"bin {stock.path}: {sum(stock.parts.values())} usable chips at {stock.supply:g} V")]
     blocks.append(Table("gates, inverters and buffers", ("kind", "units", "from"),
                         [(g["kind"], g["units"], g["from"]) for g in summary["gates"]]))

@@ -1,6 +1,6 @@
 """``binsynth decode SPEC --bin BIN``: the counter chosen and each signal's decode.
 
-Interface: ``NAME``, ``HELP``, ``add_arguments(parser)``, ``run(args) ->
+Interface: ``NAME``, ``add_arguments(parser)``, ``run(args) ->
 int``; ``decode_blocks(spec, decode)`` (what a person sees), ``decode_json(spec,
 stock, decode)`` (what a script reads), and the picture helpers ``tick_strip``
 and ``runs_text``.
@@ -19,8 +19,6 @@ from ..spec import cyclic_runs, load_spec, windows_of
 from .plan import show_spec_notes
 
 NAME = "decode"
-HELP = ("show the counter chips and stages chosen for a spec, and each signal's minimized decode "
-        "in counter-pin names")
 
 DECODE_FORMAT = "binsynth-decode/2"
 """/2: ``counter.vars`` became ``counter.variables`` (the plan JSON's word); the key

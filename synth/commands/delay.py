@@ -1,6 +1,6 @@
 """``binsynth delay TIME --bin BIN``: R and C from the bin for an RC delay between two stages.
 
-Interface: ``NAME``, ``HELP``, ``add_arguments(parser)``, ``run(args) -> int``;
+Interface: ``NAME``, ``add_arguments(parser)``, ``run(args) -> int``;
 ``delay_blocks(...)`` / ``delay_json(...)`` for the two ways of printing.  The
 receiving input is chosen by ``analog.choose_receiver``.
 
@@ -24,8 +24,6 @@ from ..render import print_json, show, Table, Text
 from ..units import format_si, parse_quantity
 
 NAME = "delay"
-HELP = ("choose R and C from the bin for an RC delay between two logic stages, "
-        "with its spread over the input thresholds")
 
 
 def add_arguments(parser: argparse.ArgumentParser) -> None:
@@ -44,7 +42,6 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
-
     wanted = _time(args.delay)
     supply = check_supply(_quantity(args.supply, "V", "--supply"), "--supply", error=UsageError)
     fixed_r = _quantity(args.r, "ohm", "--r") if args.r else None
@@ -66,8 +63,6 @@ def run(args: argparse.Namespace) -> int:
 
 def _time(text: str) -> float:
     """The wanted delay; a bare number is refused, since 50 could mean 50 s or 50 us."""
-    from ..errors import UsageError
-
     if re.fullmatch(r"\s*[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?\s*", text):
         raise UsageError(f"delay: expected a time with its unit, got the bare number {shown(text.strip())}",
                          hint=f"write the unit: {text.strip()}us, {text.strip()}ms or '{text.strip()} s'")
@@ -75,7 +70,6 @@ def _time(text: str) -> float:
 
 
 def _quantity(text: str, unit: str, what: str) -> float:
-
     try:
         value = parse_quantity(text, unit)
     except ValueError as exc:
@@ -96,7 +90,6 @@ def _unit_pins(part, index: int):
 
 def wiring_hint(design, part) -> list[str]:
     """Where R and C go, with real pins when the receiving part is known."""
-
     r, c = format_si(design.r, "Ω"), format_si(design.c, "F")
     lines = [f"stage 1 output → R ({r}) → delay node",
              f"C ({c}) from the delay node to VSS, leads short",
@@ -122,7 +115,6 @@ def wiring_hint(design, part) -> list[str]:
 
 def delay_blocks(design, part_type, thresholds, wiring, warnings) -> list:
     """The design as render blocks: values, formula, spread, wiring, warnings."""
-
     receiver = part_type or "a plain CMOS input"
     head = Text(f"RC delay of {format_si(design.wanted_s, 's')} into {receiver} at "
                 f"{design.supply:g} V, chosen for the {design.edge} edge\n{thresholds.get('note', '')}")

@@ -13,11 +13,13 @@ from pathlib import Path
 
 from ..errors import UsageError
 from ..exports import EXPORTERS, Output, check_outputs
+from ..flow import make_plan
+from ..inventory import data_path, example_path
 from ..limits import shown
+from ..render import Text, progress, show
 from .plan import plan_blocks, write_outputs
 
 NAME = "demo"
-HELP = "plan the shipped sample-and-hold bench sequencer and write every output file into a folder"
 
 EXAMPLE = "sample_hold"
 
@@ -48,10 +50,6 @@ def check_folder(text: str) -> Path:
 
 
 def run(args: argparse.Namespace) -> int:
-    from ..inventory import data_path, example_path
-    from ..flow import make_plan
-    from ..render import Text, progress, show
-
     spec = example_path(f"{EXAMPLE}.yaml")
     stock = data_path("bins", f"{EXAMPLE}.yaml")
     out = check_folder(args.out)

@@ -10,7 +10,6 @@ from ..limits import shown
 from ..render import print_json, show, Table, Text
 
 NAME = "parts"
-HELP = "list the part catalog, or show one part's package, pins and datasheet facts"
 
 
 def add_arguments(parser: argparse.ArgumentParser) -> None:

@@ -1,6 +1,6 @@
 """``binsynth plan SPEC --bin BIN``: the main job, printed for a person.
 
-Interface: ``NAME``, ``HELP``, ``add_arguments(parser)``, ``run(args) -> int``,
+Interface: ``NAME``, ``add_arguments(parser)``, ``run(args) -> int``,
 ``plan_blocks(design)`` (what the terminal shows), ``requested_outputs(args)``
 and ``write_outputs(design, requests, take=..., bin_before=...)`` (the files
 asked for, as one transaction), shared with ``binsynth demo``.
@@ -19,14 +19,17 @@ from pathlib import Path
 from ..bintake import take_from_bin
 from ..errors import NotFoundError, ShortError, UsageError
 from ..exports import EXPORTERS, Exporter, Output, OutputTransaction, check_outputs
-from ..exports.plan_json import verdict_reason
-from ..limits import check_seconds, os_reason
-from ..render import Text, counted
+from ..exports.plan_json import failure_to_json, verdict_reason, write_failure_json
+from ..exports.wiring import driver_first
 from ..findings import MODEL_NAMES, GlitchRecord, RcOffer
+from ..flow import make_plan
+from ..limits import check_seconds, os_reason
+from ..netlist import endpoint_text, pin_table, wire_list
+from ..render import counted, print_json, progress, show, Table, Text
 from ..units import format_si
+from .options import add_effort_argument
 
 NAME = "plan"
-HELP = "plan the circuit for a spec from the chips in a bin: chips, pins, wiring list and checks"
 
 SAFETY = ("Cautions: handle CMOS chips with ESD care (grounded mat or wrist strap); never leave a "
           "CMOS input floating (every unused input is tied in this list); stay inside each part's "
@@ -41,8 +44,6 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 
 
 def add_output_arguments(parser: argparse.ArgumentParser) -> None:
-    from .substitute import add_effort_argument
-
     for entry in EXPORTERS:
         parser.add_argument(entry.option, metavar="FILE", help=entry.description)
     parser.add_argument("--take", action="store_true",
@@ -64,9 +65,6 @@ LACKS_NOTE = ("--lacks no longer takes seconds: what the bin lacks is searched b
 
 
 def run(args: argparse.Namespace) -> int:
-    from ..flow import make_plan
-    from ..render import progress, show
-
     requests = requested_outputs(args)
     bin_path = Path(args.bin)
     protected = {"the bin's backup": bin_path.with_name(bin_path.name + ".bak")} if args.take else {}
@@ -109,9 +107,6 @@ def _write_verdict(error, target: str | None) -> None:
     """``--json`` when no plan was made: the verdict, the reason and everything short."""
     if not target:
         return
-    from ..exports.plan_json import failure_to_json, write_failure_json
-    from ..render import print_json
-
     if target == "-":
         print_json(failure_to_json(error))
     else:
@@ -233,10 +228,6 @@ def _asserted_expression(signal) -> str:
 
 
 def plan_blocks(design) -> list:
-    from ..exports.wiring import driver_first
-    from ..netlist import pin_table, wire_list
-    from ..render import Table, Text
-
     plan = design.plan
     blocks = [Text(summary_text(design)),
               Table("taken from the bin", ("part", "used", "on hand", "left"), bin_rows(design)),
@@ -324,8 +315,6 @@ def remedy_lines(design) -> list[str]:
 
 def _fix_blocks(plan) -> list:
     """What ``--fix glitches`` did per signal, and the RC delays offered (glitchfix)."""
-    from ..render import Table, Text
-
     blocks = []
     fixes = plan.timing_fixes or []
     if fixes:
@@ -398,9 +387,6 @@ def _receiver(offer: RcOffer) -> str:
 
 def oscillator_blocks(plan) -> list:
     """The on-board clock: where, the formula with its numbers, the frequency spread."""
-    from ..render import Table, Text
-    from ..units import format_si
-
     osc = plan.oscillator
     if osc is None:
         return []
@@ -431,9 +417,6 @@ def oscillator_blocks(plan) -> list:
 
 def power_on_blocks(plan) -> list:
     """The power-on reset: where, R and C, and the pulse over the threshold spread."""
-    from ..render import Text
-    from ..units import format_si
-
     por = getattr(plan, "power_on_reset", None)
     if por is None:
         return []
@@ -465,9 +448,6 @@ def rc_delay_blocks(plan) -> list:
 
 def ladder_blocks(plan) -> list:
     """Each staircase: values, every code's level, output resistance, DNL / INL."""
-    from ..render import Table, Text
-    from ..units import format_si
-
     blocks = []
     for name, lad in plan.ladders.items():
         drivers = ", ".join(f"tick bit {b} = {net} ({ref} pin {pin})"
@@ -501,8 +481,6 @@ def ladder_blocks(plan) -> list:
 
 def passive_blocks(plan) -> list:
     """Every resistor and capacitor with the nets at its two ends."""
-    from ..render import Table
-
     if not plan.passives:
         return []
     return [Table(f"resistors and capacitors ({len(plan.passives)})",
@@ -511,8 +489,6 @@ def passive_blocks(plan) -> list:
 
 
 def _end(plan, end) -> str:
-    from ..netlist import endpoint_text
-
     if isinstance(end, str):
         return end
     return endpoint_text(plan, *end)

@@ -1,6 +1,6 @@
 """``binsynth substitute TARGET --bin BIN``: build a gate the bin lacks from what it has.
 
-Interface: ``NAME``, ``HELP``, ``add_arguments(parser)``, ``run(args) -> int``;
+Interface: ``NAME``, ``add_arguments(parser)``, ``run(args) -> int``;
 ``substitute_blocks(target, ways, bin_path)`` (what a person sees) and
 ``substitute_json(target, ways)`` (what a script reads).  The logic lives in
 ``synth.substitute``.
@@ -10,7 +10,6 @@ from __future__ import annotations
 
 import argparse
 
-from ..effort import DEFAULT_EFFORT, EFFORTS
 from ..errors import UsageError
 from ..inventory import load_bin, load_catalog
 from ..limits import check_expression, check_supply
@@ -18,10 +17,9 @@ from ..mapper import build_library
 from ..render import counted, print_json, progress, show, Table, Text
 from ..substitute import draw_way, parse_target, substitute, way_json, wiring_rows
 from ..units import parse_quantity
+from .options import add_effort_argument
 
 NAME = "substitute"
-HELP = ("the cheapest ways to build a gate the bin lacks (nand4, and8, xor2, nor3, inv) or a "
-        "boolean expression ('a & ~b | c') from the bin's gates, with pin-level wiring")
 
 
 def add_arguments(parser: argparse.ArgumentParser) -> None:
@@ -39,16 +37,7 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     add_effort_argument(parser)
 
 
-def add_effort_argument(parser: argparse.ArgumentParser) -> None:
-    """``--effort LEVEL``: how much search work (counted, never timed) the mapper may spend."""
-    levels = "; ".join(f"{e.name}: {e.summary}" for e in EFFORTS.values())
-    parser.add_argument("--effort", choices=list(EFFORTS), default=DEFAULT_EFFORT,
-                        help=f"how hard the search tries, counted in work so every run gives the same "
-                             f"answer ({levels}; default {DEFAULT_EFFORT})")
-
-
 def run(args: argparse.Namespace) -> int:
-
     check_expression(args.target, "target", error=UsageError,
                      fix="a gate of at most 8 inputs needs a short expression; write a shorter one")
     target = parse_target(args.target)

@@ -121,50 +121,60 @@ class ExactEncoding:
         M = len(self.minterms)
         p = [cnf.new() for _ in range(M)] if need_p else None
         q = [cnf.new() for _ in range(M)] if need_q else None
-        n = self.n
-        for mi in range(M):
+        self._read_set_values(nodes, read, p, q, v, [(kinds[c].op, t[c]) for c in self.set_kinds])
+
+    def _read_set_values(self, nodes: int, read: list[int], p: list[int] | None, q: list[int] | None,
+                         v: list[int], set_ops: list[tuple[str, int]]) -> None:
+        """Per minterm: p (AND of the nodes read), q (OR of them), and v by the gate's kind.
+        The hot loop of the encoding: clauses appended directly, fresh variables
+        numbered as ``Cnf.new`` would number them."""
+        cnf = self.cnf
+        append = cnf.clauses.append
+        n, bits, values = self.n, self.bits, self.v
+        top = cnf.top
+        for mi in range(len(self.minterms)):
             if p is not None:
                 pm = p[mi]
                 some_false = [pm]
                 for j in range(nodes):
                     r = read[j]
                     if j < n:
-                        if not self.bits[j][mi]:
-                            add([-r, -pm])
+                        if not bits[j][mi]:
+                            append([-r, -pm])
                             some_false.append(r)
                     else:
-                        x = self.v[j - n][mi]
-                        add([-r, x, -pm])
-                        z = cnf.new()
-                        add([-z, r])
-                        add([-z, -x])
-                        some_false.append(z)
-                add(some_false)
+                        x = values[j - n][mi]
+                        append([-r, x, -pm])
+                        top += 1
+                        append([-top, r])
+                        append([-top, -x])
+                        some_false.append(top)
+                append(some_false)
             if q is not None:
                 qm = q[mi]
                 some_true = [-qm]
                 for j in range(nodes):
                     r = read[j]
                     if j < n:
-                        if self.bits[j][mi]:
-                            add([-r, qm])
+                        if bits[j][mi]:
+                            append([-r, qm])
                             some_true.append(r)
                     else:
-                        x = self.v[j - n][mi]
-                        add([-r, -x, qm])
-                        w = cnf.new()
-                        add([-w, r])
-                        add([-w, x])
-                        some_true.append(w)
-                add(some_true)
+                        x = values[j - n][mi]
+                        append([-r, -x, qm])
+                        top += 1
+                        append([-top, r])
+                        append([-top, x])
+                        some_true.append(top)
+                append(some_true)
             vm = v[mi]
-            for c in self.set_kinds:
-                op, tc = kinds[c].op, t[c]
+            for op, tc in set_ops:
                 y = p[mi] if op in ("and", "nand", "not") else q[mi]
                 if op in ("nand", "not", "nor"):
                     y = -y
-                add([-tc, -vm, y])
-                add([-tc, vm, -y])
+                append([-tc, -vm, y])
+                append([-tc, vm, -y])
+        cnf.top = top
 
     def _slot_inputs(self, i: int, slots: int) -> None:
         """XOR/XNOR and 2:1 muxes: one selector per input pin, the pin's value per minterm."""

@@ -70,15 +70,20 @@ class Cnf:
         n = len(a) + len(b)
         if ubound is not None and not exact:
             n = min(n, ubound + 1)
-        out = [self.new() for _ in range(n)]
+        out = list(range(self.top + 1, self.top + n + 1))
+        self.top += n
+        append = self.clauses.append
         for i in range(len(a) + 1):
             for j in range(len(b) + 1):
                 if i + j:
-                    k = min(i + j, n)
-                    self.add(([-a[i - 1]] if i else []) + ([-b[j - 1]] if j else []) + [out[k - 1]])
+                    last = out[min(i + j, n) - 1]
+                    if i and j:
+                        append([-a[i - 1], -b[j - 1], last])
+                    else:
+                        append([-a[i - 1], last] if i else [-b[j - 1], last])
                 if exact and i + j < n:
-                    self.add(([a[i]] if i < len(a) else []) + ([b[j]] if j < len(b) else [])
-                             + [-out[i + j]])
+                    append(([a[i]] if i < len(a) else []) + ([b[j]] if j < len(b) else [])
+                           + [-out[i + j]])
         return out
 
 
