@@ -144,7 +144,7 @@ def _remap(inputs: _Inputs, part: str, effort: Effort) -> tuple[dict, int] | Non
         network = map_gates(inputs.functions, inputs.nvars, list(inputs.var_nets),
                              inputs.library.with_extra(part), polarity=inputs.polarity,
                              cover=inputs.cover, exact="no", effort=effort, steps=effort.lacks_steps,
-                             glitch_free=inputs.glitch_free)
+                             glitch_free=inputs.glitch_free, advise=False)
     except SafetyCapError:
         raise _SafetyCap(part) from None
     except SynthError:

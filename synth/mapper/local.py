@@ -62,8 +62,11 @@ class LocalSearch:
                  table: TreeTable, meter: Meter) -> None:
         self.problem, self.cands, self.cells, self.table = problem, cands, cells, table
         self.meter = meter
-        self.trees = {n: _tree_menu(table.trees(len(node.fanins)), len(cells))
-                      for n, node in enumerate(cands.nodes)}
+        menus: dict[int, list[Tree]] = {}      # one menu per fan-in count, shared by its nodes
+        for node in cands.nodes:
+            if len(node.fanins) not in menus:
+                menus[len(node.fanins)] = _tree_menu(table.trees(len(node.fanins)), len(cells))
+        self.trees = {n: menus[len(node.fanins)] for n, node in enumerate(cands.nodes)}
         self.natural_dec = {d: 1 if cells[ci].active == "low" else 0
                             for d, (ci, _) in enumerate(cands.decoders)}
         self.opt = {s.name: 0 for s in problem.signals}

@@ -67,16 +67,19 @@ class TreeTable:
         # fold[g][i][s]: dict n1 -> entries (units, n1, depth, children) of i children, s leaves
         self.fold = [{1: {1: {kind.a: [(zero, kind.a, 0, (("leaf", kind.a),))]}}} for kind in kinds]
         self.top = 1
+        self.listed: dict[int, tuple[Tree, ...]] = {}
 
     def trees(self, k: int) -> list[Tree]:
-        """Every kept tree for an AND of k fan-ins, both output phases."""
+        """Every kept tree for an AND of k fan-ins, both output phases (listed once per k)."""
         while self.top < k:
             self._grow()
-        out = []
-        for b, by_n1 in self.table[k].items():
-            for n1, entries in by_n1.items():
-                out.extend(Tree(e[0], n1, e[2], b, e[3]) for e in entries)
-        return out
+        if k not in self.listed:
+            out = []
+            for b, by_n1 in self.table[k].items():
+                for n1, entries in by_n1.items():
+                    out.extend(Tree(e[0], n1, e[2], b, e[3]) for e in entries)
+            self.listed[k] = tuple(out)
+        return list(self.listed[k])
 
     def _grow(self) -> None:
         s = self.top + 1
