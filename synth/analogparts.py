@@ -157,7 +157,7 @@ class PowerOnReset:
     c: float
     width_s: tuple[float, float, float]   # min, typ, max over the threshold spread
     formula: str
-    thresholds: dict
+    thresholds: dict[str, dict[str, float]]   # vt_plus, vt_minus -> min, typ, max (V)
     resets: list[tuple[str, int]]    # (ref, pin) of every counter reset moved onto NET
     pins: dict[str, int]
     passives: list[str]

@@ -81,6 +81,7 @@ from .findings import (MODEL_NAMES, MODEL_TEXT, MODELS, CoincidentEdge, GlitchRe
 from .harmless import check_slow_outputs, mark_harmless
 from .netlist import delivered_sets, simulate_ticks
 from .network import RAILS, Gate, Network, counting_words, evaluate_gate, evaluate_words
+from .spec import Spec
 from .packing import unit_logic_pins
 
 __all__ = [
@@ -320,7 +321,7 @@ def counter_models(counter_plan: Any, network: Network, catalog: Any, supply: fl
 def gate_names_of(plan: Any) -> dict[str, str]:
     """Gate id -> its physical name, chip ref and unit (``U2_A``)."""
     names = {}
-    for chip in getattr(plan, "chips", ()):
+    for chip in plan.chips:
         for unit, purpose in (chip.units_used or {}).items():
             names.setdefault(str(purpose), f"{chip.ref}_{unit}")
     return names
@@ -1400,8 +1401,8 @@ def mark_races(records: Sequence[CoincidentEdge], delivered: Mapping[str, frozen
     other); complementary signals (one asserted exactly when the other is not) are
     two views of one edge; other pairs are independent outputs, listed, not raced."""
     routes: dict[str, set[str]] = {}
-    nets = {name: info.get("net") for name, info in (getattr(plan, "signals", {}) or {}).items()}
-    for sw in (getattr(plan, "switches", {}) or {}).values():
+    nets = {name: info.get("net") for name, info in plan.signals.items()}
+    for sw in plan.switches.values():
         routed = {sw.get("on"), sw.get("off"), sw.get("on_net"), sw.get("off_net")}
         routes.setdefault(sw.get("select"), set()).update(
             n for n, net in nets.items() if n in routed or net in routed)
@@ -1495,7 +1496,7 @@ def _ticks_of_states(counter_plan: Any) -> dict[int, list[int]]:
 def synchronous_counter_parts(catalog: Any, stock: Any) -> list[str]:
     """The bin's counter parts whose coded outputs change together (no ripple)."""
     found = []
-    for part_type in sorted(getattr(stock, "parts", {}) or {}):
+    for part_type in sorted(stock.parts):
         part = catalog.parts.get(part_type)
         if part is not None and any(u.synchronous_binary_or_bcd for u in part.units):
             found.append(part_type)
@@ -1529,7 +1530,7 @@ def remedies(glitch: Glitch, plan: Any, *, catalog: Any = None, stock: Any = Non
     out += _register_remedy(glitch, plan, catalog, stock)
     if spec is None or _pulse_per_tick_ok(spec, glitch.signal):
         out += _clock_gating_remedy(glitch, plan)
-    switch = [n for n, s in (getattr(plan, "switches", {}) or {}).items() if s.get("select") == glitch.signal]
+    switch = [n for n, s in plan.switches.items() if s.get("select") == glitch.signal]
     if switch:
         out.append(f"note: {glitch.signal} drives switch {', '.join(switch)}: for {glitch.width_ns:.0f} ns "
                    "the switch conducts the wrong way; a slow analog stage averages that away, a "
@@ -1543,20 +1544,19 @@ def remedies(glitch: Glitch, plan: Any, *, catalog: Any = None, stock: Any = Non
 
 def _pulse_per_tick_ok(spec: Any, name: str) -> bool:
     """As ``registers.pulse_per_tick_ok`` (steady: false, or unset with one-tick windows)."""
-    sig = getattr(spec, "signals", {}).get(name)
+    sig = spec.signals.get(name)
     if sig is None:
         return True
-    steady = getattr(sig, "steady", None)
-    if steady is not None:
-        return not steady
-    return all(b - a == 1 for a, b in getattr(sig, "windows", ()))
+    if sig.steady is not None:
+        return not sig.steady
+    return all(b - a == 1 for a, b in sig.windows)
 
 
 def _register_remedy(glitch: Glitch, plan: Any, catalog: Any, stock: Any) -> list[str]:
     """Registering: the bin's D flip-flops, the signal decoded one tick early."""
-    if glitch.signal in (getattr(plan, "registered", None) or {}) or catalog is None or stock is None:
+    if glitch.signal in plan.registered or catalog is None or stock is None:
         return []
-    parts = [t for t in sorted(getattr(stock, "parts", {}) or {})
+    parts = [t for t in sorted(stock.parts)
              if catalog.parts.get(t) is not None and catalog.parts[t].units_of("flipflop")]
     if not parts:
         return []
@@ -1569,8 +1569,8 @@ def _decode_choice_remedy(glitch: Glitch, counter: Any, spec: Any) -> list[str]:
     """Remedy 1: the transient state is a don't-care for this signal."""
     state = glitch.transient_state
     ticks = _ticks_of_states(counter).get(int(state), [])  # type: ignore[arg-type]
-    sig = getattr(spec, "signals", {}).get(glitch.signal) if spec is not None else None
-    dont_care = set(getattr(sig, "dont_care", ()) or ())
+    sig = spec.signals.get(glitch.signal) if spec is not None else None
+    dont_care = set(sig.dont_care) if sig is not None else set()
     never_held = not ticks and int(state) in counter.unreachable  # type: ignore[arg-type]
     if not never_held and not (ticks and all(t in dont_care for t in ticks)):
         return []
@@ -1593,7 +1593,7 @@ def _clock_gating_remedy(glitch: Glitch, plan: Any) -> list[str]:
     controlling, forced = _CONTROLLING[gate.op]
     if forced == (info.get("polarity", "high") == "high"):
         return []        # gating would force the asserted level: no use
-    after_edge = getattr(plan, "clock_edge", "falling") == "rising"
+    after_edge = plan.clock_edge == "rising"
     phase = "CLK" if controlling == after_edge else "CLK through a spare inverter"
     return [f"gate the decode with the clock: wire {spare_input_place(plan, gate, spare)} to {phase}; "
             f"{glitch.signal} is then held inactive in the first half of every tick while the counter "
@@ -1603,8 +1603,8 @@ def _clock_gating_remedy(glitch: Glitch, plan: Any) -> list[str]:
 
 # ---------------------------------------------------------------- the plan command's timing step
 
-def _period_of(spec: Any) -> float | None:
-    freq = getattr(getattr(spec, "clock", None), "frequency_hz", None)
+def _period_of(spec: Spec | None) -> float | None:
+    freq = spec.clock.frequency_hz if spec is not None else None
     return 1e9 / freq if freq else None
 
 
@@ -1649,7 +1649,7 @@ def timing_report(design: Any) -> TimingReport:
     """
     catalog = design.catalog
     plan = dataclasses.replace(design.plan, warnings=list(design.plan.warnings))   # read, never written
-    spec = getattr(design, "spec", None)
+    spec = design.spec
     period = _period_of(spec)
     run = dict(catalog=catalog, supply=plan.supply, clock_period_ns=period, cycles=2,
                gate_names=gate_names_of(plan))
@@ -1687,7 +1687,7 @@ def timing_report(design: Any) -> TimingReport:
     for rec in plan.pulse_widths:
         plan.warnings.extend(pulse_warning_lines(rec))
     plan.warnings.extend([w for w in dict.fromkeys(typ.warnings + worst.warnings) if w not in plan.warnings])
-    stock = getattr(design, "stock", None)
+    stock = design.stock
     by_glitch = {(g.signal, g.at_tick): remedies(g, plan, catalog=catalog, stock=stock, spec=spec)
                  for g in found if (g.signal, g.at_tick) not in harmless}
     text: list[str] = []
@@ -1918,7 +1918,7 @@ def _power_on_checks(plan: Any, catalog: Any) -> list[PulseWidth]:
 def _strobed_levels(plan: Any) -> dict[str, bool]:
     """Signal -> its inactive electrical level, for signals gated with the clock."""
     return {name: info["polarity"] != "high" for name, info in plan.signals.items()
-            if name in (getattr(plan, "strobed", None) or {})}
+            if name in plan.strobed}
 
 
 def _state_duration(trace: Trace, k: int, minterm: int) -> float:

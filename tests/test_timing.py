@@ -284,6 +284,8 @@ class _Plan:
         self.parts = {g.part: catalog.parts[g.part] for g in net.gates} if catalog else {}
         self.switches = switches or {}
         self.clock_edge = cp.edge
+        self.registered: dict = {}
+        self.strobed: dict = {}
 
 
 def _zero_glitch(catalog, gate: Gate, cp=None):
