@@ -39,11 +39,15 @@ import time
 from dataclasses import dataclass
 from typing import Any
 
+from .counter import CounterPlan
+from .decode import Decode
 from .effort import Effort, effort_named
 from .errors import SafetyCapError, SynthError
-from .mapper import cells_of_part
+from .inventory import Bin, Catalog
+from .mapper import Library, cells_of_part
 from .mapper.core import map_design as map_gates
 from .mapper.objective import Cost
+from .minimize import Cover, Function
 from .stages import async_reset_names, mapping_inputs
 
 LOGIC_CATEGORIES = ("gate", "inverter", "mux", "decoder")
@@ -124,14 +128,14 @@ class BinLacks:
 class _Inputs:
     """What the plan's mapper saw, so a candidate is mapped exactly as the plan was."""
 
-    functions: Any
+    functions: tuple[Function, ...]
     nvars: int
-    var_nets: tuple
-    library: Any
-    polarity: dict
-    cover: Any
-    glitch_free: tuple
-    candidates: tuple
+    var_nets: tuple[str, ...]
+    library: Library
+    polarity: dict[str, str]
+    cover: Cover
+    glitch_free: tuple[str, ...]
+    candidates: tuple[str, ...]
 
 
 class _SafetyCap(Exception):
@@ -217,7 +221,7 @@ def _child(conn, inputs: _Inputs, effort: Effort, claims: _Claims) -> None:
 class Search:
     """A what-the-bin-lacks search under way (in a child process, or deferred)."""
 
-    def __init__(self, inputs: _Inputs, decode: Any, effort: Effort) -> None:
+    def __init__(self, inputs: _Inputs, decode: Decode, effort: Effort) -> None:
         self.inputs, self.decode, self.effort = inputs, decode, effort
         self.start = time.monotonic()
         self.results: dict[int, tuple[str, tuple[dict, int] | None]] = {}
@@ -294,8 +298,9 @@ class Search:
         return _judge(design, self.inputs, results, time.monotonic() - self.start)
 
 
-def start_search(decode: Any, counter_plan: Any, library: Any, polarity: dict, stock: Any,
-                 catalog: Any, *, glitch_free: tuple = (), effort: str | Effort | None = None) -> Search:
+def start_search(decode: Decode, counter_plan: CounterPlan, library: Library, polarity: dict[str, str],
+                 stock: Bin, catalog: Catalog, *, glitch_free: tuple[str, ...] = (),
+                 effort: str | Effort | None = None) -> Search:
     """Begin re-mapping the decode with each candidate part added (see the module text)."""
     inputs = _Inputs(decode.functions, len(counter_plan.vars), tuple(v.net for v in counter_plan.vars),
                      library, dict(polarity), decode.cover, tuple(glitch_free),
