@@ -281,7 +281,7 @@ class Search:
         """Gather what the search found in its budget and judge it against the plan."""
         total = len(design.plan.chips)
         n = len(self.inputs.candidates)
-        if getattr(design.plan, "strobed", None) or design.decode is not self.decode:
+        if design.plan.strobed or design.decode is not self.decode:
             # --fix glitches re-derived the decode or added gating gates: no like-for-like baseline
             self.cancel()
             return BinLacks(None, 0, n, time.monotonic() - self.start, total, [],
