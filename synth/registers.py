@@ -141,7 +141,7 @@ def _invert_counter_clock(counter: Any, ff_edge: str) -> Any:
         if chip.enable_net == CLOCK_NET:
             changes["enable_net"] = COUNTER_CLOCK_NET
         chips.append(dataclasses.replace(chip, **changes) if changes else chip)
-    return dataclasses.replace(counter, chips=chips, edge=ff_edge)
+    return dataclasses.replace(counter, chips=tuple(chips), edge=ff_edge)
 
 
 def _early_spec(spec: Any, delivered: dict[str, frozenset[int]], polarity: dict[str, str],

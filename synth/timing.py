@@ -28,8 +28,7 @@ Interface:
   net is taken through (a runt shorter than it never reaches the output).
 - ``timing_report(design) -> TimingReport``: the plan command's timing step,
   pure (glitches, coincident edges, register and pulse-width checks, warnings,
-  the trace, remedies; the plan it reads is left unchanged);
-  ``analyse(design, fix=())`` writes the same into a stand-in design in place.
+  the trace, remedies; the plan it reads is left unchanged).
 - ``default_period_ns(...)``, ``nice_period_ns(ns)``.
 
 The delay model (documented here once, used everywhere):
@@ -90,7 +89,7 @@ __all__ = [
     "reset_net_of", "CounterModel", "CounterOutput", "GateModel", "glitches", "Glitch",
     "settle_mismatches", "merge_glitches", "ripple_hazards", "RippleHazard", "coincident_edges",
     "edge_skews", "remedies", "spare_input", "spare_input_place", "MODEL_NAMES", "MODEL_TEXT", "MODELS",
-    "analyse", "timing_report", "TimingReport", "Remedies", "default_period_ns", "nice_period_ns",
+    "timing_report", "TimingReport", "Remedies", "default_period_ns", "nice_period_ns",
     "ps", "expected_from_delivered", "registered_signals", "register_start_levels",
     "flipflop_requirement_ns", "register_checks", "pulse_width_checks", "pulse_warning_lines", "mark_races",
     "rc_filter_ns",
@@ -446,7 +445,7 @@ class ResetPulse:
     at_tick: int
 
 
-@dataclass
+@dataclass(frozen=True)
 class Trace:
     """Every net's level changes over the simulated cycles.
 
@@ -1639,15 +1638,6 @@ class TimingReport:
     trace: Trace
     remedies: Remedies
 
-    def apply_to(self, plan: Any) -> None:
-        """Copy the results into a plan (the sequencer builds a new plan instead; kept for
-        stand-in plans in tests)."""
-        plan.glitches = list(self.glitches)
-        plan.coincident_edges = list(self.coincident_edges)
-        plan.register_checks = list(self.register_checks)
-        plan.pulse_widths = list(self.pulse_widths)
-        plan.warnings[:] = list(self.warnings)
-
 
 def timing_report(design: Any) -> TimingReport:
     """Simulate the plan at typical and worst-case delays; the results, nothing changed.
@@ -1678,12 +1668,12 @@ def timing_report(design: Any) -> TimingReport:
         plan.warnings.append(f"at worst-case delays the clock is too fast: {problems_max[0]}")
     found = merge_glitches(plan, expected, typ, run)
     check_slow_outputs(spec, plan)
-    plan.glitches = mark_harmless([g.record() for g in found], spec)
+    plan = dataclasses.replace(plan, glitches=mark_harmless([g.record() for g in found], spec))
     harmless = {(g.signal, g.at_tick) for g in plan.glitches if g.harmless}
     delivered = {n: t for n, t in delivered_sets(plan, levels).items() if n in typ.signals}
-    plan.coincident_edges = mark_races(edge_skews(typ, coincident_edges(delivered, typ.cycle)),
-                                       delivered, plan, typ.cycle)
-    plan.register_checks = register_checks(plan, [typ, worst], catalog)
+    plan = dataclasses.replace(plan, coincident_edges=mark_races(edge_skews(typ, coincident_edges(delivered, typ.cycle)),
+                                       delivered, plan, typ.cycle))
+    plan = dataclasses.replace(plan, register_checks=register_checks(plan, [typ, worst], catalog))
     for rec in plan.register_checks:
         if not rec.setup_ok:
             plan.warnings.append(f"{rec.signal}: flip-flop {rec.flipflop} ({rec.part}) sees D settle "
@@ -1693,10 +1683,10 @@ def timing_report(design: Any) -> TimingReport:
             plan.warnings.append(f"{rec.signal}: flip-flop {rec.flipflop} ({rec.part}) sees D change "
                                  f"{rec.hold_margin_ns:g} ns after its clock edge, inside its "
                                  f"{rec.hold_needed_ns:g} ns hold time")
-    plan.pulse_widths = pulse_width_checks(plan, typ, catalog, worst)
+    plan = dataclasses.replace(plan, pulse_widths=pulse_width_checks(plan, typ, catalog, worst))
     for rec in plan.pulse_widths:
-        plan.warnings += pulse_warning_lines(rec)
-    plan.warnings += [w for w in dict.fromkeys(typ.warnings + worst.warnings) if w not in plan.warnings]
+        plan.warnings.extend(pulse_warning_lines(rec))
+    plan.warnings.extend([w for w in dict.fromkeys(typ.warnings + worst.warnings) if w not in plan.warnings])
     stock = design.stock
     by_glitch = {(g.signal, g.at_tick): remedies(g, plan, catalog=catalog, stock=stock, spec=spec)
                  for g in found if (g.signal, g.at_tick) not in harmless}
@@ -1709,19 +1699,6 @@ def timing_report(design: Any) -> TimingReport:
     return TimingReport(tuple(plan.glitches), tuple(plan.coincident_edges), tuple(plan.register_checks),
                         tuple(plan.pulse_widths), tuple(plan.warnings), typ,
                         Remedies(tuple(text), by_glitch, tuple(found)))
-
-
-
-
-def analyse(design: Any, fix: Sequence[str] | set[str] = ()) -> None:
-    """``timing_report`` written into ``design.plan`` and ``design`` (``trace``,
-    ``remedies``) in place, for stand-in designs in tests; the plan command's
-    sequencer (``synth.flow``) uses ``timing_report`` and builds new records.
-    ``fix`` is accepted for the callers' sake."""
-    report = timing_report(design)
-    report.apply_to(design.plan)
-    design.trace = report.trace
-    design.remedies = report.remedies
 
 
 def pulse_warning_lines(rec: PulseWidth) -> list[str]:

@@ -36,7 +36,7 @@ from __future__ import annotations
 
 import multiprocessing
 import time
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from typing import Any
 
 from .effort import Effort, effort_named
@@ -83,7 +83,7 @@ class Suggestion:
                 "logic_chips_by_part": dict(self.chips_with)}
 
 
-@dataclass
+@dataclass(frozen=True)
 class BinLacks:
     """The best suggestion (None: no single chip type helps) and the search's reach."""
 
@@ -92,7 +92,7 @@ class BinLacks:
     candidates: int
     seconds: float
     total_chips: int
-    others: list[Suggestion] = field(default_factory=list)
+    others: tuple[Suggestion, ...] = ()
     skipped: str = ""
 
     @property
@@ -284,7 +284,7 @@ class Search:
         if design.plan.strobed or design.decode is not self.decode:
             # --fix glitches re-derived the decode or added gating gates: no like-for-like baseline
             self.cancel()
-            return BinLacks(None, 0, n, time.monotonic() - self.start, total, [],
+            return BinLacks(None, 0, n, time.monotonic() - self.start, total, (),
                             skipped="not searched: --fix glitches changed the design")
         spare = _spare_part_types(design, self.inputs.library)
         if not design.network.gates:
@@ -330,7 +330,7 @@ def _judge(design: Any, inputs: _Inputs, results, seconds: float) -> BinLacks:
     tried = len(judged) if not design.network.gates else \
         len([p for p, _ in results if p not in spare])
     return BinLacks(found[0] if found else None, tried, len(judged), seconds,
-                    len(design.plan.chips), found[1:4])
+                    len(design.plan.chips), tuple(found[1:4]))
 
 
 def _mapping_inputs(design):
