@@ -24,6 +24,8 @@ import bisect
 from dataclasses import dataclass
 from typing import Any
 
+from .netlist import Plan
+
 __all__ = ["AnalogWave", "analog_waves"]
 
 RAIL_VOLTS = {"GND": 0.0, "VSS": 0.0}
@@ -97,7 +99,7 @@ def _staircase(trace: Any, name: str, lad: Any) -> AnalogWave:
                       f"{lad.kind} ladder on tick bits {', '.join(map(str, lad.bits))}")
 
 
-def _switch(trace: Any, plan: Any, name: str, sw: dict, volts: dict[str, AnalogWave]) -> list[AnalogWave]:
+def _switch(trace: Any, plan: Plan, name: str, sw: dict, volts: dict[str, AnalogWave]) -> list[AnalogWave]:
     control = sw.get("control_net")
     if not control or control not in trace.initial:
         return []
@@ -136,10 +138,10 @@ def _switch(trace: Any, plan: Any, name: str, sw: dict, volts: dict[str, AnalogW
     return waves
 
 
-def analog_waves(trace: Any, plan: Any) -> list[AnalogWave]:
+def analog_waves(trace: Any, plan: Plan) -> list[AnalogWave]:
     """Every staircase, then every switch's position (and common voltage where known)."""
-    waves = [_staircase(trace, name, lad) for name, lad in sorted(getattr(plan, "ladders", {}).items())]
+    waves = [_staircase(trace, name, lad) for name, lad in sorted(plan.ladders.items())]
     volts = {wave.name: wave for wave in waves}
-    for name, sw in sorted(getattr(plan, "switches", {}).items()):
+    for name, sw in sorted(plan.switches.items()):
         waves += _switch(trace, plan, name, sw, volts)
     return waves

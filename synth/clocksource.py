@@ -33,10 +33,10 @@ warning that names the value that would hit it.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
 
 from .analog import (CounterOscillatorDesign, OscillatorDesign, counter_oscillator_design,
                      schmitt_oscillator_design, thresholds_at)
+from .analogparts import OscillatorPlan, Site
 from .counter import counter_fmax_mhz
 from .errors import ShortError
 from .netlist import RAIL_NETS, Passive
@@ -55,65 +55,6 @@ TIMING_NODE = "OSC_RC"
 # 4060-type RC stages vary about +-10 % unit to unit (from memory; the
 # datasheets give the formula, not its spread).
 COUNTER_OSC_SPREAD = 0.10
-
-
-@dataclass(frozen=True)
-class Site:
-    """A place the oscillator can go: a unit of a chip in the plan, or of a new chip."""
-
-    kind: str            # "counter-stage" (a 4060's own), "inverter", "nand"
-    part: str
-    unit: str
-    ref: str | None      # None: a new chip from the bin
-    order: int           # the preference rank (1..5 in the module docstring)
-
-    def describe(self) -> str:
-        what = {"counter-stage": "the built-in RC oscillator stage",
-                "inverter": f"Schmitt inverter {self.unit}",
-                "nand": f"Schmitt NAND {self.unit} (other input tied to VDD)"}[self.kind]
-        return f"{what} of a {self.part}"
-
-
-@dataclass
-class OscillatorPlan:
-    """The oscillator as planned: where, which values, and the numbers behind them."""
-
-    site: Site
-    ref: str
-    opened: bool                      # a chip was opened for it (it joins the BOM)
-    wanted_hz: float
-    r: float
-    c: float
-    rs: float | None
-    f_nom: float
-    f_min: float | None
-    f_max: float | None
-    formula: str                      # the general formula
-    worked: str                       # the formula with the numbers
-    tolerance: float
-    tolerance_given: bool
-    thresholds: dict | None
-    clock_net: str
-    pins: dict[str, int]              # role -> pin of ``ref``
-    passives: list[str]
-    counter_fmax_mhz: float | None
-    corners: list[tuple[str, float, float, float]] = field(default_factory=list)  # label, VT+, VT-, f
-    warnings: list[str] = field(default_factory=list)
-
-    def as_json(self) -> dict:
-        return {
-            "part": self.site.part, "ref": self.ref, "unit": self.site.unit, "kind": self.site.kind,
-            "new_chip": self.opened, "r_ohm": self.r, "c_farad": self.c, "rs_ohm": self.rs,
-            "formula": self.formula, "worked": self.worked,
-            "wanted_hz": self.wanted_hz, "nominal_hz": self.f_nom, "min_hz": self.f_min, "max_hz": self.f_max,
-            "tolerance": self.tolerance, "tolerance_default": not self.tolerance_given,
-            "thresholds_v": self.thresholds, "clock_net": self.clock_net,
-            "pins": dict(self.pins), "passives": list(self.passives),
-            "counter_fmax_mhz": self.counter_fmax_mhz,
-            "corners": [{"label": l, "vt_plus_v": p, "vt_minus_v": m, "frequency_hz": f}
-                        for l, p, m, f in self.corners],
-            "warnings": list(self.warnings),
-        }
 
 
 # ---------------------------------------------------------------- where it can go

@@ -73,7 +73,7 @@ class CounterVar:
     weight: int | None        # binary/BCD weight in the count; None for a decoded output
 
 
-@dataclass
+@dataclass(frozen=True)
 class CounterChip:
     """One counter unit as wired: what clocks it, what resets it, what is held."""
 
@@ -95,7 +95,7 @@ class CounterChip:
     count_enable_pins: tuple[int, ...] = ()   # pins joined to enable_net (CEP, CET of a carry cascade)
 
 
-@dataclass
+@dataclass(frozen=True)
 class ResetDecode:
     """The counter state decoded into the reset pins to cut a cycle short.
 
@@ -133,20 +133,20 @@ class CarryDecode:
     chip: int
 
 
-@dataclass
+@dataclass(frozen=True)
 class CounterPlan:
-    """The counter chips and the tick <-> minterm map the decode works over."""
+    """The counter chips and the tick <-> minterm map the decode works over (frozen)."""
 
-    chips: list[CounterChip]
-    vars: list[CounterVar]
+    chips: tuple[CounterChip, ...]
+    vars: tuple[CounterVar, ...]
     cycle: int
     state_of_tick: tuple[int, ...]
     unreachable: frozenset[int]
     edge: Edge
     synchronous: bool
     reset: ResetDecode | None
-    warnings: list[str] = field(default_factory=list)
-    notes: list[str] = field(default_factory=list)
+    warnings: tuple[str, ...] = ()
+    notes: tuple[str, ...] = ()
     settle_ns: float | None = None
     transient_states: int = 0
     passing: dict[int, frozenset[int]] = field(default_factory=dict)  # tick -> states shown on the way to the next
@@ -794,8 +794,8 @@ def allocate(spec, stock: Bin, catalog: Catalog, *, decoded_carry: bool = False)
     the glitch fix's synchronous-counter remedy asks for it)."""
     cycle = int(spec.cycle)
     if cycle == 1:
-        return CounterPlan([], [], 1, (0,), frozenset(), "rising", True, None,
-                           notes=["a cycle of 1 tick needs no counter: every signal is constant"])
+        return CounterPlan((), (), 1, (0,), frozenset(), "rising", True, None,
+                           notes=("a cycle of 1 tick needs no counter: every signal is constant",))
     n = bits_for(cycle)
     if n > MAX_VARIABLES:
         raise SpecError(f"expected a cycle of at most {1 << MAX_VARIABLES} ticks, got {cycle} "
@@ -938,15 +938,13 @@ def _plan_of(verdict: _Verdict, spec, stock: Bin, catalog: Catalog, supply: floa
     reset = _reset_decode(verdict, chain, vars_, refs, held, unreachable, stock, catalog, supply) \
         if verdict.reset_mode != "none" else None
     chips = _chips(chain, vars_, refs, reset, prefix)
-    plan = CounterPlan(chips, vars_, cycle, state_of_tick, unreachable, verdict.edge,
+    plan = CounterPlan(tuple(chips), tuple(vars_), cycle, state_of_tick, unreachable, verdict.edge,
                        verdict.synchronous, reset, settle_ns=verdict.settle_ns,
                        passing=_passing(chain, verdict, reset.transient if reset else None),
                        transient_states=1 if verdict.reset_mode in ("async", "direct") else 0,
                        carries=_carry_decodes(chain, state_of_tick, unreachable, cycle))
-    plan.warnings += verdict.fmax_notes
-    plan.notes += [c.how for c in chips]
-    _explain(plan, verdict, frequency)
-    return plan
+    notes, warnings = _explain(plan, verdict, frequency)
+    return replace(plan, warnings=(*verdict.fmax_notes, *warnings), notes=(*(c.how for c in chips), *notes))
 
 
 def _refs(chain: _Chain) -> list[str]:
@@ -1022,10 +1020,8 @@ def _chips(chain: _Chain, vars_: list[CounterVar], refs: list[str], reset: Reset
         chips.append(chip)
     for i, e in enumerate(chain.elements):
         if e.carry_from is not None and e.via == "carry":
-            chips[e.carry_from].carry_net = chips[i].enable_net
-    for chip, e in zip(chips, chain.elements):
-        chip.how = _how(chip, e.kind.part, e, _unit(e))
-    return chips
+            chips[e.carry_from] = replace(chips[e.carry_from], carry_net=chips[i].enable_net)
+    return [replace(chip, how=_how(chip, e.kind.part, e, _unit(e))) for chip, e in zip(chips, chain.elements)]
 
 
 def _carry_placeholder(index: int) -> str:
@@ -1275,30 +1271,33 @@ def _precedence(chain: _Chain) -> list[set[int]]:
     return before
 
 
-def _explain(plan: CounterPlan, verdict: _Verdict, frequency: float | None) -> None:
+def _explain(plan: CounterPlan, verdict: _Verdict, frequency: float | None) -> tuple[list[str], list[str]]:
     """Notes and warnings a person should read beside the counter choice."""
     cycle = plan.cycle
+    notes: list[str] = []
+    warnings: list[str] = []
     if plan.reset is not None:
-        plan.notes.append(plan.reset.caution)
-        plan.warnings += plan.reset.warnings
+        notes.append(plan.reset.caution)
+        warnings += plan.reset.warnings
         if plan.reset.direct:
-            plan.notes.append(f"cycle {cycle}: {plan.reset.net} resets the count to 0")
+            notes.append(f"cycle {cycle}: {plan.reset.net} resets the count to 0")
     elif verdict.chain.style == "johnson":
-        plan.notes.append(f"cycle {cycle}: the decoded counter wraps by itself")
+        notes.append(f"cycle {cycle}: the decoded counter wraps by itself")
     else:
-        plan.notes.append(f"cycle {cycle}: the used stages wrap by themselves, no reset needed")
+        notes.append(f"cycle {cycle}: the used stages wrap by themselves, no reset needed")
     never = len(plan.unreachable)
     if never:
-        plan.notes.append(f"{never} of the {1 << plan.nvars} output states are never held: don't-cares")
+        notes.append(f"{never} of the {1 << plan.nvars} output states are never held: don't-cares")
     if not plan.synchronous:
-        plan.notes.append("ripple counting: the outputs change one after another after each "
-                          f"counting edge (all settled after about {_ns(plan.settle_ns)} ns typ)")
+        notes.append("ripple counting: the outputs change one after another after each "
+                     f"counting edge (all settled after about {_ns(plan.settle_ns)} ns typ)")
     if frequency and plan.settle_ns:
         period_ns = 1e9 / frequency
         if plan.settle_ns > period_ns:
-            plan.warnings.append(f"the counter outputs settle about {plan.settle_ns:.0f} ns after the "
-                                 f"counting edge, longer than the {period_ns:.0f} ns clock period")
+            warnings.append(f"the counter outputs settle about {plan.settle_ns:.0f} ns after the "
+                            f"counting edge, longer than the {period_ns:.0f} ns clock period")
     if any(e.kind.mode == "binary" and not set(range(1, e.kind.width + 1)) <= e.kind.visible
            for e in verdict.chain.elements):
         missing = _missing_stages(verdict.chain)
-        plan.notes.append(f"stages not brought out ({missing}) are not used by the decode")
+        notes.append(f"stages not brought out ({missing}) are not used by the decode")
+    return notes, warnings

@@ -20,7 +20,8 @@ internal function ``_reset``.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+import dataclasses
+from dataclasses import dataclass
 
 from .counter import CounterPlan
 from .errors import InternalError, ShortError, SpecError
@@ -52,18 +53,18 @@ class SignalDecode:
     dc_states_used: frozenset[int]    # never-held counter states the cover asserts (minterms)
 
 
-@dataclass
+@dataclass(frozen=True)
 class Decode:
     """The minimized decode of every signal (and of the counter reset)."""
 
     plan: CounterPlan
-    functions: list[Function]
+    functions: tuple[Function, ...]
     cover: Cover
     signals: dict[str, SignalDecode]
     reset: SignalDecode | None
     free_phase: frozenset[str]
-    warnings: list[str] = field(default_factory=list)
-    notes: list[str] = field(default_factory=list)
+    warnings: tuple[str, ...] = ()
+    notes: tuple[str, ...] = ()
 
     @property
     def delivered(self) -> dict[str, frozenset[int]]:
@@ -322,16 +323,13 @@ def derive(spec, plan: CounterPlan, *, exact: str = "auto") -> Decode:
     else:
         raise InternalError("don't-care ticks kept breaking a clear_of after pinning",
                             hint="a bug in binsynth; no design was printed")
-    decode = Decode(plan, functions, cover, {}, None, free)
     patterns = _var_patterns(plan.nvars)
     unreachable = _bitset(plan.unreachable, plan.nvars)
-    for name, sig in spec.signals.items():
-        decode.signals[name] = _signal_decode(cover, name, plan, patterns, unreachable, sig,
-                                              chosen[name])
-    if plan.reset is not None and not plan.reset.direct:
-        decode.reset = _reset_decode(cover, plan, patterns)
-    decode.notes += _notes(spec, decode, dont_care)
-    return decode
+    signals = {name: _signal_decode(cover, name, plan, patterns, unreachable, sig, chosen[name])
+               for name, sig in spec.signals.items()}
+    reset = _reset_decode(cover, plan, patterns) if plan.reset is not None and not plan.reset.direct else None
+    decode = Decode(plan, tuple(functions), cover, signals, reset, free)
+    return dataclasses.replace(decode, notes=tuple(_notes(spec, decode, dont_care)))
 
 
 def _signal_decode(cover: Cover, name: str, plan: CounterPlan, patterns: list[int],

@@ -43,6 +43,7 @@ synth.expr.ExprError: attribute access is not allowed: 't.real' at column 1
 
 from __future__ import annotations
 
+import dataclasses
 import operator
 from dataclasses import dataclass, field
 from typing import Callable
@@ -516,9 +517,7 @@ class _Parser:
 
 def _widened(node: Node, start: int, end: int) -> Node:
     """``node`` with its text span covering the surrounding parentheses."""
-    fields = {name: getattr(node, name) for name in node.__dataclass_fields__}
-    fields.update(start=start, end=end)
-    return type(node)(**fields)
+    return dataclasses.replace(node, start=start, end=end)
 
 
 # --------------------------------------------------------------------------

@@ -123,8 +123,7 @@ class Sequencer:
     def pack(self, design: Design, network: Network) -> Plan:
         """A changed network packed with the analog parts added, as in ``plan`` (no timing)."""
         plan = pack(network, design.counter, design.spec, design.stock, design.catalog)
-        add_analog_parts(plan, design.spec, design.stock, design.catalog)
-        return plan
+        return add_analog_parts(plan, design.spec, design.stock, design.catalog)
 
     def replan(self, design: Design, *, counter_plan: CounterPlan | None = None,
                decode: Decode | None = None, network: Network | None = None,
@@ -149,8 +148,8 @@ class Sequencer:
                         registered: dict[str, Registered] | None = None) -> Design:
         """Packing, the analog parts, then the timing analysis written into a new plan."""
         plan = pack(network, counter_plan, spec, stock, catalog)
-        plan.warnings[:0] = list(stock.warnings) + list(counter_plan.warnings)
-        add_analog_parts(plan, spec, stock, catalog)
+        plan = dataclasses.replace(plan, warnings=(*stock.warnings, *counter_plan.warnings, *plan.warnings))
+        plan = add_analog_parts(plan, spec, stock, catalog)
         plan = dataclasses.replace(plan, strobed=dict(strobed or {}), registered=dict(registered or {}))
         design = Design(plan, spec, stock, catalog, counter_plan, decode, network)
         return with_timing(design, timing_report(design))
@@ -179,7 +178,7 @@ def with_timing(design: Design, report: TimingReport) -> Design:
     plan = dataclasses.replace(design.plan, glitches=list(report.glitches),
                                coincident_edges=list(report.coincident_edges),
                                register_checks=list(report.register_checks),
-                               pulse_widths=list(report.pulse_widths), warnings=list(report.warnings))
+                               pulse_widths=list(report.pulse_widths), warnings=report.warnings)
     return dataclasses.replace(design, plan=plan, trace=report.trace, remedies=report.remedies)
 
 

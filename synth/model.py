@@ -7,8 +7,9 @@ the sequencer: run the stages again with changed inputs), and, re-exported
 from the module that makes each, the stage records: ``Spec`` (spec), ``Bin``
 and ``Catalog`` (inventory), ``CounterPlan`` (counter), ``Decode`` (decode),
 ``Network`` (network: the mapped gates), ``Plan`` (netlist: the packed
-plan), ``TimingReport``, ``Remedies`` and ``Trace`` (timing), ``OscillatorPlan``
-(clocksource), ``LadderPlan`` (staircase), ``PowerOnReset`` (poweron),
+plan), ``TimingReport``, ``Remedies`` and ``Trace`` (timing), ``OscillatorPlan``,
+``LadderPlan``, ``PowerOnReset``, ``AppliedDelay`` (analogparts; made by clocksource,
+staircase, poweron, rcdelay),
 ``BinLacks`` (wishlist); the mapper's verdicts when no plan exists are the
 errors ``ShortError`` (proven impossible, with ``short``) and
 ``NotFoundError`` (the effort ran out), re-exported from errors.
@@ -28,7 +29,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from typing import Protocol
 
-from .clocksource import OscillatorPlan
+from .analogparts import AppliedDelay, LadderPlan, OscillatorPlan, PowerOnReset
 from .counter import CounterPlan
 from .decode import Decode
 from .errors import NotFoundError, ShortError
@@ -36,14 +37,13 @@ from .findings import RcOffer, Registered, Strobed, TimingFix
 from .inventory import Bin, Catalog
 from .netlist import Plan
 from .network import Network
-from .poweron import PowerOnReset
 from .spec import Spec
-from .staircase import LadderPlan
 from .timing import Remedies, TimingReport, Trace
 from .wishlist import BinLacks
 
 __all__ = ["Design", "FixReport", "Replanner", "Spec", "Bin", "Catalog", "CounterPlan", "Decode",
            "Network", "Plan", "TimingReport", "Remedies", "Trace", "OscillatorPlan", "LadderPlan", "PowerOnReset",
+           "AppliedDelay",
            "BinLacks", "ShortError", "NotFoundError"]
 
 

@@ -26,6 +26,7 @@ from collections.abc import Mapping
 from dataclasses import dataclass, field
 from typing import Any, Literal, NamedTuple
 
+from .analogparts import AppliedDelay, LadderPlan, OscillatorPlan, PowerOnReset
 from .counter import CounterPlan
 from .errors import InternalError
 from .findings import (CoincidentEdge, GlitchRecord, PulseWidth, RcOffer, RegisterCheck, Registered, Strobed,
@@ -44,7 +45,7 @@ Direction = Literal["in", "out", "analog", "power", "nc", "other"]
 
 # ---------------------------------------------------------------- records
 
-@dataclass
+@dataclass(frozen=True)
 class ChipInstance:
     """One physical chip on the board.
 
@@ -88,9 +89,14 @@ def is_passive(ref: str) -> bool:
     return bool(re.fullmatch(r"[RC]\d+", ref))
 
 
-@dataclass
+@dataclass(frozen=True)
 class Plan:
-    """A packed design: everything the checks and the exports read."""
+    """A packed design: everything the checks and the exports read.
+
+    Frozen: a later stage builds a new record (``dataclasses.replace``).  The stages
+    that add parts (the analog parts, an RC delay) fill the chips, nets and passives
+    of a working copy (``packing.working_copy``) before they make the new record.
+    """
 
     name: str
     spec_path: str
@@ -101,25 +107,25 @@ class Plan:
     signals: dict[str, dict]
     switches: dict[str, dict]
     bom: dict[str, int]
-    decoupling: list[tuple[str, str]]
+    decoupling: tuple[tuple[str, str], ...]
     clock_edge: str
-    counter: Any
+    counter: CounterPlan
     network: Network
     glitches: list[GlitchRecord] = field(default_factory=list)
     coincident_edges: list[CoincidentEdge] = field(default_factory=list)
-    warnings: list[str] = field(default_factory=list)
-    cautions: list[str] = field(default_factory=list)
+    warnings: tuple[str, ...] = ()
+    cautions: tuple[str, ...] = ()
     proven_minimal: bool = False
     lower_bound: int | None = None
     method: str = ""
     parts: dict[str, Part] = field(default_factory=dict)
     external: dict[str, str] = field(default_factory=dict)
-    bin_lacks: dict | None = None   # wishlist.BinLacks.to_json(), when the plan ran that search
+    bin_lacks: dict[str, object] | None = None   # wishlist.BinLacks.to_json(), when the plan ran that search
     passives: list[Passive] = field(default_factory=list)
-    oscillator: Any = None          # clocksource.OscillatorPlan when the spec asks for one
-    ladders: dict = field(default_factory=dict)   # staircase.LadderPlan by net name
-    power_on_reset: Any = None      # poweron.PowerOnReset when the spec asks for one
-    rc_delays: list = field(default_factory=list)   # rcdelay.AppliedDelay, each RC delay built in
+    oscillator: OscillatorPlan | None = None         # when the spec asks for one
+    ladders: dict[str, LadderPlan] = field(default_factory=dict)   # by net name
+    power_on_reset: PowerOnReset | None = None       # when the spec asks for one
+    rc_delays: tuple[AppliedDelay, ...] = ()        # each RC delay built in
     # the timing step's results (timing.TimingReport) and the remedies' (glitchfix.FixReport)
     register_checks: list[RegisterCheck] = field(default_factory=list)
     pulse_widths: list[PulseWidth] = field(default_factory=list)

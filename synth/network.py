@@ -73,7 +73,7 @@ class RcTiming:
     fall: tuple[float, float, float]
 
 
-@dataclass
+@dataclass(frozen=True)
 class Network:
     """A mapped design: gates over counter nets, before packing into chips."""
 

@@ -8,9 +8,10 @@ ties wired, a 100 nF decoupling capacitor listed per chip; the plan passes
 ``spec_net(name)``; ``check_nets`` (re-exported from ``netlist``).
 Later stages that add parts to a packed plan (the clock oscillator, the
 ladders) use ``add_chip(plan, part, role, units, pins, notes)`` (a new chip,
-finished like the others), ``rewire_pin(plan, ref, pin, net, note)`` (a spare
-unit's pin taken off its tie) and ``refresh(plan, bin)`` (nets, BOM,
-decoupling and cautions rebuilt from the chips and passives).
+finished like the others) and ``rewire_pin(plan, ref, pin, net, note)`` (a spare
+unit's pin taken off its tie) on a ``working_copy(plan)``, then
+``refresh(plan, bin) -> Plan`` (a new record: nets, BOM, decoupling and cautions
+rebuilt from the chips and passives).
 
 Switch routing, for each spec switch in turn: an SPDT section; else two SPST
 sections with complementary controls (the complement comes from the network,
@@ -23,17 +24,19 @@ while the select is asserted.
 from __future__ import annotations
 
 import dataclasses
+from collections.abc import Callable
 from dataclasses import dataclass, field
-from typing import Any
 
-from .counter import carry_nets
+from .counter import CounterChip, CounterPlan, carry_nets
 from .errors import InternalError, ShortError, SpecError
 from .inventory import Bin, Catalog, Part, Unit
 from .netlist import (CLOCK_NET, RAIL_NETS, ChipInstance, Plan, check_nets, is_passive, pin_direction,
                       pin_directions, ref_key, self_check)
-from .network import Gate, Network, evaluate_gate, fresh_name
+from .network import Gate, Network, SignalOut, evaluate_gate, fresh_name
+from .spec import Spec, SwitchSpec
 
-__all__ = ["pack", "place_logic", "unit_logic_pins", "flipflop_controls", "spec_net", "check_nets", "add_chip", "rewire_pin", "refresh"]
+__all__ = ["pack", "place_logic", "unit_logic_pins", "flipflop_controls", "spec_net", "check_nets", "add_chip", "rewire_pin", "refresh",
+           "working_copy"]
 
 # Common practice: an unused CMOS input is tied to a rail, never left floating;
 # either rail is fine for a gate input, and binsynth always uses VSS.
@@ -161,7 +164,7 @@ class _Board:
 
 # ---------------------------------------------------------------- counters
 
-def _place_counters(board: _Board, counter_plan: Any, network: Network) -> None:
+def _place_counters(board: _Board, counter_plan: CounterPlan, network: Network) -> None:
     """Counter chips keep the refs the counter plan gave them; every pin it names is wired."""
     reset_net = _reset_net(counter_plan, network)
     decoded_enables = carry_nets(counter_plan, network)
@@ -212,21 +215,21 @@ def _place_counters(board: _Board, counter_plan: Any, network: Network) -> None:
         chip.set_pin(int(direct[1]), reset_net.get(reset.net, reset.net), "drives the counter reset")
 
 
-def _counts_on_carry(part: Part, cc: Any) -> bool:
+def _counts_on_carry(part: Part, cc: CounterChip) -> bool:
     """Whether a counter unit's enable pin is one of its count enables on a carry net."""
     unit = next((u for u in part.units if str(u.id) == str(cc.unit)), None)
     pins = unit.count_enable if unit is not None else ()
     return cc.enable_pin in pins and str(cc.enable_net) not in RAIL_NETS
 
 
-def _chip_ref(counter_plan: Any, chip: Any) -> str:
+def _chip_ref(counter_plan: CounterPlan, chip: CounterChip) -> str:
     """A counter variable's chip: an index into ``counter_plan.chips`` or a ref."""
     if isinstance(chip, int) and not isinstance(chip, bool):
         return counter_plan.chips[chip].ref
     return str(chip)
 
 
-def _reset_net(counter_plan: Any, network: Network) -> dict[str, str]:
+def _reset_net(counter_plan: CounterPlan, network: Network) -> dict[str, str]:
     """The board net of the counter reset: the mapped reset decode's net, or the
     counter output that drives the reset pins directly."""
     reset = counter_plan.reset
@@ -318,7 +321,7 @@ class _Route:
     """One spec switch as the packing wires it (before refs are known)."""
 
     name: str
-    spec: Any
+    spec: SwitchSpec
     kind: str
     sections: list[tuple[_Chip, str]]
     control_net: str
@@ -328,9 +331,9 @@ class _Route:
     complement_net: str = ""
 
 
-def _route_switches(board: _Board, network: Network, spec: Any, internal_nets: set[str]) -> list[_Route]:
+def _route_switches(board: _Board, network: Network, spec: Spec, internal_nets: set[str]) -> list[_Route]:
     routes = []
-    for name, sw in (getattr(spec, "switches", None) or {}).items():
+    for name, sw in spec.switches.items():
         select = network.signals.get(sw.select)
         if select is None:
             raise InternalError(f"switch {name}: its select signal {sw.select} was not mapped")
@@ -347,26 +350,25 @@ def _route_switches(board: _Board, network: Network, spec: Any, internal_nets: s
     return routes
 
 
-def _check_switch_names(name: str, sw: Any, spec: Any, internal_nets: set[str]) -> None:
+def _check_switch_names(name: str, sw: SwitchSpec, spec: Spec, internal_nets: set[str]) -> None:
     """A switch's outside nets must not collide with the board's own net names."""
-    signals = set(getattr(spec, "signals", None) or ())
+    signals = set(spec.signals)
     for label, net in (("name", name), ("on", sw.on), ("off", sw.off)):
         board_net = spec_net(net) if label != "name" else name
         if board_net in RAIL_NETS or (label != "name" and board_net in signals):
             continue
         if board_net in internal_nets:
             raise SpecError(f"switch {name}: {label} net {net!r} has the name of an internal net "
-                            "of the plan", file=getattr(spec, "path", None),
-                            line=getattr(sw, "line", None),
+                            "of the plan", file=spec.path, line=sw.line,
                             hint="rename it, e.g. with an '_ext' ending")
 
 
-def _throw_nets(sw: Any, active_high: bool) -> tuple[str, str]:
+def _throw_nets(sw: SwitchSpec, active_high: bool) -> tuple[str, str]:
     """(spec net joined while the control is high, spec net joined while low)."""
     return (sw.on, sw.off) if active_high else (sw.off, sw.on)
 
 
-def _route_spdt(board: _Board, name: str, sw: Any, select: Any) -> _Route | None:
+def _route_spdt(board: _Board, name: str, sw: SwitchSpec, select: SignalOut) -> _Route | None:
     high, low = _throw_nets(sw, select.polarity == "high")
 
     def assignment(unit: Unit) -> dict[int, str]:
@@ -385,8 +387,8 @@ def _route_spdt(board: _Board, name: str, sw: Any, select: Any) -> _Route | None
     return _Route(name, sw, "spdt", [placed], select.net, name, high, paths)
 
 
-def _route_spst_pair(board: _Board, network: Network, name: str, sw: Any,
-                     select: Any) -> _Route | None:
+def _route_spst_pair(board: _Board, network: Network, name: str, sw: SwitchSpec,
+                     select: SignalOut) -> _Route | None:
     if _free_sections(board, "spst") < 2:
         return None
     complement = _complement_net(board, network, select.net, name)
@@ -421,7 +423,7 @@ def _route_spst_pair(board: _Board, network: Network, name: str, sw: Any,
     return _Route(name, sw, "spst pair", sections, select.net, name, high, paths, complement)
 
 
-def _route_mux(board: _Board, name: str, sw: Any, select: Any) -> _Route | None:
+def _route_mux(board: _Board, name: str, sw: SwitchSpec, select: SignalOut) -> _Route | None:
     high, low = _throw_nets(sw, select.polarity == "high")
 
     def assignment(unit: Unit) -> dict[int, str]:
@@ -458,7 +460,7 @@ def _note(chip: _Chip, notes: dict[int, str]) -> None:
 
 
 def _place_section(board: _Board, types: tuple[str, ...], purpose: str,
-                   assignment_of: Any) -> tuple[_Chip, str] | None:
+                   assignment_of: Callable[[Unit], dict[int, str]]) -> tuple[_Chip, str] | None:
     """Fill switch chips already opened before opening a new one."""
     for chip in board.of_role("switch"):
         placed = _try_section(chip, types, purpose, assignment_of)
@@ -475,7 +477,7 @@ def _place_section(board: _Board, types: tuple[str, ...], purpose: str,
 
 
 def _try_section(chip: _Chip, types: tuple[str, ...], purpose: str,
-                 assignment_of: Any) -> tuple[_Chip, str] | None:
+                 assignment_of: Callable[[Unit], dict[int, str]]) -> tuple[_Chip, str] | None:
     for unit in chip.part.units_of(*types):
         if unit.id in chip.units_used:
             continue
@@ -643,7 +645,7 @@ def _free_input_level(unit: Unit, role: str, used: bool) -> tuple[str, str]:
 
 # ---------------------------------------------------------------- the plan
 
-def pack(network: Network, counter_plan: Any, spec: Any, bin: Bin, catalog: Catalog) -> Plan:
+def pack(network: Network, counter_plan: CounterPlan, spec: Spec, bin: Bin, catalog: Catalog) -> Plan:
     """Chips, pins and nets for a mapped network; checked before it is returned."""
     board = _Board(catalog, bin, signal_nets={n: s.net for n, s in network.signals.items()})
     _place_counters(board, counter_plan, network)
@@ -691,30 +693,29 @@ def _assign_refs(board: _Board) -> None:
     board.chips.sort(key=lambda c: (order[c.role], ref_key(c.ref or "")))
 
 
-def _build_plan(board: _Board, network: Network, counter_plan: Any, spec: Any,
+def _build_plan(board: _Board, network: Network, counter_plan: CounterPlan, spec: Spec,
                 routes: list[_Route]) -> Plan:
     chips = [ChipInstance(c.ref or "", c.part.type, c.role, dict(c.units_used), dict(sorted(c.pins.items())),
                           dict(sorted(c.notes.items()))) for c in board.chips]
     nets = _collect_nets(chips, counter_plan)
     parts = {c.part.type: c.part for c in board.chips}
     plan = Plan(
-        name=str(getattr(spec, "name", "") or "plan"),
-        spec_path=str(getattr(spec, "path", "") or ""),
+        name=str(spec.name or "plan"), spec_path=str(spec.path or ""),
         bin_path=str(board.bin.path), supply=float(board.bin.supply),
         chips=chips, nets=nets, signals={}, switches={},
-        bom=_bom(chips), decoupling=[(c.ref, _decoupling_note(parts[c.part])) for c in chips],
+        bom=_bom(chips), decoupling=tuple((c.ref, _decoupling_note(parts[c.part])) for c in chips),
         clock_edge=str(counter_plan.edge), counter=counter_plan, network=network,
-        warnings=list(board.warnings), proven_minimal=bool(network.proven_minimal),
+        warnings=tuple(board.warnings), proven_minimal=bool(network.proven_minimal),
         lower_bound=network.lower_bound, method=network.method, parts=parts)
-    plan.signals = _signals(plan, network, spec)
-    plan.switches = {r.name: _switch_record(r, board.net_for) for r in routes}
-    plan.external = _external_nets(plan, routes, board.net_for)
-    plan.cautions = _cautions(plan, counter_plan)
-    plan.warnings += _capacitor_warnings(board.bin, len(chips))
-    return plan
+    signals, constant = _signals(plan, network, spec)
+    plan = dataclasses.replace(plan, signals=signals, warnings=(*plan.warnings, *constant),
+                               switches={r.name: _switch_record(r, board.net_for) for r in routes})
+    plan = dataclasses.replace(plan, external=_external_nets(plan, routes, board.net_for))
+    return dataclasses.replace(plan, cautions=tuple(_cautions(plan, counter_plan)),
+                               warnings=(*plan.warnings, *_capacitor_warnings(board.bin, len(chips))))
 
 
-def _collect_nets(chips: list[ChipInstance], counter_plan: Any,
+def _collect_nets(chips: list[ChipInstance], counter_plan: CounterPlan,
                   passives: tuple = ()) -> dict[str, list[tuple[str, int]]]:
     """Net -> pins; rails first, then the clock, the counter outputs, the rest by first pin."""
     nets: dict[str, list[tuple[str, int]]] = {}
@@ -754,23 +755,25 @@ def _decoupling_note(part: Part) -> str:
             "the board allows (common practice)")
 
 
-def _signals(plan: Plan, network: Network, spec: Any) -> dict[str, dict]:
-    """The spec's signals (internal decodes such as the counter reset stay out)."""
-    wanted = set(getattr(spec, "signals", None) or network.signals)
+def _signals(plan: Plan, network: Network, spec: Spec) -> tuple[dict[str, dict], list[str]]:
+    """The spec's signals (internal decodes such as the counter reset stay out), and a
+    warning for each one no chip pin carries."""
+    wanted = set(spec.signals or network.signals)
     out = {}
+    warnings = []
     for name, sig in network.signals.items():
         if name not in wanted:
             continue
         drivers = [(r, p) for r, p in plan.nets.get(sig.net, [])
                    if pin_direction(plan, r, p) == "out"]
         if not drivers:
-            plan.warnings.append(f"signal {name} is constant ({sig.net}); no chip pin carries it")
+            warnings.append(f"signal {name} is constant ({sig.net}); no chip pin carries it")
         out[name] = {"polarity": sig.polarity, "net": sig.net,
                      "source": drivers[0] if drivers else None}
-    return out
+    return out, warnings
 
 
-def _switch_record(route: _Route, net_for: Any) -> dict:
+def _switch_record(route: _Route, net_for: Callable[[str], str]) -> dict:
     chip, unit_id = route.sections[0]
     unit = _unit(chip, unit_id)
     common = unit.common if unit.common is not None else unit.terminals[0]
@@ -786,7 +789,7 @@ def _switch_record(route: _Route, net_for: Any) -> dict:
     }
 
 
-def _external_nets(plan: Plan, routes: list[_Route], net_for: Any) -> dict[str, str]:
+def _external_nets(plan: Plan, routes: list[_Route], net_for: Callable[[str], str]) -> dict[str, str]:
     """Nets that leave the board, with where they go."""
     external: dict[str, str] = {}
     for net, pins in plan.nets.items():
@@ -815,7 +818,7 @@ def _logic_sections(chip: ChipInstance) -> list[str]:
             if chip.role == "switch" and not str(purpose).startswith("switch ")]
 
 
-def _cautions(plan: Plan, counter_plan: Any) -> list[str]:
+def _cautions(plan: Plan, counter_plan: CounterPlan) -> list[str]:
     lo = max(p.supply[0] for p in plan.parts.values()) if plan.parts else 3.0
     hi = min(p.supply[1] for p in plan.parts.values()) if plan.parts else 15.0
     cautions = [
@@ -869,24 +872,38 @@ def add_chip(plan: Plan, part: Part, role: str, units: dict[str, str], pins: dic
 
 
 def rewire_pin(plan: Plan, ref: str, pin: int, net: str | None, note: str) -> None:
-    """Move a pin of a spare unit (tied or open after packing) onto ``net`` (None: open)."""
-    chip = plan.chip(ref)
-    if net is None:
-        chip.pins.pop(pin, None)
-    else:
-        chip.pins[pin] = net
-    chip.notes[pin] = note
-    chip.pins = dict(sorted(chip.pins.items()))
-    chip.notes = dict(sorted(chip.notes.items()))
+    """Move a pin of a spare unit (tied or open after packing) onto ``net`` (None: open):
+    a new chip record in the chips of a ``working_copy``."""
+    index = next(i for i, chip in enumerate(plan.chips) if chip.ref == ref)
+    chip = plan.chips[index]
+    pins = {p: n for p, n in chip.pins.items() if p != pin}
+    if net is not None:
+        pins[pin] = net
+    plan.chips[index] = dataclasses.replace(chip, pins=dict(sorted(pins.items())),
+                                            notes=dict(sorted({**chip.notes, pin: note}.items())))
 
 
-def refresh(plan: Plan, bin: Bin) -> None:
-    """Nets, BOM, decoupling and cautions again after chips or passives were added."""
-    plan.nets = _collect_nets(plan.chips, plan.counter, tuple(plan.passives))
-    plan.bom = _bom(plan.chips)
-    plan.decoupling = [(c.ref, _decoupling_note(plan.parts[c.part])) for c in plan.chips]
-    plan.cautions = _cautions(plan, plan.counter)
+def refresh(plan: Plan, bin: Bin) -> Plan:
+    """A new plan record with nets, BOM, decoupling and cautions made again after chips or
+    passives were added (to a ``working_copy``)."""
     stale = [w for w in plan.warnings if w.startswith("the bin lists no capacitor near 100 nF")]
-    plan.warnings = [w for w in plan.warnings if w not in stale]
+    warnings = [w for w in plan.warnings if w not in stale]
     if stale:
-        plan.warnings += _capacitor_warnings(bin, len(plan.chips))
+        warnings += _capacitor_warnings(bin, len(plan.chips))
+    return dataclasses.replace(
+        plan, nets=_collect_nets(plan.chips, plan.counter, tuple(plan.passives)), bom=_bom(plan.chips),
+        decoupling=tuple((c.ref, _decoupling_note(plan.parts[c.part])) for c in plan.chips),
+        cautions=tuple(_cautions(plan, plan.counter)), warnings=tuple(warnings))
+
+
+def working_copy(plan: Plan) -> Plan:
+    """A new plan record whose chips (pins, notes, units), passives, parts, signals, switches,
+    external nets are copies: a stage that adds parts fills these
+    (``add_chip``, ``rewire_pin``) and the record it was given stays as it was."""
+    chips = [dataclasses.replace(c, pins=dict(c.pins), notes=dict(c.notes), units_used=dict(c.units_used))
+             for c in plan.chips]
+    return dataclasses.replace(
+        plan, chips=chips, passives=list(plan.passives), signals={k: dict(v) for k, v in plan.signals.items()},
+        switches={k: dict(v) for k, v in plan.switches.items()}, external=dict(plan.external),
+        parts=dict(plan.parts), ladders=dict(plan.ladders),
+        rc_offers=list(plan.rc_offers))

@@ -24,9 +24,9 @@ than the counter) cannot take it: that is an input error naming the spec line.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
 
 from .analog import rc_delay_design, thresholds_at
+from .analogparts import POWER_ON_NET, PowerOnReset
 from .clocksource import place_schmitt, spare_schmitt_sites
 from .errors import ShortError, SpecError
 from .netlist import RAIL_NETS, Passive
@@ -35,37 +35,8 @@ from .units import format_si
 
 __all__ = ["PowerOnReset", "add_power_on_reset", "NET", "NODE"]
 
-NET = "POR"          # the Schmitt output: the counters' reset
+NET = POWER_ON_NET   # the Schmitt output: the counters' reset
 NODE = "POR_RC"      # the RC node: the Schmitt input
-
-
-@dataclass(frozen=True)
-class PowerOnReset:
-    """The power-on reset as planned."""
-
-    wanted_s: float
-    active: str                      # the counters' reset level: "high" or "low"
-    part: str
-    ref: str
-    unit: str
-    opened: bool
-    r: float
-    c: float
-    width_s: tuple[float, float, float]   # min, typ, max over the threshold spread
-    formula: str
-    thresholds: dict
-    resets: list[tuple[str, int]]    # (ref, pin) of every counter reset moved onto NET
-    pins: dict[str, int]
-    passives: list[str]
-    warnings: list[str] = field(default_factory=list)
-
-    def as_json(self) -> dict:
-        return {"wanted_s": self.wanted_s, "active": self.active, "part": self.part, "ref": self.ref,
-                "unit": self.unit, "new_chip": self.opened, "r_ohm": self.r, "c_farad": self.c,
-                "width_s": {"min": self.width_s[0], "typ": self.width_s[1], "max": self.width_s[2]},
-                "formula": self.formula, "thresholds_v": self.thresholds, "net": NET,
-                "resets": [{"ref": r, "pin": p} for r, p in self.resets],
-                "pins": dict(self.pins), "passives": list(self.passives), "warnings": list(self.warnings)}
 
 
 def _resets(plan, spec) -> tuple[str, list[tuple[str, int, str]]]:

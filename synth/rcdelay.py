@@ -37,15 +37,17 @@ the end of each tick); a longer one is refused.
 from __future__ import annotations
 
 import dataclasses
-from dataclasses import dataclass
+from collections.abc import Callable, Iterable
 
 from .analog import rc_delay_design, thresholds_at, with_tolerance
+from .analogparts import AppliedDelay
 from .clocksource import place_schmitt, spare_schmitt_sites
 from .errors import ShortError, SpecError, SynthError
 from .findings import CoincidentEdge
+from .model import Design
 from .network import Gate, RcTiming, SignalOut, fresh_name
-from .netlist import Passive, check_nets, self_check
-from .packing import refresh, rewire_pin
+from .netlist import Passive, Plan, check_nets, self_check
+from .packing import refresh, rewire_pin, working_copy
 from .units import format_si
 
 __all__ = ["AppliedDelay", "apply_delays", "FIX"]
@@ -54,74 +56,35 @@ FIX = "races"
 """The ``--fix`` choice that applies an RC delay to every race found."""
 
 
-@dataclass(frozen=True)
-class AppliedDelay:
-    """One RC delay built into the plan."""
-
-    signal: str
-    asked_by: str                         # "delay: <time>" (the spec) or "--fix races"
-    wanted_s: float
-    part: str                             # the Schmitt part of both stages
-    stages: tuple[tuple[str, str], ...]   # (chip ref, unit) of stage 1 and stage 2
-    new_chips: tuple[str, ...]            # refs opened from the bin for the stages
-    r: float
-    c: float
-    nets: dict[str, str]                  # input, drive (stage 1 out), node, output
-    rise_s: tuple[float, float, float]    # node charging to VT+: min, typ, max (thresholds + tolerance)
-    fall_s: tuple[float, float, float]    # node discharging to VT-
-    formula: str
-    passives: tuple[str, str]             # R ref, C ref
-    warnings: tuple[str, ...] = ()
-
-    def as_json(self) -> dict:
-        return {"signal": self.signal, "asked_by": self.asked_by, "wanted_s": self.wanted_s,
-                "part": self.part, "stages": [{"ref": r, "unit": u} for r, u in self.stages],
-                "new_chips": list(self.new_chips), "R": self.r, "C": self.c, "nets": dict(self.nets),
-                "rise_s": dict(zip(("min", "typ", "max"), self.rise_s)),
-                "fall_s": dict(zip(("min", "typ", "max"), self.fall_s)),
-                "formula": self.formula, "passives": list(self.passives), "warnings": list(self.warnings)}
-
-
-def apply_delays(design, fix, retime):
+def apply_delays(design: Design, fix: Iterable[str], retime: Callable[[Design], Design]) -> Design:
     """The design with the asked-for RC delays built into a new plan, checked again
     (see the module text); the same design when none is asked for."""
     wanted = _wanted(design, set(fix))
     if not wanted:
         return design
-    plan = _copy(design.plan)
-    design = dataclasses.replace(design, plan=plan)
+    design = dataclasses.replace(design, plan=working_copy(design.plan))
     period_ns = _period_ns(design)
     applied = []
     for name, (seconds, asked_by) in sorted(wanted.items()):
-        applied.append(_apply_one(design, name, seconds, asked_by, period_ns))
-    refresh(plan, design.stock)
+        design, delay = _apply_one(design, name, seconds, asked_by, period_ns)
+        applied.append(delay)
+    plan = refresh(design.plan, design.stock)
     check_nets(plan)
     self_check(plan, design.spec)
-    plan.rc_delays = applied
-    plan.warnings += [f"RC delay on {d.signal}: {w}" for d in applied for w in d.warnings]
-    plan.rc_offers = [o.as_applied() if o.delayed in wanted else o for o in plan.rc_offers]
-    design = retime(dataclasses.replace(design, network=plan.network))
-    design.plan.warnings[:] = list(dict.fromkeys(design.plan.warnings))   # the timing step ran twice
-    _separated_races(design.plan, applied)
-    return design
+    plan = dataclasses.replace(
+        plan, rc_delays=tuple(applied),
+        warnings=(*plan.warnings, *(f"RC delay on {d.signal}: {w}" for d in applied for w in d.warnings)),
+        rc_offers=[o.as_applied() if o.delayed in wanted else o for o in plan.rc_offers])
+    design = retime(dataclasses.replace(design, plan=plan, network=plan.network))
+    plan = dataclasses.replace(design.plan, warnings=tuple(dict.fromkeys(design.plan.warnings)))  # timing ran twice
+    return dataclasses.replace(design, plan=_separated_races(plan, applied))
 
 
-def _copy(plan):
-    """The plan with every part this module changes copied (chips' pins, notes and units,
-    passives, signals, switches, external nets, warnings): the old record stays as it was."""
-    chips = [dataclasses.replace(c, pins=dict(c.pins), notes=dict(c.notes), units_used=dict(c.units_used))
-             for c in plan.chips]
-    return dataclasses.replace(
-        plan, chips=chips, passives=list(plan.passives), signals={k: dict(v) for k, v in plan.signals.items()},
-        switches={k: dict(v) for k, v in plan.switches.items()}, external=dict(plan.external),
-        warnings=list(plan.warnings), parts=dict(plan.parts), rc_offers=list(plan.rc_offers))
-
-
-def _separated_races(plan, applied: list[AppliedDelay]) -> None:
-    """A race whose later signal now goes through an RC delay is kept in the list,
+def _separated_races(plan: Plan, applied: list[AppliedDelay]) -> Plan:
+    """The plan with a race whose later signal now goes through an RC delay kept in the list,
     marked separated (``race`` false, ``separated_by``) with the gap at the shortest delay."""
     shortest = {d.signal: (min(d.rise_s[0], d.fall_s[0]) * 1e9, d) for d in applied}
-    plan.coincident_edges = [_separated(rec, shortest) for rec in plan.coincident_edges]
+    return dataclasses.replace(plan, coincident_edges=[_separated(rec, shortest) for rec in plan.coincident_edges])
 
 
 def _separated(rec: CoincidentEdge, shortest: dict[str, tuple[float, AppliedDelay]]) -> CoincidentEdge:
@@ -166,7 +129,10 @@ def _fail(design, name: str, message: str, short: bool = False, hint: str | None
     return SpecError(message, file=spec.path, line=line, hint=hint)
 
 
-def _apply_one(design, name: str, seconds: float, asked_by: str, period_ns: float | None) -> AppliedDelay:
+def _apply_one(design: Design, name: str, seconds: float, asked_by: str,
+               period_ns: float | None) -> tuple[Design, AppliedDelay]:
+    """One RC delay built into the design's working plan: the design with the new plan
+    record, and the delay."""
     plan, stock, catalog = design.plan, design.stock, design.catalog
     if period_ns is None:
         raise _fail(design, name, f"signals.{name}.delay: an RC delay needs clock.frequency (it must stay "
@@ -197,7 +163,7 @@ def _apply_one(design, name: str, seconds: float, asked_by: str, period_ns: floa
     early, out = signal.net, _fresh(plan, f"{signal.net}_dly")
     drive, node = _fresh(plan, f"{signal.net}_rcdrv"), _fresh(plan, f"{signal.net}_rc")
     gid = _fresh_gate(plan, f"dly_{name}")
-    ref1, unit1, new1 = _place(plan, stock, catalog, sites[0], early, drive, f"{gid}_1",
+    ref1, unit1, new1, plan = _place(plan, stock, catalog, sites[0], early, drive, f"{gid}_1",
                                f"RC delay on {name}, stage 1 input: the decoded {name}",
                                f"RC delay on {name}, stage 1 output: drives R")
     sites = [s for s in spare_schmitt_sites(plan, stock, catalog) if s.part == part.type] or \
@@ -205,7 +171,7 @@ def _apply_one(design, name: str, seconds: float, asked_by: str, period_ns: floa
     if not sites or catalog.parts[sites[0].part].type != part.type:
         raise _fail(design, name, f"the RC delay on {name} needs a second Schmitt stage of the {part.type} "
                                   "and the bin has none spare", short=True, hint=f"add a {part.type}")
-    ref2, unit2, new2 = _place(plan, stock, catalog, sites[0], node, out, f"{gid}_2",
+    ref2, unit2, new2, plan = _place(plan, stock, catalog, sites[0], node, out, f"{gid}_2",
                                f"RC delay on {name}, stage 2 input: the delay node (R and C)",
                                f"RC delay on {name}, stage 2 output: the delayed {name}")
     r_ref, c_ref = _next_ref(plan, "R"), _next_ref(plan, "C")
@@ -215,9 +181,9 @@ def _apply_one(design, name: str, seconds: float, asked_by: str, period_ns: floa
     plan.passives.append(Passive(c_ref, "capacitor", sized.c, (node, "VSS"),
                                  f"RC delay on {name}: C from the delay node ({ref2} pin "
                                  f"{_pin(plan, ref2, node)}) to VSS, short leads"))
-    _add_gates(plan, part, gid, (unit1, unit2), early, drive, node, out, rise, fall)
-    _move_readers(plan, name, early, out, ref2)
-    return AppliedDelay(
+    plan = _add_gates(plan, part, gid, (unit1, unit2), early, drive, node, out, rise, fall)
+    plan = _move_readers(plan, name, early, out, ref2)
+    return dataclasses.replace(design, plan=plan), AppliedDelay(
         signal=name, asked_by=asked_by, wanted_s=seconds, part=part.type,
         stages=((ref1, unit1), (ref2, unit2)), new_chips=tuple(r for r, new in ((ref1, new1), (ref2, new2)) if new),
         r=sized.r, c=sized.c, nets={"input": early, "drive": drive, "node": node, "output": out},
@@ -226,18 +192,19 @@ def _apply_one(design, name: str, seconds: float, asked_by: str, period_ns: floa
 
 
 def _place(plan, stock, catalog, site, net_in: str, net_out: str, gate_id: str, note_in: str,
-           note_out: str) -> tuple[str, str, bool]:
-    """A Schmitt stage on a spare unit or a new chip; its unit named by the gate id."""
+           note_out: str) -> tuple[str, str, bool, Plan]:
+    """A Schmitt stage on a spare unit or a new chip; its unit named by the gate id; and the
+    plan record with its nets made again."""
     part = catalog.parts[site.part]
     ref, opened, _ins, _outs = place_schmitt(plan, site, part, net_in, net_out, "RC delay", note_in, note_out)
     plan.chip(ref).units_used[site.unit] = gate_id
-    refresh(plan, stock)
-    return ref, site.unit, opened
+    return ref, site.unit, opened, refresh(plan, stock)
 
 
 def _add_gates(plan, part, gid: str, units: tuple[str, str], early: str, drive: str, node: str,
-               out: str, rise, fall) -> None:
-    """The two Schmitt gates and the ``rc`` gate between them, with its times."""
+               out: str, rise, fall) -> Plan:
+    """The plan with the two Schmitt gates and the ``rc`` gate between them (with its times)
+    in its network."""
     gates = []
     for unit_id, gate_id, net_in, net_out in ((units[0], f"{gid}_1", early, drive),
                                                 (units[1], f"{gid}_2", node, out)):
@@ -249,16 +216,16 @@ def _add_gates(plan, part, gid: str, units: tuple[str, str], early: str, drive: 
     timing = RcTiming(rise=tuple(x * 1e9 for x in (rise.min, rise.typ, rise.max)),  # type: ignore[arg-type]
                       fall=tuple(x * 1e9 for x in (fall.min, fall.typ, fall.max)))  # type: ignore[arg-type]
     network = plan.network
-    plan.network = dataclasses.replace(network, gates=[*network.gates, gates[0], rc, gates[1]],
-                                       delays={**network.delays, rc.id: timing})
+    return dataclasses.replace(plan, network=dataclasses.replace(
+        network, gates=[*network.gates, gates[0], rc, gates[1]], delays={**network.delays, rc.id: timing}))
 
 
-def _move_readers(plan, name: str, early: str, out: str, stage2: str) -> None:
+def _move_readers(plan, name: str, early: str, out: str, stage2: str) -> Plan:
     """The output, its external connection and every switch pin that read the signal
     move onto the delayed net; the decode's gates keep the early net."""
     signal = plan.network.signals[name]
-    plan.network = dataclasses.replace(
-        plan.network, signals={**plan.network.signals, name: SignalOut(out, signal.polarity)})
+    plan = dataclasses.replace(plan, network=dataclasses.replace(
+        plan.network, signals={**plan.network.signals, name: SignalOut(out, signal.polarity)}))
     info = plan.signals[name]
     info["net"] = out
     info["source"] = (stage2, _pin(plan, stage2, out))
@@ -274,6 +241,7 @@ def _move_readers(plan, name: str, early: str, out: str, stage2: str) -> None:
             for pin, net in list(chip.pins.items()):
                 if net == early:
                     rewire_pin(plan, ref, pin, out, chip.notes.get(pin, "") + f" (the delayed {name})")
+    return plan
 
 
 def _pin(plan, ref: str, net: str) -> int:

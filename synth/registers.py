@@ -29,11 +29,13 @@ import dataclasses
 from dataclasses import dataclass
 from typing import Any
 
+from .counter import CounterPlan
 from .errors import ShortError
+from .inventory import Bin, Catalog
 from .netlist import CLOCK_NET, delivered_sets
 from .packing import flipflop_controls
 from .network import RAILS, Gate, Network, SignalOut
-from .spec import windows_of
+from .spec import Spec, windows_of
 
 __all__ = ["FlipFlopOption", "Registering", "flipflop_options", "pulse_per_tick_ok",
            "prepare_registering", "with_flipflops", "COUNTER_CLOCK_NET"]
@@ -60,15 +62,15 @@ class Registering:
     signals one tick early), the counter plan (its clock inverted, or as it was),
     the flip-flop part, and the part that inverts the counters' clock ('' if none)."""
 
-    spec: Any
-    counter: Any
+    spec: Spec
+    counter: CounterPlan
     option: FlipFlopOption
     clock_inverter: tuple[str, str, int] | None     # (part, op, inputs)
     signals: tuple[str, ...]
     polarity: dict[str, str]                        # each signal's delivered level before
 
 
-def flipflop_options(stock: Any, catalog: Any) -> list[FlipFlopOption]:
+def flipflop_options(stock: Bin, catalog: Catalog) -> list[FlipFlopOption]:
     """Every D flip-flop part in the bin (usable at its supply), most units per chip first."""
     out = []
     for part_type in sorted(stock.parts):
@@ -82,7 +84,7 @@ def flipflop_options(stock: Any, catalog: Any) -> list[FlipFlopOption]:
     return out
 
 
-def pulse_per_tick_ok(spec: Any, name: str) -> bool:
+def pulse_per_tick_ok(spec: Spec, name: str) -> bool:
     """Whether clock gating (one pulse per asserted tick) may stand for this signal:
     the spec says ``steady: false``, or says nothing and every window is one tick."""
     sig = spec.signals.get(name)
@@ -103,7 +105,7 @@ def _choose(options: list[FlipFlopOption], wanted: int, counter_edge: str) -> Fl
     return min(fits, key=lambda o: (-(-wanted // o.units), o.edge != counter_edge, o.part))
 
 
-def _inverter_part(stock: Any, catalog: Any, supply: float) -> tuple[str, str, int]:
+def _inverter_part(stock: Bin, catalog: Catalog, supply: float) -> tuple[str, str, int]:
     """The bin's fastest inverting unit for the counters' clock: an inverter, else a
     NAND or NOR with its inputs joined."""
     choices = []
@@ -125,12 +127,12 @@ def _inverter_part(stock: Any, catalog: Any, supply: float) -> tuple[str, str, i
     return part_type, op, width
 
 
-def _counter_edge(counter: Any) -> str:
+def _counter_edge(counter: CounterPlan) -> str:
     """The edge of CLK the counter advances on."""
     return str(counter.edge)
 
 
-def _invert_counter_clock(counter: Any, ff_edge: str) -> Any:
+def _invert_counter_clock(counter: CounterPlan, ff_edge: str) -> CounterPlan:
     """The counter plan with every unit that counts on CLK moved onto the inverted
     clock: it advances on the flip-flops' edge of CLK, one inverter delay later."""
     chips = []
@@ -141,11 +143,11 @@ def _invert_counter_clock(counter: Any, ff_edge: str) -> Any:
         if chip.enable_net == CLOCK_NET:
             changes["enable_net"] = COUNTER_CLOCK_NET
         chips.append(dataclasses.replace(chip, **changes) if changes else chip)
-    return dataclasses.replace(counter, chips=chips, edge=ff_edge)
+    return dataclasses.replace(counter, chips=tuple(chips), edge=ff_edge)
 
 
-def _early_spec(spec: Any, delivered: dict[str, frozenset[int]], polarity: dict[str, str],
-                signals: tuple[str, ...], either_way: bool = False) -> Any:
+def _early_spec(spec: Spec, delivered: dict[str, frozenset[int]], polarity: dict[str, str],
+                signals: tuple[str, ...], either_way: bool = False) -> Spec:
     """The spec with each registered signal asserted one tick sooner (exactly the ticks the
     plan delivered, so its stretch and don't-care choices stay as they were); signals
     with a ``clear_of`` tie to one of them keep their delivered ticks too."""
@@ -239,7 +241,7 @@ def prepare_registering(design: Any, signals) -> Registering:
     return Registering(early, counter, option, inverter, names, polarity)
 
 
-def with_flipflops(network: Network, reg: Registering, catalog: Any) -> Network:
+def with_flipflops(network: Network, reg: Registering, catalog: Catalog) -> Network:
     """The mapped early decode with each registered signal moved onto a flip-flop's Q
     (D on the early decode, clocked by CLK) and, where needed, the counters' clock inverter."""
     network = _with_flipflops(network, reg.signals, reg.option, CLOCK_NET, reg.polarity)

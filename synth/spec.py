@@ -780,7 +780,7 @@ class _Reader:
                       "cycle: 256 and signals: {...}")
         if not isinstance(data, MarkedDict):
             self.fail(f"expected a mapping of spec keys (cycle, signals, ...), got {_kind(data)}",
-                      getattr(data, "line", 1))
+                      data.line if isinstance(data, MarkedList) else 1)
         data = self.renamed(data, TOP_KEYS, "spec")
         self.check_keys(data, TOP_KEYS, "spec")
         name = self.name(data)

@@ -24,10 +24,10 @@ line (exit 2); a bin without usable resistor values is short (exit 3).
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
 
 from .analog import (binary_weighted_ladder, choose_ladder_resistors, monte_carlo, r2r_ladder,
                      worst_case_linearity)
+from .analogparts import LadderPlan
 from .errors import ShortError, SpecError
 from .netlist import Passive, counter_levels, pin_direction, tick_count
 from .units import format_si
@@ -38,66 +38,6 @@ __all__ = ["LadderPlan", "add_ladders", "tick_bit_nets", "driver_resistance",
 MONTE_CARLO_TRIALS = 2000
 MONTE_CARLO_SEED = 6      # fixed, so every run of a plan prints the same figures
 RATIO_MATCH = 0.005       # a value counts as 2^k R when within 0.5 %
-
-
-@dataclass
-class LadderPlan:
-    """One staircase as planned."""
-
-    name: str
-    kind: str                         # "r-2r" or "binary-weighted"
-    bits: tuple[int, ...]             # tick bits, ladder LSB first
-    drivers: list[tuple[str, int, str]]   # (ref, pin, net) per ladder bit
-    r: float
-    r2: float | None
-    construction: str
-    why: str
-    tolerance: float
-    tolerance_given: bool
-    load_ohms: float | None
-    r_out_driver: float
-    r_out_note: str
-    ideal_levels: tuple[float, ...]
-    levels: tuple[float, ...]         # with the driver resistance (and load)
-    ideal_output_resistance: float
-    output_resistance: float
-    worst: object                     # analog.WorstCase
-    monte: object                     # analog.LadderStats
-    nominal: object                   # analog.Linearity with the driver resistance
-    passives: list[str]
-    routed_by: list[str]
-    warnings: list[str] = field(default_factory=list)
-
-    @property
-    def driver_error_lsb(self) -> float:
-        """Largest departure from the ideal level caused by the drivers (and load), in LSB."""
-        lsb = self.ideal_levels[1] - self.ideal_levels[0]
-        return max(abs(a - b) for a, b in zip(self.levels, self.ideal_levels)) / lsb
-
-    def as_json(self) -> dict:
-        w, m = self.worst, self.monte
-        return {
-            "kind": self.kind, "bits": list(self.bits), "net": self.name,
-            "drivers": [{"ref": r, "pin": p, "net": n} for r, p, n in self.drivers],
-            "r_ohm": self.r, "r2_ohm": self.r2, "construction": self.construction,
-            "tolerance": self.tolerance, "tolerance_default": not self.tolerance_given,
-            "load_ohm": self.load_ohms,
-            "driver_resistance_ohm": self.r_out_driver, "driver_resistance_source": self.r_out_note,
-            "ideal_levels_v": list(self.ideal_levels), "levels_v": list(self.levels),
-            "output_resistance_ideal_ohm": self.ideal_output_resistance,
-            "output_resistance_ohm": self.output_resistance,
-            "driver_error_lsb": self.driver_error_lsb,
-            "nominal": {"dnl_lsb": self.nominal.worst_dnl, "inl_lsb": self.nominal.worst_inl},
-            "worst_case": {"method": w.method, "corners": w.corners, "dnl_lsb": w.worst_dnl,
-                           "dnl_code": w.worst_dnl_code, "inl_lsb": w.worst_inl,
-                           "inl_code": w.worst_inl_code, "monotonic": w.monotonic},
-            "monte_carlo": {"trials": m.trials, "seed": m.seed, "distribution": m.distribution,
-                            "dnl_abs_p95_lsb": m.dnl_abs_p95, "dnl_abs_max_lsb": m.dnl_abs_max,
-                            "inl_abs_p95_lsb": m.inl_abs_p95, "inl_abs_max_lsb": m.inl_abs_max,
-                            "nonmonotonic_fraction": m.nonmonotonic_fraction},
-            "passives": list(self.passives), "routed_by": list(self.routed_by),
-            "warnings": list(self.warnings),
-        }
 
 
 # ---------------------------------------------------------------- counter bits

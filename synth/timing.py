@@ -28,8 +28,7 @@ Interface:
   net is taken through (a runt shorter than it never reaches the output).
 - ``timing_report(design) -> TimingReport``: the plan command's timing step,
   pure (glitches, coincident edges, register and pulse-width checks, warnings,
-  the trace, remedies; the plan it reads is left unchanged);
-  ``analyse(design, fix=())`` writes the same into a stand-in design in place.
+  the trace, remedies; the plan it reads is left unchanged).
 - ``default_period_ns(...)``, ``nice_period_ns(ns)``.
 
 The delay model (documented here once, used everywhere):
@@ -82,6 +81,7 @@ from .findings import (MODEL_NAMES, MODEL_TEXT, MODELS, CoincidentEdge, GlitchRe
 from .harmless import check_slow_outputs, mark_harmless
 from .netlist import delivered_sets, simulate_ticks
 from .network import RAILS, Gate, Network, counting_words, evaluate_gate, evaluate_words
+from .spec import Spec
 from .packing import unit_logic_pins
 
 __all__ = [
@@ -89,7 +89,7 @@ __all__ = [
     "reset_net_of", "CounterModel", "CounterOutput", "GateModel", "glitches", "Glitch",
     "settle_mismatches", "merge_glitches", "ripple_hazards", "RippleHazard", "coincident_edges",
     "edge_skews", "remedies", "spare_input", "spare_input_place", "MODEL_NAMES", "MODEL_TEXT", "MODELS",
-    "analyse", "timing_report", "TimingReport", "Remedies", "default_period_ns", "nice_period_ns",
+    "timing_report", "TimingReport", "Remedies", "default_period_ns", "nice_period_ns",
     "ps", "expected_from_delivered", "registered_signals", "register_start_levels",
     "flipflop_requirement_ns", "register_checks", "pulse_width_checks", "pulse_warning_lines", "mark_races",
     "rc_filter_ns",
@@ -322,7 +322,7 @@ def counter_models(counter_plan: Any, network: Network, catalog: Any, supply: fl
 def gate_names_of(plan: Any) -> dict[str, str]:
     """Gate id -> its physical name, chip ref and unit (``U2_A``)."""
     names = {}
-    for chip in getattr(plan, "chips", ()):
+    for chip in plan.chips:
         for unit, purpose in (chip.units_used or {}).items():
             names.setdefault(str(purpose), f"{chip.ref}_{unit}")
     return names
@@ -446,7 +446,7 @@ class ResetPulse:
     at_tick: int
 
 
-@dataclass
+@dataclass(frozen=True)
 class Trace:
     """Every net's level changes over the simulated cycles.
 
@@ -1557,8 +1557,8 @@ def mark_races(records: Sequence[CoincidentEdge], delivered: Mapping[str, frozen
     other); complementary signals (one asserted exactly when the other is not) are
     two views of one edge; other pairs are independent outputs, listed, not raced."""
     routes: dict[str, set[str]] = {}
-    nets = {name: info.get("net") for name, info in (getattr(plan, "signals", {}) or {}).items()}
-    for sw in (getattr(plan, "switches", {}) or {}).values():
+    nets = {name: info.get("net") for name, info in plan.signals.items()}
+    for sw in plan.switches.values():
         routed = {sw.get("on"), sw.get("off"), sw.get("on_net"), sw.get("off_net")}
         routes.setdefault(sw.get("select"), set()).update(
             n for n, net in nets.items() if n in routed or net in routed)
@@ -1650,7 +1650,7 @@ def _ticks_of_state(counter_plan: Any, state: int) -> list[int]:
 def synchronous_counter_parts(catalog: Any, stock: Any) -> list[str]:
     """The bin's counter parts whose coded outputs change together (no ripple)."""
     found = []
-    for part_type in sorted(getattr(stock, "parts", {}) or {}):
+    for part_type in sorted(stock.parts):
         part = catalog.parts.get(part_type)
         if part is not None and any(u.synchronous_binary_or_bcd for u in part.units):
             found.append(part_type)
@@ -1684,7 +1684,7 @@ def remedies(glitch: Glitch, plan: Any, *, catalog: Any = None, stock: Any = Non
     out += _register_remedy(glitch, plan, catalog, stock)
     if spec is None or _pulse_per_tick_ok(spec, glitch.signal):
         out += _clock_gating_remedy(glitch, plan)
-    switch = [n for n, s in (getattr(plan, "switches", {}) or {}).items() if s.get("select") == glitch.signal]
+    switch = [n for n, s in plan.switches.items() if s.get("select") == glitch.signal]
     if switch:
         out.append(f"note: {glitch.signal} drives switch {', '.join(switch)}: for {glitch.width_ns:.0f} ns "
                    "the switch conducts the wrong way; a slow analog stage averages that away, a "
@@ -1698,20 +1698,19 @@ def remedies(glitch: Glitch, plan: Any, *, catalog: Any = None, stock: Any = Non
 
 def _pulse_per_tick_ok(spec: Any, name: str) -> bool:
     """As ``registers.pulse_per_tick_ok`` (steady: false, or unset with one-tick windows)."""
-    sig = getattr(spec, "signals", {}).get(name)
+    sig = spec.signals.get(name)
     if sig is None:
         return True
-    steady = getattr(sig, "steady", None)
-    if steady is not None:
-        return not steady
-    return all(b - a == 1 for a, b in getattr(sig, "windows", ()))
+    if sig.steady is not None:
+        return not sig.steady
+    return all(b - a == 1 for a, b in sig.windows)
 
 
 def _register_remedy(glitch: Glitch, plan: Any, catalog: Any, stock: Any) -> list[str]:
     """Registering: the bin's D flip-flops, the signal decoded one tick early."""
-    if glitch.signal in (getattr(plan, "registered", None) or {}) or catalog is None or stock is None:
+    if glitch.signal in plan.registered or catalog is None or stock is None:
         return []
-    parts = [t for t in sorted(getattr(stock, "parts", {}) or {})
+    parts = [t for t in sorted(stock.parts)
              if catalog.parts.get(t) is not None and catalog.parts[t].units_of("flipflop")]
     if not parts:
         return []
@@ -1724,8 +1723,8 @@ def _decode_choice_remedy(glitch: Glitch, counter: Any, spec: Any) -> list[str]:
     """Remedy 1: the transient state is a don't-care for this signal."""
     state = glitch.transient_state
     ticks = _ticks_of_state(counter, int(state))  # type: ignore[arg-type]
-    sig = getattr(spec, "signals", {}).get(glitch.signal) if spec is not None else None
-    dont_care = set(getattr(sig, "dont_care", ()) or ())
+    sig = spec.signals.get(glitch.signal) if spec is not None else None
+    dont_care = set(sig.dont_care) if sig is not None else set()
     never_held = not ticks and int(state) in counter.unreachable  # type: ignore[arg-type]
     if not never_held and not (ticks and all(t in dont_care for t in ticks)):
         return []
@@ -1748,7 +1747,7 @@ def _clock_gating_remedy(glitch: Glitch, plan: Any) -> list[str]:
     controlling, forced = _CONTROLLING[gate.op]
     if forced == (info.get("polarity", "high") == "high"):
         return []        # gating would force the asserted level: no use
-    after_edge = getattr(plan, "clock_edge", "falling") == "rising"
+    after_edge = plan.clock_edge == "rising"
     phase = "CLK" if controlling == after_edge else "CLK through a spare inverter"
     return [f"gate the decode with the clock: wire {spare_input_place(plan, gate, spare)} to {phase}; "
             f"{glitch.signal} is then held inactive in the first half of every tick while the counter "
@@ -1758,8 +1757,8 @@ def _clock_gating_remedy(glitch: Glitch, plan: Any) -> list[str]:
 
 # ---------------------------------------------------------------- the plan command's timing step
 
-def _period_of(spec: Any) -> float | None:
-    freq = getattr(getattr(spec, "clock", None), "frequency_hz", None)
+def _period_of(spec: Spec | None) -> float | None:
+    freq = spec.clock.frequency_hz if spec is not None else None
     return 1e9 / freq if freq else None
 
 
@@ -1793,15 +1792,6 @@ class TimingReport:
     trace: Trace
     remedies: Remedies
 
-    def apply_to(self, plan: Any) -> None:
-        """Copy the results into a plan (the sequencer builds a new plan instead; kept for
-        stand-in plans in tests)."""
-        plan.glitches = list(self.glitches)
-        plan.coincident_edges = list(self.coincident_edges)
-        plan.register_checks = list(self.register_checks)
-        plan.pulse_widths = list(self.pulse_widths)
-        plan.warnings[:] = list(self.warnings)
-
 
 def timing_report(design: Any) -> TimingReport:
     """Simulate the plan at typical and worst-case delays; the results, nothing changed.
@@ -1813,7 +1803,7 @@ def timing_report(design: Any) -> TimingReport:
     """
     catalog = design.catalog
     plan = dataclasses.replace(design.plan, warnings=list(design.plan.warnings))   # read, never written
-    spec = getattr(design, "spec", None)
+    spec = design.spec
     period = _period_of(spec)
     run = dict(catalog=catalog, supply=plan.supply, clock_period_ns=period, cycles=2,
                gate_names=gate_names_of(plan))
@@ -1832,12 +1822,12 @@ def timing_report(design: Any) -> TimingReport:
         plan.warnings.append(f"at worst-case delays the clock is too fast: {problems_max[0]}")
     found = merge_glitches(plan, expected, typ, run)
     check_slow_outputs(spec, plan)
-    plan.glitches = mark_harmless([g.record() for g in found], spec)
+    plan = dataclasses.replace(plan, glitches=mark_harmless([g.record() for g in found], spec))
     harmless = {(g.signal, g.at_tick) for g in plan.glitches if g.harmless}
     delivered = {n: t for n, t in delivered_sets(plan, levels).items() if n in typ.signals}
-    plan.coincident_edges = mark_races(edge_skews(typ, coincident_edges(delivered, typ.cycle)),
-                                       delivered, plan, typ.cycle)
-    plan.register_checks = register_checks(plan, [typ, worst], catalog)
+    plan = dataclasses.replace(plan, coincident_edges=mark_races(edge_skews(typ, coincident_edges(delivered, typ.cycle)),
+                                       delivered, plan, typ.cycle))
+    plan = dataclasses.replace(plan, register_checks=register_checks(plan, [typ, worst], catalog))
     for rec in plan.register_checks:
         if not rec.setup_ok:
             plan.warnings.append(f"{rec.signal}: flip-flop {rec.flipflop} ({rec.part}) sees D settle "
@@ -1847,11 +1837,11 @@ def timing_report(design: Any) -> TimingReport:
             plan.warnings.append(f"{rec.signal}: flip-flop {rec.flipflop} ({rec.part}) sees D change "
                                  f"{rec.hold_margin_ns:g} ns after its clock edge, inside its "
                                  f"{rec.hold_needed_ns:g} ns hold time")
-    plan.pulse_widths = pulse_width_checks(plan, typ, catalog, worst)
+    plan = dataclasses.replace(plan, pulse_widths=pulse_width_checks(plan, typ, catalog, worst))
     for rec in plan.pulse_widths:
-        plan.warnings += pulse_warning_lines(rec)
-    plan.warnings += [w for w in dict.fromkeys(typ.warnings + worst.warnings) if w not in plan.warnings]
-    stock = getattr(design, "stock", None)
+        plan.warnings.extend(pulse_warning_lines(rec))
+    plan.warnings.extend([w for w in dict.fromkeys(typ.warnings + worst.warnings) if w not in plan.warnings])
+    stock = design.stock
     by_glitch = {(g.signal, g.at_tick): remedies(g, plan, catalog=catalog, stock=stock, spec=spec)
                  for g in found if (g.signal, g.at_tick) not in harmless}
     text: list[str] = []
@@ -1863,19 +1853,6 @@ def timing_report(design: Any) -> TimingReport:
     return TimingReport(tuple(plan.glitches), tuple(plan.coincident_edges), tuple(plan.register_checks),
                         tuple(plan.pulse_widths), tuple(plan.warnings), typ,
                         Remedies(tuple(text), by_glitch, tuple(found)))
-
-
-
-
-def analyse(design: Any, fix: Sequence[str] | set[str] = ()) -> None:
-    """``timing_report`` written into ``design.plan`` and ``design`` (``trace``,
-    ``remedies``) in place, for stand-in designs in tests; the plan command's
-    sequencer (``synth.flow``) uses ``timing_report`` and builds new records.
-    ``fix`` is accepted for the callers' sake."""
-    report = timing_report(design)
-    report.apply_to(design.plan)
-    design.trace = report.trace
-    design.remedies = report.remedies
 
 
 def pulse_warning_lines(rec: PulseWidth) -> list[str]:
@@ -2095,7 +2072,7 @@ def _power_on_checks(plan: Any, catalog: Any) -> list[PulseWidth]:
 def _strobed_levels(plan: Any) -> dict[str, bool]:
     """Signal -> its inactive electrical level, for signals gated with the clock."""
     return {name: info["polarity"] != "high" for name, info in plan.signals.items()
-            if name in (getattr(plan, "strobed", None) or {})}
+            if name in plan.strobed}
 
 
 def _state_duration(trace: Trace, k: int, minterm: int) -> float:

@@ -36,14 +36,18 @@ from __future__ import annotations
 
 import multiprocessing
 import time
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from typing import Any
 
+from .counter import CounterPlan
+from .decode import Decode
 from .effort import Effort, effort_named
 from .errors import SafetyCapError, SynthError
-from .mapper import cells_of_part
+from .inventory import Bin, Catalog
+from .mapper import Library, cells_of_part
 from .mapper.core import map_design as map_gates
 from .mapper.objective import Cost
+from .minimize import Cover, Function
 from .stages import async_reset_names, mapping_inputs
 
 LOGIC_CATEGORIES = ("gate", "inverter", "mux", "decoder")
@@ -83,7 +87,7 @@ class Suggestion:
                 "logic_chips_by_part": dict(self.chips_with)}
 
 
-@dataclass
+@dataclass(frozen=True)
 class BinLacks:
     """The best suggestion (None: no single chip type helps) and the search's reach."""
 
@@ -92,7 +96,7 @@ class BinLacks:
     candidates: int
     seconds: float
     total_chips: int
-    others: list[Suggestion] = field(default_factory=list)
+    others: tuple[Suggestion, ...] = ()
     skipped: str = ""
 
     @property
@@ -124,14 +128,14 @@ class BinLacks:
 class _Inputs:
     """What the plan's mapper saw, so a candidate is mapped exactly as the plan was."""
 
-    functions: Any
+    functions: tuple[Function, ...]
     nvars: int
-    var_nets: tuple
-    library: Any
-    polarity: dict
-    cover: Any
-    glitch_free: tuple
-    candidates: tuple
+    var_nets: tuple[str, ...]
+    library: Library
+    polarity: dict[str, str]
+    cover: Cover
+    glitch_free: tuple[str, ...]
+    candidates: tuple[str, ...]
 
 
 class _SafetyCap(Exception):
@@ -144,7 +148,7 @@ def _remap(inputs: _Inputs, part: str, effort: Effort) -> tuple[dict, int] | Non
         network = map_gates(inputs.functions, inputs.nvars, list(inputs.var_nets),
                              inputs.library.with_extra(part), polarity=inputs.polarity,
                              cover=inputs.cover, exact="no", effort=effort, steps=effort.lacks_steps,
-                             glitch_free=inputs.glitch_free)
+                             glitch_free=inputs.glitch_free, advise=False)
     except SafetyCapError:
         raise _SafetyCap(part) from None
     except SynthError:
@@ -217,7 +221,7 @@ def _child(conn, inputs: _Inputs, effort: Effort, claims: _Claims) -> None:
 class Search:
     """A what-the-bin-lacks search under way (in a child process, or deferred)."""
 
-    def __init__(self, inputs: _Inputs, decode: Any, effort: Effort) -> None:
+    def __init__(self, inputs: _Inputs, decode: Decode, effort: Effort) -> None:
         self.inputs, self.decode, self.effort = inputs, decode, effort
         self.start = time.monotonic()
         self.results: dict[int, tuple[str, tuple[dict, int] | None]] = {}
@@ -281,10 +285,10 @@ class Search:
         """Gather what the search found in its budget and judge it against the plan."""
         total = len(design.plan.chips)
         n = len(self.inputs.candidates)
-        if getattr(design.plan, "strobed", None) or design.decode is not self.decode:
+        if design.plan.strobed or design.decode is not self.decode:
             # --fix glitches re-derived the decode or added gating gates: no like-for-like baseline
             self.cancel()
-            return BinLacks(None, 0, n, time.monotonic() - self.start, total, [],
+            return BinLacks(None, 0, n, time.monotonic() - self.start, total, (),
                             skipped="not searched: --fix glitches changed the design")
         spare = _spare_part_types(design, self.inputs.library)
         if not design.network.gates:
@@ -294,8 +298,9 @@ class Search:
         return _judge(design, self.inputs, results, time.monotonic() - self.start)
 
 
-def start_search(decode: Any, counter_plan: Any, library: Any, polarity: dict, stock: Any,
-                 catalog: Any, *, glitch_free: tuple = (), effort: str | Effort | None = None) -> Search:
+def start_search(decode: Decode, counter_plan: CounterPlan, library: Library, polarity: dict[str, str],
+                 stock: Bin, catalog: Catalog, *, glitch_free: tuple[str, ...] = (),
+                 effort: str | Effort | None = None) -> Search:
     """Begin re-mapping the decode with each candidate part added (see the module text)."""
     inputs = _Inputs(decode.functions, len(counter_plan.vars), tuple(v.net for v in counter_plan.vars),
                      library, dict(polarity), decode.cover, tuple(glitch_free),
@@ -330,7 +335,7 @@ def _judge(design: Any, inputs: _Inputs, results, seconds: float) -> BinLacks:
     tried = len(judged) if not design.network.gates else \
         len([p for p, _ in results if p not in spare])
     return BinLacks(found[0] if found else None, tried, len(judged), seconds,
-                    len(design.plan.chips), found[1:4])
+                    len(design.plan.chips), tuple(found[1:4]))
 
 
 def _mapping_inputs(design):

@@ -7,6 +7,7 @@ section 3); pin names in the expected wiring line are the datasheets'
 
 from __future__ import annotations
 
+import dataclasses
 import json
 import os
 import re
@@ -76,10 +77,10 @@ def test_json_round_trips(plan):
 
 
 def test_json_takes_glitch_records(plan):
-    plan.glitches = [GlitchRecord("row3", 4, 120.0, "count 3->4", "Q1 -> g1 -> row3", "static", "high", 12.5,
-                                  "transient_state", width_max_ns=180.0, transient_state=3,
-                                  models=("states", "transport_typ"))]
-    plan.coincident_edges = [CoincidentEdge(("pair", "row3"), 3, relation="independent", race=False)]
+    plan = dataclasses.replace(plan, glitches=[GlitchRecord(
+        "row3", 4, 120.0, "count 3->4", "Q1 -> g1 -> row3", "static", "high", 12.5, "transient_state",
+        width_max_ns=180.0, transient_state=3, models=("states", "transport_typ"))],
+        coincident_edges=[CoincidentEdge(("pair", "row3"), 3, relation="independent", race=False)])
     doc = plan_to_json(plan)
     assert doc["glitches"] == [{"signal": "row3", "at_tick": 4, "width_ns": 120.0, "cause": "count 3->4",
                                 "path": "Q1 -> g1 -> row3", "kind": "static", "wrong_level": "high",

@@ -41,7 +41,8 @@ def design(catalog):
                            signals={n: {"net": s.net, "polarity": s.polarity} for n, s in net.signals.items()},
                            chips=[SimpleNamespace(ref="U2", units_used={"A": "g1"}),
                                   SimpleNamespace(ref="U3", units_used={"A": "g2"}),
-                                  SimpleNamespace(ref="U4", units_used={"A": "g3"})], switches={})
+                                  SimpleNamespace(ref="U4", units_used={"A": "g3"})], switches={},
+                           strobed={}, ladders={})
     trace = timing.simulate(cp, net, catalog, 5.0, cycles=2, gate_names=timing.gate_names_of(plan))
     run = dict(catalog=catalog, supply=5.0, clock_period_ns=None, cycles=2,
                gate_names=timing.gate_names_of(plan))

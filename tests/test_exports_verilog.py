@@ -15,6 +15,7 @@ delay of every gate on their path (the Verilog inertial-delay rule, IEEE
 
 from __future__ import annotations
 
+import dataclasses
 import re
 import shutil
 import subprocess
@@ -43,8 +44,8 @@ def make_plan(name: str, cp: CounterPlan, network: Network, units: dict[str, dic
     plan = Plan(name=name, spec_path="", bin_path="", supply=supply, chips=chips, nets={},
                 signals={n: {"net": s.net, "polarity": s.polarity, "source": None}
                          for n, s in network.signals.items()},
-                switches={}, bom={}, decoupling=[], clock_edge=cp.edge, counter=cp, network=network)
-    plan.parts = {p: catalog.parts[p] for p in set(parts.values()) | {c.part for c in cp.chips}}
+                switches={}, bom={}, decoupling=[], clock_edge=cp.edge, counter=cp, network=network,
+                parts={p: catalog.parts[p] for p in set(parts.values()) | {c.part for c in cp.chips}})
     return plan
 
 
@@ -319,7 +320,7 @@ def test_verilog_structure_follows_the_contract(catalog):
 
 def test_delays_follow_the_supply(catalog):
     plan, _ = case_ripple(catalog)
-    plan.supply = 10.0
+    plan = dataclasses.replace(plan, supply=10.0)
     text = plan_to_verilog(plan, catalog)
     assert "nand #(25) U4_A" in text         # 4011 at 10 V (ST/Intersil table, catalog)
     assert "<= #(45) " in text               # 4040 clock to Q1 at 10 V
@@ -331,9 +332,9 @@ def test_unusual_net_names_become_legal_identifiers(catalog):
         var.net = f"U1.{var.net}"
     for chip in plan.counter.chips[1:]:
         chip.clock_net = "U1.A4"
-    plan.network = Network([Gate(g.id, g.part, g.op, tuple(f"U1.{n}" if n[0] in "AB" and n[1:].isdigit()
+    plan = dataclasses.replace(plan, network=Network([Gate(g.id, g.part, g.op, tuple(f"U1.{n}" if n[0] in "AB" and n[1:].isdigit()
                                                         else n for n in g.inputs), g.outputs)
-                            for g in plan.network.gates], plan.network.signals, ())
+                            for g in plan.network.gates], plan.network.signals, ()))
     names = verilog_names(plan, catalog)
     assert names["U1.A4"] == "U1_A4" and names["CLK"] == "clk"
     assert all(re.fullmatch(r"[A-Za-z_][A-Za-z0-9_$]*", v) for v in names.values())

@@ -54,7 +54,7 @@ def test_self_check_accepts_the_spec_and_the_exact_sets(scan, tmp_path):
 def test_self_check_catches_a_broken_network(scan, tmp_path):
     spec = load_spec(tmp_path / "spec.yaml", text=spec_text())
     broken = [dataclasses.replace(g, op="and") if g.id == "g5" else g for g in scan.network.gates]
-    scan.network = dataclasses.replace(scan.network, gates=broken)
+    scan = dataclasses.replace(scan, network=dataclasses.replace(scan.network, gates=broken))
     with pytest.raises(InternalError, match="row7 at tick 0"):
         self_check(scan, spec)
 
@@ -205,7 +205,7 @@ def _with_pullup(plan, ends=("VDD", "Q1"), listed=True):
     plan = copy.deepcopy(plan)
     plan.passives.append(Passive("R1", "resistor", 100e3, ends, "test"))
     stock = type("Stock", (), {"capacitors": [], "path": "bin.yaml"})()
-    refresh(plan, stock)
+    plan = refresh(plan, stock)
     if not listed:
         plan.passives.clear()
     return plan

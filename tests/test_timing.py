@@ -284,6 +284,8 @@ class _Plan:
         self.parts = {g.part: catalog.parts[g.part] for g in net.gates} if catalog else {}
         self.switches = switches or {}
         self.clock_edge = cp.edge
+        self.registered: dict = {}
+        self.strobed: dict = {}
 
 
 def _zero_glitch(catalog, gate: Gate, cp=None):
@@ -351,7 +353,7 @@ def test_reset_tied_to_its_active_level_is_refused(catalog):
 
 # ---------------------------------------------------------------- the plan command's step
 
-def test_analyse_fills_the_plan(catalog):
+def test_timing_report_of_a_stand_in_design(catalog):
     from types import SimpleNamespace
 
     from synth.netlist import ChipInstance, Plan
@@ -366,22 +368,23 @@ def test_analyse_fills_the_plan(catalog):
                 switches={}, bom={}, decoupling=[], clock_edge="falling", counter=cp, network=net)
     spec = SimpleNamespace(clock=SimpleNamespace(frequency_hz=100e3), signals={})
     design = SimpleNamespace(plan=plan, catalog=catalog, spec=spec, stock=Stock({"4040": 1, "4520": 1}))
-    timing.analyse(design, fix={"glitches"})
-    got = {(g.signal, g.at_tick): g for g in plan.glitches}
+    report = timing.timing_report(design)
+    got = {(g.signal, g.at_tick): g for g in report.glitches}
     assert sorted(got) == [("z13", 4), ("z13", 12), ("zero", 2), ("zero", 4), ("zero", 8)]
     assert got[("z13", 4)].passes_gate_delay is True and got[("z13", 4)].width_ns == 160.0
     assert got[("zero", 2)].passes_gate_delay is False and got[("zero", 2)].width_max_ns == 160.0
     assert got[("zero", 2)].path == "Q1 -> U2_A -> zero"
     # zero rises on boundary 0 and falls on 1; z13 switches on both too (ticks 0, 2, 8, 10 high).
-    assert [(c.signals, c.at_tick) for c in plan.coincident_edges] == [
+    assert [(c.signals, c.at_tick) for c in report.coincident_edges] == [
         (("z13", "zero"), 0), (("z13", "zero"), 1)]
-    assert plan.coincident_edges[1].first == "z13"     # 4001 (120 ns) beats 4002 (160 ns)
-    assert design.trace.period_ns == 10_000 and design.trace.cycles == 2
-    assert any("a synchronous counter: the bin has 4520" in line for line in design.remedies.text)
+    assert report.coincident_edges[1].first == "z13"     # 4001 (120 ns) beats 4002 (160 ns)
+    assert report.trace.period_ns == 10_000 and report.trace.cycles == 2
+    assert any("a synchronous counter: the bin has 4520" in line for line in report.remedies.text)
     # Each record names the analyses that found it (formats.md section 3 `glitches`).
     assert got[("zero", 2)].models == ("transport_typ", "transport_max", "states")
     assert got[("z13", 4)].models == ("transport_typ", "transport_max", "inertial_typ", "states")
-    assert {g.mechanism for g in plan.glitches} == {"transient_state"}
+    assert {g.mechanism for g in report.glitches} == {"transient_state"}
+    assert plan.glitches == []          # the report is new records; the plan given is not changed
 
 
 def test_state_analysis_and_event_simulation_agree(catalog):

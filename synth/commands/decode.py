@@ -182,7 +182,7 @@ def decode_blocks(spec, stock, decode) -> list:
                           d.phase, _dc_text(decode, name) if name in decode.signals
                           else f"{len(d.dc_states_used)} never-held states") for name, d in entries]))
     notes = [f"note: {n}" for n in plan.notes + decode.notes]
-    notes += [f"warning: {w}" for w in list(stock.warnings) + plan.warnings + decode.warnings]
+    notes += [f"warning: {w}" for w in (*stock.warnings, *plan.warnings, *decode.warnings)]
     if notes:
         blocks.append(Text("\n".join(notes)))
     return blocks
@@ -230,6 +230,6 @@ def decode_json(spec, stock, decode) -> dict:
         "cover": {"method": cover.method, "proven_minimal": cover.proven_minimal,
                   "cost": {"terms": cover.cost[0], "literals": cover.cost[1], "connections": cover.cost[2]},
                   "note": cover.note},
-        "notes": plan.notes + decode.notes,
-        "warnings": list(stock.warnings) + plan.warnings + decode.warnings,
+        "notes": [*plan.notes, *decode.notes],
+        "warnings": [*stock.warnings, *plan.warnings, *decode.warnings],
     }

@@ -13,6 +13,7 @@ whole run, the take from the bin included, succeeded.
 from __future__ import annotations
 
 import argparse
+import dataclasses
 import sys
 from pathlib import Path
 
@@ -79,7 +80,8 @@ def run(args: argparse.Namespace) -> int:
         _write_verdict(exc, args.json)
         raise
     if args.lacks:
-        design.plan.warnings.append(LACKS_NOTE)
+        design = dataclasses.replace(design, plan=dataclasses.replace(
+            design.plan, warnings=(*design.plan.warnings, LACKS_NOTE)))
     show_spec_notes(design.spec)
     if not any(output.to_stdout for _, output in requests):
         show(plan_blocks(design))
@@ -269,9 +271,8 @@ def plan_blocks(design) -> list:
                            "coincident_edges in the plan JSON"))
     for remedy in remedy_lines(design):
         blocks.append(Text(f"remedy: {remedy}"))
-    lacks = getattr(design, "lacks", None)
-    if lacks is not None:
-        blocks.append(Text(lacks.text()))
+    if design.lacks is not None:
+        blocks.append(Text(design.lacks.text()))
     for warning in plan.warnings:
         blocks.append(Text(f"warning: {warning}"))
     for caution in dict.fromkeys(plan.cautions):
@@ -417,7 +418,7 @@ def oscillator_blocks(plan) -> list:
 
 def power_on_blocks(plan) -> list:
     """The power-on reset: where, R and C, and the pulse over the threshold spread."""
-    por = getattr(plan, "power_on_reset", None)
+    por = plan.power_on_reset
     if por is None:
         return []
     where = "a new chip from the bin" if por.opened else "a spare unit of a chip already in the plan"

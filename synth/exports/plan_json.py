@@ -28,6 +28,7 @@ import json
 from pathlib import Path
 
 from ..breadboard import plan_breadboard
+from ..errors import NotFoundError, ShortError
 from ..netlist import Plan, ref_key, verilog_module_name
 from ..findings import MODEL_NAMES, MODEL_TEXT, MODELS
 from .files import atomic_write_text
@@ -50,12 +51,12 @@ def _switch(sw: dict) -> dict:
 def _counter(plan: Plan) -> dict:
     counter = plan.counter
     chips = [{"ref": c.ref, "part": c.part, "unit": str(c.unit), "clock_net": str(c.clock_net),
-              "clock_pin": int(c.clock_pin), "reset_net": str(getattr(c, "reset_net", "") or ""),
-              "reset_pin": getattr(c, "reset_pin", None)} for c in counter.chips]
+              "clock_pin": int(c.clock_pin), "reset_net": str(c.reset_net or ""),
+              "reset_pin": c.reset_pin} for c in counter.chips]
     refs = [c.ref for c in counter.chips]
     variables = [{"index": v.index, "net": v.net,
                   "ref": refs[v.chip] if isinstance(v.chip, int) else str(v.chip), "pin": int(v.pin),
-                  "pin_name": getattr(v, "pin_name", ""), "weight": getattr(v, "weight", None)}
+                  "pin_name": v.pin_name, "weight": v.weight}
                  for v in counter.vars]
     return {"edge": str(counter.edge), "cycle": int(counter.cycle), "chips": chips,
             "variables": variables}
@@ -106,14 +107,14 @@ def verdict_reason(plan: Plan) -> str:
     return f"{head}: best found"
 
 
-def failure_to_json(error) -> dict:
+def failure_to_json(error: ShortError | NotFoundError) -> dict:
     """No plan: the verdict (``impossible`` exit 3, ``not_found`` exit 4), why, what is short."""
-    reason = error.message + (f" ({error.hint})" if getattr(error, "hint", None) else "")
-    return {"format": FORMAT, "verdict": getattr(error, "verdict", "impossible"), "reason": reason,
-            "short": [s.to_json() for s in getattr(error, "short", ())]}
+    reason = error.message + (f" ({error.hint})" if error.hint else "")
+    return {"format": FORMAT, "verdict": error.verdict, "reason": reason,
+            "short": [s.to_json() for s in error.short]}
 
 
-def write_failure_json(error, path: str | Path) -> Path:
+def write_failure_json(error: ShortError | NotFoundError, path: str | Path) -> Path:
     """Write the no-plan verdict file, replacing any old file in one step."""
     return atomic_write_text(path, json.dumps(failure_to_json(error), indent=2) + "\n")
 
@@ -164,8 +165,7 @@ def plan_to_json(plan: Plan) -> dict:
                       "ends": [{"end": 1, "net": p.ends[0]}, {"end": 2, "net": p.ends[1]}],
                       "purpose": p.purpose} for p in plan.passives],
         "oscillator": plan.oscillator.as_json() if plan.oscillator is not None else None,
-        "power_on_reset": (plan.power_on_reset.as_json()
-                           if getattr(plan, "power_on_reset", None) is not None else None),
+        "power_on_reset": plan.power_on_reset.as_json() if plan.power_on_reset is not None else None,
         "staircases": {name: ladder.as_json() for name, ladder in plan.ladders.items()},
         "breadboard": plan_breadboard(plan),
     }

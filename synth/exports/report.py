@@ -625,8 +625,7 @@ def _gate_shape(plan, gate, x: float, top: float, h: float, site, y_of: dict, co
 
 def _bom(design, data: dict) -> str:
     plan = design.plan
-    stock = getattr(design, "stock", None)
-    on_hand = dict(getattr(stock, "parts", {}) or {})
+    on_hand = dict(design.stock.parts)
     rows = []
     for part in sorted(set(plan.bom) | set(on_hand)):
         used = plan.bom.get(part, 0)
@@ -665,7 +664,7 @@ def _remedies(design) -> str:
 
 
 def _timing(design) -> str:
-    if getattr(design, "trace", None) is None:
+    if design.trace is None:
         return "<p>No timing trace was made for this plan.</p>"
     svg = trace_to_svg(design.trace, design.plan)
     encoded = base64.b64encode(svg.encode()).decode()

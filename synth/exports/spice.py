@@ -36,12 +36,13 @@ import math
 import re
 from dataclasses import dataclass
 from pathlib import Path
-from typing import Any
 
 from .. import __version__
 from ..analog import thresholds_at
+from ..analogparts import AppliedDelay, LadderPlan, OscillatorPlan
 from ..findings import RcOffer, RcValues
-from ..netlist import simulate_nets
+from ..inventory import Catalog
+from ..netlist import Plan, simulate_nets
 from ..units import format_si
 from .files import atomic_write_text
 
@@ -121,10 +122,10 @@ def _passive_line(p, nodes: dict[str, str] | None = None) -> str:
     return f"{p.ref} {a} {b} {_num(p.value)}"
 
 
-def _tick_s(plan: Any, tick_ns: float | None) -> float:
+def _tick_s(plan: Plan, tick_ns: float | None) -> float:
     if tick_ns:
         return tick_ns * 1e-9
-    osc = getattr(plan, "oscillator", None)
+    osc = plan.oscillator
     if osc is not None and osc.f_nom:
         return 1.0 / osc.f_nom
     return 1e-6
@@ -132,8 +133,8 @@ def _tick_s(plan: Any, tick_ns: float | None) -> float:
 
 # ---------------------------------------------------------------- the oscillator
 
-def _oscillator(plan: Any) -> _Section | None:
-    osc = getattr(plan, "oscillator", None)
+def _oscillator(plan: Plan) -> _Section | None:
+    osc = plan.oscillator
     if osc is None:
         return None
     if osc.site.kind == "counter-stage":
@@ -158,7 +159,7 @@ def _oscillator(plan: Any) -> _Section | None:
     return _Section(lines, [check], 6 * period, step)
 
 
-def _counter_oscillator(plan: Any, osc: Any) -> _Section:
+def _counter_oscillator(plan: Plan, osc: OscillatorPlan) -> _Section:
     """A 4060-type stage: two inverters (pin 11 -> pin 10 -> pin 9) with Rs, Rt and Ct."""
     chip = plan.chip(osc.ref)
     net_in, net_ct, net_rt = (chip.pins[osc.pins[k]] for k in ("input", "output", "output_inv"))
@@ -188,7 +189,7 @@ def _counter_oscillator(plan: Any, osc: Any) -> _Section:
 
 # ---------------------------------------------------------------- the ladders
 
-def _ladder(plan: Any, name: str, lad: Any, tick: float, driven: set[str]) -> _Section:
+def _ladder(plan: Plan, name: str, lad: LadderPlan, tick: float, driven: set[str]) -> _Section:
     """The ladder's resistors as wired; each counter output a source behind its resistance
     (a net shared by two ladders is driven once)."""
     supply = plan.supply
@@ -225,9 +226,9 @@ def _ladder(plan: Any, name: str, lad: Any, tick: float, driven: set[str]) -> _S
 
 # ---------------------------------------------------------------- the analog switches
 
-def _on_resistance(catalog: Any, part_type: str | None, supply: float) -> float:
+def _on_resistance(catalog: Catalog, part_type: str | None, supply: float) -> float:
     part = catalog.parts.get(part_type) if part_type else None
-    table = getattr(part, "r_on", None) or {}
+    table = part.r_on if part is not None else {}
     if not table:
         return RON
     volts = min(table, key=lambda v: abs(float(v) - supply))
@@ -235,19 +236,19 @@ def _on_resistance(catalog: Any, part_type: str | None, supply: float) -> float:
     return float(row.get("typ") or row.get("max") or RON)
 
 
-def _net_volts(plan: Any, net: str, tick: int) -> float | None:
+def _net_volts(plan: Plan, net: str, tick: int) -> float | None:
     """A net's voltage in the middle of ``tick``: a rail, or a staircase's level."""
     if net in ("GND", "VSS"):
         return 0.0
     if net == "VDD":
         return float(plan.supply)
-    lad = (getattr(plan, "ladders", {}) or {}).get(net)
+    lad = plan.ladders.get(net)
     if lad is None:
         return None
     return float(lad.levels[sum(((tick >> bit) & 1) << k for k, bit in enumerate(lad.bits))])
 
 
-def _switch(plan: Any, catalog: Any, name: str, sw: dict, tick: float) -> _Section | None:
+def _switch(plan: Plan, catalog: Catalog, name: str, sw: dict, tick: float) -> _Section | None:
     """A switch section routing rails or staircases: two SPICE switches of the catalog's
     on-resistance, their control a PWL copy of the control net's level tick by tick."""
     on, off, control = sw.get("on"), sw.get("off"), sw.get("control_net")
@@ -295,7 +296,7 @@ def _switch(plan: Any, catalog: Any, name: str, sw: dict, tick: float) -> _Secti
 
 # ---------------------------------------------------------------- the RC delays offered
 
-def _receiver_thresholds(catalog: Any, receiver: str, supply: float) -> tuple[float, float]:
+def _receiver_thresholds(catalog: Catalog, receiver: str, supply: float) -> tuple[float, float]:
     part = catalog.parts.get(receiver) if receiver and receiver != "plain-input" else None
     if part is None or not part.thresholds:
         gap = PLAIN_HYSTERESIS * supply
@@ -304,12 +305,12 @@ def _receiver_thresholds(catalog: Any, receiver: str, supply: float) -> tuple[fl
     return row["vt_plus"]["typ"], row["vt_minus"]["typ"]
 
 
-def _is_schmitt(catalog: Any, receiver: str | None) -> bool:
+def _is_schmitt(catalog: Catalog, receiver: str | None) -> bool:
     part = catalog.parts.get(receiver) if receiver and receiver != "plain-input" else None
     return part is not None and bool(part.thresholds)
 
 
-def _delay(plan: Any, catalog: Any, index: int, offer: RcOffer, values: RcValues) -> _Section:
+def _delay(plan: Plan, catalog: Catalog, index: int, offer: RcOffer, values: RcValues) -> _Section:
     supply = plan.supply
     r, c = float(values.r_ohm), float(values.c_farad)
     vtp, vtm = _receiver_thresholds(catalog, offer.receiver or "", supply)
@@ -347,7 +348,7 @@ def _delay(plan: Any, catalog: Any, index: int, offer: RcOffer, values: RcValues
     return _Section(lines, checks, start + width + 6 * rc, rc / 1000)
 
 
-def _applied_delay(plan: Any, catalog: Any, index: int, d: Any) -> _Section:
+def _applied_delay(plan: Plan, catalog: Catalog, index: int, d: AppliedDelay) -> _Section:
     """An RC delay built into the plan, from the plan's own R, C and nets: a step on the
     decoded net into Schmitt stage 1, its output through R to the node (C to VSS), the
     node into Schmitt stage 2.  Checked: stage 2's output edges against the RC law."""
@@ -385,9 +386,9 @@ def _applied_delay(plan: Any, catalog: Any, index: int, d: Any) -> _Section:
 
 # ---------------------------------------------------------------- the power-on reset
 
-def _power_on(plan: Any) -> _Section | None:
+def _power_on(plan: Plan) -> _Section | None:
     """The POR's R, C and Schmitt gate on a supply of their own that ramps up at time 0."""
-    por = getattr(plan, "power_on_reset", None)
+    por = plan.power_on_reset
     if por is None:
         return None
     supply, ramp = plan.supply, 1e-6
@@ -416,7 +417,7 @@ def _power_on(plan: Any) -> _Section | None:
 
 # ---------------------------------------------------------------- the deck
 
-def _sections(plan: Any, catalog: Any, tick_ns: float | None) -> list[_Section]:
+def _sections(plan: Plan, catalog: Catalog, tick_ns: float | None) -> list[_Section]:
     sections = []
     osc = _oscillator(plan)
     if osc is not None:
@@ -426,9 +427,9 @@ def _sections(plan: Any, catalog: Any, tick_ns: float | None) -> list[_Section]:
         sections.append(por)
     tick = _tick_s(plan, tick_ns)
     driven: set[str] = set()
-    for name, lad in sorted(getattr(plan, "ladders", {}).items()):
+    for name, lad in sorted(plan.ladders.items()):
         sections.append(_ladder(plan, name, lad, tick, driven))
-    for name, sw in sorted((getattr(plan, "switches", {}) or {}).items()):
+    for name, sw in sorted(plan.switches.items()):
         section = _switch(plan, catalog, name, sw, tick)
         if section is not None:
             sections.append(section)
@@ -440,7 +441,7 @@ def _sections(plan: Any, catalog: Any, tick_ns: float | None) -> list[_Section]:
     return sections
 
 
-def spice_checks(plan: Any, catalog: Any, *, tick_ns: float | None = None) -> list[SpiceCheck]:
+def spice_checks(plan: Plan, catalog: Catalog, *, tick_ns: float | None = None) -> list[SpiceCheck]:
     """Every figure of the deck a simulator can check, with binsynth's value and tolerance."""
     return [check for section in _sections(plan, catalog, tick_ns) for check in section.checks]
 
@@ -450,7 +451,7 @@ def measure_lines(checks: list[SpiceCheck]) -> list[str]:
     return [f".meas tran {check.name} {check.measure}" for check in checks]
 
 
-def plan_to_spice(plan: Any, catalog: Any, *, tick_ns: float | None = None) -> str:
+def plan_to_spice(plan: Plan, catalog: Catalog, *, tick_ns: float | None = None) -> str:
     """The deck as text; a plan without analog parts gives a deck that says so."""
     sections = _sections(plan, catalog, tick_ns)
     lines = [f"* binsynth {__version__}: analog parts of plan {plan.name} at {plan.supply:g} V",
@@ -475,7 +476,7 @@ def plan_to_spice(plan: Any, catalog: Any, *, tick_ns: float | None = None) -> s
     return "\n".join(lines) + "\n"
 
 
-def write_spice(plan: Any, catalog: Any, path: str | Path, *, tick_ns: float | None = None) -> Path:
+def write_spice(plan: Plan, catalog: Catalog, path: str | Path, *, tick_ns: float | None = None) -> Path:
     """Write ``plan_to_spice`` to ``path`` atomically."""
     return atomic_write_text(path, plan_to_spice(plan, catalog, tick_ns=tick_ns))
 

@@ -28,6 +28,7 @@ from xml.sax.saxutils import escape, quoteattr
 
 from ..analogwave import analog_waves
 from ..findings import CoincidentEdge, GlitchRecord
+from ..netlist import Plan
 from ..timing import Glitch, Trace, nice_period_ns
 from ..units import format_si
 from .files import atomic_write_text
@@ -129,7 +130,7 @@ def _tick_step(cycle: int) -> int:
 
 # ---------------------------------------------------------------- the main diagram
 
-def _rows(trace: Trace, plan: Any) -> list[tuple[str, str, str, str]]:
+def _rows(trace: Trace, plan: Plan) -> list[tuple[str, str, str, str]]:
     """(css class, label, net, signal name) for each trace row, in drawing order."""
     rows = [("clock", trace.clock_net, trace.clock_net, "")]
     rows += [("counter", net, net, "") for net in trace.counter_nets]
@@ -138,7 +139,7 @@ def _rows(trace: Trace, plan: Any) -> list[tuple[str, str, str, str]]:
     return rows
 
 
-def _main(trace: Trace, plan: Any, glitches: list[dict], coincident: list[dict],
+def _main(trace: Trace, plan: Plan, glitches: list[dict], coincident: list[dict],
           top: float) -> tuple[list[str], float]:
     cycle = trace.cycle
     x = lambda t: LABEL + t * PLOT / cycle  # noqa: E731
@@ -191,13 +192,13 @@ def _main(trace: Trace, plan: Any, glitches: list[dict], coincident: list[dict],
     return out, bottom
 
 
-def _analog_rows(trace: Trace, plan: Any, top: float) -> tuple[list[str], float]:
+def _analog_rows(trace: Trace, plan: Plan, top: float) -> tuple[list[str], float]:
     """Each staircase and switch common voltage (0 V .. VDD in a taller row, its levels
     drawn from the simulated codes, ripple steps included), each switch position as a level."""
     cycle_ns = trace.cycle * trace.period_ns
     x = lambda t: LABEL + min(t, cycle_ns) * PLOT / cycle_ns  # noqa: E731
     out, y = [], top
-    supply = float(getattr(plan, "supply", trace.supply) or trace.supply)
+    supply = float(plan.supply or trace.supply)
     for wave in analog_waves(trace, plan):
         height = WAVE if wave.kind == "switch" else ANALOG
         y += height + ROW - WAVE
@@ -269,7 +270,7 @@ def _race_marks(coincident: list[dict], row_y: dict[str, float], x: Any) -> list
 
 # ---------------------------------------------------------------- close-up panels
 
-def _panel(trace: Trace, plan: Any, tick: int, glitches: list[dict], coincident: list[dict],
+def _panel(trace: Trace, plan: Plan, tick: int, glitches: list[dict], coincident: list[dict],
            top: float) -> tuple[list[str], float]:
     k = tick if tick else trace.cycle
     edge = k * trace.period_ns
@@ -345,12 +346,12 @@ def _panel(trace: Trace, plan: Any, tick: int, glitches: list[dict], coincident:
 
 # ---------------------------------------------------------------- the document
 
-def trace_to_svg(trace: Trace, plan: Any, glitches: list | None = None, coincident: list | None = None,
+def trace_to_svg(trace: Trace, plan: Plan, glitches: list | None = None, coincident: list | None = None,
                  *, max_panels: int = 12) -> str:
     """The whole diagram as SVG text."""
     glitches = [_record(g) for g in (plan.glitches if glitches is None else glitches)]
     coincident = [_record(c) for c in (plan.coincident_edges if coincident is None else coincident)]
-    name = getattr(plan, "name", "") or "plan"
+    name = plan.name or "plan"
     body = [_label(12, 24, f"{name}: {trace.cycle} ticks per cycle, clock period {_time(trace.period_ns)}, "
                            f"{trace.corner} delays at {trace.supply:g} V", "title"),
             _legend(36, len(glitches), len(coincident))]
@@ -382,7 +383,7 @@ def _legend(y: float, n_glitches: int, n_races: int) -> str:
             f'{_label(x + 420, y, "click a mark for its close-up; shaded: asserted", "sub")}</g>')
 
 
-def write_svg(trace: Trace, plan: Any, path: str | Path, glitches: list | None = None,
+def write_svg(trace: Trace, plan: Plan, path: str | Path, glitches: list | None = None,
               coincident: list | None = None) -> Path:
     """Write ``trace_to_svg`` to ``path`` atomically."""
     return atomic_write_text(path, trace_to_svg(trace, plan, glitches, coincident))

@@ -22,11 +22,10 @@ from __future__ import annotations
 
 import re
 from pathlib import Path
-from typing import Any
 
 from .. import __version__
 from ..analogwave import analog_waves
-from ..netlist import verilog_module_name
+from ..netlist import Plan, verilog_module_name
 from ..timing import Trace, ps
 from .files import atomic_write_text
 
@@ -57,7 +56,7 @@ def vcd_name(name: str) -> str:
     return re.sub(r"[\s.:\[\]]", "_", name) or "_"
 
 
-def vcd_scopes(trace: Trace, plan: Any) -> dict[str, list[tuple[str, str]]]:
+def vcd_scopes(trace: Trace, plan: Plan) -> dict[str, list[tuple[str, str]]]:
     """Each sub-scope with its (reference name, net) pairs, in file order."""
     counter = [(vcd_name(trace.clock_net), trace.clock_net)]
     counter += [(vcd_name(n), n) for n in trace.counter_nets]
@@ -80,15 +79,15 @@ def _unique(rows: list[tuple[str, str]], seen: set[str] | None = None) -> list[t
     return out
 
 
-def trace_to_vcd(trace: Trace, plan: Any, *, date: str | None = None) -> str:
+def trace_to_vcd(trace: Trace, plan: Plan, *, date: str | None = None) -> str:
     """The trace as VCD text (times in picoseconds)."""
     # No wall-clock date: the same inputs must give the same file on any machine.
     when = date or "not recorded (the file depends only on the spec and the bin)"
-    module = verilog_module_name(getattr(plan, "name", "") or "binsynth_plan")
+    module = verilog_module_name(plan.name or "binsynth_plan")
     lines = [
         f"$date {when} $end",
         f"$version binsynth {__version__} $end",
-        f"$comment plan {getattr(plan, 'name', '')}: {trace.cycles} cycle(s) of {trace.cycle} ticks, "
+        f"$comment plan {plan.name}: {trace.cycles} cycle(s) of {trace.cycle} ticks, "
         f"clock period {trace.period_ns:g} ns, {trace.corner} delays at {trace.supply:g} V, "
         f"{'inertial' if trace.inertial else 'transport'} gate model $end",
         "$timescale 1 ps $end",
@@ -150,7 +149,7 @@ def _initial(trace: Trace, net: str) -> bool:
     return trace.level_at(net, 0.0)
 
 
-def write_vcd(trace: Trace, plan: Any, path: str | Path) -> Path:
+def write_vcd(trace: Trace, plan: Plan, path: str | Path) -> Path:
     """Write ``trace_to_vcd`` to ``path`` atomically."""
     return atomic_write_text(path, trace_to_vcd(trace, plan))
 

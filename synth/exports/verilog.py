@@ -34,7 +34,8 @@ import re
 from pathlib import Path
 from typing import Any
 
-from ..netlist import verilog_module_name, VERILOG_KEYWORDS
+from ..inventory import Catalog
+from ..netlist import VERILOG_KEYWORDS, Plan, verilog_module_name
 from ..network import RAILS
 from ..timing import CounterModel, GateModel, counter_models, gate_models, gate_names_of, register_start_levels
 from .files import atomic_write_text
@@ -55,10 +56,10 @@ def delay_text(delay_ps: int) -> str:
     return f"{whole}" if not frac else f"{whole}.{frac:03d}".rstrip("0")
 
 
-def spec_signals(plan: Any) -> list[str]:
+def spec_signals(plan: Plan) -> list[str]:
     """The plan's spec signals in plan order (the counter's own reset decode left out)."""
-    reset = getattr(getattr(plan, "counter", None), "reset", None)
-    skip = {getattr(reset, "name", None)}
+    reset = plan.counter.reset
+    skip = {reset.name} if reset is not None else set()
     return [name for name in plan.signals if name not in skip]
 
 
@@ -83,13 +84,13 @@ def _port_name(name: str) -> str:
     return name if _SIMPLE.match(name) and name not in VERILOG_KEYWORDS else f"\\{name} "
 
 
-def verilog_names(plan: Any, catalog: Any) -> dict[str, str]:
+def verilog_names(plan: Plan, catalog: Catalog) -> dict[str, str]:
     """Every net of the simulated circuit -> its identifier in the exported file."""
     counters, gates = _models(plan, catalog)
     return _identifiers(plan, counters, gates)
 
 
-def _models(plan: Any, catalog: Any) -> tuple[list[CounterModel], list[GateModel]]:
+def _models(plan: Plan, catalog: Catalog) -> tuple[list[CounterModel], list[GateModel]]:
     counters = counter_models(plan.counter, plan.network, catalog, plan.supply, "typ")
     gates = gate_models(plan.network, catalog, plan.supply, "typ", gate_names_of(plan))
     return counters, gates
@@ -100,7 +101,7 @@ def _clock_net(counters: list[CounterModel], gates: list[GateModel]) -> str:
     return next((c.clock_net for c in counters if c.clock_net not in driven), "CLK")
 
 
-def _identifiers(plan: Any, counters: list[CounterModel], gates: list[GateModel]) -> dict[str, str]:
+def _identifiers(plan: Plan, counters: list[CounterModel], gates: list[GateModel]) -> dict[str, str]:
     ports = {name: _port_name(name) for name in spec_signals(plan)}
     taken = {"clk", *ports.values()}
     names = {_clock_net(counters, gates): "clk"}
@@ -135,7 +136,7 @@ def _width(modulus: int) -> int:
     return max(1, (modulus - 1).bit_length())
 
 
-def _counter_comment(plan: Any, c: CounterModel, catalog: Any) -> list[str]:
+def _counter_comment(plan: Plan, c: CounterModel, catalog: Catalog) -> list[str]:
     part = catalog.parts[c.part]
     lines = [f"  // {c.ref} unit {c.unit}: {c.part} {part.function}; counts on the {c.edge} edge of "
              f"{c.clock_net}, modulus {c.modulus}"]
@@ -165,7 +166,7 @@ def _zero_value(c: CounterModel, o: Any) -> str:
     return "1'b1" if c.level(o, 0) else "1'b0"
 
 
-def _counter_block(plan: Any, c: CounterModel, names: dict[str, str], catalog: Any,
+def _counter_block(plan: Plan, c: CounterModel, names: dict[str, str], catalog: Catalog,
                    taken: set[str]) -> list[str]:
     tag = _legal(f"{c.ref}_{c.unit}", taken)
     taken.update({f"{tag}_count", f"{tag}_next", f"{tag}_clk_was"})
@@ -274,11 +275,11 @@ def _flipflop_lines(g: GateModel, names: dict[str, str], label: str, delay: str)
     return lines
 
 
-def _flipflop_start(plan: Any, gates: list[GateModel], names: dict[str, str]) -> list[str]:
+def _flipflop_start(plan: Plan, gates: list[GateModel], names: dict[str, str]) -> list[str]:
     """The flip-flop outputs' levels at time 0 (tick 0), as the simulator starts them."""
     if not any(g.clocked for g in gates):
         return []
-    clock_level = getattr(plan.counter, "edge", "rising") == "falling"
+    clock_level = plan.counter.edge == "falling"
     levels = register_start_levels(plan.counter, plan.network, clock_level)
     lines = ["  initial begin"]
     for g in gates:
@@ -336,10 +337,10 @@ def _volts(value: float) -> str:
     return f"{value:.6f}"
 
 
-def _staircase_lines(plan: Any, names: dict[str, str], taken: set[str],
+def _staircase_lines(plan: Plan, names: dict[str, str], taken: set[str],
                      reals: dict[str, str]) -> list[str]:
     lines = []
-    for name, lad in sorted((getattr(plan, "ladders", {}) or {}).items()):
+    for name, lad in sorted(plan.ladders.items()):
         nets = [net for _, _, net in lad.drivers]
         head = (f"  // staircase {name}: {lad.kind} ladder on "
                 + ", ".join(f"{net} (tick bit {bit})" for bit, net in zip(lad.bits, nets))
@@ -361,9 +362,9 @@ def _staircase_lines(plan: Any, names: dict[str, str], taken: set[str],
     return lines
 
 
-def _switch_lines(plan: Any, names: dict[str, str], taken: set[str], reals: dict[str, str]) -> list[str]:
+def _switch_lines(plan: Plan, names: dict[str, str], taken: set[str], reals: dict[str, str]) -> list[str]:
     lines = []
-    for name, sw in sorted((getattr(plan, "switches", {}) or {}).items()):
+    for name, sw in sorted(plan.switches.items()):
         control, on, off = sw.get("control_net"), sw.get("on"), sw.get("off")
         lines.append(f"  // switch {name}: {sw.get('ref')} ({sw.get('part', '')}) section {sw.get('unit', '?')}, "
                      f"control {control}; common joins {sw.get('when_control_high')} while the control is high")
@@ -385,7 +386,7 @@ def _switch_lines(plan: Any, names: dict[str, str], taken: set[str], reals: dict
     return lines
 
 
-def plan_to_verilog(plan: Any, catalog: Any) -> str:
+def plan_to_verilog(plan: Plan, catalog: Catalog) -> str:
     """The plan as one self-contained structural Verilog-2001 file."""
     counters, gates = _models(plan, catalog)
     names = _identifiers(plan, counters, gates)
@@ -399,14 +400,14 @@ def plan_to_verilog(plan: Any, catalog: Any) -> str:
         f"// Counting edge: {plan.clock_edge} edge of clk. The count starts from all zeros; "
         "sample the outputs just before each counting edge.",
     ]
-    osc = getattr(plan, "oscillator", None)
+    osc = plan.oscillator
     if osc is not None:
         # The RC oscillator is analog: the model keeps clk a port, so a testbench
         # drives it at the oscillator's nominal frequency (formats.md: ports are clk
         # and the signals).
         head.append(f"// clk is made on the board by an RC oscillator ({osc.site.part} {osc.ref}, "
                     f"nominal {osc.f_nom:.6g} Hz); it stays an input here: drive it from the testbench.")
-    por = getattr(plan, "power_on_reset", None)
+    por = plan.power_on_reset
     if por is not None:
         head.append(f"// A power-on reset ({por.part} {por.ref}, R {por.r:g} ohm, C {por.c:g} F) holds the "
                     f"counter reset for about {por.width_s[1]:.3g} s after power-up; the model simply "
@@ -455,7 +456,7 @@ def plan_to_verilog(plan: Any, catalog: Any) -> str:
     return "\n".join(head + body + ["endmodule", ""])
 
 
-def write_verilog(plan: Any, catalog: Any, path: str | Path) -> Path:
+def write_verilog(plan: Plan, catalog: Catalog, path: str | Path) -> Path:
     """Write ``plan_to_verilog`` to ``path`` atomically."""
     return atomic_write_text(path, plan_to_verilog(plan, catalog))
 

@@ -123,7 +123,7 @@ class _Flipped:
 def map_design(functions, nvars: int, var_nets: Sequence[str], library: Library, *,
                polarity: Mapping[str, str], cover=None, exact: str = "auto",
                effort: str | Effort | None = None, steps: int | None = None,
-               glitch_free: Iterable[str] = ()) -> Network:
+               glitch_free: Iterable[str] = (), advise: bool = True) -> Network:
     """Cover the decode functions with the bin's gates: fewest chips, then gates, then depth.
 
     ``exact``: 'auto' runs exact synthesis on small designs, 'yes' on any
@@ -136,7 +136,9 @@ def map_design(functions, nvars: int, var_nets: Sequence[str], library: Library,
     (a higher effort, one part that makes it easy).  ``glitch_free`` names signals (an asynchronous counter
     reset) that must not pulse while a single counter bit changes: an exact
     synthesis circuit with such a static hazard gives way to the structure
-    selection's two-level-derived one.
+    selection's two-level-derived one.  ``advise=False``: a caller that only asks
+    whether a design exists (what the bin lacks) gets a ``NotFoundError`` without
+    the search for one part that would make it easy.
     """
     if exact not in ("auto", "yes", "no"):
         raise UsageError(f"expected exact to be auto, yes or no, got {exact!r}")
@@ -152,7 +154,7 @@ def map_design(functions, nvars: int, var_nets: Sequence[str], library: Library,
         return network
     forms = cover_forms(problem, _covers(problem, functions, cover, nvars, exact))
     run_exact = _exact_wanted(problem, exact)
-    failure = Failure(problem, forms, lib, meter, level, budget)
+    failure = Failure(problem, forms, lib, meter, level, budget, advise=advise)
     result, finished = select_structure(problem, forms, lib, int(budget * (0.45 if run_exact else 0.95)), meter)
     notes = []
     if result is not None:

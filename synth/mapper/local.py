@@ -62,12 +62,11 @@ class LocalSearch:
                  table: TreeTable, meter: Meter) -> None:
         self.problem, self.cands, self.cells, self.table = problem, cands, cells, table
         self.meter = meter
-        by_width: dict[int, list[Tree]] = {}      # one menu per fan-in count, shared (read only)
+        menus: dict[int, list[Tree]] = {}      # one menu per fan-in count, shared by its nodes
         for node in cands.nodes:
-            k = len(node.fanins)
-            if k not in by_width:
-                by_width[k] = _tree_menu(table.trees(k), len(cells))
-        self.trees = {n: by_width[len(node.fanins)] for n, node in enumerate(cands.nodes)}
+            if len(node.fanins) not in menus:
+                menus[len(node.fanins)] = _tree_menu(table.trees(len(node.fanins)), len(cells))
+        self.trees = {n: menus[len(node.fanins)] for n, node in enumerate(cands.nodes)}
         self.natural_dec = {d: 1 if cells[ci].active == "low" else 0
                             for d, (ci, _) in enumerate(cands.decoders)}
         self.opt = {s.name: 0 for s in problem.signals}

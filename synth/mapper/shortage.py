@@ -26,12 +26,14 @@ INVERTING_OPS = ("not", "nand", "nor", "xor", "xnor", "mux", "decoder", "spdt")
 class Failure:
     """Why no design came out: proven impossible (exit 3, with a reason a person
     can check) or not found within the effort (exit 4, what was proven and
-    what to try next)."""
+    what to try next).  ``advise=False`` leaves out the search for one extra part
+    that would make it easy (a mapping per part tried), for callers that only ask
+    whether a design exists and never show the message."""
 
     def __init__(self, problem: Problem, forms, lib: Library, meter: Meter, level: Effort,
-                 budget: int) -> None:
+                 budget: int, *, advise: bool = True) -> None:
         self.problem, self.forms, self.lib, self.meter = problem, forms, lib, meter
-        self.level, self.budget = level, budget
+        self.level, self.budget, self.advise = level, budget, advise
 
     def error(self, exact_lower: float = 1, searched_all: bool = False) -> ShortError | NotFoundError:
         names = ", ".join(s.name for s in self.problem.signals)
@@ -47,14 +49,15 @@ class Failure:
         if gates != float("inf"):
             proven += f" and {int(gates)} gate(s)"
         unused = self.spare_switch_note()
-        fix = self.one_part_fix()
+        fix = self.one_part_fix() if self.advise else None
         steps = []
         if self.level.name != "thorough":
             steps.append("--effort thorough searches longer")
         if fix:
             steps.append(f"with one more {fix} ({self.lib.catalog.parts[fix].function}) a design "
                          f"is found at once")
-        hint = "; ".join(steps) or "no single extra chip makes it easy; add gates of the kinds used"
+        hint = "; ".join(steps) or ("no single extra chip makes it easy; add gates of the kinds used"
+                                    if self.advise else None)
         return NotFoundError(f"no design for {names} found within the bin at effort "
                              f"{self.level.name}; {proven}{unused}", file=where, hint=hint)
 

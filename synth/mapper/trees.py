@@ -6,7 +6,6 @@ a dynamic programme over the number of fan-ins.
 from __future__ import annotations
 
 from dataclasses import dataclass, replace
-from operator import add
 from typing import Iterable, Sequence
 
 from .library import AndKind, Cell, InvKind, and_kinds, inv_kinds
@@ -50,7 +49,7 @@ def _bump(units: tuple[int, ...], index: int) -> tuple[int, ...]:
 
 
 def _add(u: tuple[int, ...], v: tuple[int, ...]) -> tuple[int, ...]:
-    return tuple(map(add, u, v))
+    return tuple(a + b for a, b in zip(u, v))
 
 
 class TreeTable:
@@ -68,20 +67,19 @@ class TreeTable:
         # fold[g][i][s]: dict n1 -> entries (units, n1, depth, children) of i children, s leaves
         self.fold = [{1: {1: {kind.a: [(zero, kind.a, 0, (("leaf", kind.a),))]}}} for kind in kinds]
         self.top = 1
-        self.built: dict[int, list[Tree]] = {}
+        self.listed: dict[int, tuple[Tree, ...]] = {}
 
     def trees(self, k: int) -> list[Tree]:
-        """Every kept tree for an AND of k fan-ins, both output phases (a fresh list;
-        the trees are built once per k)."""
+        """Every kept tree for an AND of k fan-ins, both output phases (listed once per k)."""
         while self.top < k:
             self._grow()
-        if k not in self.built:
+        if k not in self.listed:
             out = []
             for b, by_n1 in self.table[k].items():
                 for n1, entries in by_n1.items():
                     out.extend(Tree(e[0], n1, e[2], b, e[3]) for e in entries)
-            self.built[k] = out
-        return list(self.built[k])
+            self.listed[k] = tuple(out)
+        return list(self.listed[k])
 
     def _grow(self) -> None:
         s = self.top + 1
