@@ -24,7 +24,7 @@ import bisect
 from dataclasses import dataclass
 from typing import Any
 
-from .netlist import Plan
+from .netlist import BoardSwitch, Plan
 
 __all__ = ["AnalogWave", "analog_waves"]
 
@@ -99,12 +99,12 @@ def _staircase(trace: Any, name: str, lad: Any) -> AnalogWave:
                       f"{lad.kind} ladder on tick bits {', '.join(map(str, lad.bits))}")
 
 
-def _switch(trace: Any, plan: Plan, name: str, sw: dict, volts: dict[str, AnalogWave]) -> list[AnalogWave]:
-    control = sw.get("control_net")
+def _switch(trace: Any, plan: Plan, name: str, sw: BoardSwitch, volts: dict[str, AnalogWave]) -> list[AnalogWave]:
+    control = sw.control_net
     if not control or control not in trace.initial:
         return []
-    high_joins = sw.get("when_control_high")
-    on_net, off_net = sw.get("on"), sw.get("off")
+    high_joins = sw.when_control_high
+    on_net, off_net = sw.on, sw.off
 
     def position(level: bool) -> float:
         joined = high_joins if level else (off_net if high_joins == on_net else on_net)
@@ -132,7 +132,7 @@ def _switch(trace: Any, plan: Plan, name: str, sw: dict, volts: dict[str, Analog
     pos = waves[0]
     values = [(t, voltage(on_net if pos.value_at(t) else off_net, t)) for t in times]
     start = values[0][1]
-    waves.append(AnalogWave(str(sw.get("common_net") or name), "common", "V", start,
+    waves.append(AnalogWave(str(sw.common_net or name), "common", "V", start,
                             _compress(start, values[1:]),
                             f"switch {name}'s common terminal: {on_net} or {off_net}"))
     return waves

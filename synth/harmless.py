@@ -69,7 +69,7 @@ def check_slow_outputs(spec, plan) -> None:
     if spec is None:
         return
     for name, sw in sorted((plan.switches or {}).items()):
-        select = sw.get("select")
+        select = sw.select
         if select is not None and _slow(spec, select):
             raise SpecError(f"signals.{select}.feeds: slow, but {select} selects switch {name} on this "
                             "board: a glitch on it throws the switch and passes a spike to what the "

@@ -80,6 +80,53 @@ class Passive:
         return format_si(self.value, "Ω" if self.kind == "resistor" else "F")
 
 
+@dataclass(frozen=True)
+class SwitchPath:
+    """One way a switch's common is joined: to ``joins`` while ``control_net`` is at
+    ``closed_when`` (True: high)."""
+
+    control_net: str
+    closed_when: bool
+    joins: str
+
+
+@dataclass(frozen=True)
+class BoardSwitch:
+    """One of the spec's switches as wired on the board: which chip section, which
+    nets its control, common and throws are on, and the paths the self-check follows.
+
+    ``when_control_high`` is the spec value joined while the control is high;
+    ``complement_net`` is the inverted select a pair of SPST sections needs ("" when none).
+    """
+
+    ref: str
+    unit: str
+    part: str
+    kind: str
+    when_control_high: str
+    control_net: str
+    control_pin: int
+    common_pin: int
+    common_net: str
+    select: str
+    on: str
+    off: str
+    on_net: str
+    off_net: str
+    complement_net: str
+    sections: tuple[tuple[str, str], ...]
+    paths: tuple[SwitchPath, ...]
+
+    def to_json(self) -> dict[str, object]:
+        """The plan JSON entry (formats.md), keys in their published order."""
+        return {"ref": self.ref, "when_control_high": self.when_control_high, "unit": self.unit,
+                "part": self.part, "kind": self.kind, "select": self.select, "on": self.on,
+                "off": self.off, "control_net": self.control_net, "control_pin": self.control_pin,
+                "common_pin": self.common_pin, "common_net": self.common_net,
+                "complement_net": self.complement_net,
+                "sections": [{"ref": r, "unit": u} for r, u in self.sections]}
+
+
 def is_passive(ref: str) -> bool:
     """Resistors and capacitors have refs R1, C1...; chips U1...
 
@@ -105,7 +152,7 @@ class Plan:
     chips: list[ChipInstance]
     nets: dict[str, list[tuple[str, int]]]
     signals: dict[str, dict]
-    switches: dict[str, dict]
+    switches: dict[str, BoardSwitch]
     bom: dict[str, int]
     decoupling: tuple[tuple[str, str], ...]
     clock_edge: str
@@ -558,10 +605,9 @@ def _switch_mismatches(plan: Plan, rows: list[dict[str, bool]],
     """Each switch's common must join ``on`` exactly while its select is asserted."""
     problems = []
     for name, sw in plan.switches.items():
-        select = sw["select"]
         for t, row in enumerate(rows):
-            joined = {p["joins"] for p in sw["paths"] if row[p["control_net"]] == p["closed_when"]}
-            want = {sw["on"]} if t in delivered.get(select, frozenset()) else {sw["off"]}
+            joined = {p.joins for p in sw.paths if row[p.control_net] == p.closed_when}
+            want = {sw.on} if t in delivered.get(sw.select, frozenset()) else {sw.off}
             if joined != want:
                 got = ", ".join(sorted(joined)) or "nothing"
                 problems.append(f"switch {name} at tick {t}: common joins {got}, "

@@ -30,7 +30,7 @@ from dataclasses import dataclass, field
 from .counter import CounterChip, CounterPlan, carry_nets
 from .errors import InternalError, ShortError, SpecError
 from .inventory import Bin, Catalog, Part, Unit
-from .netlist import (CLOCK_NET, RAIL_NETS, ChipInstance, Plan, check_nets, is_passive, pin_direction,
+from .netlist import (CLOCK_NET, RAIL_NETS, BoardSwitch, ChipInstance, Plan, SwitchPath, check_nets, is_passive, pin_direction,
                       pin_directions, ref_key, self_check)
 from .network import Gate, Network, SignalOut, evaluate_gate, fresh_name
 from .spec import Spec, SwitchSpec
@@ -327,7 +327,7 @@ class _Route:
     control_net: str
     common_net: str
     when_control_high: str
-    paths: list[dict]
+    paths: list[SwitchPath]
     complement_net: str = ""
 
 
@@ -382,8 +382,7 @@ def _route_spdt(board: _Board, name: str, sw: SwitchSpec, select: SignalOut) -> 
     _note(placed[0], {unit.throws.high: f"switch {name}: joins the common while the control is high ({high})",
                       unit.throws.low: f"switch {name}: joins the common while the control is low ({low})",
                       unit.common: f"switch {name} common"})
-    paths = [{"control_net": select.net, "closed_when": True, "joins": high},
-             {"control_net": select.net, "closed_when": False, "joins": low}]
+    paths = [SwitchPath(select.net, True, high), SwitchPath(select.net, False, low)]
     return _Route(name, sw, "spdt", [placed], select.net, name, high, paths)
 
 
@@ -412,8 +411,7 @@ def _route_spst_pair(board: _Board, network: Network, name: str, sw: SwitchSpec,
         _note(chip, {unit.terminals[1]: f"switch {name}: joins the common while "
                                         f"{'asserted' if closed_while_asserted else 'not asserted'} ({joins})",
                      unit.terminals[0]: f"switch {name} common"})
-        paths.append({"control_net": control, "closed_when": unit.on_when == "high",
-                      "joins": joins})
+        paths.append(SwitchPath(control, unit.on_when == "high", joins))
         sections.append(placed)
     high, _ = _throw_nets(sw, active_high)
     board.warnings.append(
@@ -443,8 +441,7 @@ def _route_mux(board: _Board, name: str, sw: SwitchSpec, select: SignalOut) -> _
                       channels[0]: f"switch {name}: joins the common while the select is low ({low})",
                       unit.common: f"switch {name} common"})
     _note(placed[0], {pin: "select held at VSS: only channels 0 and 1 are used" for pin in unit.selects[1:]})
-    paths = [{"control_net": select.net, "closed_when": True, "joins": high},
-             {"control_net": select.net, "closed_when": False, "joins": low}]
+    paths = [SwitchPath(select.net, True, high), SwitchPath(select.net, False, low)]
     board.warnings.append(f"switch {name} uses channels 0 and 1 of an analog mux "
                           "(no SPDT or SPST sections left in the bin)")
     return _Route(name, sw, "mux channel", [placed], select.net, name, high, paths)
@@ -773,20 +770,19 @@ def _signals(plan: Plan, network: Network, spec: Spec) -> tuple[dict[str, dict],
     return out, warnings
 
 
-def _switch_record(route: _Route, net_for: Callable[[str], str]) -> dict:
+def _switch_record(route: _Route, net_for: Callable[[str], str]) -> BoardSwitch:
     chip, unit_id = route.sections[0]
     unit = _unit(chip, unit_id)
     common = unit.common if unit.common is not None else unit.terminals[0]
     control = unit.control if unit.control is not None else unit.selects[0]
-    return {
-        "ref": chip.ref, "unit": unit_id, "part": chip.part.type, "kind": route.kind,
-        "when_control_high": route.when_control_high, "control_net": route.control_net,
-        "control_pin": control, "common_pin": common, "common_net": route.common_net,
-        "select": route.spec.select, "on": route.spec.on, "off": route.spec.off,
-        "on_net": net_for(route.spec.on), "off_net": net_for(route.spec.off),
-        "complement_net": route.complement_net,
-        "sections": [(c.ref, u) for c, u in route.sections], "paths": route.paths,
-    }
+    return BoardSwitch(
+        ref=chip.ref, unit=unit_id, part=chip.part.type, kind=route.kind,
+        when_control_high=route.when_control_high, control_net=route.control_net,
+        control_pin=control, common_pin=common, common_net=route.common_net,
+        select=route.spec.select, on=route.spec.on, off=route.spec.off,
+        on_net=net_for(route.spec.on), off_net=net_for(route.spec.off),
+        complement_net=route.complement_net,
+        sections=tuple((c.ref, u) for c, u in route.sections), paths=tuple(route.paths))
 
 
 def _external_nets(plan: Plan, routes: list[_Route], net_for: Callable[[str], str]) -> dict[str, str]:
@@ -904,6 +900,6 @@ def working_copy(plan: Plan) -> Plan:
              for c in plan.chips]
     return dataclasses.replace(
         plan, chips=chips, passives=list(plan.passives), signals={k: dict(v) for k, v in plan.signals.items()},
-        switches={k: dict(v) for k, v in plan.switches.items()}, external=dict(plan.external),
+        switches=dict(plan.switches), external=dict(plan.external),
         parts=dict(plan.parts), ladders=dict(plan.ladders),
         rc_offers=list(plan.rc_offers))

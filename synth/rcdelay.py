@@ -220,6 +220,11 @@ def _add_gates(plan, part, gid: str, units: tuple[str, str], early: str, drive: 
         network, gates=[*network.gates, gates[0], rc, gates[1]], delays={**network.delays, rc.id: timing}))
 
 
+def _moved(net: str, early: str, out: str) -> str:
+    """``out`` where ``net`` is the early net, else ``net``."""
+    return out if net == early else net
+
+
 def _move_readers(plan, name: str, early: str, out: str, stage2: str) -> Plan:
     """The output, its external connection and every switch pin that read the signal
     move onto the delayed net; the decode's gates keep the early net."""
@@ -232,11 +237,11 @@ def _move_readers(plan, name: str, early: str, out: str, stage2: str) -> Plan:
     label = plan.external.pop(early, None)
     if label is not None:
         plan.external[out] = label
-    for sw in (plan.switches or {}).values():
-        for key in ("control_net", "on_net", "off_net"):
-            if sw.get(key) == early:
-                sw[key] = out
-        for ref, _unit in sw.get("sections", ()):
+    for switch, sw in list(plan.switches.items()):
+        plan.switches[switch] = dataclasses.replace(
+            sw, control_net=_moved(sw.control_net, early, out), on_net=_moved(sw.on_net, early, out),
+            off_net=_moved(sw.off_net, early, out))
+        for ref, _unit in sw.sections:
             chip = plan.chip(ref)
             for pin, net in list(chip.pins.items()):
                 if net == early:

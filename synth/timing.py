@@ -1559,8 +1559,8 @@ def mark_races(records: Sequence[CoincidentEdge], delivered: Mapping[str, frozen
     routes: dict[str, set[str]] = {}
     nets = {name: info.get("net") for name, info in plan.signals.items()}
     for sw in plan.switches.values():
-        routed = {sw.get("on"), sw.get("off"), sw.get("on_net"), sw.get("off_net")}
-        routes.setdefault(sw.get("select"), set()).update(
+        routed = {sw.on, sw.off, sw.on_net, sw.off_net}
+        routes.setdefault(sw.select, set()).update(
             n for n, net in nets.items() if n in routed or net in routed)
     everything = frozenset(range(cycle))
     out = []
@@ -1684,7 +1684,7 @@ def remedies(glitch: Glitch, plan: Any, *, catalog: Any = None, stock: Any = Non
     out += _register_remedy(glitch, plan, catalog, stock)
     if spec is None or _pulse_per_tick_ok(spec, glitch.signal):
         out += _clock_gating_remedy(glitch, plan)
-    switch = [n for n, s in plan.switches.items() if s.get("select") == glitch.signal]
+    switch = [n for n, s in plan.switches.items() if s.select == glitch.signal]
     if switch:
         out.append(f"note: {glitch.signal} drives switch {', '.join(switch)}: for {glitch.width_ns:.0f} ns "
                    "the switch conducts the wrong way; a slow analog stage averages that away, a "

@@ -102,8 +102,9 @@ def test_self_check_enforces_clear_of(scan, tmp_path):
 def test_self_check_follows_the_switch_throws(switched, tmp_path):
     spec = load_spec(tmp_path / "spec.yaml", text=spec_text(switch="row3"))
     self_check(switched, spec)
-    for path in switched.switches["probe_in"]["paths"]:
-        path["closed_when"] = not path["closed_when"]
+    sw = switched.switches["probe_in"]
+    flipped = tuple(dataclasses.replace(p, closed_when=not p.closed_when) for p in sw.paths)
+    switched = dataclasses.replace(switched, switches={"probe_in": dataclasses.replace(sw, paths=flipped)})
     with pytest.raises(InternalError, match="switch probe_in at tick 0: common joins ladder_out, wanted GND"):
         self_check(switched, spec)
 

@@ -166,8 +166,8 @@ TRUTH_4053_A = {False: 12, True: 13}
 def test_spdt_throws_follow_the_select_polarity(tmp_path, select, when_high):
     plan = plan_for(tmp_path, {"CD4011BE": 2, "CD4040BE": 1, "CD4053BE": 1}, switch=select)
     sw = plan.switches["probe_in"]
-    assert (sw["ref"], sw["unit"], sw["kind"]) == ("U4", "A", "spdt")
-    assert sw["when_control_high"] == when_high
+    assert (sw.ref, sw.unit, sw.kind) == ("U4", "A", "spdt")
+    assert sw.when_control_high == when_high
     chip = plan.chip("U4")
     assert chip.pins[11] == plan.signals[select]["net"] and chip.pins[14] == "probe_in"
     asserted_level = plan.signals[select]["polarity"] == "high"
@@ -218,7 +218,7 @@ def test_spst_pair_uses_the_networks_own_inverter(tmp_path):
     plan = plan_for(tmp_path, {"CD4011BE": 1, "CD4040BE": 1, "CD4066BE": 1}, spst_network(True),
                     switch="half", signals=HALF_AND_LOW)
     sw = plan.switches["probe_in"]
-    assert sw["kind"] == "spst pair" and sw["complement_net"] == "nq3"
+    assert sw.kind == "spst pair" and sw.complement_net == "nq3"
     assert len(plan.network.gates) == 1
     # [ti4066pins] CD4066B: switch A terminals 1-2, control 13; switch B 4-3, control 5
     chip = plan.chip("U3")
@@ -249,7 +249,7 @@ def test_spst_pair_opens_an_inverter_chip(tmp_path):
     assert [(c.ref, c.part, c.role) for c in plan.chips] == [
         ("U1", "4040", "counter"), ("U2", "4069", "logic"), ("U3", "4066", "switch")]
     chip = plan.chip("U2")
-    assert chip.pins[1] == "Q3" and chip.pins[2] == plan.switches["probe_in"]["complement_net"]
+    assert chip.pins[1] == "Q3" and chip.pins[2] == plan.switches["probe_in"].complement_net
     assert net_problems(plan) == []
 
 
@@ -265,7 +265,7 @@ def test_mux_channel_when_no_switch_sections(tmp_path):
     plan = plan_for(tmp_path, {"CD4011BE": 2, "CD4040BE": 1, "CD4051BE": 1}, switch="row3")
     chip = plan.chip("U4")
     sw = plan.switches["probe_in"]
-    assert sw["kind"] == "mux channel" and sw["when_control_high"] == "GND"
+    assert sw.kind == "mux channel" and sw.when_control_high == "GND"
     assert (chip.pins[11], chip.pins[10], chip.pins[9], chip.pins[6]) == ("row3", "VSS", "VSS", "VSS")
     assert chip.pins[3] == "probe_in"
     channels = {0: 13, 1: 14, 2: 15, 3: 12, 4: 1, 5: 5, 6: 2, 7: 4}
@@ -284,7 +284,7 @@ def test_a_switch_without_any_switch_part_is_short(tmp_path):
 def test_spdt_is_preferred_over_spst(tmp_path):
     plan = plan_for(tmp_path, {"CD4011BE": 2, "CD4040BE": 1, "CD4066BE": 1, "CD4053BE": 1},
                     switch="row3")
-    assert plan.switches["probe_in"]["part"] == "4053" and "4066" not in plan.bom
+    assert plan.switches["probe_in"].part == "4053" and "4066" not in plan.bom
 
 
 @pytest.mark.parametrize("name, net", [("GND", "VSS"), ("VDD", "VDD"), ("ladder_out", "ladder_out")])
@@ -395,7 +395,7 @@ def test_low_closing_spst_sections_get_swapped_controls(tmp_path):
     plan = plan_for(tmp_path, {"X66": 1, "4040": 1, "4069": 1}, spst_network(False), switch="half",
                     signals=HALF, catalog=catalog)
     chip = plan.chip("U3")
-    complement = plan.switches["probe_in"]["complement_net"]
+    complement = plan.switches["probe_in"].complement_net
     # section A joins `on` (ladder_out) and must close while half (Q3) is high: control = not Q3
     assert (chip.pins[3], chip.pins[2]) == (complement, "ladder_out")
     assert (chip.pins[5], chip.pins[7]) == ("Q3", "VSS")

@@ -208,9 +208,9 @@ def test_fix_races_applies_the_offered_delay(tmp_path):
     fixed = make_plan(spec, stock, catalog=CATALOG, fix=["races"]).plan
     d, = fixed.rc_delays
     assert d.signal == "sel" and d.asked_by == "--fix races" and (d.r, d.c) == (offer.values.r_ohm, offer.values.c_farad)
-    assert fixed.switches["sw"]["control_net"] == d.nets["output"]
-    pin = fixed.switches["sw"]["control_pin"]
-    assert fixed.chip(fixed.switches["sw"]["ref"]).pins[pin] == d.nets["output"]
+    assert fixed.switches["sw"].control_net == d.nets["output"]
+    pin = fixed.switches["sw"].control_pin
+    assert fixed.chip(fixed.switches["sw"].ref).pins[pin] == d.nets["output"]
     edge, = fixed.coincident_edges
     assert edge.race is False and "RC delay on sel" in edge.separated_by
 

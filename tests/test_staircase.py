@@ -132,8 +132,8 @@ def test_example_wiring_list_has_every_ladder_resistor_with_both_ends(example):
 def test_example_switch_routes_the_ladder_net(example):
     plan = example.plan
     sw = plan.switches["adc_in"]
-    assert sw["on_net"] == "ramp"
-    assert any(pin_net == "ramp" for pin_net in plan.chip(sw["ref"]).pins.values())
+    assert sw.on_net == "ramp"
+    assert any(pin_net == "ramp" for pin_net in plan.chip(sw.ref).pins.values())
     assert "ramp" not in plan.external                       # it stays on the board
 
 

@@ -209,7 +209,7 @@ def polarity_notes(design) -> list[str]:
         if delivered is None or shown == delivered:
             continue
         if spec.signals[name].polarity == "free":
-            drives = [s for s, sw in plan.switches.items() if sw.get("select") == name]
+            drives = [s for s, sw in plan.switches.items() if sw.select == name]
             wired = f"; switch {', '.join(drives)} is wired to match" if drives else ""
             notes.append(f"note: {name} is delivered active {delivered}, while 'binsynth decode' shows it "
                          f"active {shown}: its polarity is free in the spec, the decode picks the level with "
@@ -237,8 +237,8 @@ def plan_blocks(design) -> list:
                     signal_rows(design))]
     blocks += [Text(line) for line in polarity_notes(design)]
     for name, sw in plan.switches.items():
-        blocks.append(Text(f"switch {name}: {sw.get('ref')} section {sw.get('unit', '?')}; common joins "
-                           f"{sw.get('when_control_high')} while its control is high"))
+        blocks.append(Text(f"switch {name}: {sw.ref} section {sw.unit}; common joins "
+                           f"{sw.when_control_high} while its control is high"))
     blocks += oscillator_blocks(plan) + power_on_blocks(plan) + rc_delay_blocks(plan) + ladder_blocks(plan) \
         + passive_blocks(plan)
     for chip in plan.chips:

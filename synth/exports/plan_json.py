@@ -40,14 +40,6 @@ def _endpoint(ref_pin: tuple[str, int] | None) -> dict | None:
     return None if ref_pin is None else {"ref": ref_pin[0], "pin": int(ref_pin[1])}
 
 
-def _switch(sw: dict) -> dict:
-    extra = {k: sw[k] for k in ("unit", "part", "kind", "select", "on", "off", "control_net",
-                                "control_pin", "common_pin", "common_net", "complement_net") if k in sw}
-    sections = [{"ref": r, "unit": u} for r, u in sw.get("sections", ())]
-    return {"ref": sw["ref"], "when_control_high": sw["when_control_high"], **extra,
-            "sections": sections}
-
-
 def _counter(plan: Plan) -> dict:
     counter = plan.counter
     chips = [{"ref": c.ref, "part": c.part, "unit": str(c.unit), "clock_net": str(c.clock_net),
@@ -132,7 +124,7 @@ def plan_to_json(plan: Plan) -> dict:
         "verilog_module": verilog_module_name(plan.name),
         "signals": {name: {"polarity": sig["polarity"], "source": _endpoint(sig["source"]),
                            "net": sig["net"]} for name, sig in plan.signals.items()},
-        "switches": {name: _switch(sw) for name, sw in plan.switches.items()},
+        "switches": {name: sw.to_json() for name, sw in plan.switches.items()},
         "bom": [{"part": part, "count": count} for part, count in sorted(plan.bom.items())],
         "chips": [{"ref": c.ref, "part": c.part, "role": c.role, "function": plan.parts[c.part].function,
                    "units": dict(c.units_used),

@@ -42,7 +42,7 @@ from ..analog import thresholds_at
 from ..analogparts import AppliedDelay, LadderPlan, OscillatorPlan
 from ..findings import RcOffer, RcValues
 from ..inventory import Catalog
-from ..netlist import Plan, simulate_nets
+from ..netlist import BoardSwitch, Plan, simulate_nets
 from ..units import format_si
 from .files import atomic_write_text
 
@@ -248,10 +248,10 @@ def _net_volts(plan: Plan, net: str, tick: int) -> float | None:
     return float(lad.levels[sum(((tick >> bit) & 1) << k for k, bit in enumerate(lad.bits))])
 
 
-def _switch(plan: Plan, catalog: Catalog, name: str, sw: dict, tick: float) -> _Section | None:
+def _switch(plan: Plan, catalog: Catalog, name: str, sw: BoardSwitch, tick: float) -> _Section | None:
     """A switch section routing rails or staircases: two SPICE switches of the catalog's
     on-resistance, their control a PWL copy of the control net's level tick by tick."""
-    on, off, control = sw.get("on"), sw.get("off"), sw.get("control_net")
+    on, off, control = sw.on, sw.off, sw.control_net
     if _net_volts(plan, on, 0) is None or _net_volts(plan, off, 0) is None:
         return None
     rows = simulate_nets(plan)
@@ -259,17 +259,17 @@ def _switch(plan: Plan, catalog: Catalog, name: str, sw: dict, tick: float) -> _
         return None
     levels = [bool(row[control]) for row in rows]
     supply, edge, tag = plan.supply, tick / 1000, _node(name)
-    high_net = sw.get("when_control_high")
+    high_net = sw.when_control_high
     low_net = off if high_net == on else on
     points = [(0.0, levels[0])]
     for k in range(1, len(levels)):
         if levels[k] != levels[k - 1]:
             points += [(k * tick, levels[k - 1]), (k * tick + edge, levels[k])]
     pwl = " ".join(f"{_num(t)} {_num(supply if level else 0.0)}" for t, level in points)
-    r_on = _on_resistance(catalog, sw.get("part"), supply)
-    common = _node(str(sw.get("common_net") or name))
+    r_on = _on_resistance(catalog, sw.part, supply)
+    common = _node(str(sw.common_net or name))
     node = lambda net: {"GND": "0", "VSS": "0", "VDD": "vdd"}.get(net, _node(net))  # noqa: E731
-    lines = [f"* switch {name}: {sw.get('ref')} ({sw.get('part')}) section {sw.get('unit')}, on-resistance "
+    lines = [f"* switch {name}: {sw.ref} ({sw.part}) section {sw.unit}, on-resistance "
              f"{format_si(r_on, 'Ω')}; the common joins {high_net} while control {control} is high, "
              f"{low_net} while it is low (the control copied tick by tick from the plan's logic)",
              f"V{tag}_ctl {tag}_ctl 0 PWL({pwl})",

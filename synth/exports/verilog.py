@@ -365,21 +365,21 @@ def _staircase_lines(plan: Plan, names: dict[str, str], taken: set[str],
 def _switch_lines(plan: Plan, names: dict[str, str], taken: set[str], reals: dict[str, str]) -> list[str]:
     lines = []
     for name, sw in sorted(plan.switches.items()):
-        control, on, off = sw.get("control_net"), sw.get("on"), sw.get("off")
-        lines.append(f"  // switch {name}: {sw.get('ref')} ({sw.get('part', '')}) section {sw.get('unit', '?')}, "
-                     f"control {control}; common joins {sw.get('when_control_high')} while the control is high")
+        control, on, off = sw.control_net, sw.on, sw.off
+        lines.append(f"  // switch {name}: {sw.ref} ({sw.part}) section {sw.unit}, "
+                     f"control {control}; common joins {sw.when_control_high} while the control is high")
         if control not in names:
             lines.append("  // (position not modelled: the model does not carry its control)")
             continue
         ident = _legal(f"{name}_on", taken)
         taken.add(ident)
-        level = "1'b1" if sw.get("when_control_high") == on else "1'b0"
+        level = "1'b1" if sw.when_control_high == on else "1'b0"
         other = "1'b0" if level == "1'b1" else "1'b1"
         lines.append(f"  wire {ident} = {names[control]} ? {level} : {other};  // 1 while it joins {on}")
         sources = {net: reals.get(net) or {"GND": "0.0", "VSS": "0.0", "VDD": _volts(plan.supply)}.get(net)
                    for net in (on, off)}
         if all(sources.values()):
-            common = _legal(str(sw.get("common_net") or name), taken)
+            common = _legal(str(sw.common_net or name), taken)
             taken.add(common)
             lines += [f"  real {common};  // the common terminal's volts",
                       f"  always @* {common} = {ident} ? {sources[on]} : {sources[off]};"]

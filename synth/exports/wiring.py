@@ -152,10 +152,10 @@ def _signals(plan: Plan) -> list[str]:
         lines += ["## Switches", "", "| Switch | Chip | Common | Joins while control high | "
                   "Joins while control low |", "|---|---|---|---|---|"]
         for name, sw in plan.switches.items():
-            low = sw["off"] if sw["when_control_high"] == sw["on"] else sw["on"]
-            lines.append(f"| {name} | {sw['ref']} ({sw['part']}, {sw['kind']}) | "
-                         f"{endpoint_text(plan, sw['ref'], sw['common_pin'])} | "
-                         f"{sw['when_control_high']} | {low} |")
+            low = sw.off if sw.when_control_high == sw.on else sw.on
+            lines.append(f"| {name} | {sw.ref} ({sw.part}, {sw.kind}) | "
+                         f"{endpoint_text(plan, sw.ref, sw.common_pin)} | "
+                         f"{sw.when_control_high} | {low} |")
         lines.append("")
     return lines
 
