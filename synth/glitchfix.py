@@ -821,7 +821,8 @@ def _rc_design(design: Design, signal: str, wanted_ns: float, period: float) -> 
                             resistors=stock.resistors, capacitors=stock.capacitors)
     except SynthError as exc:
         return dataclasses.replace(base, why_not=str(exc.args[0] if exc.args else exc))
-    source = plan.signals.get(signal, {}).get("source")
+    info = plan.signals.get(signal)
+    source = info.source if info is not None else None
     src = f"{source[0]} pin {source[1]}" if source else signal
     r, c = format_si(d.r, "Ω"), format_si(d.c, "F")
     wiring = [f"{src} ({signal}) -> stage 1 input ({where[0]})",

@@ -81,6 +81,21 @@ class Passive:
 
 
 @dataclass(frozen=True)
+class BoardSignal:
+    """One of the spec's signals as the board delivers it: the level at which it is
+    asserted, its net and the chip pin driving it (None when no pin does: a constant)."""
+
+    polarity: Literal["high", "low"]
+    net: str
+    source: tuple[str, int] | None
+
+    def to_json(self) -> dict[str, object]:
+        """The plan JSON entry (formats.md), keys in their published order."""
+        source = None if self.source is None else {"ref": self.source[0], "pin": int(self.source[1])}
+        return {"polarity": self.polarity, "source": source, "net": self.net}
+
+
+@dataclass(frozen=True)
 class SwitchPath:
     """One way a switch's common is joined: to ``joins`` while ``control_net`` is at
     ``closed_when`` (True: high)."""
@@ -151,7 +166,7 @@ class Plan:
     supply: float
     chips: list[ChipInstance]
     nets: dict[str, list[tuple[str, int]]]
-    signals: dict[str, dict]
+    signals: dict[str, BoardSignal]
     switches: dict[str, BoardSwitch]
     bom: dict[str, int]
     decoupling: tuple[tuple[str, str], ...]
@@ -462,7 +477,7 @@ def simulate_nets(plan: Plan) -> list[Mapping[str, bool]]:
 def simulate_ticks(plan: Plan) -> dict[str, tuple[bool, ...]]:
     """The electrical level of each signal's net per tick (zero-delay)."""
     rows = simulate_nets(plan)
-    return {name: tuple(row[sig["net"]] for row in rows) for name, sig in plan.signals.items()}
+    return {name: tuple(row[sig.net] for row in rows) for name, sig in plan.signals.items()}
 
 
 def delivered_sets(plan: Plan, levels: Mapping[str, tuple[bool, ...]] | None = None
@@ -470,7 +485,7 @@ def delivered_sets(plan: Plan, levels: Mapping[str, tuple[bool, ...]] | None = N
     """The ticks at which each signal is asserted, as the plan delivers it."""
     levels = simulate_ticks(plan) if levels is None else levels
     return {name: frozenset(t for t, level in enumerate(levels[name])
-                            if level == (plan.signals[name]["polarity"] == "high"))
+                            if level == (plan.signals[name].polarity == "high"))
             for name in plan.signals}
 
 
@@ -484,7 +499,7 @@ def self_check(plan: Plan, spec_or_delivered: Any) -> None:
     signal -> the exact asserted ticks the pipeline meant to deliver.
     """
     rows = simulate_nets(plan)
-    levels = {name: tuple(row[sig["net"]] for row in rows) for name, sig in plan.signals.items()}
+    levels = {name: tuple(row[sig.net] for row in rows) for name, sig in plan.signals.items()}
     delivered = delivered_sets(plan, levels)
     cycle = len(rows)
     if isinstance(spec_or_delivered, Mapping):
@@ -522,9 +537,9 @@ def _spec_mismatches(plan: Plan, delivered: dict[str, frozenset[int]], spec: Spe
             problems.append(f"signal {name} is not in the plan")
             continue
         polarity = sig.polarity
-        if polarity in ("high", "low") and plan.signals[name]["polarity"] != polarity:
+        if polarity in ("high", "low") and plan.signals[name].polarity != polarity:
             problems.append(f"signal {name}: the spec wants it active {polarity}, "
-                            f"the plan delivers it active {plan.signals[name]['polarity']}")
+                            f"the plan delivers it active {plan.signals[name].polarity}")
         problems += _level_mismatches(name, delivered[name], sig, cycle)
     for name, sig in spec.signals.items():
         for other, gap in sig.clear_of.items():

@@ -30,7 +30,7 @@ from dataclasses import dataclass, field
 from .counter import CounterChip, CounterPlan, carry_nets
 from .errors import InternalError, ShortError, SpecError
 from .inventory import Bin, Catalog, Part, Unit
-from .netlist import (CLOCK_NET, RAIL_NETS, BoardSwitch, ChipInstance, Plan, SwitchPath, check_nets, is_passive, pin_direction,
+from .netlist import (CLOCK_NET, RAIL_NETS, BoardSignal, BoardSwitch, ChipInstance, Plan, SwitchPath, check_nets, is_passive, pin_direction,
                       pin_directions, ref_key, self_check)
 from .network import Gate, Network, SignalOut, evaluate_gate, fresh_name
 from .spec import Spec, SwitchSpec
@@ -752,11 +752,11 @@ def _decoupling_note(part: Part) -> str:
             "the board allows (common practice)")
 
 
-def _signals(plan: Plan, network: Network, spec: Spec) -> tuple[dict[str, dict], list[str]]:
+def _signals(plan: Plan, network: Network, spec: Spec) -> tuple[dict[str, BoardSignal], list[str]]:
     """The spec's signals (internal decodes such as the counter reset stay out), and a
     warning for each one no chip pin carries."""
     wanted = set(spec.signals or network.signals)
-    out = {}
+    out: dict[str, BoardSignal] = {}
     warnings = []
     for name, sig in network.signals.items():
         if name not in wanted:
@@ -765,8 +765,7 @@ def _signals(plan: Plan, network: Network, spec: Spec) -> tuple[dict[str, dict],
                    if pin_direction(plan, r, p) == "out"]
         if not drivers:
             warnings.append(f"signal {name} is constant ({sig.net}); no chip pin carries it")
-        out[name] = {"polarity": sig.polarity, "net": sig.net,
-                     "source": drivers[0] if drivers else None}
+        out[name] = BoardSignal(sig.polarity, sig.net, drivers[0] if drivers else None)
     return out, warnings
 
 
@@ -796,9 +795,9 @@ def _external_nets(plan: Plan, routes: list[_Route], net_for: Callable[[str], st
                 c.clock_net == net for c in plan.counter.chips)):
             external[net] = "clock source (a square wave from VSS to VDD)"
     for name, sig in plan.signals.items():
-        if sig["net"] not in RAIL_NETS and sig["net"] in plan.nets:
-            label = external.get(sig["net"])
-            external[sig["net"]] = f"{label}, output {name}" if label else f"output {name}"
+        if sig.net not in RAIL_NETS and sig.net in plan.nets:
+            label = external.get(sig.net)
+            external[sig.net] = f"{label}, output {name}" if label else f"output {name}"
     for route in routes:
         external[route.common_net] = f"switch {route.name} common (to your circuit)"
         for value in (route.spec.on, route.spec.off):
@@ -899,7 +898,7 @@ def working_copy(plan: Plan) -> Plan:
     chips = [dataclasses.replace(c, pins=dict(c.pins), notes=dict(c.notes), units_used=dict(c.units_used))
              for c in plan.chips]
     return dataclasses.replace(
-        plan, chips=chips, passives=list(plan.passives), signals={k: dict(v) for k, v in plan.signals.items()},
+        plan, chips=chips, passives=list(plan.passives), signals=dict(plan.signals),
         switches=dict(plan.switches), external=dict(plan.external),
         parts=dict(plan.parts), ladders=dict(plan.ladders),
         rc_offers=list(plan.rc_offers))

@@ -231,9 +231,7 @@ def _move_readers(plan, name: str, early: str, out: str, stage2: str) -> Plan:
     signal = plan.network.signals[name]
     plan = dataclasses.replace(plan, network=dataclasses.replace(
         plan.network, signals={**plan.network.signals, name: SignalOut(out, signal.polarity)}))
-    info = plan.signals[name]
-    info["net"] = out
-    info["source"] = (stage2, _pin(plan, stage2, out))
+    plan.signals[name] = dataclasses.replace(plan.signals[name], net=out, source=(stage2, _pin(plan, stage2, out)))
     label = plan.external.pop(early, None)
     if label is not None:
         plan.external[out] = label

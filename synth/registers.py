@@ -222,7 +222,7 @@ def prepare_registering(design: Any, signals) -> Registering:
     """The early spec and the counter plan for registering ``signals`` (see the module
     text).  Raises ``ShortError`` when the bin lacks the flip-flops or the clock inverter."""
     plan, spec, stock, catalog = design.plan, design.spec, design.stock, design.catalog
-    names = tuple(sorted(s for s in signals if plan.signals[s]["net"] not in RAILS))
+    names = tuple(sorted(s for s in signals if plan.signals[s].net not in RAILS))
     if not names:
         raise ShortError("no signal to register (each is constant)")
     options = flipflop_options(stock, catalog)
@@ -236,7 +236,7 @@ def prepare_registering(design: Any, signals) -> Registering:
     if option.edge != _counter_edge(counter):
         inverter = _inverter_part(stock, catalog, plan.supply)
         counter = _invert_counter_clock(counter, option.edge)
-    polarity = {n: s["polarity"] for n, s in plan.signals.items()}
+    polarity = {n: s.polarity for n, s in plan.signals.items()}
     early = _early_spec(spec, delivered_sets(plan), polarity, names, option.has_qn)
     return Registering(early, counter, option, inverter, names, polarity)
 

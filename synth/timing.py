@@ -1557,7 +1557,7 @@ def mark_races(records: Sequence[CoincidentEdge], delivered: Mapping[str, frozen
     other); complementary signals (one asserted exactly when the other is not) are
     two views of one edge; other pairs are independent outputs, listed, not raced."""
     routes: dict[str, set[str]] = {}
-    nets = {name: info.get("net") for name, info in plan.signals.items()}
+    nets = {name: info.net for name, info in plan.signals.items()}
     for sw in plan.switches.values():
         routed = {sw.on, sw.off, sw.on_net, sw.off_net}
         routes.setdefault(sw.select, set()).update(
@@ -1739,13 +1739,13 @@ def _decode_choice_remedy(glitch: Glitch, counter: Any, spec: Any) -> list[str]:
 def _clock_gating_remedy(glitch: Glitch, plan: Any) -> list[str]:
     """Remedy 3: a spare input of the signal's last gate, driven from the clock phase
     in which the counter is still, holds the output inactive while the count settles."""
-    info = plan.signals.get(glitch.signal) or {}
-    gate = _driver(plan.network, info.get("net", ""))
+    info = plan.signals.get(glitch.signal)
+    gate = _driver(plan.network, info.net) if info is not None else None
     spare = spare_input(gate) if gate is not None else None
-    if gate is None or spare is None:
+    if info is None or gate is None or spare is None:
         return []
     controlling, forced = _CONTROLLING[gate.op]
-    if forced == (info.get("polarity", "high") == "high"):
+    if forced == (info.polarity == "high"):
         return []        # gating would force the asserted level: no use
     after_edge = plan.clock_edge == "rising"
     phase = "CLK" if controlling == after_edge else "CLK through a spare inverter"
@@ -2071,7 +2071,7 @@ def _power_on_checks(plan: Any, catalog: Any) -> list[PulseWidth]:
 
 def _strobed_levels(plan: Any) -> dict[str, bool]:
     """Signal -> its inactive electrical level, for signals gated with the clock."""
-    return {name: info["polarity"] != "high" for name, info in plan.signals.items()
+    return {name: info.polarity != "high" for name, info in plan.signals.items()
             if name in plan.strobed}
 
 

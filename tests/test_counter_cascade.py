@@ -110,7 +110,7 @@ def test_cascade_cosimulates(cycle, counter, catalog, tmp_path):
     period = timing.ps(trace.period_ns)
     samples, waves = run_plan(plan, catalog, period, 2 * cycle, tmp_path)
     for name, sig in spec.signals.items():
-        active = plan.signals[name]["polarity"] == "high"
+        active = plan.signals[name].polarity == "high"
         assert samples[name] == [(t % cycle in sig.high) == active for t in range(2 * cycle)], name
     half = period // 2
     for net, ident in verilog_names(plan, catalog).items():
@@ -176,7 +176,7 @@ def test_three_163_cosimulate(three_163, catalog, tmp_path):
     period = timing.ps(trace.period_ns)
     samples, waves = run_plan(plan, catalog, period, ticks, tmp_path)
     sig = spec.signals["fire"]
-    active = plan.signals["fire"]["polarity"] == "high"
+    active = plan.signals["fire"].polarity == "high"
     assert samples["fire"] == [(t % 4096 in sig.high) == active for t in range(ticks)]
     half, end = period // 2, ticks * period
     for net, ident in verilog_names(plan, catalog).items():
@@ -254,7 +254,7 @@ def test_decoded_enable_cascade_cosimulates(cycle, counter, catalog, tmp_path):
     period = timing.ps(trace.period_ns)
     samples, waves = run_plan(plan, catalog, period, 2 * cycle, tmp_path)
     sig = spec.signals["frame"]
-    active = plan.signals["frame"]["polarity"] == "high"
+    active = plan.signals["frame"].polarity == "high"
     assert samples["frame"] == [(t % cycle in sig.high) == active for t in range(2 * cycle)]
     half = period // 2
     for net, ident in verilog_names(plan, catalog).items():

@@ -20,6 +20,7 @@ from conftest import Chip, CounterPlan, Var
 from synth import timing
 from synth.exports.svg import trace_to_svg, write_svg
 from synth.exports.vcd import trace_to_vcd, vcd_scopes, write_vcd
+from synth.netlist import BoardSignal
 from synth.network import Gate, Network, SignalOut
 
 SVG = "{http://www.w3.org/2000/svg}"
@@ -38,7 +39,7 @@ def design(catalog):
                   {"zero": SignalOut("zero", "high"), "z13": SignalOut("z13", "high"),
                    "late": SignalOut("late", "low")}, ())
     plan = SimpleNamespace(name="bench-seq", supply=5.0, counter=cp, network=net, clock_edge="falling",
-                           signals={n: {"net": s.net, "polarity": s.polarity} for n, s in net.signals.items()},
+                           signals={n: BoardSignal(s.polarity, s.net, None) for n, s in net.signals.items()},
                            chips=[SimpleNamespace(ref="U2", units_used={"A": "g1"}),
                                   SimpleNamespace(ref="U3", units_used={"A": "g2"}),
                                   SimpleNamespace(ref="U4", units_used={"A": "g3"})], switches={},

@@ -28,7 +28,7 @@ from conftest import Chip, CounterPlan, Reset, Var
 from synth import timing
 from synth.exports.verilog import plan_to_verilog, spec_signals, verilog_names, write_verilog
 from synth.inventory import data_path, example_path
-from synth.netlist import ChipInstance, Plan, verilog_module_name
+from synth.netlist import BoardSignal, ChipInstance, Plan, verilog_module_name
 from synth.network import Gate, Network, SignalOut
 
 needs_iverilog = pytest.mark.skipif(
@@ -42,7 +42,7 @@ def make_plan(name: str, cp: CounterPlan, network: Network, units: dict[str, dic
               parts: dict[str, str], catalog, supply: float = 5.0) -> Plan:
     chips = [ChipInstance(ref, parts[ref], "logic", used) for ref, used in units.items()]
     plan = Plan(name=name, spec_path="", bin_path="", supply=supply, chips=chips, nets={},
-                signals={n: {"net": s.net, "polarity": s.polarity, "source": None}
+                signals={n: BoardSignal(s.polarity, s.net, None)
                          for n, s in network.signals.items()},
                 switches={}, bom={}, decoupling=[], clock_edge=cp.edge, counter=cp, network=network,
                 parts={p: catalog.parts[p] for p in set(parts.values()) | {c.part for c in cp.chips}})
@@ -243,7 +243,7 @@ def test_icarus_matches_reference_and_binsynth(case, catalog, tmp_path):
     for name in spec_signals(plan):
         wanted = [bool(ref[name](t % cycle)) for t in range(2 * cycle)]
         assert run.samples[name] == wanted, f"{name}: Icarus vs counting reference"
-        assert trace.sample(plan.signals[name]["net"])[:2 * cycle] == wanted, f"{name}: binsynth vs reference"
+        assert trace.sample(plan.signals[name].net)[:2 * cycle] == wanted, f"{name}: binsynth vs reference"
     # Event by event, after the first clock change (before it Icarus's gates rise out of x).
     half = timing.ps(trace.period_ns) // 2
     for net, ident in verilog_names(plan, catalog).items():
@@ -268,7 +268,7 @@ def test_reported_glitches_appear_in_icarus_waves(case, catalog, tmp_path):
     checked = 0
     for g in reported:
         on_path = [delays[step] for step in g.path.split(" -> ") if step in delays]
-        wave = run.waves[names[plan.signals[g.signal]["net"]]]
+        wave = run.waves[names[plan.signals[g.signal].net]]
         k = g.at_tick or cycle
         edge = timing.ps(k * period)
         inside = [(t - edge, v) for t, v in wave if edge <= t < edge + timing.ps(period)]
@@ -367,9 +367,9 @@ def test_every_example_cosimulates(stem, catalog, tmp_path):
     zero_delay = simulate_ticks(plan)
     cycle = spec.cycle
     for name, sig in spec.signals.items():
-        active = plan.signals[name]["polarity"] == "high"
+        active = plan.signals[name].polarity == "high"
         got = run.samples[name]
-        assert got == trace.sample(plan.signals[name]["net"])[:2 * cycle]
+        assert got == trace.sample(plan.signals[name].net)[:2 * cycle]
         assert got == [zero_delay[name][t % cycle] for t in range(2 * cycle)]
         for t in range(2 * cycle):          # the spec itself, tick by tick
             tick = t % cycle

@@ -88,9 +88,9 @@ def test_fixed_plan_still_matches_the_spec_tick_by_tick(fixed, catalog):
     assert list(simulate_ticks(plan)["zero"]) == wanted
     trace = timing.simulate(plan.counter, plan.network, catalog, plan.supply, cycles=2,
                             clock_period_ns=10_000, gate_names=timing.gate_names_of(plan))
-    assert trace.sample(plan.signals["zero"]["net"])[:32] == wanted * 2
+    assert trace.sample(plan.signals["zero"].net)[:32] == wanted * 2
     # Within each tick: held low while the count moves (first half), the tick's level after.
-    net = plan.signals["zero"]["net"]
+    net = plan.signals["zero"].net
     for k in range(1, 32):
         mid = k * trace.period_ns + trace.period_ns / 2
         assert trace.level_at(net, mid - 1) is False
@@ -225,11 +225,11 @@ def test_fixed_example_cosimulates_without_unreported_spikes(catalog, tmp_path):
     reported = {(g.signal, g.at_tick) for g in plan.glitches}
     for name, sig in spec.signals.items():
         assert samples[name] == [zero_delay[name][t % cycle] for t in range(2 * cycle)]
-        active = plan.signals[name]["polarity"] == "high"
+        active = plan.signals[name].polarity == "high"
         for t in range(2 * cycle):                    # the spec itself, tick by tick
             if t % cycle not in sig.dont_care and t % cycle in sig.high:
                 assert samples[name][t] == active, f"{name} tick {t}"
-        wave = [(t, v) for t, v in waves[names[plan.signals[name]["net"]]] if t >= period_ps]
+        wave = [(t, v) for t, v in waves[names[plan.signals[name].net]] if t >= period_ps]
         windows = 2 if name in plan.strobed else 1
         for k in range(1, 2 * cycle):
             if (name, k % cycle) in reported:

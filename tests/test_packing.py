@@ -15,7 +15,7 @@ import pytest
 from synth.counter import CounterChip, CounterPlan, CounterVar, ResetDecode
 from synth.errors import InternalError, ShortError
 from synth.inventory import load_bin, load_catalog
-from synth.netlist import net_problems, simulate_nets
+from synth.netlist import BoardSignal, net_problems, simulate_nets
 from synth.network import Gate, Network, SignalOut
 from synth.packing import pack, spec_net, unit_logic_pins
 from synth.spec import load_spec
@@ -150,9 +150,9 @@ def test_the_logic_needs_more_chips_than_the_bin_has(tmp_path):
 
 def test_signal_sources_are_the_driving_pins(scan):
     # [st4011]: U2 gate 4 output is pin 11; U3 gate 1 output is pin 3.
-    assert scan.signals["row3"] == {"polarity": "low", "net": "row3", "source": ("U2", 11)}
-    assert scan.signals["row7"]["source"] == ("U3", 3)
-    assert scan.signals["pair"]["source"] == ("U2", 10)
+    assert scan.signals["row3"] == BoardSignal("low", "row3", ("U2", 11))
+    assert scan.signals["row7"].source == ("U3", 3)
+    assert scan.signals["pair"].source == ("U2", 10)
 
 
 # ---------------------------------------------------------------- switches
@@ -169,8 +169,8 @@ def test_spdt_throws_follow_the_select_polarity(tmp_path, select, when_high):
     assert (sw.ref, sw.unit, sw.kind) == ("U4", "A", "spdt")
     assert sw.when_control_high == when_high
     chip = plan.chip("U4")
-    assert chip.pins[11] == plan.signals[select]["net"] and chip.pins[14] == "probe_in"
-    asserted_level = plan.signals[select]["polarity"] == "high"
+    assert chip.pins[11] == plan.signals[select].net and chip.pins[14] == "probe_in"
+    asserted_level = plan.signals[select].polarity == "high"
     for t, levels in enumerate(simulate_nets(plan)):
         control = levels[chip.pins[11]]
         joined = chip.pins[TRUTH_4053_A[control]]

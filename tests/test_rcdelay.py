@@ -80,8 +80,8 @@ def test_the_delay_is_built_from_the_bin(design):
     assert plan.bom.get("74HC14") == 1                       # the stages' chip is taken from the bin
     (ref1, unit1), (ref2, unit2) = d.stages
     assert plan.chip(ref1).units_used[unit1] != plan.chip(ref2).units_used[unit2]
-    assert plan.signals["frame"]["net"] == d.nets["output"]
-    assert plan.signals["frame"]["source"] == (ref2, 4)      # 74HC14 2Y
+    assert plan.signals["frame"].net == d.nets["output"]
+    assert plan.signals["frame"].source == (ref2, 4)      # 74HC14 2Y
     assert [g.op for g in plan.network.gates if g.id.startswith("dly_frame")] == ["not", "rc", "not"]
 
 
@@ -136,7 +136,7 @@ def test_a_runt_on_the_decode_is_swallowed(design):
 def test_the_tick_by_tick_levels_are_unchanged(design):
     levels = simulate_ticks(design.plan)
     assert [t for t, v in enumerate(levels["frame"]) if v] == [0, 1, 2, 3]
-    assert design.trace.sample(design.plan.signals["frame"]["net"])[:16] == list(levels["frame"])
+    assert design.trace.sample(design.plan.signals["frame"].net)[:16] == list(levels["frame"])
     assert not [g for g in design.plan.glitches if g.signal == "frame"]
 
 

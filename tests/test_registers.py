@@ -125,15 +125,15 @@ def test_registered_output_is_steady_in_icarus(bin_text, supply, part, catalog, 
     wanted = [t % 16 in (0, 1) for t in range(32)]           # the spec: asserted ticks 0-1
     assert samples["arm"] == wanted
     names = verilog_names(plan, catalog)
-    changes = [t for t, _ in waves[names[plan.signals["arm"]["net"]]] if t > 0]
+    changes = [t for t, _ in waves[names[plan.signals["arm"].net]] if t > 0]
     windows = [t // period for t in changes]
     assert len(windows) == len(set(windows)), "arm moved more than once in a tick"
     clock_to_q = timing.ps(catalog.parts[part].delay_ns("clock_to_q", plan.supply, "typ"))
     assert all(t % period == clock_to_q for t in changes)
     half = period // 2
-    ours = [(timing.ps(t), "1" if v else "0") for t, v in trace.changes[plan.signals["arm"]["net"]]
+    ours = [(timing.ps(t), "1" if v else "0") for t, v in trace.changes[plan.signals["arm"].net]
             if timing.ps(t) >= half]
-    assert [(t, v) for t, v in waves[names[plan.signals["arm"]["net"]]] if t >= half] == ours
+    assert [(t, v) for t, v in waves[names[plan.signals["arm"].net]] if t >= half] == ours
 
 
 def test_steady_without_a_flipflop_is_short(catalog, tmp_path):
@@ -159,9 +159,9 @@ def test_q_bar_carries_the_other_level(catalog, tmp_path):
     tick by tick either way, and the delivered polarity is the one asked for."""
     spec, bin_path = _files(tmp_path, ARM_SPEC % "steady: true\n    polarity: low", BIN_74HC)
     plan = make_plan(spec, bin_path, catalog=catalog).plan
-    assert plan.signals["arm"]["polarity"] == "low" and plan.glitches == []
+    assert plan.signals["arm"].polarity == "low" and plan.glitches == []
     chip = next(c for c in plan.chips if c.part == "74HC74")
-    assert plan.signals["arm"]["net"] in (chip.pins.get(5), chip.pins.get(6))
+    assert plan.signals["arm"].net in (chip.pins.get(5), chip.pins.get(6))
 
 
 def test_steady_must_be_a_boolean(tmp_path):

@@ -18,6 +18,7 @@ from conftest import Chip, CounterPlan, Reset, Var
 
 from synth.errors import InternalError
 from synth.findings import CoincidentEdge
+from synth.netlist import BoardSignal
 from synth.network import Gate, Network, SignalOut
 from synth import timing
 
@@ -278,7 +279,7 @@ class _Chip:
 class _Plan:
     def __init__(self, cp, net, switches=None, catalog=None):
         self.counter, self.network = cp, net
-        self.signals = {n: {"net": s.net, "polarity": s.polarity} for n, s in net.signals.items()}
+        self.signals = {n: BoardSignal(s.polarity, s.net, None) for n, s in net.signals.items()}
         # each gate on unit A of its own chip U2, U3 ... (as packing would place it)
         self.chips = [_Chip(f"U{i}", g.part, {"A": g.id}) for i, g in enumerate(net.gates, start=2)]
         self.parts = {g.part: catalog.parts[g.part] for g in net.gates} if catalog else {}
@@ -364,7 +365,7 @@ def test_timing_report_of_a_stand_in_design(catalog):
     plan = Plan(name="bench", spec_path="", bin_path="", supply=5.0,
                 chips=[ChipInstance("U2", "4002", "logic", {"A": "g1"}),
                        ChipInstance("U3", "4001", "logic", {"A": "g2"})],
-                nets={}, signals={n: {"net": s.net, "polarity": s.polarity} for n, s in net.signals.items()},
+                nets={}, signals={n: BoardSignal(s.polarity, s.net, None) for n, s in net.signals.items()},
                 switches={}, bom={}, decoupling=[], clock_edge="falling", counter=cp, network=net)
     spec = SimpleNamespace(clock=SimpleNamespace(frequency_hz=100e3), signals={})
     design = SimpleNamespace(plan=plan, catalog=catalog, spec=spec, stock=Stock({"4040": 1, "4520": 1}))

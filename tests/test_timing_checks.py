@@ -16,7 +16,7 @@ import pytest
 from synth.commands.plan import glitch_rows, remedy_lines
 from synth.findings import CoincidentEdge, GlitchRecord
 from synth.inventory import load_catalog
-from synth.netlist import BoardSwitch
+from synth.netlist import BoardSignal, BoardSwitch
 from synth.pipeline import make_plan
 from synth.timing import Remedies, mark_races, pulse_warning_lines, pulse_width_checks
 
@@ -70,7 +70,7 @@ def test_complementary_signals_are_no_race(design):
 
 def test_a_switch_select_races_the_signal_it_routes():
     plan = type("P", (), {})()
-    plan.signals = {"a": {"net": "a"}, "b": {"net": "b"}}
+    plan.signals = {"a": BoardSignal("high", "a", None), "b": BoardSignal("high", "b", None)}
     plan.switches = {"sw": BoardSwitch(ref="U1", unit="A", part="4053", kind="spdt", when_control_high="b",
                                        control_net="a", control_pin=11, common_pin=14, common_net="sw",
                                        select="a", on="b", off="GND", on_net="b", off_net="VSS",

@@ -183,7 +183,7 @@ def signal_rows(design) -> list[tuple]:
     plan, decode = design.plan, design.decode
     rows = []
     for name, info in plan.signals.items():
-        source = info.get("source")
+        source = info.source
         where = f"{source[0]} pin {source[1]}" if source else "-"
         expression = _asserted_expression(decode.signals[name]) if name in decode.signals else ""
         gated = plan.strobed.get(name)
@@ -193,7 +193,7 @@ def signal_rows(design) -> list[tuple]:
         if registered:
             expression = (f"registered in {registered.flipflop} ({registered.part}): its D is "
                           f"{expression}, one tick early")
-        rows.append((name, info.get("polarity"), where, expression))
+        rows.append((name, info.polarity, where, expression))
     return rows
 
 
@@ -205,7 +205,7 @@ def polarity_notes(design) -> list[str]:
     for name, info in plan.signals.items():
         if name not in decode.signals or name not in spec.signals:
             continue
-        shown, delivered = decode.signals[name].polarity, info.get("polarity")
+        shown, delivered = decode.signals[name].polarity, info.polarity
         if delivered is None or shown == delivered:
             continue
         if spec.signals[name].polarity == "free":

@@ -108,14 +108,14 @@ def _identifiers(plan: Plan, counters: list[CounterModel], gates: list[GateModel
     counter_nets = {o.net for c in counters for o in c.outputs}
     # A gate output that carries a spec signal of the same name is the port itself.
     for name in spec_signals(plan):
-        net = plan.signals[name]["net"]
+        net = plan.signals[name].net
         if net == name and net not in counter_nets and any(net in g.gate.outputs for g in gates):
             names[net] = ports[name]
     nets = [o.net for c in counters for o in c.outputs]
     nets += [n for g in gates for n in (*g.gate.inputs, *g.gate.outputs) if n]
     nets += [c.reset_net for c in counters if c.reset_net]
     nets += [c.enable_net for c in counters if c.enable_net]
-    nets += [plan.signals[n]["net"] for n in spec_signals(plan)]
+    nets += [plan.signals[n].net for n in spec_signals(plan)]
     for net in dict.fromkeys(nets):
         if net in names or net in RAILS:
             continue
@@ -440,8 +440,8 @@ def plan_to_verilog(plan: Plan, catalog: Catalog) -> str:
         body += _gate_lines(g, names, taken)
     body.append("")
     for n in signals:
-        net = plan.signals[n]["net"]
-        polarity = plan.signals[n].get("polarity", "high")
+        net = plan.signals[n].net
+        polarity = plan.signals[n].polarity
         source = _ref(names, net)
         note = f"  // {n}: active {polarity}"
         if source != ports[n]:

@@ -145,8 +145,8 @@ def _passives(plan: Plan, wires: list[Wire]) -> list[str]:
 def _signals(plan: Plan) -> list[str]:
     lines = ["## Signals", "", "| Signal | Asserted level | Chip pin | Net |", "|---|---|---|---|"]
     for name, sig in plan.signals.items():
-        source = endpoint_text(plan, *sig["source"]) if sig["source"] else f"constant ({sig['net']})"
-        lines.append(f"| {name} | {sig['polarity']} | {source} | {sig['net']} |")
+        source = endpoint_text(plan, *sig.source) if sig.source else f"constant ({sig.net})"
+        lines.append(f"| {name} | {sig.polarity} | {source} | {sig.net} |")
     lines.append("")
     if plan.switches:
         lines += ["## Switches", "", "| Switch | Chip | Common | Joins while control high | "
