@@ -26,12 +26,13 @@ edge).  The plan's tick edge becomes the flip-flops' edge of CLK.
 from __future__ import annotations
 
 import dataclasses
+from collections.abc import Iterable
 from dataclasses import dataclass
-from typing import Any
 
 from .counter import CounterPlan
 from .errors import ShortError
 from .inventory import Bin, Catalog
+from .model import Design
 from .netlist import CLOCK_NET, delivered_sets
 from .packing import flipflop_controls
 from .network import RAILS, Gate, Network, SignalOut
@@ -218,7 +219,7 @@ def _with_flipflops(network: Network, signals: tuple[str, ...], option: FlipFlop
     return dataclasses.replace(network, gates=gates, signals=outs)
 
 
-def prepare_registering(design: Any, signals) -> Registering:
+def prepare_registering(design: Design, signals: Iterable[str]) -> Registering:
     """The early spec and the counter plan for registering ``signals`` (see the module
     text).  Raises ``ShortError`` when the bin lacks the flip-flops or the clock inverter."""
     plan, spec, stock, catalog = design.plan, design.spec, design.stock, design.catalog

@@ -37,7 +37,7 @@ from __future__ import annotations
 import multiprocessing
 import time
 from dataclasses import dataclass
-from typing import Any
+from typing import Protocol
 
 from .counter import CounterPlan
 from .decode import Decode
@@ -48,6 +48,9 @@ from .mapper import Library, cells_of_part
 from .mapper.core import map_design as map_gates
 from .mapper.objective import Cost
 from .minimize import Cover, Function
+from .netlist import Plan
+from .network import Network
+from .spec import Spec
 from .stages import async_reset_names, mapping_inputs
 
 LOGIC_CATEGORIES = ("gate", "inverter", "mux", "decoder")
@@ -218,6 +221,26 @@ def _child(conn, inputs: _Inputs, effort: Effort, claims: _Claims) -> None:
             conn.close()
 
 
+class FinishedDesign(Protocol):
+    """What the search reads of a finished design (``model.Design``, which cannot be
+    imported here: model imports this module for ``BinLacks``)."""
+
+    @property
+    def plan(self) -> Plan: ...
+    @property
+    def spec(self) -> Spec: ...
+    @property
+    def stock(self) -> Bin: ...
+    @property
+    def catalog(self) -> Catalog: ...
+    @property
+    def counter(self) -> CounterPlan: ...
+    @property
+    def decode(self) -> Decode: ...
+    @property
+    def network(self) -> Network: ...
+
+
 class Search:
     """A what-the-bin-lacks search under way (in a child process, or deferred)."""
 
@@ -281,7 +304,7 @@ class Search:
         if self.conn is not None:
             self.conn.close()
 
-    def finish(self, design: Any) -> "BinLacks":
+    def finish(self, design: FinishedDesign) -> "BinLacks":
         """Gather what the search found in its budget and judge it against the plan."""
         total = len(design.plan.chips)
         n = len(self.inputs.candidates)
@@ -308,7 +331,7 @@ def start_search(decode: Decode, counter_plan: CounterPlan, library: Library, po
     return Search(inputs, decode, effort_named(effort))
 
 
-def bin_lacks(design, *, effort: str | Effort | None = None) -> BinLacks:
+def bin_lacks(design: FinishedDesign, *, effort: str | Effort | None = None) -> BinLacks:
     """The same search for a finished design, run here and now (tests, scripts)."""
     library, polarity = _mapping_inputs(design)
     search = start_search(design.decode, design.counter, library, polarity, design.stock,
@@ -317,7 +340,7 @@ def bin_lacks(design, *, effort: str | Effort | None = None) -> BinLacks:
     return search.finish(design)
 
 
-def _judge(design: Any, inputs: _Inputs, results, seconds: float) -> BinLacks:
+def _judge(design: FinishedDesign, inputs: _Inputs, results, seconds: float) -> BinLacks:
     """Savings of each re-mapped candidate over the plan's own logic chips, then gates."""
     now_chips = sum(design.network.chips.values())
     now_gates = len(design.network.gates)
@@ -338,7 +361,7 @@ def _judge(design: Any, inputs: _Inputs, results, seconds: float) -> BinLacks:
                     len(design.plan.chips), tuple(found[1:4]))
 
 
-def _mapping_inputs(design):
+def _mapping_inputs(design: FinishedDesign) -> tuple[Library, dict[str, str]]:
     """The library and polarities the plan's mapper saw (same reservations)."""
     return mapping_inputs(design.spec, design.stock, design.catalog, design.counter, design.decode)
 
@@ -361,7 +384,7 @@ def candidate_parts(stock, catalog, library) -> list[str]:
     return [part_type for _, part_type in sorted(seen.values())]
 
 
-def _spare_part_types(design, library) -> set[str]:
+def _spare_part_types(design: FinishedDesign, library: Library) -> set[str]:
     """Types of which the bin still holds unused chips: one more of them cannot help."""
     used = design.network.chips
     return {p for p, n in library.available.items() if n > used.get(p, 0)}
