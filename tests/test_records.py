@@ -15,7 +15,7 @@ from synth.counter import CounterChip, CounterPlan, ResetDecode
 from synth.decode import Decode, derive
 from synth.inventory import data_path, example_path, load_bin, load_catalog
 from synth.model import Design
-from synth.netlist import ChipInstance, Plan
+from synth.netlist import BoardSignal, BoardSwitch, ChipInstance, Plan, SwitchPath
 from synth.network import Network
 from synth.packing import pack
 from synth.spec import load_spec
@@ -24,7 +24,8 @@ from synth.timing import Trace
 from synth.wishlist import BinLacks
 
 RECORDS = (Plan, ChipInstance, CounterPlan, CounterChip, ResetDecode, Decode, Network, Trace, BinLacks,
-           Design, Site, OscillatorPlan, LadderPlan, PowerOnReset, AppliedDelay)
+           Design, Site, OscillatorPlan, LadderPlan, PowerOnReset, AppliedDelay, BoardSignal, BoardSwitch,
+           SwitchPath)
 
 
 @pytest.mark.parametrize("record", RECORDS, ids=lambda r: r.__name__)
@@ -71,3 +72,28 @@ def test_adding_the_analog_parts_leaves_the_packed_plan_as_it_was():
     assert added.oscillator is not None and added.ladders
     assert {p.ref for p in added.passives} >= set(added.oscillator.passives)
     assert all(ref in {p.ref for p in added.passives} for lad in added.ladders.values() for ref in lad.passives)
+
+
+@pytest.mark.parametrize("record", (BoardSignal, BoardSwitch, SwitchPath), ids=lambda r: r.__name__)
+def test_plan_entries_annotate_every_field(record):
+    hints = typing.get_type_hints(record)
+    assert set(hints) == {f.name for f in dataclasses.fields(record)}
+    assert not [name for name, hint in hints.items() if "Any" in repr(hint) or hint is dict]
+
+
+def test_plan_holds_its_signals_and_switches_as_records():
+    # adc_staircase routes one switch (adc_in) between the staircase and a rail
+    hints = typing.get_type_hints(Plan)
+    assert hints["signals"] == dict[str, BoardSignal] and hints["switches"] == dict[str, BoardSwitch]
+    plan, _spec, _stock, _catalog = _packed_example("adc_staircase")
+    assert plan.signals and all(isinstance(s, BoardSignal) for s in plan.signals.values())
+    assert plan.switches and all(isinstance(s, BoardSwitch) for s in plan.switches.values())
+    sw = next(iter(plan.switches.values()))
+    assert all(isinstance(p, SwitchPath) for p in sw.paths)
+    with pytest.raises(dataclasses.FrozenInstanceError):
+        sw.on_net = "elsewhere"   # type: ignore[misc]
+    # the plan JSON's key order (formats.md) comes from to_json()
+    assert list(sw.to_json()) == ["ref", "when_control_high", "unit", "part", "kind", "select", "on", "off",
+                                  "control_net", "control_pin", "common_pin", "common_net", "complement_net",
+                                  "sections"]
+    assert list(next(iter(plan.signals.values())).to_json()) == ["polarity", "source", "net"]
