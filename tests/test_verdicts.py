@@ -234,5 +234,5 @@ def test_a_tight_drawer_plans_and_cosimulates(tmp_path, capsys, catalog):
     period = 50_000_000        # 20 kHz in ps
     samples, _ = run_plan(plan, catalog, period, 512, tmp_path)
     for name, want in (("strobe", lambda t: t % 16 == 15), ("reset", lambda t: 17 <= t % 64 < 49)):
-        high = plan.signals[name]["polarity"] == "high"
+        high = plan.signals[name].polarity == "high"
         assert samples[name] == [want(t % 256) == high for t in range(512)], name
