@@ -22,9 +22,10 @@ from __future__ import annotations
 
 import bisect
 from dataclasses import dataclass
-from typing import Any
 
+from .analogparts import LadderPlan
 from .netlist import BoardSwitch, Plan
+from .timing import Trace
 
 __all__ = ["AnalogWave", "analog_waves"]
 
@@ -56,7 +57,7 @@ class AnalogWave:
         return max([self.initial, *(v for _, v in self.changes)])
 
 
-def _bit_changes(trace: Any, net: str, bit: int) -> tuple[bool, list[tuple[float, bool]]]:
+def _bit_changes(trace: Trace, net: str, bit: int) -> tuple[bool, list[tuple[float, bool]]]:
     """A driving output's level: from the trace, or from the tick count when the trace lacks it."""
     if net in trace.initial:
         return bool(trace.initial[net]), list(trace.changes.get(net, []))
@@ -83,7 +84,7 @@ def _compress(initial: float, points: list[tuple[float, float]]) -> tuple[tuple[
     return tuple(out)
 
 
-def _staircase(trace: Any, name: str, lad: Any) -> AnalogWave:
+def _staircase(trace: Trace, name: str, lad: LadderPlan) -> AnalogWave:
     bits = [_bit_changes(trace, net, bit) for bit, (_, _, net) in zip(lad.bits, lad.drivers)]
     state = [start for start, _ in bits]
     events = sorted((t, k, level) for k, (_, changes) in enumerate(bits) for t, level in changes)
@@ -99,7 +100,7 @@ def _staircase(trace: Any, name: str, lad: Any) -> AnalogWave:
                       f"{lad.kind} ladder on tick bits {', '.join(map(str, lad.bits))}")
 
 
-def _switch(trace: Any, plan: Plan, name: str, sw: BoardSwitch, volts: dict[str, AnalogWave]) -> list[AnalogWave]:
+def _switch(trace: Trace, plan: Plan, name: str, sw: BoardSwitch, volts: dict[str, AnalogWave]) -> list[AnalogWave]:
     control = sw.control_net
     if not control or control not in trace.initial:
         return []
@@ -138,7 +139,7 @@ def _switch(trace: Any, plan: Plan, name: str, sw: BoardSwitch, volts: dict[str,
     return waves
 
 
-def analog_waves(trace: Any, plan: Plan) -> list[AnalogWave]:
+def analog_waves(trace: Trace, plan: Plan) -> list[AnalogWave]:
     """Every staircase, then every switch's position (and common voltage where known)."""
     waves = [_staircase(trace, name, lad) for name, lad in sorted(plan.ladders.items())]
     volts = {wave.name: wave for wave in waves}

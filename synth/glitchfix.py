@@ -57,16 +57,17 @@ from __future__ import annotations
 
 import dataclasses
 from collections.abc import Callable, Iterable
-from typing import Any
 
 from .analog import plain_input_thresholds, rc_delay_design, thresholds_at
-from .counter import allocate
+from .counter import CounterPlan, allocate
 from .errors import ShortError, SynthError
 from .findings import CoincidentEdge, Cost, RcOffer, RcValues, Registered, Strobed, TimingFix, TriedRemedy
+from .inventory import Bin, Catalog, Part, Unit
 from .model import Design, FixReport, Replanner, Spec
+from .netlist import Plan
 from .network import RAILS, Gate, Network, SignalOut
 from .packing import unit_logic_pins
-from .registers import COUNTER_CLOCK_NET, prepare_registering, pulse_per_tick_ok, with_flipflops
+from .registers import COUNTER_CLOCK_NET, Registering, prepare_registering, pulse_per_tick_ok, with_flipflops
 from .timing import (counter_models, entry_sequence, gate_names_of, registered_signals, spare_input,
                      spare_input_place, synchronous_counter_parts, var_roles)
 from .units import format_si
@@ -390,7 +391,7 @@ def _register(design: Design, signals, replanner: Replanner) -> Design:
     return dataclasses.replace(new, plan=dataclasses.replace(new.plan, registered=registered))
 
 
-def register_records(plan: Any, reg: Any) -> dict[str, Registered]:
+def register_records(plan: Plan, reg: Registering) -> dict[str, Registered]:
     """Signal -> how it is registered (flip-flop, its clock, the counter's clock), for the report."""
     names = gate_names_of(plan)
     flops = registered_signals(plan.network)
@@ -444,7 +445,7 @@ def _decode_choice(design: Design, replanner: Replanner) -> Design:
 
 # ---------------------------------------------------------------- (b) a synchronous counter
 
-def _is_ripple(part: Any) -> bool:
+def _is_ripple(part: Part) -> bool:
     return any(u.type == "counter" and not u.synchronous and u.mode != "johnson" for u in part.units)
 
 
@@ -516,8 +517,8 @@ def _pack(design: Design, network: Network, replanner: Replanner):
         raise NotApplicable(f"no gate of the kind left in the bin ({exc.args[0]})") from None
 
 
-def strobe_network(network: Network, signal: str, plan: Any, stock: Any, catalog: Any,
-                   spec: Any = None) -> tuple[Network, Strobed]:
+def strobe_network(network: Network, signal: str, plan: Plan, stock: Bin, catalog: Catalog,
+                   spec: Spec | None = None) -> tuple[Network, Strobed]:
     """The network with ``signal`` held inactive while the clock is in the counter's
     moving half; returns it and a record (how, which gate, which clock phase)."""
     out = network.signals.get(signal)
@@ -539,7 +540,7 @@ def strobe_network(network: Network, signal: str, plan: Any, stock: Any, catalog
     return _series_gate_rewrite(network, signal, out, clock, settle, free, plan, stock, catalog)
 
 
-def _clock_net(counter: Any) -> str:
+def _clock_net(counter: CounterPlan) -> str:
     """The board clock: the counters' clock net, or CLK where they take an inverted copy."""
     var_nets = {str(v.net) for v in counter.vars}
     net = next((str(c.clock_net) for c in counter.chips if str(c.clock_net) not in var_nets), "CLK")
@@ -840,7 +841,7 @@ def _rc_design(design: Design, signal: str, wanted_ns: float, period: float) -> 
     return dataclasses.replace(base, applicable=fits, why_not=why_not, values=values)
 
 
-def _schmitt_pair(plan: Any, stock: Any, catalog: Any) -> tuple[str | None, list[str]]:
+def _schmitt_pair(plan: Plan, stock: Bin, catalog: Catalog) -> tuple[str | None, list[str]]:
     """A Schmitt inverting part for the two stages: spare units on the board, else a chip
     from the bin, else a plain CMOS input (said so)."""
     schmitt = [t for t in sorted(stock.parts) if catalog.parts[t].thresholds
@@ -871,7 +872,7 @@ def _schmitt_pair(plan: Any, stock: Any, catalog: Any) -> tuple[str | None, list
     raise NotApplicable("no Schmitt part and no two spare inverting gates on the board or in the bin")
 
 
-def _unit_text(ref: str, unit: Any, joined: bool = False) -> str:
+def _unit_text(ref: str, unit: Unit, joined: bool = False) -> str:
     ins = unit.inputs
     if len(ins) > 1 and joined:
         tie = f", its other inputs joined to pin {ins[0]} (plain CMOS threshold, not Schmitt)"

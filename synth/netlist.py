@@ -24,7 +24,7 @@ from __future__ import annotations
 import re
 from collections.abc import Mapping
 from dataclasses import dataclass, field
-from typing import Any, Literal, NamedTuple
+from typing import Literal, NamedTuple
 
 from .analogparts import AppliedDelay, LadderPlan, OscillatorPlan, PowerOnReset
 from .counter import CounterPlan
@@ -411,7 +411,7 @@ def tick_count(counter: CounterPlan) -> int:
     return len(counter.state_of_tick)
 
 
-def counter_levels(counter: Any, t: int) -> dict[str, bool]:
+def counter_levels(counter: CounterPlan, t: int) -> dict[str, bool]:
     """The level of every counter net at tick t: bit ``var.index`` of the state."""
     states = counter.state_of_tick
     state = states(t) if callable(states) else states[t]
@@ -491,7 +491,7 @@ def delivered_sets(plan: Plan, levels: Mapping[str, tuple[bool, ...]] | None = N
 
 # ---------------------------------------------------------------- self-check
 
-def self_check(plan: Plan, spec_or_delivered: Any) -> None:
+def self_check(plan: Plan, spec_or_delivered: Spec | Mapping[str, frozenset[int]]) -> None:
     """Evaluate the plan over every tick; any mismatch is an InternalError.
 
     ``spec_or_delivered`` is either a Spec (checked with its don't-care

@@ -71,15 +71,16 @@ import heapq
 import math
 from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass, field
-from typing import Any
+from typing import Any, Protocol
 
 from .analog import Spread, with_tolerance
-from .counter import carry_nets
+from .counter import CounterPlan, carry_nets
 from .errors import InternalError
 from .findings import (MODEL_NAMES, MODEL_TEXT, MODELS, CoincidentEdge, GlitchRecord, PulseWidth,  # noqa: F401
                        RegisterCheck)
 from .harmless import check_slow_outputs, mark_harmless
-from .netlist import delivered_sets, simulate_ticks
+from .inventory import Bin, Catalog, Part
+from .netlist import Plan, delivered_sets, simulate_ticks
 from .network import RAILS, Gate, Network, counting_words, evaluate_gate, evaluate_words
 from .spec import Spec
 from .packing import unit_logic_pins
@@ -89,7 +90,7 @@ __all__ = [
     "reset_net_of", "CounterModel", "CounterOutput", "GateModel", "glitches", "Glitch",
     "settle_mismatches", "merge_glitches", "ripple_hazards", "RippleHazard", "coincident_edges",
     "edge_skews", "remedies", "spare_input", "spare_input_place", "MODEL_NAMES", "MODEL_TEXT", "MODELS",
-    "timing_report", "TimingReport", "Remedies", "default_period_ns", "nice_period_ns",
+    "timing_report", "TimingReport", "PlannedDesign", "Remedies", "default_period_ns", "nice_period_ns",
     "ps", "expected_from_delivered", "registered_signals", "register_start_levels",
     "flipflop_requirement_ns", "register_checks", "pulse_width_checks", "pulse_warning_lines", "mark_races",
     "rc_filter_ns",
@@ -200,12 +201,12 @@ class GateModel:
         return {net: level for net, level in out.items() if net}
 
 
-def _delay(part: Any, key: str, supply: float, corner: str) -> float | None:
+def _delay(part: Part, key: str, supply: float, corner: str) -> float | None:
     """A catalog delay at the corner, the other corner when only that one is given."""
     return part.delay_at_corner(key, supply, corner) if part is not None else None
 
 
-def _gate_delay(part: Any, gate: Gate, supply: float, corner: str) -> float | None:
+def _gate_delay(part: Part, gate: Gate, supply: float, corner: str) -> float | None:
     """A gate's catalog delay; a switch section used as a 2:1 mux takes the slower of its
     select-to-output and in-to-out figures for every input (one delay per gate model)."""
     delay = _delay(part, "tpd", supply, corner)
@@ -216,13 +217,13 @@ def _gate_delay(part: Any, gate: Gate, supply: float, corner: str) -> float | No
     return delay
 
 
-def _chip_ref(counter_plan: Any, chip: Any) -> str:
+def _chip_ref(counter_plan: CounterPlan, chip: int | str) -> str:
     if isinstance(chip, int) and not isinstance(chip, bool):
         return str(counter_plan.chips[chip].ref)
     return str(chip)
 
 
-def reset_net_of(counter_plan: Any, network: Network) -> str | None:
+def reset_net_of(counter_plan: CounterPlan, network: Network) -> str | None:
     """The board net that carries the counter reset (the decode's net, as packing wires it)."""
     reset = counter_plan.reset
     if reset is None:
@@ -237,7 +238,7 @@ def reset_net_of(counter_plan: Any, network: Network) -> str | None:
     return str(decoded.net) if decoded is not None else str(reset.net)
 
 
-def counter_models(counter_plan: Any, network: Network, catalog: Any, supply: float,
+def counter_models(counter_plan: CounterPlan, network: Network, catalog: Catalog, supply: float,
                    corner: str = "typ") -> list[CounterModel]:
     """Every counter unit of the plan with its outputs and delays at the corner."""
     if corner not in CORNERS:
@@ -319,7 +320,7 @@ def counter_models(counter_plan: Any, network: Network, catalog: Any, supply: fl
     return models
 
 
-def gate_names_of(plan: Any) -> dict[str, str]:
+def gate_names_of(plan: Plan) -> dict[str, str]:
     """Gate id -> its physical name, chip ref and unit (``U2_A``)."""
     names = {}
     for chip in plan.chips:
@@ -328,7 +329,7 @@ def gate_names_of(plan: Any) -> dict[str, str]:
     return names
 
 
-def _also_op(part: Any, gate: Gate) -> str | None:
+def _also_op(part: Part, gate: Gate) -> str | None:
     if part is None or len(gate.outputs) < 2:
         return None
     for unit in part.units:
@@ -337,7 +338,7 @@ def _also_op(part: Any, gate: Gate) -> str | None:
     return None
 
 
-def gate_models(network: Network, catalog: Any, supply: float, corner: str = "typ",
+def gate_models(network: Network, catalog: Catalog, supply: float, corner: str = "typ",
                 gate_names: Mapping[str, str] | None = None) -> list[GateModel]:
     """Each gate with its catalog delay (``tpd``) at the supply and corner."""
     models = []
@@ -373,7 +374,7 @@ def _rc_model(gate: Gate, network: Network, corner: str,
     return GateModel(gate, name, ps(times.rise[pick]), fall_ps=ps(times.fall[pick]))
 
 
-def _flipflop_model(gate: Gate, part: Any, supply: float, corner: str,
+def _flipflop_model(gate: Gate, part: Part, supply: float, corner: str,
                     gate_names: Mapping[str, str] | None) -> GateModel:
     """A D flip-flop: clock-to-output delay, the unit's clocking edge; its set and
     reset must be held inactive (they are, as packing ties them)."""
@@ -393,7 +394,7 @@ def _flipflop_model(gate: Gate, part: Any, supply: float, corner: str,
     return GateModel(gate, name, ps(delay), edge=edge)
 
 
-def flipflop_requirement_ns(part: Any, key: str, supply: float) -> float | None:
+def flipflop_requirement_ns(part: Part, key: str, supply: float) -> float | None:
     """A flip-flop's setup, hold or minimum pulse width at the supply: the
     guaranteed figure (``max`` row) where the catalog gives one, else typical."""
     if part is None:
@@ -401,7 +402,7 @@ def flipflop_requirement_ns(part: Any, key: str, supply: float) -> float | None:
     return part.delay_ns(key, supply, "max") or part.delay_ns(key, supply, "typ")
 
 
-def stand_in_delay(catalog: Any, gate: Gate, supply: float, corner: str) -> tuple[float | None, str | None]:
+def stand_in_delay(catalog: Catalog, gate: Gate, supply: float, corner: str) -> tuple[float | None, str | None]:
     """For a part the catalog has no delay figures for: the slowest delay of the
     family's parts with a unit of the same function (a 4030 XOR takes the
     4070's), and the warning that says so.  Slowest, so a timing margin found
@@ -425,7 +426,7 @@ def stand_in_delay(catalog: Any, gate: Gate, supply: float, corner: str) -> tupl
                   "family), an assumption: check the part's datasheet")
 
 
-def stand_in_warnings(network: Network, catalog: Any, supply: float) -> list[str]:
+def stand_in_warnings(network: Network, catalog: Catalog, supply: float) -> list[str]:
     """One warning per part whose delays were borrowed by ``stand_in_delay``."""
     return _borrowed_notes(gate_models(network, catalog, supply, "typ"))
 
@@ -946,7 +947,7 @@ def _settled_levels(counters: list[CounterModel], gates: list[GateModel], clock_
     return levels
 
 
-def simulate(counter_plan: Any, network: Network, catalog: Any, supply: float, *,
+def simulate(counter_plan: CounterPlan, network: Network, catalog: Catalog, supply: float, *,
              corner: str = "typ", clock_period_ns: float | None = None, cycles: int = 1,
              inertial: bool = True, gate_names: Mapping[str, str] | None = None) -> Trace:
     """Simulate the counters and gates over ``cycles`` whole cycles (see the module text)."""
@@ -978,7 +979,7 @@ def simulate(counter_plan: Any, network: Network, catalog: Any, supply: float, *
                      corner, supply, inertial, clock_net, edge, initial, end)
 
 
-def register_start_levels(counter_plan: Any, network: Network, sampled_clock: bool) -> dict[str, bool]:
+def register_start_levels(counter_plan: CounterPlan, network: Network, sampled_clock: bool) -> dict[str, bool]:
     """Each flip-flop output's level at tick 0: its D at the cycle's last tick (the
     zero-delay network evaluated over one cycle, the clock at ``sampled_clock``,
     its level just before a counting edge)."""
@@ -999,7 +1000,7 @@ def register_start_levels(counter_plan: Any, network: Network, sampled_clock: bo
             for n in g.outputs if n}
 
 
-def _trace_of(engine: _Engine, counter_plan: Any, network: Network, counters: list[CounterModel],
+def _trace_of(engine: _Engine, counter_plan: CounterPlan, network: Network, counters: list[CounterModel],
               gates: list[GateModel], period: int, cycle: int, cycles: int, corner: str,
               supply: float, inertial: bool, clock_net: str, edge: str,
               initial: dict[str, bool], end: int) -> Trace:
@@ -1334,7 +1335,7 @@ class _VarRole:
     rank: int                 # order of change after a counting edge (equal: together)
 
 
-def var_roles(counter_plan: Any, catalog: Any | None) -> list[_VarRole]:
+def var_roles(counter_plan: CounterPlan, catalog: Catalog | None) -> list[_VarRole]:
     """Each decode variable with the order in which it can change after an edge.
 
     A ripple unit's stages change one after another from the lowest; a
@@ -1425,7 +1426,7 @@ def _natural_next(a: int, roles: list[_VarRole]) -> int | None:
     return None
 
 
-def _function_values(counter_plan: Any, functions_or_network: Any) -> Callable[[str, int], bool]:
+def _function_values(counter_plan: CounterPlan, functions_or_network: Any) -> Callable[[str, int], bool]:
     if isinstance(functions_or_network, Network):
         net = functions_or_network
         if any(g.op == "flipflop" for g in net.gates):     # registered outputs follow no transient
@@ -1451,7 +1452,7 @@ def _function_values(counter_plan: Any, functions_or_network: Any) -> Callable[[
     return value_of
 
 
-def ripple_hazards(counter_plan: Any, functions_or_network: Any, catalog: Any | None = None,
+def ripple_hazards(counter_plan: CounterPlan, functions_or_network: Any, catalog: Catalog | None = None,
                    signals: Sequence[str] | None = None) -> list[RippleHazard]:
     """Enumerate each tick entry's transient states and the decodes wrong on them.
 
@@ -1550,7 +1551,7 @@ def coincident_edges(delivered: Mapping[str, frozenset[int]], cycle: int) -> lis
     return out
 
 
-def mark_races(records: Sequence[CoincidentEdge], delivered: Mapping[str, frozenset[int]], plan: Any,
+def mark_races(records: Sequence[CoincidentEdge], delivered: Mapping[str, frozenset[int]], plan: Plan,
                cycle: int) -> list[CoincidentEdge]:
     """Each coincident pair with ``relation`` and ``race``: a race only where one signal
     gates what the other drives on the board (it selects a switch that routes the
@@ -1622,7 +1623,7 @@ def spare_input(gate: Gate) -> int | None:
     return None
 
 
-def spare_input_place(plan: Any, gate: Gate, index: int) -> str:
+def spare_input_place(plan: Plan, gate: Gate, index: int) -> str:
     """Where a gate's spare input is on the board, ``U5 pin 11 (G, a spare input of U5 gate A)``:
     the package pin a person finds, not the input's place in the gate's list."""
     for chip in plan.chips:
@@ -1642,12 +1643,12 @@ def _driver(network: Network, net: str) -> Gate | None:
     return next((g for g in network.gates if net in g.outputs), None)
 
 
-def _ticks_of_state(counter_plan: Any, state: int) -> list[int]:
+def _ticks_of_state(counter_plan: CounterPlan, state: int) -> list[int]:
     """The ticks at which the counter shows ``state``, in order."""
     return [t for t, s in enumerate(counter_plan.state_of_tick) if int(s) == state]
 
 
-def synchronous_counter_parts(catalog: Any, stock: Any) -> list[str]:
+def synchronous_counter_parts(catalog: Catalog, stock: Bin) -> list[str]:
     """The bin's counter parts whose coded outputs change together (no ripple)."""
     found = []
     for part_type in sorted(stock.parts):
@@ -1657,8 +1658,8 @@ def synchronous_counter_parts(catalog: Any, stock: Any) -> list[str]:
     return found
 
 
-def remedies(glitch: Glitch, plan: Any, *, catalog: Any = None, stock: Any = None,
-             spec: Any = None) -> list[str]:
+def remedies(glitch: Glitch, plan: Plan, *, catalog: Catalog | None = None, stock: Bin | None = None,
+             spec: Spec | None = None) -> list[str]:
     """What would stop this glitch, as sentences: only the remedies this plan and bin allow.
 
     Reads ``plan.counter`` (state_of_tick, unreachable, synchronous),
@@ -1696,7 +1697,7 @@ def remedies(glitch: Glitch, plan: Any, *, catalog: Any = None, stock: Any = Non
     return out
 
 
-def _pulse_per_tick_ok(spec: Any, name: str) -> bool:
+def _pulse_per_tick_ok(spec: Spec, name: str) -> bool:
     """As ``registers.pulse_per_tick_ok`` (steady: false, or unset with one-tick windows)."""
     sig = spec.signals.get(name)
     if sig is None:
@@ -1706,7 +1707,7 @@ def _pulse_per_tick_ok(spec: Any, name: str) -> bool:
     return all(b - a == 1 for a, b in sig.windows)
 
 
-def _register_remedy(glitch: Glitch, plan: Any, catalog: Any, stock: Any) -> list[str]:
+def _register_remedy(glitch: Glitch, plan: Plan, catalog: Catalog | None, stock: Bin | None) -> list[str]:
     """Registering: the bin's D flip-flops, the signal decoded one tick early."""
     if glitch.signal in plan.registered or catalog is None or stock is None:
         return []
@@ -1719,7 +1720,7 @@ def _register_remedy(glitch: Glitch, plan: Any, catalog: Any, stock: Any) -> lis
             "level through every tick (steady: true in the spec, or --fix glitches)"]
 
 
-def _decode_choice_remedy(glitch: Glitch, counter: Any, spec: Any) -> list[str]:
+def _decode_choice_remedy(glitch: Glitch, counter: CounterPlan, spec: Spec | None) -> list[str]:
     """Remedy 1: the transient state is a don't-care for this signal."""
     state = glitch.transient_state
     ticks = _ticks_of_state(counter, int(state))  # type: ignore[arg-type]
@@ -1736,7 +1737,7 @@ def _decode_choice_remedy(glitch: Glitch, counter: Any, spec: Any) -> list[str]:
             "spike at no extra cost"]
 
 
-def _clock_gating_remedy(glitch: Glitch, plan: Any) -> list[str]:
+def _clock_gating_remedy(glitch: Glitch, plan: Plan) -> list[str]:
     """Remedy 3: a spare input of the signal's last gate, driven from the clock phase
     in which the counter is still, holds the output inactive while the count settles."""
     info = plan.signals.get(glitch.signal)
@@ -1760,6 +1761,23 @@ def _clock_gating_remedy(glitch: Glitch, plan: Any) -> list[str]:
 def _period_of(spec: Spec | None) -> float | None:
     freq = spec.clock.frequency_hz if spec is not None else None
     return 1e9 / freq if freq else None
+
+
+class PlannedDesign(Protocol):
+    """What the timing step reads of a design (``model.Design`` has it; model imports this
+    module, so the step names the fields instead of the class)."""
+
+    @property
+    def plan(self) -> Plan: ...
+
+    @property
+    def spec(self) -> Spec: ...
+
+    @property
+    def stock(self) -> Bin: ...
+
+    @property
+    def catalog(self) -> Catalog: ...
 
 
 @dataclass(frozen=True)
@@ -1793,7 +1811,7 @@ class TimingReport:
     remedies: Remedies
 
 
-def timing_report(design: Any) -> TimingReport:
+def timing_report(design: PlannedDesign) -> TimingReport:
     """Simulate the plan at typical and worst-case delays; the results, nothing changed.
 
     Glitches (what the transport and inertial models show at both corners,
@@ -1877,7 +1895,7 @@ def pulse_warning_lines(rec: PulseWidth) -> list[str]:
             "clock or a higher supply"]
 
 
-def merge_glitches(plan: Any, expected: Mapping[str, Sequence[bool]], typ: Trace,
+def merge_glitches(plan: Plan, expected: Mapping[str, Sequence[bool]], typ: Trace,
                    run: Mapping[str, Any]) -> list[Glitch]:
     """The union of the glitches the models show (``MODELS``), each record naming
     the models that found it: transport delays at both corners (what a faster
@@ -1949,7 +1967,7 @@ def registered_signals(network: Network) -> dict[str, Gate]:
     return {name: by_output[sig.net] for name, sig in network.signals.items() if sig.net in by_output}
 
 
-def register_checks(plan: Any, traces: Sequence[Trace], catalog: Any) -> list[RegisterCheck]:
+def register_checks(plan: Plan, traces: Sequence[Trace], catalog: Catalog) -> list[RegisterCheck]:
     """Setup and hold of every registered output's flip-flop, measured on the traces.
 
     Setup: the last change of D before each clocking edge, at the slowest
@@ -1990,7 +2008,7 @@ def register_checks(plan: Any, traces: Sequence[Trace], catalog: Any) -> list[Re
     return out
 
 
-def pulse_width_checks(plan: Any, trace: Trace, catalog: Any, worst: Trace | None = None) -> list[PulseWidth]:
+def pulse_width_checks(plan: Plan, trace: Trace, catalog: Catalog, worst: Trace | None = None) -> list[PulseWidth]:
     """Every clock input, every asynchronous reset pulse and the power-on reset
     against the catalog's minimum width at the plan's supply (``clock_width``,
     ``reset_width``).
@@ -2030,7 +2048,7 @@ def _narrowest_resets(trace: Trace | None) -> dict[str, ResetPulse]:
     return found
 
 
-def _reset_pulse_checks(plan: Any, typ: Trace, worst: Trace | None, catalog: Any) -> list[PulseWidth]:
+def _reset_pulse_checks(plan: Plan, typ: Trace, worst: Trace | None, catalog: Catalog) -> list[PulseWidth]:
     at_typ, at_max = _narrowest_resets(typ), _narrowest_resets(worst)
     out = []
     for ref, pulse in at_typ.items():
@@ -2050,7 +2068,7 @@ def _reset_pulse_checks(plan: Any, typ: Trace, worst: Trace | None, catalog: Any
     return out
 
 
-def _power_on_checks(plan: Any, catalog: Any) -> list[PulseWidth]:
+def _power_on_checks(plan: Plan, catalog: Catalog) -> list[PulseWidth]:
     """The power-on reset pulse, at its shortest, against each held counter's minimum reset width."""
     por = plan.power_on_reset
     if por is None:
@@ -2069,7 +2087,7 @@ def _power_on_checks(plan: Any, catalog: Any) -> list[PulseWidth]:
     return out
 
 
-def _strobed_levels(plan: Any) -> dict[str, bool]:
+def _strobed_levels(plan: Plan) -> dict[str, bool]:
     """Signal -> its inactive electrical level, for signals gated with the clock."""
     return {name: info.polarity != "high" for name, info in plan.signals.items()
             if name in plan.strobed}

@@ -22,8 +22,8 @@ elements inside ``<g id="main">``, one per counter output and per signal.
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 from pathlib import Path
-from typing import Any
 from xml.sax.saxutils import escape, quoteattr
 
 from ..analogwave import analog_waves
@@ -222,7 +222,7 @@ def _analog_rows(trace: Trace, plan: Plan, top: float) -> tuple[list[str], float
     return out, y + ROW
 
 
-def _clock_path(trace: Trace, x: Any, y: float) -> str:
+def _clock_path(trace: Trace, x: Callable[[float], float], y: float) -> str:
     after = trace.edge == "rising"
     if PLOT / trace.cycle < 4:
         return f"M{x(0):.2f},{y - WAVE / 2:.2f}H{x(trace.cycle):.2f}"
@@ -232,7 +232,7 @@ def _clock_path(trace: Trace, x: Any, y: float) -> str:
     return _step_path(points, x(trace.cycle), y)
 
 
-def _glitch_marks(glitches: list[dict], row_y: dict[str, float], x: Any, cycle: int) -> list[str]:
+def _glitch_marks(glitches: list[dict], row_y: dict[str, float], x: Callable[[float], float], cycle: int) -> list[str]:
     out = []
     for g in glitches:
         y = row_y.get(g["signal"])
@@ -249,7 +249,7 @@ def _glitch_marks(glitches: list[dict], row_y: dict[str, float], x: Any, cycle: 
     return out
 
 
-def _race_marks(coincident: list[dict], row_y: dict[str, float], x: Any) -> list[str]:
+def _race_marks(coincident: list[dict], row_y: dict[str, float], x: Callable[[float], float]) -> list[str]:
     out = []
     for c in coincident:
         a, b = c["signals"]

@@ -32,12 +32,12 @@ from __future__ import annotations
 
 import re
 from pathlib import Path
-from typing import Any
 
 from ..inventory import Catalog
 from ..netlist import VERILOG_KEYWORDS, Plan, verilog_module_name
-from ..network import RAILS
-from ..timing import CounterModel, GateModel, counter_models, gate_models, gate_names_of, register_start_levels
+from ..network import RAILS, Gate
+from ..timing import (CounterModel, CounterOutput, GateModel, counter_models, gate_models, gate_names_of,
+                      register_start_levels)
 from .files import atomic_write_text
 
 __all__ = ["plan_to_verilog", "write_verilog", "verilog_names", "spec_signals", "delay_text"]
@@ -152,7 +152,7 @@ def _counter_comment(plan: Plan, c: CounterModel, catalog: Catalog) -> list[str]
     return lines
 
 
-def _output_value(c: CounterModel, o: Any, state: str) -> str:
+def _output_value(c: CounterModel, o: CounterOutput, state: str) -> str:
     if o.kind == "stage":
         return f"{state}[{o.index - 1}]"
     if o.kind == "decoded":
@@ -162,7 +162,7 @@ def _output_value(c: CounterModel, o: Any, state: str) -> str:
     return f"({state} == {c.modulus - 1})"
 
 
-def _zero_value(c: CounterModel, o: Any) -> str:
+def _zero_value(c: CounterModel, o: CounterOutput) -> str:
     return "1'b1" if c.level(o, 0) else "1'b0"
 
 
@@ -296,7 +296,7 @@ def _select_code(sel: list[str]) -> str:
     return "{" + ", ".join(reversed(sel)) + "}" if len(sel) > 1 else sel[0]
 
 
-def _mux_lines(gate: Any, ins: list[str], names: dict[str, str], delay: str) -> list[str]:
+def _mux_lines(gate: Gate, ins: list[str], names: dict[str, str], delay: str) -> list[str]:
     k = next(k for k in range(1, 5) if (1 << k) + k == len(ins))
     data, sel = ins[: 1 << k], ins[1 << k:]
     code = _select_code(sel)
@@ -311,7 +311,7 @@ def _mux_lines(gate: Any, ins: list[str], names: dict[str, str], delay: str) -> 
     return lines
 
 
-def _decoder_lines(gate: Any, ins: list[str], names: dict[str, str], delay: str) -> list[str]:
+def _decoder_lines(gate: Gate, ins: list[str], names: dict[str, str], delay: str) -> list[str]:
     nen = len(gate.enables_active)
     sel, enables = ins[: len(ins) - nen], ins[len(ins) - nen:]
     terms = [e if a == "high" else f"!{e}" for e, a in zip(enables, gate.enables_active)]
