@@ -48,10 +48,9 @@ from .mapper import Library, cells_of_part
 from .mapper.core import map_design as map_gates
 from .mapper.objective import Cost
 from .minimize import Cover, Function
-from .netlist import Plan
 from .network import Network
-from .spec import Spec
 from .stages import async_reset_names, mapping_inputs
+from .timing import PlannedDesign
 
 LOGIC_CATEGORIES = ("gate", "inverter", "mux", "decoder")
 
@@ -221,18 +220,11 @@ def _child(conn, inputs: _Inputs, effort: Effort, claims: _Claims) -> None:
             conn.close()
 
 
-class FinishedDesign(Protocol):
+class FinishedDesign(PlannedDesign, Protocol):
     """What the search reads of a finished design (``model.Design``, which cannot be
-    imported here: model imports this module for ``BinLacks``)."""
+    imported here: model imports this module for ``BinLacks``): the timing step's
+    fields and the stage records below."""
 
-    @property
-    def plan(self) -> Plan: ...
-    @property
-    def spec(self) -> Spec: ...
-    @property
-    def stock(self) -> Bin: ...
-    @property
-    def catalog(self) -> Catalog: ...
     @property
     def counter(self) -> CounterPlan: ...
     @property
