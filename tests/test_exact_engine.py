@@ -171,3 +171,20 @@ def test_counting_bound_lets_two_signals_share_one_gate_where_their_cared_levels
     problem = Problem(3, ("x0", "x1", "x2"), [a, b])
     _, gates = counting_bounds(problem, library({"74HC08": 1}).cells)
     assert gates <= 1
+
+
+def test_counting_bound_counts_the_joins_a_tree_needs_per_unit():
+    """Sixteen one-tick decodes of a 12-bit count (t == 0 .. t == 15) over 2-input
+    gates and inverters.  Each is on exactly one minterm, so no two share an output
+    (16 output units), and each depends on all 12 bits: the gates joining 12 inputs
+    into one output have 11 more inputs than gates, and a 2-input gate adds one,
+    an inverter none (a counting argument from graph theory: a connected cone of g
+    gates over 12 inputs has at least g + 11 edges).  So 11 two-input gates, three
+    quad chips, and 16 units in all: at least four chips (three 74HC04 and one
+    74HC00 give 16 units but only 4 joins).  Source: the argument above, by hand."""
+    full = frozenset(range(1 << 12))
+    signals = [Signal(f"s{i}", frozenset({i}), full, "high") for i in range(16)]
+    problem = Problem(12, tuple(f"x{i}" for i in range(12)), signals)
+    chips, gates = counting_bounds(problem, library({"74HC00": 40, "74HC04": 30}).cells)
+    assert chips == 4
+    assert gates >= 16

@@ -137,7 +137,10 @@ def counting_bounds(problem: Problem, cells: Sequence[Cell], max_chips: int = 6)
     them (at least ceil((s-1)/(w-1)) gates of fan-in <= w), signals whose
     cared-for levels disagree need distinct output gates, and a signal no monotone function delivers
     needs an inverting unit.  The chip bound is the fewest chips of which some
-    choice from the bin passes all three tests.
+    choice from the bin passes all three tests, the tree test counted per unit:
+    the gates joining s inputs into one output have at least s - 1 inputs more
+    than they have gates (every gate of fan-in w adds at most w - 1), and an
+    inverter adds none, so the chosen chips' units must offer s - 1 of those.
     """
     profiles = part_profiles(cells)
     if not profiles:
@@ -168,7 +171,8 @@ def counting_bounds(problem: Problem, cells: Sequence[Cell], max_chips: int = 6)
             width = max(profiles[t][1] for t in combo)
             if needs_inversion and not any(profiles[t][2] for t in combo):
                 continue
-            if units >= gates_needed(width):
+            joins = sum(profiles[t][0] * (profiles[t][1] - 1) for t in combo)
+            if units >= gates_needed(width) and joins >= widest_support - 1:
                 return count, overall_gates
     return max_chips + 1, overall_gates
 
