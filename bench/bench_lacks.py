@@ -17,8 +17,9 @@ Run from the checkout: ``python3 bench/bench_lacks.py [--repeat N] [--root DIR]`
   which would make every fresh process compile every module).
 
 Targets (issue 12): what the bin lacks finishes its whole candidate list at the default
-effort on every shipped example; the demo with it stays near 1 s (here: at most
-``DEMO_NEAR`` s wall, best of the runs).  Wall times depend on how busy the machine is
+effort on every shipped example; the demo with it runs under ``DEMO_TARGET`` s wall
+(best of the runs) as a fresh process on a 2-core machine.  The sample_hold row
+without the search is printed as well: it is the floor the demo cannot go below.  Wall times depend on how busy the machine is
 (the load average is printed); the CPU figures are the steadier ones.
 """
 
@@ -35,7 +36,7 @@ import time
 from pathlib import Path
 
 SHIPPED = ("adc_staircase", "led_scanner", "sample_hold", "stepper", "ultrasonic_burst")
-DEMO_NEAR = 1.2          # seconds: "near 1 s" for the demo with what the bin lacks
+DEMO_TARGET = 1.0        # seconds: the demo with what the bin lacks, fresh process (issue 12)
 
 
 def fresh_process(root: Path, args: list[str], timeout: float = 900) -> tuple[float, float, int]:
@@ -101,8 +102,8 @@ def main(argv: list[str]) -> int:
     print(f"demo (sample_hold, what the bin lacks on): {demo_wall:.2f} s wall, {demo_cpu:.2f} s CPU")
     print(f"target: what the bin lacks complete on every shipped example: {complete}/{len(SHIPPED)} "
           f"{'met' if complete == len(SHIPPED) else 'MISSED'}")
-    print(f"target: demo with what the bin lacks near 1 s (at most {DEMO_NEAR:.1f} s): {demo_wall:.2f} s "
-          f"{'met' if demo_wall <= DEMO_NEAR else 'MISSED'} (ratio {demo_wall / 1.0:.2f} of 1 s)")
+    print(f"target: demo with what the bin lacks under {DEMO_TARGET:.1f} s wall: {demo_wall:.2f} s "
+          f"{'met' if demo_wall < DEMO_TARGET else 'MISSED'} (ratio {demo_wall / DEMO_TARGET:.2f})")
     print(f"load average at the end: {os.getloadavg()[0]:.1f}")
     return 0
 

@@ -67,6 +67,9 @@ class LocalSearch:
             if len(node.fanins) not in menus:
                 menus[len(node.fanins)] = _tree_menu(table.trees(len(node.fanins)), len(cells))
         self.trees = {n: menus[len(node.fanins)] for n, node in enumerate(cands.nodes)}
+        # each menu tree's (cell, units) pairs with units, for evaluate's hot loop
+        self.used_units = {id(t): [(c, u) for c, u in enumerate(t.units) if u]
+                           for menu in menus.values() for t in menu}
         self.natural_dec = {d: 1 if cells[ci].active == "low" else 0
                             for d, (ci, _) in enumerate(cands.decoders)}
         self.opt = {s.name: 0 for s in problem.signals}
@@ -96,6 +99,7 @@ class LocalSearch:
         menus = self.trees
         natural_dec = self.natural_dec
         chosen: dict[int, Tree] = {}         # filled for the nodes the design reaches
+        used_units = self.used_units
 
         def tree_of(n: int) -> Tree:
             t = chosen.get(n)
@@ -112,13 +116,16 @@ class LocalSearch:
             return natural_dec[net[1]]
 
         def require(net: tuple, q: int) -> int:
-            d = 0
-            if net[0] == "n":
+            kind = net[0]
+            if kind == "v":
+                d, p = 0, 0
+            elif kind == "n":
                 d = visit(net[1])
-            elif net[0] == "d":
+                p = chosen[net[1]].b ^ nodes[net[1]].invert
+            else:
                 decs.add(net[1])
-                d = 1
-            if q != natural(net):
+                d, p = 1, natural_dec[net[1]]
+            if q != p:
                 if net not in complements:
                     complements[net] = len(complements)
                 d += 1
@@ -129,21 +136,23 @@ class LocalSearch:
                 return depth_of[n]
             depth_of[n] = 0
             t = tree_of(n)
-            for c, u in enumerate(t.units):
-                if u:
-                    units[c] += u
+            for c, u in used_units[id(t)]:
+                units[c] += u
             fanins = nodes[n].fanins
-            first, middle, last = [], [], []
+            # fan-ins whose natural phase differs from the wanted one take the
+            # tree's complemented leaves first, then the others, in fan-in order
+            differ, same = [], []
             for j, (net, c) in enumerate(fanins):
-                p = natural(net)
-                (first if p != c else middle if p == c ^ 1 else last).append(j)
+                (differ if natural(net) != c else same).append(j)
             flips = [0] * len(fanins)
-            for j in (first + middle + last)[:t.n1]:
+            for j in (differ + same)[:t.n1]:
                 flips[j] = 1
             z[n] = tuple(flips)
             deepest = 0
             for (net, c), f in zip(fanins, flips):
-                deepest = max(deepest, require(net, c ^ f))
+                d = require(net, c ^ f)
+                if d > deepest:
+                    deepest = d
             order.append(n)
             depth_of[n] = deepest + t.depth
             return depth_of[n]

@@ -6,6 +6,7 @@ a dynamic programme over the number of fan-ins.
 from __future__ import annotations
 
 from dataclasses import dataclass, replace
+from operator import add, le
 from typing import Iterable, Sequence
 
 from .library import AndKind, Cell, InvKind, and_kinds, inv_kinds
@@ -31,7 +32,7 @@ class Tree:
 
 def _dominates(x: tuple, y: tuple) -> bool:
     """Entry x = (units, n1, depth, shape) is no worse than y in every unit and depth."""
-    return x[2] <= y[2] and all(a <= b for a, b in zip(x[0], y[0]))
+    return x[2] <= y[2] and all(map(le, x[0], y[0]))
 
 
 def _pareto(entries: Iterable[tuple], keep: int) -> list[tuple]:
@@ -49,7 +50,7 @@ def _bump(units: tuple[int, ...], index: int) -> tuple[int, ...]:
 
 
 def _add(u: tuple[int, ...], v: tuple[int, ...]) -> tuple[int, ...]:
-    return tuple(a + b for a, b in zip(u, v))
+    return tuple(map(add, u, v))
 
 
 class TreeTable:
